@@ -1,0 +1,311 @@
+"""The check engine: corners from exactly the inputs each check reads, one array call per check.
+
+For each stage (in link order) and each check of its kind, the engine binds the check's inputs,
+builds every combination of their ends (plus sweeps where a value is not monotonic), calls the
+check's pure function once on the whole corner table, and reduces the rows to a result: status,
+margin, the worst corner, and every named value's nominal, minimum and maximum.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import math
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+import reviewer.stages  # noqa: F401  (registers the stage kinds and checks)
+from checks.core import FAIL, MARGINAL, STATUS_NAMES, Outcome
+from reviewer.checklist import Checklist, standard
+from reviewer.errors import LatchbookError, ProjectError
+from reviewer.fmt import show, to_report
+from reviewer.model import Project, Stage
+from reviewer.registry import CHECKS, Bound, CheckDef, Context, Input, Reduced
+from reviewer.schema import CATALOGUE
+
+HASH_SCHEME = "latchbook.inputs/1"
+MAX_VARYING = 12
+SAMPLED_CORNERS = 4096
+
+
+@dataclass
+class Stat:
+    """A named value over the corners, in its report unit."""
+
+    nominal: float
+    min: float
+    max: float
+    unit: str
+
+    def as_dict(self) -> dict[str, Any]:
+        """JSON form; NaN becomes null."""
+        return {k: _finite(getattr(self, k)) for k in ("nominal", "min", "max")} | {"unit": self.unit}
+
+
+@dataclass
+class Evaluation:
+    """The raw rows behind a result: the corner table and the outcome arrays (SI)."""
+
+    names: list[str]
+    inputs: dict[str, np.ndarray]
+    outcome: Outcome
+    worst_row: int
+
+
+@dataclass
+class Result:
+    """One (stage, check) result."""
+
+    stage: str
+    check: str
+    kind: str
+    status: str
+    margin: float | None
+    summary: str
+    worst: dict[str, str] = field(default_factory=dict)
+    inputs_sha256: str = ""
+    values: dict[str, Stat] = field(default_factory=dict)
+    notes: list[str] = field(default_factory=list)
+    snapshot: dict[str, Any] = field(default_factory=dict)
+    evaluation: Evaluation | None = None
+
+    def as_dict(self) -> dict[str, Any]:
+        """The JSON/record form (checks.md value names)."""
+        return {
+            "stage": self.stage, "check": self.check, "status": self.status,
+            "margin": _finite(self.margin), "summary": self.summary, "worst": self.worst,
+            "inputs_sha256": self.inputs_sha256,
+            "values": {k: v.as_dict() for k, v in self.values.items()},
+        }
+
+
+@dataclass
+class Run:
+    """Every result of one project, with the checklist it was computed against."""
+
+    project: Project
+    checklist: Checklist
+    results: list[Result]
+
+    def by_key(self) -> dict[tuple[str, str], Result]:
+        """Results keyed by (stage, check)."""
+        return {(r.stage, r.check): r for r in self.results}
+
+    @property
+    def failed(self) -> bool:
+        """True when any check fails or errors."""
+        return any(r.status in ("fail", "error") for r in self.results)
+
+
+def _finite(x: float | None) -> float | None:
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return None
+    return float(x)
+
+
+def stage_order(project: Project) -> list[Stage]:
+    """Stages ordered so that every stage comes after the stages it links to.
+
+    Ties keep the file order. A cycle of links is an error naming the stages in it.
+    """
+    links: dict[str, set[str]] = {}
+    for sid, st in project.stages.items():
+        links[sid] = {v for k, v in st.params.items()
+                      if k in ("source", "gate", "across", "for") and isinstance(v, str)
+                      and v in project.stages}
+    done: list[str] = []
+    pending = list(project.stages)
+    while pending:
+        ready = [s for s in pending if links[s] <= set(done)]
+        if not ready:
+            raise ProjectError("stages link to each other in a circle: " + " → ".join(pending))
+        done.append(ready[0])
+        pending.remove(ready[0])
+    return [project.stages[s] for s in done]
+
+
+def build_corners(inputs: Mapping[str, Input], seed: int = 0) -> tuple[dict[str, np.ndarray], list[str], str]:
+    """Row 0 is the nominal; the rest every combination of each varying input's points.
+
+    Returns the arrays, the varying input names and a note ("" unless corners were sampled).
+    """
+    names = list(inputs)
+    points: list[np.ndarray] = []
+    varying: list[str] = []
+    for name in names:
+        inp = inputs[name]
+        v = inp.value
+        if inp.sweep and v.varies:
+            pts = np.linspace(v.lo, v.hi, inp.sweep)
+        elif v.varies:
+            pts = np.array([v.lo, v.hi])
+        else:
+            pts = np.array([v.nom])
+        extra = [x for x in inp.extra if v.lo < x < v.hi]
+        if extra:
+            pts = np.unique(np.concatenate([pts, extra]))
+        if len(pts) > 1:
+            varying.append(name)
+        points.append(pts)
+    note = ""
+    count = math.prod(len(p) for p in points)
+    n_vary_plain = sum(1 for n in varying if not inputs[n].sweep)
+    if n_vary_plain > MAX_VARYING:
+        rng = np.random.default_rng(seed)
+        idx = [rng.integers(0, len(p), SAMPLED_CORNERS) for p in points]
+        # Always include the all-low and all-high corners.
+        idx = [np.concatenate([[0, len(p) - 1], i]) for p, i in zip(points, idx, strict=True)]
+        cols = [p[i] for p, i in zip(points, idx, strict=True)]
+        note = (f"{n_vary_plain} varying inputs: {SAMPLED_CORNERS} sampled corners instead of "
+                f"all {count}")
+    else:
+        grids = np.meshgrid(*points, indexing="ij")
+        cols = [g.ravel() for g in grids]
+    arrays = {}
+    for name, col in zip(names, cols, strict=True):
+        nom = inputs[name].value.nom
+        arrays[name] = np.concatenate([[nom], col])
+    return arrays, varying, note
+
+
+def _canon(x: float) -> float | None:
+    return None if isinstance(x, float) and math.isnan(x) else float(x)
+
+
+def snapshot(check: str, stage: str, bound: Bound) -> dict[str, Any]:
+    """The canonical record of exactly what a check read: paths → SI values, and options."""
+    ins: dict[str, Any] = {}
+    for inp in bound.inputs.values():
+        v = inp.value
+        ins[inp.path] = [_canon(v.nom), _canon(v.lo), _canon(v.hi)]
+    opts = {k: (v if isinstance(v, (str, bool, int, float, type(None))) else repr(v))
+            for k, v in bound.options.items()}
+    return {"scheme": HASH_SCHEME, "stage": stage, "check": check, "inputs": ins, "options": opts}
+
+
+def inputs_hash(snap: Mapping[str, Any]) -> str:
+    """SHA-256 of the canonical JSON of a snapshot (sorted keys, shortest float repr)."""
+    text = json.dumps(snap, sort_keys=True, separators=(",", ":"), allow_nan=False)
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+def _label(path: str) -> str:
+    path = path.split("#")[0]
+    for head in ("stages.", "parts.", "conditions."):
+        if path.startswith(head):
+            return path[len(head):]
+    return path
+
+
+def reduce(defn: CheckDef, bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
+           out: Outcome, limits: Mapping[str, float]) -> tuple[Reduced, int]:
+    """Reduce the rows of one evaluation: overall status, smallest margin, the worst row."""
+    status = out.status.astype(int)
+    margin = np.where(np.isnan(out.margin), -np.inf, out.margin)
+    order = np.lexsort((margin, -status))
+    worst = int(order[0])
+
+    def pick(f: Any) -> dict[str, float]:
+        return {k: float(f(v)) for k, v in out.values.items()}
+
+    with np.errstate(all="ignore"):
+        import warnings
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)
+            lo, hi = pick(np.nanmin), pick(np.nanmax)
+    red = Reduced(
+        status=STATUS_NAMES[int(status.max())],
+        margin=float(out.margin[worst]),
+        nom={k: float(v[0]) for k, v in out.values.items()},
+        lo=lo, hi=hi,
+        worst={k: float(v[worst]) for k, v in out.values.items()},
+        worst_inputs={k: float(arrays[k][worst]) for k in varying},
+        limits=limits, bound=bound, notes=list(dict.fromkeys(bound.notes + out.notes)),
+    )
+    return red, worst
+
+
+def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Checklist,
+                   *, strict: bool = False) -> Result:
+    """Bind, build corners, compute once on arrays, reduce and summarise one check."""
+    if defn.id in checklist.disabled:
+        return Result(stage.id, defn.id, stage.kind, "not-applicable",
+                      None, f"switched off by the checklist: {checklist.disabled[defn.id]}")
+    bound = defn.bind(Context(project, stage))
+    snap = snapshot(defn.id, stage.id, bound)
+    digest = inputs_hash(snap)
+    if bound.not_applicable:
+        return Result(stage.id, defn.id, stage.kind, "not-applicable", None,
+                      bound.not_applicable, inputs_sha256=digest, snapshot=snap)
+    limits = checklist.limits_for(defn.id)
+    try:
+        arrays, varying, note = build_corners(bound.inputs)
+        n = len(next(iter(arrays.values()))) if arrays else 1
+        out = defn.fn(**arrays, **bound.options, limits=limits).broadcast(n)
+        if note:
+            out.notes.append(note)
+        red, worst = reduce(defn, bound, arrays, varying, out, limits)
+        summary = defn.summarise(red)
+    except LatchbookError:
+        raise
+    except Exception as exc:  # a defect in a check: report it as an error result, visibly
+        if strict:
+            raise
+        return Result(stage.id, defn.id, stage.kind, "error", None,
+                      f"the computation failed ({type(exc).__name__}: {exc}); please report it",
+                      inputs_sha256=digest, snapshot=snap)
+    values = {}
+    for name, unit in defn.units.items():
+        if name not in red.nom:
+            continue
+        a, b, c = (to_report(d[name], unit) for d in (red.nom, red.lo, red.hi))
+        values[name] = Stat(a, b, c, unit)
+    worst_txt = {}
+    for name in varying:
+        inp = bound.inputs[name]
+        worst_txt[_label(inp.path)] = show(float(arrays[name][worst]), inp.value.dim)
+    return Result(stage.id, defn.id, stage.kind, red.status,
+                  None if not math.isfinite(red.margin) else red.margin, summary, worst_txt,
+                  digest, values, red.notes, snap,
+                  Evaluation(list(arrays), arrays, out, worst))
+
+
+def evaluate(project: Project, checklist: Checklist | None = None, *,
+             only: Iterable[tuple[str, str]] | None = None, strict: bool = False) -> Run:
+    """Run every check of every stage of ``project`` (or only the given (stage, check) pairs).
+
+    Results come in the project's stage order and the catalogue's check order. A catalogue
+    check that is not built yet is reported as ``not-applicable`` with that reason.
+    """
+    checklist = checklist or standard()
+    wanted = set(only) if only is not None else None
+    stage_order(project)  # validates the link graph
+    results = []
+    for stage in project.stages.values():
+        for cid, kinds in CATALOGUE:
+            if stage.kind not in kinds or (wanted is not None and (stage.id, cid) not in wanted):
+                continue
+            defn = CHECKS.get(cid)
+            if defn is None or stage.kind not in defn.kinds:
+                results.append(Result(stage.id, cid, stage.kind, "not-applicable", None,
+                                      "this check is not available yet in this version"))
+                continue
+            results.append(evaluate_check(defn, project, stage, checklist, strict=strict))
+    return Run(project, checklist, results)
+
+
+def status_counts(results: Iterable[Result]) -> dict[str, int]:
+    """How many results have each status."""
+    counts: dict[str, int] = {}
+    for r in results:
+        counts[r.status] = counts.get(r.status, 0) + 1
+    return counts
+
+
+__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "evaluate",
+           "evaluate_check", "build_corners", "inputs_hash", "snapshot", "stage_order",
+           "status_counts"]

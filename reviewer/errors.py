@@ -1,0 +1,52 @@
+"""The one error family: every message says where the problem is and what to type instead."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Where:
+    """A place in a user's file: the file, the TOML table, the key and (if known) the line."""
+
+    file: str = ""
+    table: str = ""
+    key: str = ""
+    line: int | None = None
+
+    def text(self) -> str:
+        """Render as ``file:line: [table] key``, leaving out what is unknown."""
+        head = self.file or "<input>"
+        if self.line:
+            head += f":{self.line}"
+        parts = [head]
+        if self.table:
+            parts.append(f"[{self.table}]")
+        if self.key:
+            parts.append(f"key `{self.key}`")
+        return " ".join(parts)
+
+    def child(self, key: str, *, table: str | None = None) -> Where:
+        """A place one key further down."""
+        return Where(self.file, self.table if table is None else table, key, self.line)
+
+
+class LatchbookError(Exception):
+    """A problem the user can fix; the message names the place and what to do."""
+
+    def __init__(self, message: str, where: Where | None = None) -> None:
+        self.where = where
+        self.bare = message
+        super().__init__(f"{where.text()}: {message}" if where else message)
+
+
+class ValueGrammarError(LatchbookError):
+    """A value string or table that does not follow the value grammar."""
+
+
+class ProjectError(LatchbookError):
+    """A project, checklist or review file that cannot be loaded as it is."""
+
+
+class RecordError(LatchbookError):
+    """A review record that is broken, locked or changed underneath us."""

@@ -1,0 +1,91 @@
+"""The v1 project format's tables: project, conditions, supply, parts, and the check catalogue.
+
+Stage kinds live beside their checks in :mod:`reviewer.stages`; this module holds the tables
+every project has, the three part types, and the catalogue of check ids (checks.md) so that a
+check not yet built is reported as such rather than silently missing.
+"""
+
+from __future__ import annotations
+
+from reviewer.registry import Param
+
+V = "value"
+
+PROJECT = {
+    "name": Param("text", required=True, help='a name, e.g. name = "Bench kiln controller"'),
+    "revision": Param("text", required=True, help='the design revision, e.g. revision = "C"'),
+    "line": Param("text"),
+    "checklist": Param("text"),
+    "variant_of": Param("text"),
+    "description": Param("text"),
+}
+
+CONDITIONS = {
+    "ambient": Param(V, "temperature", required=True, allow_negative=True, allow_zero=True,
+                     help='ambient = { min = "-10 degC", max = "45 degC" }'),
+    "enclosure_rise": Param(V, "temperature_difference", allow_zero=True),
+}
+
+SUPPLY = {
+    "kind": Param("choice", required=True, choices=("ac", "dc")),
+    "voltage": Param(V, "voltage", required=True, help='voltage = "230 V +10% -10%"'),
+    "frequency": Param(V, "frequency"),
+    "inductance": Param(V, "inductance", allow_zero=True),
+}
+
+PART_TYPES: dict[str, dict[str, Param]] = {
+    "scr": {
+        "vdrm": Param(V, "voltage", required=True), "vrrm": Param(V, "voltage", required=True),
+        "it_rms": Param(V, "current"), "it_av": Param(V, "current"),
+        "itsm": Param(V, "current"), "itsm_duration": Param(V, "time"),
+        "i2t": Param(V, "i2t"), "vt0": Param(V, "voltage", allow_zero=True),
+        "rt": Param(V, "resistance", allow_zero=True), "rth_jc": Param(V, "thermal_resistance"),
+        "tj_max": Param(V, "temperature"), "igt": Param(V, "current", required=True),
+        "vgt": Param(V, "voltage", required=True), "vgd": Param(V, "voltage"),
+        "ih": Param(V, "current"), "il": Param(V, "current"),
+        "dvdt": Param(V, "voltage_rate"), "didt": Param(V, "current_rate"),
+        "tq": Param(V, "time"), "pgm": Param(V, "power"), "pg_av": Param(V, "power"),
+        "vrgm": Param(V, "voltage"), "tgt": Param(V, "time"),
+    },
+    "ujt": {
+        "eta": Param(V, "dimensionless", required=True), "rbb": Param(V, "resistance", required=True),
+        "ip": Param(V, "current", required=True), "iv": Param(V, "current", required=True),
+        "vv": Param(V, "voltage", required=True), "vd": Param(V, "voltage", required=True),
+        "rb1_on": Param(V, "resistance", allow_zero=True), "ie_peak": Param(V, "current"),
+        "pd": Param(V, "power"), "rbb_tempco": Param(V, "tempco", allow_negative=True),
+    },
+    "put": {
+        "ip": Param(V, "current", required=True), "iv": Param(V, "current"),
+        "rg": Param(V, "resistance"), "offset": Param(V, "voltage", required=True),
+        "vv": Param(V, "voltage", required=True), "vf": Param(V, "voltage", required=True),
+        "itrm": Param(V, "current"), "energy": Param(V, "energy"), "pd": Param(V, "power"),
+    },
+}
+PART_COMMON = {"type": Param("choice", required=True, choices=tuple(PART_TYPES)),
+               "description": Param("text")}
+COLD_KEYS = {"at": Param(V, "temperature", required=True, allow_negative=True, allow_zero=True),
+             "igt": Param(V, "current"), "vgt": Param(V, "voltage"),
+             "ih": Param(V, "current"), "il": Param(V, "current")}
+
+OSC = ("ujt-oscillator", "put-oscillator")
+POWER = ("phase-control", "dc-switch")
+TURNOFF = ("line-commutation", "capacitor-commutation", "resonant-commutation")
+
+# The check catalogue (checks.md), in its order: id and the stage kinds it applies to.
+CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
+    ("osc.window", OSC), ("osc.timing", OSC), ("osc.idle-gate", OSC), ("osc.discharge", OSC),
+    ("osc.dissipation", OSC), ("osc.leakage", OSC), ("osc.temp-comp", ("ujt-oscillator",)),
+    ("gate.trigger", ("gate-drive",)), ("gate.peak-power", ("gate-drive",)),
+    ("gate.average-power", ("gate-drive",)), ("gate.latch-time", ("gate-drive",)),
+    ("gate.noise", ("gate-drive",)), ("gate.reverse", ("gate-drive",)),
+    ("gate.transformer", ("gate-drive",)),
+    ("power.output", ("phase-control",)), ("power.blocking", POWER),
+    ("power.rms-current", POWER), ("power.average-current", POWER), ("power.junction", POWER),
+    ("power.surge", ("phase-control",)), ("power.fuse", POWER), ("power.latching", POWER),
+    ("power.holding", POWER), ("power.didt", POWER), ("power.control", ("phase-control",)),
+    ("snubber.dvdt", ("rc-snubber",)), ("snubber.peak-voltage", ("rc-snubber",)),
+    ("snubber.discharge", ("rc-snubber",)), ("snubber.resistor-power", ("rc-snubber",)),
+    ("snubber.capacitor", ("rc-snubber",)), ("snubber.leakage", ("rc-snubber",)),
+    ("turnoff.time", TURNOFF), ("turnoff.capacitor", ("capacitor-commutation", "resonant-commutation")),
+    ("turnoff.peak-current", ("resonant-commutation",)), ("turnoff.reapplied-dvdt", TURNOFF),
+]
