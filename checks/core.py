@@ -36,7 +36,8 @@ class Outcome:
 
     def broadcast(self, n: int) -> Outcome:
         """Return a copy with every array broadcast to shape (n,)."""
-        vals = {k: np.broadcast_to(np.asarray(v, dtype=float), (n,)) for k, v in self.values.items()}
+        vals = {k: np.broadcast_to(np.asarray(v, dtype=float), (n,))
+                for k, v in self.values.items()}
         margin = np.broadcast_to(np.asarray(self.margin, dtype=float), (n,))
         status = np.broadcast_to(np.asarray(self.status, dtype=np.int8), (n,))
         return Outcome(vals, margin, status, list(self.notes))

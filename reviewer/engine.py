@@ -42,7 +42,8 @@ class Stat:
 
     def as_dict(self) -> dict[str, Any]:
         """JSON form; NaN becomes null."""
-        return {k: _finite(getattr(self, k)) for k in ("nominal", "min", "max")} | {"unit": self.unit}
+        out: dict[str, Any] = {k: _finite(getattr(self, k)) for k in ("nominal", "min", "max")}
+        return out | {"unit": self.unit}
 
 
 @dataclass
@@ -127,7 +128,8 @@ def stage_order(project: Project) -> list[Stage]:
     return [project.stages[s] for s in done]
 
 
-def build_corners(inputs: Mapping[str, Input], seed: int = 0) -> tuple[dict[str, np.ndarray], list[str], str]:
+def build_corners(inputs: Mapping[str, Input],
+                  seed: int = 0) -> tuple[dict[str, np.ndarray], list[str], str]:
     """Row 0 is the nominal; the rest every combination of each varying input's points.
 
     Returns the arrays, the varying input names and a note ("" unless corners were sampled).

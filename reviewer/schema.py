@@ -48,7 +48,8 @@ PART_TYPES: dict[str, dict[str, Param]] = {
         "vrgm": Param(V, "voltage"), "tgt": Param(V, "time"),
     },
     "ujt": {
-        "eta": Param(V, "dimensionless", required=True), "rbb": Param(V, "resistance", required=True),
+        "eta": Param(V, "dimensionless", required=True),
+        "rbb": Param(V, "resistance", required=True),
         "ip": Param(V, "current", required=True), "iv": Param(V, "current", required=True),
         "vv": Param(V, "voltage", required=True), "vd": Param(V, "voltage", required=True),
         "rb1_on": Param(V, "resistance", allow_zero=True), "ie_peak": Param(V, "current"),
@@ -86,6 +87,7 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("snubber.dvdt", ("rc-snubber",)), ("snubber.peak-voltage", ("rc-snubber",)),
     ("snubber.discharge", ("rc-snubber",)), ("snubber.resistor-power", ("rc-snubber",)),
     ("snubber.capacitor", ("rc-snubber",)), ("snubber.leakage", ("rc-snubber",)),
-    ("turnoff.time", TURNOFF), ("turnoff.capacitor", ("capacitor-commutation", "resonant-commutation")),
+    ("turnoff.time", TURNOFF),
+    ("turnoff.capacitor", ("capacitor-commutation", "resonant-commutation")),
     ("turnoff.peak-current", ("resonant-commutation",)), ("turnoff.reapplied-dvdt", TURNOFF),
 ]

@@ -1,0 +1,211 @@
+"""The command line: ``latchbook`` and its subcommands. ``main()`` returns the exit code.
+
+Exit codes: 0 nothing fails, 1 a check fails (or a record is broken or stale), 2 bad input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import shutil
+import sys
+import time
+from collections.abc import Sequence
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+from reviewer import TOOL
+from reviewer.errors import LatchbookError
+
+SAFETY_LINE = ("Mains circuits are dangerous: these results support a design review by "
+               "qualified people; they do not make a product compliant with any standard.")
+DEMO = "kiln-230.toml"
+
+
+def _load_run(path: str) -> Any:
+    from reviewer.checklist import load_checklist
+    from reviewer.engine import evaluate
+    from reviewer.project import load_project
+
+    project = load_project(path)
+    checklist = load_checklist(project.checklist, Path(path).parent)
+    return evaluate(project, checklist)
+
+
+def run_json(run: Any) -> dict[str, Any]:
+    """The ``--json`` document of one project's run."""
+    p = run.project
+    return {
+        "project": {"name": p.name, "revision": p.revision, "file": p.path,
+                    "variant_of": p.variant_of or None, "line": p.line or None},
+        "tool": TOOL,
+        "checklist": run.checklist.identity(),
+        "results": [r.as_dict() for r in run.results],
+    }
+
+
+def print_table(run: Any, out: Any = None) -> None:
+    """A readable table of one run on the terminal."""
+    from rich import box
+    from rich.console import Console
+    from rich.table import Table
+    from rich.text import Text
+
+    stream = out or sys.stdout
+    width = None if stream.isatty() else 110
+    console = Console(file=stream, highlight=False, soft_wrap=False, width=width)
+    p = run.project
+    title = f"{p.name} — revision {p.revision}" + (f" (variant of {p.variant_of})"
+                                                    if p.variant_of else "")
+    table = Table(title=title, title_justify="left", expand=True, box=box.SIMPLE_HEAD,
+                  pad_edge=False)
+    table.add_column("stage", no_wrap=True)
+    table.add_column("check", no_wrap=True)
+    table.add_column("status", no_wrap=True)
+    table.add_column("margin", justify="right", no_wrap=True)
+    table.add_column("summary", ratio=1, overflow="fold")
+    styles = {"pass": "green", "marginal": "yellow", "fail": "bold red", "error": "bold magenta",
+              "not-applicable": "dim"}
+    for r in run.results:
+        margin = "" if r.margin is None else f"{r.margin * 100:+.0f} %"
+        shown = "n/a" if r.status == "not-applicable" else r.status
+        table.add_row(Text(r.stage), Text(r.check), Text(shown, style=styles.get(r.status, "")),
+                      Text(margin), Text(r.summary))
+    console.print(table)
+    from reviewer.engine import status_counts
+
+    counts = status_counts(run.results)
+    console.print(Text("  ".join(f"{k}: {v}" for k, v in sorted(counts.items()))))
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    """Compute every check of each project; print a table or JSON."""
+    runs = []
+    started = time.perf_counter()
+    for path in args.projects:
+        runs.append(_load_run(path))
+    if args.record:
+        from reviewer.review import record_results
+
+        for path, run in zip(args.projects, runs, strict=True):
+            record_results(run, Path(path))
+    if args.json:
+        docs = [run_json(r) for r in runs]
+        json.dump(docs[0] if len(docs) == 1 else docs, sys.stdout, indent=2, ensure_ascii=False)
+        sys.stdout.write("\n")
+    else:
+        for run in runs:
+            print_table(run)
+        print(f"{SAFETY_LINE}\n({len(runs)} project(s) in {time.perf_counter() - started:.2f} s)")
+    return 1 if any(_fails(run, path) for run, path in zip(runs, args.projects, strict=True)) else 0
+
+
+def _fails(run: Any, path: str) -> bool:
+    """A check fails without a current waiver (waivers come from the review record)."""
+    failing = {(r.stage, r.check) for r in run.results if r.status in ("fail", "error")}
+    if not failing:
+        return False
+    try:
+        from reviewer.review import check_states, load_record
+    except ImportError:
+        return True
+    states = check_states(load_record(Path(path)), run)
+    return any(getattr(states.get(k), "state", "") != "waived" for k in failing)
+
+
+def demo_copy(dest: Path) -> Path:
+    """Copy the bundled demo projects into ``dest`` (never writing into the package)."""
+    dest.mkdir(parents=True, exist_ok=True)
+    src = resources.files("reviewer").joinpath("data/projects")
+    for item in src.iterdir():
+        target = dest / item.name
+        if item.name.endswith(".toml") and not target.exists():
+            with resources.as_file(item) as f:
+                shutil.copyfile(f, target)
+    return dest / DEMO
+
+
+def cmd_demo(args: argparse.Namespace) -> int:
+    """No arguments: open the demo project, working on a copy in the current folder."""
+    project = demo_copy(Path.cwd() / "latchbook-demo")
+    try:
+        from reviewer.tui.app import run_app
+    except ImportError:
+        run_app = None
+    if run_app is None or not sys.stdout.isatty():
+        print_table(_load_run(str(project)))
+        print(f"\nThe demo project is at {project}.\nOpen it in the workbook with: "
+              f"latchbook open {project}\n{SAFETY_LINE}")
+        return 0
+    return run_app(str(project), read_only=False, mouse=True)
+
+
+def cmd_open(args: argparse.Namespace) -> int:
+    """The workbook on a project."""
+    from reviewer.project import load_project
+
+    load_project(args.project)  # a bad file is reported here, before the screen changes
+    try:
+        from reviewer.tui.app import run_app
+    except ImportError:
+        print("The workbook is not available in this version; use `latchbook check`.",
+              file=sys.stderr)
+        return 2
+    return run_app(args.project, read_only=args.read_only, mouse=not args.no_mouse)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """All subcommands."""
+    parser = argparse.ArgumentParser(
+        prog="latchbook", description="Design-review workbook for thyristor control circuits.",
+        epilog=SAFETY_LINE)
+    parser.add_argument("--version", action="version", version=TOOL)
+    sub = parser.add_subparsers(dest="command")
+
+    p = sub.add_parser("check", help="compute every check of one or more projects")
+    p.add_argument("projects", nargs="+", metavar="PROJECT")
+    p.add_argument("--json", action="store_true", help="JSON on standard output")
+    p.add_argument("--record", action="store_true",
+                   help="store the results in NAME.review.toml beside each project")
+    p.set_defaults(func=cmd_check)
+
+    p = sub.add_parser("open", help="the workbook on a project")
+    p.add_argument("project", metavar="PROJECT")
+    p.add_argument("--read-only", action="store_true", help="look, export, change nothing")
+    p.add_argument("--no-mouse", action="store_true",
+                   help="leave the terminal's own mouse selection alone")
+    p.set_defaults(func=cmd_open)
+
+    try:
+        from reviewer import cli_review
+    except ImportError:
+        cli_review = None  # type: ignore[assignment]
+    if cli_review is not None:
+        cli_review.register(sub)
+    try:
+        from reviewer import cli_line
+    except ImportError:
+        cli_line = None  # type: ignore[assignment]
+    if cli_line is not None:
+        cli_line.register(sub)
+    return parser
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; return the exit code (0, 1 or 2)."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    try:
+        if args.command is None:
+            return cmd_demo(args)
+        return int(args.func(args))
+    except LatchbookError as exc:
+        print(f"latchbook: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())
