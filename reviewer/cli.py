@@ -17,9 +17,9 @@ from typing import Any
 
 from reviewer import TOOL
 from reviewer.errors import LatchbookError
+from reviewer.safety import SHORT
 
-SAFETY_LINE = ("Mains circuits are dangerous: these results support a design review by "
-               "qualified people; they do not make a product compliant with any standard.")
+SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
 
 

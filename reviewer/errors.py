@@ -40,12 +40,12 @@ class LatchbookError(Exception):
         super().__init__(f"{where.text()}: {message}" if where else message)
 
 
-class ValueGrammarError(LatchbookError):
-    """A value string or table that does not follow the value grammar."""
-
-
 class ProjectError(LatchbookError):
     """A project, checklist or review file that cannot be loaded as it is."""
+
+
+class ValueGrammarError(ProjectError):
+    """A value string or table that does not follow the value grammar."""
 
 
 class RecordError(LatchbookError):

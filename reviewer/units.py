@@ -194,7 +194,7 @@ def _check_pct(p: float, where: Where) -> None:
     if not math.isfinite(p) or p < 0:
         raise _err(f"a tolerance must be a positive percentage, not {p}%", where)
     if p >= 100:
-        raise _err(f"a tolerance of {p:g}% or more leaves nothing of the value; "
+        raise _err(f"a tolerance of {p:g}% (100% or more) leaves nothing of the value; "
                    "give a range instead: { min = …, max = … }", where)
 
 

@@ -1,0 +1,46 @@
+"""The cautions shown in the workbook's help, in reports and in the README, and the footer.
+
+They state what the results mean and what they do not: a pass means only that the computed
+margin meets the checklist's limit. Nothing here claims compliance with any standard.
+"""
+
+from __future__ import annotations
+
+CAUTIONS: tuple[tuple[str, str], ...] = (
+    ("Assume everything is live",
+     "Phase-control circuits and most SCR drives are not isolated from the mains: the gate, "
+     "cathode, heatsink and control 'ground' can sit at line potential. Use differential probes "
+     "rated for the working voltage, never an earthed scope ground lead; bring a new board up "
+     "from a current-limited or variable supply."),
+    ("Stored charge outlasts the switch",
+     "Snubber, filter and commutating capacitors can stay charged after switch-off, and a "
+     "resonant network can leave a capacitor above the supply. Fit bleeders to the limits of "
+     "the product's standard and measure before touching."),
+    ("Off is not isolated",
+     "An SCR switch that is off still passes its leakage and the snubber current V·ω·C: an "
+     "'off' load can shock. Use a mechanical disconnect with lockout for maintenance."),
+    ("Isolate the gate drive properly",
+     "Pulse transformers and optocouplers across the barrier must be rated for the working "
+     "voltage and the impulse withstand of the installation's overvoltage category "
+     "(IEC 60664-1). The workbook records isolation figures; it does not derive them."),
+    ("Fuse for the semiconductor",
+     "A general-purpose fuse protects the wiring, not the thyristor. Use a semiconductor-"
+     "protection fuse whose total-clearing I²t is below the device's."),
+    ("Heatsinks are hot and possibly live",
+     "On many packages the tab is the anode: without an insulating pad the heatsink is at line "
+     "potential and must be guarded."),
+    ("Failures that leave the load on",
+     "A shorted SCR or snubber capacitor, or false triggering, energises the load with no "
+     "command. Heaters and motors need an independent cut-out."),
+    ("Qualified people only",
+     "Design, commissioning and servicing of mains equipment are for competent persons; local "
+     "codes may require licensed practitioners. Follow local codes and licensed practice."),
+)
+
+SHORT = ("Mains circuits are dangerous. These results support a design review by qualified "
+         "people; they do not make a product compliant with any standard.")
+
+FOOTER = ("These results are design aids for a review. They compute electrical margins under "
+          "the stated assumptions. They do not show compliance with any safety standard, and "
+          "they do not replace local codes, certification or the judgement of qualified, and "
+          "where required licensed, people.")
