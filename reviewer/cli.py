@@ -33,19 +33,27 @@ def _load_run(path: str) -> Any:
     return evaluate(project, checklist)
 
 
-def run_json(run: Any) -> dict[str, Any]:
-    """The ``--json`` document of one project's run."""
+def run_json(run: Any, yields: dict[tuple[str, str], Any] | None = None) -> dict[str, Any]:
+    """The ``--json`` document of one project's run (with Monte Carlo yields when given)."""
     p = run.project
+    results = []
+    for r in run.results:
+        d = r.as_dict()
+        y = (yields or {}).get((r.stage, r.check))
+        if y is not None:
+            d.update(y.as_dict())
+        results.append(d)
     return {
         "project": {"name": p.name, "revision": p.revision, "file": p.path,
                     "variant_of": p.variant_of or None, "line": p.line or None},
         "tool": TOOL,
         "checklist": run.checklist.identity(),
-        "results": [r.as_dict() for r in run.results],
+        "results": results,
     }
 
 
-def print_table(run: Any, out: Any = None) -> None:
+def print_table(run: Any, out: Any = None,
+                yields: dict[tuple[str, str], Any] | None = None) -> None:
     """A readable table of one run on the terminal."""
     from rich import box
     from rich.console import Console
@@ -64,14 +72,20 @@ def print_table(run: Any, out: Any = None) -> None:
     table.add_column("check", no_wrap=True)
     table.add_column("status", no_wrap=True)
     table.add_column("margin", justify="right", no_wrap=True)
+    if yields:
+        table.add_column("MC fail", justify="right", no_wrap=True)
     table.add_column("summary", ratio=1, overflow="fold")
     styles = {"pass": "green", "marginal": "yellow", "fail": "bold red", "error": "bold magenta",
               "not-applicable": "dim"}
     for r in run.results:
         margin = "" if r.margin is None else f"{r.margin * 100:+.0f} %"
         shown = "n/a" if r.status == "not-applicable" else r.status
-        table.add_row(Text(r.stage), Text(r.check), Text(shown, style=styles.get(r.status, "")),
-                      Text(margin), Text(r.summary))
+        cells = [Text(r.stage), Text(r.check), Text(shown, style=styles.get(r.status, "")),
+                 Text(margin)]
+        if yields:
+            y = yields.get((r.stage, r.check))
+            cells.append(Text("" if y is None else f"{y.fail_fraction * 100:.2f} %"))
+        table.add_row(*cells, Text(r.summary))
     console.print(table)
     from reviewer.engine import status_counts
 
@@ -90,15 +104,34 @@ def cmd_check(args: argparse.Namespace) -> int:
 
         for path, run in zip(args.projects, runs, strict=True):
             record_results(run, Path(path))
+    all_yields = [_yields(run, args) for run in runs]
     if args.json:
-        docs = [run_json(r) for r in runs]
+        docs = [run_json(r, y) for r, y in zip(runs, all_yields, strict=True)]
         json.dump(docs[0] if len(docs) == 1 else docs, sys.stdout, indent=2, ensure_ascii=False)
         sys.stdout.write("\n")
     else:
-        for run in runs:
-            print_table(run)
+        for run, y in zip(runs, all_yields, strict=True):
+            print_table(run, yields=y)
+            if y:
+                n = next(iter(y.values())).samples
+                print(f"Monte Carlo: {n} samples per check, {args.distribution} "
+                      f"(tolerance = 3σ for normal), seed {args.seed}; operating conditions held "
+                      "at each check's worst corner.")
         print(f"{SAFETY_LINE}\n({len(runs)} project(s) in {time.perf_counter() - started:.2f} s)")
     return 1 if any(_fails(run, path) for run, path in zip(runs, args.projects, strict=True)) else 0
+
+
+def _yields(run: Any, args: argparse.Namespace) -> dict[tuple[str, str], Any] | None:
+    if not args.monte_carlo:
+        return None
+    from reviewer.tolerance import monte_carlo
+
+    out = {}
+    for r in run.results:
+        y = monte_carlo(r, args.monte_carlo, seed=args.seed, distribution=args.distribution)
+        if y is not None:
+            out[(r.stage, r.check)] = y
+    return out
 
 
 def _fails(run: Any, path: str) -> bool:
@@ -155,6 +188,16 @@ def cmd_open(args: argparse.Namespace) -> int:
     return run_app(args.project, read_only=args.read_only, mouse=not args.no_mouse)
 
 
+def _positive(text: str) -> int:
+    try:
+        n = int(float(text))
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number of samples") from None
+    if n < 1 or n > 10_000_000:
+        raise argparse.ArgumentTypeError("give between 1 and 10000000 samples")
+    return n
+
+
 def build_parser() -> argparse.ArgumentParser:
     """All subcommands."""
     parser = argparse.ArgumentParser(
@@ -168,6 +211,11 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.add_argument("--record", action="store_true",
                    help="store the results in NAME.review.toml beside each project")
+    p.add_argument("--monte-carlo", type=_positive, default=0, metavar="N",
+                   help="also draw N samples of every toleranced part value per check")
+    p.add_argument("--seed", type=int, default=0, help="seed for --monte-carlo (default 0)")
+    p.add_argument("--distribution", choices=("normal", "uniform"), default="normal",
+                   help="normal with the tolerance as 3σ (default), or uniform")
     p.set_defaults(func=cmd_check)
 
     p = sub.add_parser("open", help="the workbook on a project")
@@ -205,6 +253,12 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 2
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:
+        # The reader (e.g. `head`) went away: stop quietly, as shell tools do.
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
 
 
 if __name__ == "__main__":

@@ -54,6 +54,13 @@ class Evaluation:
     inputs: dict[str, np.ndarray]
     outcome: Outcome
     worst_row: int
+    bound: Bound
+    varying: list[str]
+    limits: Mapping[str, float]
+
+    def call(self, defn: CheckDef, arrays: Mapping[str, np.ndarray]) -> Outcome:
+        """Evaluate the same check on other rows (samples, scaled inputs) in one call."""
+        return call(defn, self.bound, arrays, self.limits)
 
 
 @dataclass
@@ -231,6 +238,13 @@ def reduce(defn: CheckDef, bound: Bound, arrays: dict[str, np.ndarray], varying:
     return red, worst
 
 
+def call(defn: CheckDef, bound: Bound, arrays: Mapping[str, np.ndarray],
+         limits: Mapping[str, float]) -> Outcome:
+    """Call a check's pure function once on whole arrays; every output broadcast to (n,)."""
+    n = len(next(iter(arrays.values()))) if arrays else 1
+    return defn.fn(**arrays, **bound.options, limits=limits).broadcast(n)
+
+
 def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Checklist,
                    *, strict: bool = False) -> Result:
     """Bind, build corners, compute once on arrays, reduce and summarise one check."""
@@ -246,8 +260,7 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     limits = checklist.limits_for(defn.id)
     try:
         arrays, varying, note = build_corners(bound.inputs)
-        n = len(next(iter(arrays.values()))) if arrays else 1
-        out = defn.fn(**arrays, **bound.options, limits=limits).broadcast(n)
+        out = call(defn, bound, arrays, limits)
         if note:
             out.notes.append(note)
         red, worst = reduce(defn, bound, arrays, varying, out, limits)
@@ -273,7 +286,7 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     return Result(stage.id, defn.id, stage.kind, red.status,
                   None if not math.isfinite(red.margin) else red.margin, summary, worst_txt,
                   digest, values, red.notes, snap,
-                  Evaluation(list(arrays), arrays, out, worst))
+                  Evaluation(list(arrays), arrays, out, worst, bound, varying, limits))
 
 
 def evaluate(project: Project, checklist: Checklist | None = None, *,
