@@ -1,13 +1,20 @@
-"""UJT and PUT relaxation oscillators: peak point, charge and discharge, firing angle.
+"""UJT and PUT relaxation oscillators: peak point, charge and discharge, firing angle, checks.
 
-All arguments are SI magnitudes (V, Ω, F, s, A) that broadcast over numpy arrays.
+All arguments are SI magnitudes (V, Ω, F, s, A, W, J, K, rad) that broadcast over numpy arrays;
+every function works on whole corner tables at once. Device parameters for the peak point are
+passed as keywords: UJT ``eta, rbb, r1, r2, vd``; PUT ``r_upper, r_lower, offset``.
 
 References
 ----------
 [1] M. H. Rashid, *Power Electronics: Devices, Circuits, and Applications*, 4th ed., §9 (UJT and
-    PUT trigger circuits, Examples 9.5 and 9.6).
+    PUT trigger circuits, Examples 9.5 and 9.6; the base-2 compensation rule of thumb).
 [2] R. L. Boylestad & L. Nashelsky, *Electronic Devices and Circuit Theory*, ch. 17 (UJT
-    oscillator analysis).
+    oscillator analysis: window, charge and discharge times).
+[3] D. Chattopadhyay & P. C. Rakshit, *Electronics: Fundamentals and Applications*, ch. 16
+    (the period shortcut T ≈ R·C·ln[1/(1 − η)]).
+[4] R. S. Sedha, *A Textbook of Electronic Circuits*, ch. 12 (peak point and standoff ratio).
+[5] Any first-order circuit text: the response of an R–C network to a sinusoidal source is the
+    forced response plus the natural one, v = p(t) + (v0 − p(t0))·e^(−(t − t0)/τ).
 """
 
 from __future__ import annotations
@@ -16,8 +23,20 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from checks.core import FAIL, MARGINAL, PASS, Outcome
+from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, grade
 
+# Coarse grid per half-cycle segment (ramp up, clamp plateau, ramp down) for the first-crossing
+# search; the bisection then refines to machine precision.
+_GRID = (64, 512, 128)
+_BISECT = 60
+_T0C = 273.15
+
+
+def _arr(x: object) -> np.ndarray:
+    return np.asarray(x, dtype=float)
+
+
+# ----------------------------------------------------------------------------- peak point
 
 def ujt_peak_voltage(*, v1: np.ndarray, eta: np.ndarray, rbb: np.ndarray, r1: np.ndarray,
                      r2: np.ndarray, vd: np.ndarray) -> np.ndarray:
@@ -27,20 +46,21 @@ def ujt_peak_voltage(*, v1: np.ndarray, eta: np.ndarray, rbb: np.ndarray, r1: np
     (η·RBB below the emitter point, (1 − η)·RBB above) in series with R1 and R2.
 
     v1 [V] interbase supply; eta [–] intrinsic standoff ratio; rbb [Ω] interbase resistance;
-    r1, r2 [Ω] base-1 and base-2 resistors; vd [V] emitter diode drop.
+    r1, r2 [Ω] base-1 and base-2 resistors; vd [V] emitter diode drop. Valid while the emitter
+    draws no current (up to the peak point).
 
     >>> round(float(ujt_peak_voltage(v1=12, eta=0.6, rbb=5e3, r1=100, r2=0, vd=0.7)), 4)
     7.9941
     """
-    return vd + v1 * (eta * rbb + r1) / (rbb + r1 + r2)
+    return vd + v1 * divider_ratio(device="ujt", eta=eta, rbb=rbb, r1=r1, r2=r2)
 
 
 def put_peak_voltage(*, v1: np.ndarray, r_upper: np.ndarray, r_lower: np.ndarray,
                      offset: np.ndarray) -> np.ndarray:
     """PUT peak-point voltage VP = V1·RGK/(RGA + RGK) + VOFF [V]  [1, §9].
 
-    r_upper [Ω] supply→gate (R_GA); r_lower [Ω] gate→common (R_GK); offset [V] anode above
-    gate at firing.
+    v1 [V] supply; r_upper [Ω] supply→gate (R_GA); r_lower [Ω] gate→common (R_GK); offset [V]
+    anode above gate at firing. Valid while the gate divider is not loaded by the gate current.
 
     >>> float(put_peak_voltage(v1=12, r_upper=5e3, r_lower=10e3, offset=0.7))
     8.7
@@ -48,25 +68,28 @@ def put_peak_voltage(*, v1: np.ndarray, r_upper: np.ndarray, r_lower: np.ndarray
     return v1 * r_lower / (r_upper + r_lower) + offset
 
 
-def charge_time(*, r: np.ndarray, c: np.ndarray, v1: np.ndarray, v0: np.ndarray,
-                vp: np.ndarray) -> np.ndarray:
-    """Time for C charging through R from v0 toward v1 to reach vp [s].
+def divider_ratio(*, device: str, **p: np.ndarray) -> np.ndarray:
+    """The fraction a of the supply that sets the peak point, VP = a·V1 + d [–].
 
-    t = R·C·ln[(V1 − V0)/(V1 − VP)]; NaN where VP ≥ V1 (it never gets there).
+    UJT: a = (η·RBB + R1)/(RBB + R1 + R2) [1]; PUT: a = η_p = RGK/(RGA + RGK) [1].
 
-    >>> round(float(charge_time(r=50e3, c=0.1e-6, v1=12, v0=1, vp=7.99412)) * 1e3, 4)
-    5.0507
+    >>> float(divider_ratio(device="put", r_upper=60e3, r_lower=30e3))
+    0.3333333333333333
     """
-    with np.errstate(invalid="ignore", divide="ignore"):
-        ratio = (v1 - v0) / (v1 - vp)
-        return np.where(ratio > 0, r * c * np.log(np.where(ratio > 0, ratio, 1.0)), np.nan) \
-            * np.where(vp < v1, 1.0, np.nan)
+    if device == "ujt":
+        return (p["eta"] * p["rbb"] + p["r1"]) / (p["rbb"] + p["r1"] + p["r2"])
+    return p["r_lower"] / (p["r_upper"] + p["r_lower"])
 
+
+def _peak_offset(device: str, p: Mapping[str, np.ndarray]) -> np.ndarray:
+    return _arr(p["vd"] if device == "ujt" else p["offset"])
 
 
 def peak_voltage(*, device: str, v1: np.ndarray, **p: np.ndarray) -> np.ndarray:
-    """Peak-point voltage for either device: UJT keys eta, rbb, r1, r2, vd; PUT keys
-    r_upper, r_lower, offset [V].
+    """Peak-point voltage for either device [V]: UJT keys eta, rbb, r1, r2, vd (see
+    :func:`ujt_peak_voltage`); PUT keys r_upper, r_lower, offset (:func:`put_peak_voltage`).
+
+    v1 [V] the supply; other units as in those functions  [1, §9].
 
     >>> float(peak_voltage(device="put", v1=12, r_upper=5e3, r_lower=10e3, offset=0.7))
     8.7
@@ -78,12 +101,347 @@ def peak_voltage(*, device: str, v1: np.ndarray, **p: np.ndarray) -> np.ndarray:
                             offset=p["offset"])
 
 
+def shortcut_eta(*, device: str, **p: np.ndarray) -> np.ndarray:
+    """The ratio the textbook shortcut uses [–]: UJT the intrinsic η; PUT η_p = RGK/(RGA+RGK).
+
+    >>> float(shortcut_eta(device="ujt", eta=0.6))
+    0.6
+    """
+    return _arr(p["eta"]) if device == "ujt" else divider_ratio(device="put", **p)
+
+
+# ----------------------------------------------------------------------------- free running
+
+def charge_time(*, r: np.ndarray, c: np.ndarray, v1: np.ndarray, v0: np.ndarray,
+                vp: np.ndarray) -> np.ndarray:
+    """Time for C charging through R from v0 toward v1 to reach vp [s]  [2].
+
+    t = R·C·ln[(V1 − V0)/(V1 − VP)]; r [Ω], c [F], v1, v0, vp [V]. NaN where VP ≥ V1 (it
+    never gets there) or V0 ≥ VP.
+
+    >>> round(float(charge_time(r=50e3, c=0.1e-6, v1=12, v0=1, vp=7.99412)) * 1e3, 4)
+    5.0507
+    """
+    r, c, v1, v0, vp = (_arr(x) for x in (r, c, v1, v0, vp))
+    ok = (vp < v1) & (v0 < vp)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        ratio = np.where(ok, (v1 - v0) / np.where(ok, v1 - vp, 1.0), 1.0)
+        return np.where(ok, r * c * np.log(ratio), np.nan)
+
+
+def discharge_time(*, r_discharge: np.ndarray, c: np.ndarray, vp: np.ndarray,
+                   vv: np.ndarray) -> np.ndarray:
+    """Discharge time from the peak point to the valley, t2 = R_dis·C·ln(VP/VV) [s]  [2].
+
+    r_discharge [Ω]: UJT r_on + R1, PUT R_K; c [F]; vp, vv [V]. Approximate: the device's
+    on-resistance varies with its current. NaN where VP ≤ VV.
+
+    >>> round(float(discharge_time(r_discharge=200, c=0.1e-6, vp=7.9941, vv=1)) * 1e6, 2)
+    41.57
+    """
+    vp, vv = _arr(vp), _arr(vv)
+    ok = (vp > vv) & (vv > 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(ok, r_discharge * c * np.log(np.where(ok, vp / np.where(ok, vv, 1.0),
+                                                              1.0)), np.nan)
+
+
+def free_running(*, device: str, v1: np.ndarray, rt: np.ndarray, ct: np.ndarray,
+                 vv: np.ndarray, r_discharge: np.ndarray,
+                 **peak_params: np.ndarray) -> dict[str, np.ndarray]:
+    """Steady-state free-running timing: charge from VV to VP, discharge back to VV  [1, 2, 3].
+
+    charge_time t1 = R_T·C_T·ln[(V1 − VV)/(V1 − VP)]; discharge_time t2 = R_dis·C_T·ln(VP/VV);
+    period T = t1 + t2; frequency 1/T; approx_period = R_T·C_T·ln[1/(1 − η)] (the shortcut, η
+    the intrinsic ratio for a UJT, η_p for a PUT). Also returns ``peak_voltage`` [V].
+
+    device "ujt" or "put"; v1 [V]; rt [Ω]; ct [F]; vv [V]; r_discharge [Ω] (UJT r_on + R1, PUT
+    R_K); peak_params as in :func:`peak_voltage`. NaN where the device never fires (VP ≥ V1).
+
+    >>> out = free_running(device="ujt", v1=12.0, rt=50e3, ct=0.1e-6, vv=1.0, r_discharge=200.0,
+    ...                    eta=0.6, rbb=5e3, r1=100.0, r2=0.0, vd=0.7)
+    >>> round(float(out["period"]) * 1e3, 4), round(float(out["frequency"]), 2)
+    (5.0922, 196.38)
+    >>> round(1 / float(out["approx_period"]), 2)
+    218.27
+    """
+    vp = peak_voltage(device=device, v1=v1, **peak_params)
+    t1 = charge_time(r=rt, c=ct, v1=v1, v0=vv, vp=vp)
+    t2 = discharge_time(r_discharge=r_discharge, c=ct, vp=vp, vv=vv)
+    period = t1 + t2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        freq = 1.0 / period
+        approx = _arr(rt) * ct * np.log(1.0 / (1.0 - shortcut_eta(device=device,
+                                                                    **peak_params)))
+    return {"charge_time": t1, "discharge_time": t2, "period": period, "frequency": freq,
+            "approx_period": approx, "peak_voltage": vp}
+
+
+# ----------------------------------------------------------------------------- line sync
+
+def _forced(t: np.ndarray, vm: np.ndarray, omega: np.ndarray, tau: np.ndarray) -> np.ndarray:
+    """Forced (particular) response of τ·v' + v = Vm·sin ωt."""
+    wt = omega * tau
+    return vm / (1.0 + wt * wt) * (np.sin(omega * t) - wt * np.cos(omega * t))
+
+
+def _sine_resp(t: np.ndarray, t0: np.ndarray, v0: np.ndarray, vm: np.ndarray,
+               omega: np.ndarray, tau: np.ndarray) -> np.ndarray:
+    return _forced(t, vm, omega, tau) + (v0 - _forced(t0, vm, omega, tau)) * \
+        np.exp(-(t - t0) / tau)
+
+
+def _plateau_resp(t: np.ndarray, t0: np.ndarray, v0: np.ndarray, vz: np.ndarray,
+                  tau: np.ndarray) -> np.ndarray:
+    return vz - (vz - v0) * np.exp(-(t - t0) / tau)
+
+
+def clamp_onset(*, vm: np.ndarray, vz: np.ndarray) -> np.ndarray:
+    """Clamp onset angle θz = asin(VZ/Vm) [rad]; π/2 where VZ ≥ Vm (the clamp never acts).
+
+    vm [V] peak of the rectified line; vz [V] clamp (Zener) voltage.
+
+    >>> round(float(np.degrees(clamp_onset(vm=230 * 2 ** 0.5, vz=20.0))), 3)
+    3.525
+    """
+    return np.arcsin(np.clip(_arr(vz) / _arr(vm), 0.0, 1.0))
+
+
+def _last(x: np.ndarray) -> np.ndarray:
+    """Add a trailing axis (rows → rows × grid points)."""
+    return np.asarray(x)[..., None]
+
+
+class _LineSync:
+    """The piecewise-analytic capacitor voltage of a line-synchronised oscillator.
+
+    Half-cycle 0 ≤ t ≤ π/ω: ramp up Vm·sin ωt until tz = θz/ω, plateau VZ until π/ω − tz, ramp
+    down. State given at (t0, v0); every array broadcasts over rows.
+    """
+
+    def __init__(self, *, vm: np.ndarray, omega: np.ndarray, vz: np.ndarray, tau: np.ndarray,
+                 t0: np.ndarray, v0: np.ndarray) -> None:
+        self.vm, self.omega, self.vz, self.tau = vm, omega, vz, tau
+        self.tz = clamp_onset(vm=vm, vz=vz) / omega
+        self.t3 = np.pi / omega - self.tz
+        self.t_end = np.pi / omega
+        self.vz_eff = np.minimum(vz, vm)
+        self.t0, self.v0 = t0, v0
+        # state entering the plateau and entering the falling ramp
+        on_ramp = t0 < self.tz
+        self.tb = np.where(on_ramp, self.tz, t0)
+        self.vb = np.where(on_ramp, _sine_resp(self.tz, t0, v0, vm, omega, tau), v0)
+        on_plateau = self.tb < self.t3
+        self.tc = np.where(on_plateau, self.t3, self.tb)
+        self.vc = np.where(on_plateau, _plateau_resp(self.t3, self.tb, self.vb, self.vz_eff, tau),
+                           self.vb)
+
+    def supply(self, t: np.ndarray) -> np.ndarray:
+        """V_b at times ``t`` of shape (rows…, N)."""
+        e = _last
+        return np.minimum(e(self.vm) * np.abs(np.sin(e(self.omega) * t)), e(self.vz_eff))
+
+    def v(self, t: np.ndarray) -> np.ndarray:
+        """v_C at times ``t`` of shape (rows…, N), t ≥ t0."""
+        e = _last
+        vm, om, tau = e(self.vm), e(self.omega), e(self.tau)
+        with np.errstate(over="ignore", invalid="ignore"):
+            up = _sine_resp(t, e(self.t0), e(self.v0), vm, om, tau)
+            flat = _plateau_resp(t, e(self.tb), e(self.vb), e(self.vz_eff), tau)
+            down = _sine_resp(t, e(self.tc), e(self.vc), vm, om, tau)
+        return np.where(t <= e(self.tz), up, np.where(t <= e(self.t3), flat, down))
+
+    def grid(self) -> np.ndarray:
+        """Search points from t0 to the end of the half-cycle, dense in each segment: (n, N)."""
+        edges = [(self.t0, np.maximum(self.tz, self.t0)),
+                 (np.maximum(self.tz, self.t0), np.maximum(self.t3, self.t0)),
+                 (np.maximum(self.t3, self.t0), self.t_end)]
+        cols = []
+        for (a, b), n in zip(edges, _GRID, strict=True):
+            u = np.linspace(0.0, 1.0, n)
+            cols.append(a[..., None] + (b - a)[..., None] * u)
+        return np.concatenate(cols, axis=-1)
+
+
+def _first_crossing(ls: _LineSync, a: np.ndarray, d: np.ndarray) -> np.ndarray:
+    """First t ≥ t0 in the half-cycle where v_C reaches a·V_b(t) + d; NaN when it does not."""
+    g_of = lambda t: ls.v(t) - (_last(a) * ls.supply(t) + _last(d))  # noqa: E731
+    tg = ls.grid()
+    g = g_of(tg)
+    hit = g >= 0.0
+    any_hit = hit.any(axis=-1)
+    k = np.argmax(hit, axis=-1)
+    hi = np.take_along_axis(tg, k[..., None], axis=-1)[..., 0]
+    lo = np.take_along_axis(tg, np.maximum(k - 1, 0)[..., None], axis=-1)[..., 0]
+    g_of1 = lambda t: g_of(t[..., None])[..., 0]  # noqa: E731
+    for _ in range(_BISECT):
+        mid = 0.5 * (lo + hi)
+        up = g_of1(mid) >= 0.0
+        hi = np.where(up, mid, hi)
+        lo = np.where(up, lo, mid)
+    t_fire = np.where(k == 0, tg[..., 0], hi)
+    return np.where(any_hit, t_fire, np.nan)
+
+
+def _line_rows(vm: object, omega: object, vz: object, rt: object, ct: object,
+               peak_params: Mapping[str, object]) -> tuple[np.ndarray, ...]:
+    arrays = [_arr(x) for x in (vm, omega, vz, rt, ct, *peak_params.values())]
+    shape = np.broadcast_shapes(*(x.shape for x in arrays))
+    vm, omega, vz, rt, ct = (np.broadcast_to(x, shape).astype(float) for x in arrays[:5])
+    return vm, omega, vz, rt * ct, shape
+
+
+def line_sync_firing_angle(*, device: str, vm: np.ndarray, omega: np.ndarray, vz: np.ndarray,
+                           rt: np.ndarray, ct: np.ndarray,
+                           **peak_params: np.ndarray) -> np.ndarray:
+    """Firing angle of a line-synchronised oscillator: the first pulse after the zero [rad].
+
+    The capacitor starts from 0 V at the zero crossing and charges through R_T from the
+    clamped supply V_b(t) = min(Vm·|sin ωt|, VZ): R_T·C_T·dv/dt = V_b − v. It fires at the
+    first t where v reaches the instantaneous peak point a·V_b(t) + d (UJT a = (η·RBB + R1)/
+    (RBB + R1 + R2), d = VD; PUT a = η_p, d = VOFF); α = ω·t  [1, §9], [5]. Solved exactly:
+    during the ramps v = p(t) + (v0 − p(t0))·e^(−(t−t0)/τ) with p the forced response
+    Vm/(1 + ω²τ²)·(sin ωt − ωτ·cos ωt); on the plateau v = VZ − (VZ − v0)·e^(−(t−t0)/τ). The
+    first crossing is found on a coarse grid and refined by bisection, all rows at once.
+
+    device "ujt"/"put"; vm [V] peak of the rectified line; omega [rad/s]; vz [V]; rt [Ω];
+    ct [F]; peak_params as in :func:`peak_voltage`. NaN where it does not fire in the half-cycle.
+    Valid for a stiff clamp (the dropping resistor's drop before the Zener conducts neglected)
+    and a capacitor fully discharged at each zero crossing.
+
+    >>> a = line_sync_firing_angle(device="ujt", vm=230 * 2 ** 0.5, omega=2 * np.pi * 50,
+    ...     vz=20.0, rt=np.array([10e3, 22e3, 47e3]), ct=0.1e-6, eta=0.63, rbb=7e3, r1=0.0,
+    ...     r2=0.0, vd=0.5)
+    >>> np.degrees(a).round(2).tolist()
+    [20.95, 43.92, 91.8]
+    """
+    vm, omega, vz, tau, shape = _line_rows(vm, omega, vz, rt, ct, peak_params)
+    a = np.broadcast_to(divider_ratio(device=device, **peak_params), shape).astype(float)
+    d = np.broadcast_to(_peak_offset(device, peak_params), shape).astype(float)
+    zero = np.zeros(shape)
+    ls = _LineSync(vm=vm, omega=omega, vz=vz, tau=tau, t0=zero, v0=zero)
+    return omega * _first_crossing(ls, a, d)
+
+
+def firing_angle_shortcut(*, vm: np.ndarray, omega: np.ndarray, vz: np.ndarray,
+                          rt: np.ndarray, ct: np.ndarray, vp: np.ndarray) -> np.ndarray:
+    """The textbook estimate α ≈ θz + ω·R_T·C_T·ln[VZ/(VZ − VP)] [rad]  [1, §9].
+
+    Late by about θz/2 (the capacitor already charges on the ramp); reported beside the exact
+    :func:`line_sync_firing_angle`. vm, vz, vp [V]; omega [rad/s]; rt [Ω]; ct [F].
+
+    >>> round(float(np.degrees(firing_angle_shortcut(vm=230 * 2 ** 0.5, omega=2 * np.pi * 50,
+    ...     vz=20.0, rt=10e3, ct=0.1e-6, vp=13.1))), 2)
+    22.68
+    """
+    t1 = charge_time(r=rt, c=ct, v1=vz, v0=0.0, vp=vp)
+    return clamp_onset(vm=vm, vz=vz) + omega * t1
+
+
+def capacitor_waveform(*, device: str, rt: float, ct: float, vv: float, r_discharge: float,
+                       v1: float | None = None, vm: float | None = None,
+                       omega: float | None = None, vz: float | None = None, periods: float = 3.0,
+                       points: int = 2000, **peak_params: float) -> dict[str, np.ndarray]:
+    """The timing capacitor's voltage for plotting, with the peak point and the pulse times.
+
+    Free-running (give ``v1``): steady state from VV over ``periods`` periods; the charge is
+    V1 − (V1 − VV)·e^(−t/(R_T·C_T)), the discharge VP·e^(−t/(R_dis·C_T)) down to VV  [2].
+    Line-synchronised (give ``vm``, ``omega``, ``vz``): one half-cycle from 0 V, the first pulse
+    at :func:`line_sync_firing_angle`, then free-running pulses from VV on the clamped supply
+    until the half-cycle ends  [1, §9], [5].
+
+    Returns numpy arrays ``t`` [s], ``v_c`` [V], ``v_peak_point`` [V], ``supply`` [V] (the
+    clamped supply for line sync, V1 otherwise) and ``pulse_times`` [s]. Scalars only (one
+    design point); units as in :func:`free_running` and :func:`line_sync_firing_angle`.
+
+    >>> w = capacitor_waveform(device="ujt", v1=12.0, rt=50e3, ct=0.1e-6, vv=1.0,
+    ...     r_discharge=200.0, eta=0.6, rbb=5e3, r1=100.0, r2=0.0, vd=0.7)
+    >>> len(w["pulse_times"]), round(float(w["v_c"].max()), 2)
+    (3, 7.99)
+    """
+    pp = {k: float(v) for k, v in peak_params.items()}
+    if vm is None:
+        if v1 is None:
+            raise ValueError("give v1 (free-running) or vm, omega and vz (line sync)")
+        fr = free_running(device=device, v1=v1, rt=rt, ct=ct, vv=vv, r_discharge=r_discharge,
+                          **pp)
+        t1, t2, vp = (float(fr[k]) for k in ("charge_time", "discharge_time", "peak_voltage"))
+        period = t1 + t2
+        if not np.isfinite(period):
+            t = np.linspace(0.0, 5 * rt * ct, points)
+            vc = v1 - (v1 - vv) * np.exp(-t / (rt * ct))
+            return {"t": t, "v_c": vc, "v_peak_point": np.full_like(t, vp),
+                    "supply": np.full_like(t, v1), "pulse_times": np.array([])}
+        t = np.linspace(0.0, periods * period, points)
+        ph = np.mod(t, period)
+        charging = ph < t1
+        vc = np.where(charging, v1 - (v1 - vv) * np.exp(-ph / (rt * ct)),
+                      vp * np.exp(-(ph - t1) / (r_discharge * ct)))
+        pulses = t1 + period * np.arange(int(np.floor(periods - t1 / period)) + 1)
+        return {"t": t, "v_c": vc, "v_peak_point": np.full_like(t, vp),
+                "supply": np.full_like(t, v1), "pulse_times": pulses[pulses <= t[-1]]}
+    if omega is None or vz is None:
+        raise ValueError("line sync needs vm, omega and vz")
+    a = float(divider_ratio(device=device, **pp))
+    d = float(_peak_offset(device, pp))
+    tau = rt * ct
+    t_half = np.pi / omega
+    t = np.linspace(0.0, t_half, points)
+    vc = np.empty_like(t)
+    pulses: list[float] = []
+    t0, v0 = 0.0, 0.0
+    # Successive pulses are sequential in time: one loop step per pulse of one design point.
+    for _ in range(1000):
+        ls = _LineSync(vm=np.array(vm), omega=np.array(omega), vz=np.array(vz),
+                       tau=np.array(tau), t0=np.array(t0), v0=np.array(v0))
+        tf = float(_first_crossing(ls, np.array(a), np.array(d)))
+        seg = (t >= t0) & (t <= (tf if np.isfinite(tf) else t_half))
+        vc[seg] = ls.v(t[seg])
+        if not np.isfinite(tf) or (pulses and tf <= t0):
+            break  # no further pulse (or the peak point fell below VV: no fresh charge cycle)
+        vpk = float(ls.v(np.array([tf]))[0])
+        if pulses and vpk <= 1.01 * vv:
+            break  # the peak point has collapsed onto the valley: the device stays on
+        pulses.append(tf)
+        t_dis = float(discharge_time(r_discharge=r_discharge, c=ct, vp=vpk, vv=vv))
+        if not np.isfinite(t_dis):
+            break
+        seg = (t > tf) & (t <= tf + t_dis)
+        vc[seg] = vpk * np.exp(-(t[seg] - tf) / (r_discharge * ct))
+        t0, v0 = tf + t_dis, vv
+        if t0 >= t_half:
+            break
+    ls0 = _LineSync(vm=np.array(vm), omega=np.array(omega), vz=np.array(vz), tau=np.array(tau),
+                    t0=np.array(0.0), v0=np.array(0.0))
+    vb = ls0.supply(t)
+    return {"t": t, "v_c": vc, "v_peak_point": a * vb + d, "supply": vb,
+            "pulse_times": np.array(pulses)}
+
+
+def ripple_shift(*, v1: np.ndarray, vp: np.ndarray, rt: np.ndarray, ct: np.ndarray,
+                 a: np.ndarray, ripple: np.ndarray) -> np.ndarray:
+    """Shift of the firing instant for a supply ripple ΔV1: Δt ≈ a·ΔV1/(dv_C/dt at VP) [s]  [1].
+
+    dv_C/dt = (V1 − VP)/(R_T·C_T); a [–] the peak-point fraction of the supply (η for the
+    shortcut); v1, vp, ripple [V]; rt [Ω]; ct [F]. Small-signal: valid for ΔV1 ≪ V1 − VP.
+
+    >>> round(float(ripple_shift(v1=30, vp=15.8, rt=46.728e3, ct=0.5e-6, a=0.51, ripple=1.0))
+    ...       * 1e3, 3)
+    0.839
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return a * ripple * rt * ct / (v1 - vp)
+
+
+# ----------------------------------------------------------------------------- the checks
+
 def window(*, v1: np.ndarray, vp: np.ndarray, vv: np.ndarray, ip: np.ndarray,
            iv: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """The oscillation window for the timing resistor: (r_min, r_max) [Ω].
 
     r_min = (V1 − VV)/IV (below it the resistor holds the device on past the valley) and
     r_max = (V1 − VP)/IP (above it the resistor cannot supply IP at the peak)  [1, §9]; [2].
+    v1, vp, vv [V]; ip, iv [A].
 
     >>> r_min, r_max = window(v1=12, vp=7.9941, vv=1, ip=10e-6, iv=10e-3)
     >>> round(float(r_min)), round(float(r_max) / 1e3, 1)
@@ -94,12 +452,14 @@ def window(*, v1: np.ndarray, vp: np.ndarray, vv: np.ndarray, ip: np.ndarray,
 
 def window_check(*, device: str, v1: np.ndarray, rt: np.ndarray, vv: np.ndarray,
                  ip: np.ndarray, iv: np.ndarray, limits: Mapping[str, float],
-                 **p: np.ndarray) -> Outcome:
+                 rg: np.ndarray | float = np.nan, **p: np.ndarray) -> Outcome:
     """``osc.window``: is the timing resistor inside the oscillation window at every corner?
 
-    Margin per row = min(R_T/r_min − 1, r_max/(k·R_T) − 1) with k = ``fail_below`` (1.2);
-    marginal when R_T > r_max/``marginal_below`` (2). Device parameters as in
-    :func:`peak_voltage`.
+    r_min = (V1 − VV)/IV < R_T < r_max = (V1 − VP)/IP  [1, §9], [2]. Margin per row =
+    min(R_T/r_min − 1, r_max/(k·R_T) − 1) with k = ``fail_below`` (1.2); marginal when
+    R_T > r_max/``marginal_below`` (2). A NaN IV (no guaranteed valley current) fails: turn-off
+    is not assured. For a PUT, ``rg`` [Ω] (the R_G the part data were taken at) is compared
+    with R_GA∥R_GK and a mismatch over 10 % is noted. Units as in :func:`window`; rt [Ω].
 
     >>> out = window_check(device="ujt", v1=np.array([12.0]), rt=np.array([50e3]), vv=1.0,
     ...                    ip=10e-6, iv=10e-3, eta=0.6, rbb=5e3, r1=100.0, r2=0.0, vd=0.7,
@@ -114,8 +474,353 @@ def window_check(*, device: str, v1: np.ndarray, rt: np.ndarray, vv: np.ndarray,
     with np.errstate(divide="ignore", invalid="ignore"):
         low = rt / r_min - 1.0
         high = r_max / (k_fail * rt) - 1.0
-    margin = np.minimum(low, high)
-    status = np.where((rt <= r_min) | (rt * k_fail > r_max), FAIL,
+    bad = np.isnan(r_min) | np.isnan(r_max) | (r_max <= 0)
+    margin = np.where(bad, -1.0, np.minimum(low, high))
+    status = np.where(bad | (rt <= r_min) | (rt * k_fail > r_max), FAIL,
                       np.where(rt * k_marg > r_max, MARGINAL, PASS)).astype(np.int8)
+    notes = []
+    if np.isnan(_arr(iv)).any():
+        notes.append("no guaranteed valley current at this R_G: turn-off is not assured")
+    rg = _arr(rg)
+    if device == "put" and np.isfinite(rg).any():
+        r_g = p["r_upper"] * p["r_lower"] / (p["r_upper"] + p["r_lower"])
+        rel = np.abs(_arr(r_g) / rg - 1.0)
+        if np.nanmax(rel) > 0.10:
+            notes.append(f"IP and IV were taken at R_G = {float(np.ravel(rg)[0]) / 1e3:.3g} kΩ "
+                         f"but this circuit has R_G = {float(np.ravel(r_g)[0]) / 1e3:.3g} kΩ: "
+                         "enter the part's IP and IV for this R_G")
     return Outcome({"peak_voltage": vp, "r_min": r_min, "r_max": r_max, "timing_r": rt},
+                   margin, status, notes)
+
+
+def _coverage(lo_end: np.ndarray, hi_end: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray,
+              rt: np.ndarray, rt_lo: np.ndarray, rt_hi: np.ndarray,
+              lo_at_rt_lo: bool) -> np.ndarray:
+    """Ratio ≥ 1 when the produced range [lo_end, hi_end] covers the target [t_lo, t_hi].
+
+    Rows at an end of the R_T span carry the ratio of the end that R_T sets (so the worst
+    corner names the R_T end at fault); other rows carry the smaller of the two.
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        m_lo = np.where(lo_end > 0, t_lo / lo_end, np.where(t_lo > 0, np.inf, 1.0))
+        m_hi = hi_end / t_hi
+    both = np.minimum(m_lo, m_hi)
+    m_at_lo, m_at_hi = (m_lo, m_hi) if lo_at_rt_lo else (m_hi, m_lo)
+    return np.where(rt <= rt_lo, m_at_lo, np.where(rt >= rt_hi, m_at_hi, both))
+
+
+def _inside(x: np.ndarray, t_lo: np.ndarray, t_hi: np.ndarray) -> np.ndarray:
+    """Ratio ≥ 1 when x lies inside the target [t_lo, t_hi]."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.minimum(np.where(t_lo > 0, x / t_lo, np.inf), t_hi / x)
+
+
+def timing_check(*, device: str, v1: np.ndarray, rt: np.ndarray, ct: np.ndarray,
+                 vv: np.ndarray, r_discharge: np.ndarray, limits: Mapping[str, float],
+                 sync: str = "free", adjustable: bool = False, rt_lo: np.ndarray | float = np.nan,
+                 rt_hi: np.ndarray | float = np.nan, target_lo: np.ndarray | float = np.nan,
+                 target_hi: np.ndarray | float = np.nan, line_v: np.ndarray | float = np.nan,
+                 line_f: np.ndarray | float = np.nan, ripple: np.ndarray | float = np.nan,
+                 **p: np.ndarray) -> Outcome:
+    """``osc.timing``: the period (free-running) or the firing angle (line sync) and the target.
+
+    Free-running: :func:`free_running` at V1 (line sync: at V1 = VZ, the rate inside the clamp
+    window). Line sync: ``firing_angle`` by :func:`line_sync_firing_angle` with Vm = √2·line_v
+    (line_v [V] RMS), ω = 2π·line_f (line_f [Hz]) and v1 = VZ  [1, §9], [2], [3].
+
+    Target (``target_lo``, ``target_hi``; Hz free-running, rad line sync; NaN: none): with an
+    ``adjustable`` R_T (ends ``rt_lo``, ``rt_hi`` [Ω]) the range the R_T span gives must cover
+    the target at every corner; with a fixed R_T every corner must lie inside it. The metric is
+    the smaller ratio of the two ends (≥ 1 passes), graded with ``fail_below``. Without a target
+    only a device that never fires fails. ``ripple`` [V] adds ``ripple_shift`` [s].
+    Other units as in :func:`free_running`; ct [F].
+
+    >>> out = timing_check(device="ujt", v1=np.array([12.0]), rt=50e3, ct=0.1e-6, vv=1.0,
+    ...     r_discharge=200.0, eta=0.6, rbb=5e3, r1=100.0, r2=0.0, vd=0.7, target_lo=150.0,
+    ...     target_hi=250.0, limits={"fail_below": 1.0, "marginal_below": 1.0})
+    >>> out.status.tolist(), round(float(out.values["frequency"][0]), 2)
+    ([0], 196.38)
+    """
+    fr = free_running(device=device, v1=v1, rt=rt, ct=ct, vv=vv, r_discharge=r_discharge, **p)
+    values = {k: fr[k] for k in ("period", "frequency", "charge_time", "discharge_time",
+                                 "approx_period")}
+    vp = fr["peak_voltage"]
+    values["peak_voltage"] = vp
+    a = divider_ratio(device=device, **p)
+    t_lo, t_hi = _arr(target_lo), _arr(target_hi)
+    has_target = bool(np.isfinite(t_lo).all() and np.isfinite(t_hi).all())
+    notes: list[str] = []
+    if sync == "line":
+        vm, omega = np.sqrt(2.0) * _arr(line_v), 2.0 * np.pi * _arr(line_f)
+        alpha = line_sync_firing_angle(device=device, vm=vm, omega=omega, vz=v1, rt=rt, ct=ct,
+                                       **p)
+        values["firing_angle"] = alpha
+        values["firing_angle_shortcut"] = firing_angle_shortcut(vm=vm, omega=omega, vz=v1,
+                                                                rt=rt, ct=ct, vp=vp)
+        values["clamp_onset"] = clamp_onset(vm=vm, vz=v1) + 0.0 * alpha
+        late = np.pi  # no pulse in the half-cycle: the SCR is not fired (as late as it gets)
+        if adjustable:
+            a_lo = line_sync_firing_angle(device=device, vm=vm, omega=omega, vz=v1, rt=rt_lo,
+                                          ct=ct, **p)
+            a_hi = line_sync_firing_angle(device=device, vm=vm, omega=omega, vz=v1, rt=rt_hi,
+                                          ct=ct, **p)
+            values["covered_lo"], values["covered_hi"] = a_lo, np.where(np.isnan(a_hi), late, a_hi)
+            metric = _coverage(a_lo, values["covered_hi"], t_lo, t_hi, rt, rt_lo, rt_hi, True)
+        else:
+            metric = _inside(alpha, t_lo, t_hi)
+        if not np.isfinite(alpha).all():
+            notes.append("no firing in this half-cycle at some corners")
+        # adjustable: the R_T max end may legitimately not fire (full off); R_T min must
+        never = ~np.isfinite(values["covered_lo"] if adjustable else alpha)
+    else:
+        if adjustable:
+            f_fast = free_running(device=device, v1=v1, rt=rt_lo, ct=ct, vv=vv,
+                                  r_discharge=r_discharge, **p)["frequency"]
+            f_slow = free_running(device=device, v1=v1, rt=rt_hi, ct=ct, vv=vv,
+                                  r_discharge=r_discharge, **p)["frequency"]
+            values["covered_lo"], values["covered_hi"] = f_slow, f_fast
+            metric = _coverage(f_slow, f_fast, t_lo, t_hi, rt, rt_lo, rt_hi, False)
+        else:
+            metric = _inside(fr["frequency"], t_lo, t_hi)
+        never = ~np.isfinite(fr["period"])
+    if np.isfinite(_arr(ripple)).all():
+        values["ripple_shift"] = ripple_shift(v1=v1, vp=vp, rt=rt, ct=ct, a=a, ripple=ripple)
+    if has_target:
+        margin, status = grade(metric, limits)
+    else:
+        margin = np.where(never, -1.0, np.nan)
+        status = np.where(never, FAIL, PASS).astype(np.int8)
+        notes.append("no target given: reported, not judged")
+    status = np.where(never, FAIL, status).astype(np.int8)
+    margin = np.where(never, -1.0, margin)
+    return Outcome(values, margin, status, notes)
+
+
+def idle_gate_check(*, device: str, vgd: np.ndarray, series_r: np.ndarray,
+                    limits: Mapping[str, float], gate_cathode_r: np.ndarray | float = np.inf,
+                    v1: np.ndarray | float = np.nan, rbb: np.ndarray | float = np.nan,
+                    r1: np.ndarray | float = np.nan, r2: np.ndarray | float = 0.0,
+                    ip: np.ndarray | float = np.nan,
+                    cathode_r: np.ndarray | float = np.nan) -> Outcome:
+    """``osc.idle-gate``: the idle voltage the oscillator leaves on a directly coupled gate.
+
+    UJT: V_idle = R1·V1/(R1 + RBB + R2) (the interbase current through R1); at the gate with a
+    gate–cathode resistor R_GKx: v_GK = V_idle·R_GKx/(R1∥(RBB + R2) + R_S + R_GKx)  [1, §9].
+    PUT: the pre-firing anode current IP into R_K: v_GK = IP·(R_K∥(R_S + R_GKx))·R_GKx/
+    (R_S + R_GKx), or IP·R_K without R_GKx. Metric VGD/v_GK graded with ``fail_below`` (1) and
+    ``marginal_below`` (1.25, i.e. 0.8·VGD). gate_cathode_r = inf when none is fitted.
+
+    vgd [V] at Tj,max; series_r, gate_cathode_r, rbb, r1, r2, cathode_r [Ω]; v1 [V]; ip [A].
+
+    >>> out = idle_gate_check(device="ujt", vgd=0.2, series_r=0.0, v1=12.0, rbb=5e3, r1=100.0,
+    ...                       r2=0.0, limits={"fail_below": 1.0, "marginal_below": 1.25})
+    >>> round(float(out.values["idle_voltage"]), 3), out.status.tolist()
+    (0.235, 2)
+    """
+    rgk = _arr(gate_cathode_r)
+    fitted = np.isfinite(rgk)
+    rgk_f = np.where(fitted, rgk, 1.0)
+    if device == "ujt":
+        v_idle = r1 * v1 / (r1 + rbb + r2)
+        r_src = r1 * (rbb + r2) / (r1 + rbb + r2)
+        v_gk = np.where(fitted, v_idle * rgk_f / (r_src + series_r + rgk_f), v_idle)
+    else:
+        v_idle = ip * cathode_r
+        r_par = cathode_r * (series_r + rgk_f) / (cathode_r + series_r + rgk_f)
+        v_gk = np.where(fitted, ip * r_par * rgk_f / (series_r + rgk_f), v_idle)
+    with np.errstate(divide="ignore"):
+        metric = np.where(v_gk > 0, vgd / v_gk, np.inf)
+    margin, status = grade(metric, limits)
+    return Outcome({"idle_voltage": v_gk, "vgd": vgd + 0.0 * v_gk,
+                    "open_voltage": v_idle + 0.0 * v_gk}, margin, status)
+
+
+def discharge_check(*, device: str, v1: np.ndarray, ct: np.ndarray,
+                    limits: Mapping[str, float], r_pulse: np.ndarray,
+                    series_r: np.ndarray | float = np.inf, rb1_on: np.ndarray | float = 0.0,
+                    vf: np.ndarray | float = np.nan, current_rating: np.ndarray | float = np.nan,
+                    energy_rating: np.ndarray | float = np.nan, **p: np.ndarray) -> Outcome:
+    """``osc.discharge``: the capacitor's discharge against the device's ratings.
+
+    UJT: i_pk = (VP − VD)/(r_on + R1′) against ``current_rating`` (ie_peak); PUT:
+    i_pk = (VP − VF)/R_K′ against ``current_rating`` (itrm) and ½·C_T·VP² against
+    ``energy_rating``  [1, §9]. R′ = R or R∥R_S when a gate is DC-coupled (``series_r``; inf
+    when not), the gate treated as a short (conservative). Metric = the smaller rating/stress
+    ratio over the ratings given (NaN rating: not judged). pulse_energy is reported for both.
+
+    v1, vf [V]; ct [F]; r_pulse [Ω] R1 or R_K; series_r, rb1_on [Ω]; current_rating [A];
+    energy_rating [J]; peak_params as in :func:`peak_voltage`.
+
+    >>> out = discharge_check(device="ujt", v1=30.0, ct=0.5e-6, r_pulse=100.0, rb1_on=10.0,
+    ...     current_rating=2.0, eta=0.51, rbb=7e3, r1=100.0, r2=654.0, vd=0.5,
+    ...     limits={"fail_below": 1.0, "marginal_below": 1.0})
+    >>> round(float(out.values["peak_current"]) * 1e3, 1), out.status.tolist()
+    (129.1, 0)
+    """
+    vp = peak_voltage(device=device, v1=v1, **p)
+    s = _arr(series_r)
+    r_eff = np.where(np.isfinite(s), r_pulse * s / (r_pulse + np.where(np.isfinite(s), s, 0.0)),
+                     r_pulse)
+    i_pk = (vp - p["vd"]) / (rb1_on + r_eff) if device == "ujt" else (vp - vf) / r_eff
+    energy = 0.5 * ct * vp * vp
+    with np.errstate(divide="ignore", invalid="ignore"):
+        metric = np.fmin(_arr(current_rating) / i_pk,
+                         _arr(energy_rating) / energy if device == "put" else np.nan)
+    margin, status = grade(metric, limits)
+    return Outcome({"peak_current": i_pk, "pulse_energy": energy, "peak_voltage": vp},
                    margin, status)
+
+
+def allowed_power(*, pd: np.ndarray, t_amb: np.ndarray) -> np.ndarray:
+    """Power rating derated linearly from 25 °C to zero at 125 °C [W] (common practice).
+
+    P_allowed = pd·(125 − T)/100 for 25 ≤ T ≤ 125 °C, pd below 25 °C, 0 above 125 °C.
+    pd [W]; t_amb [K] the hottest ambient including the enclosure rise.
+
+    >>> round(float(allowed_power(pd=0.3, t_amb=328.15)), 3)
+    0.21
+    """
+    t_c = _arr(t_amb) - _T0C
+    return pd * np.clip((125.0 - t_c) / 100.0, 0.0, 1.0)
+
+
+def dissipation_check(*, device: str, v1: np.ndarray, pd: np.ndarray, t_max_ambient: np.ndarray,
+                      t_max_rise: np.ndarray, limits: Mapping[str, float],
+                      rt: np.ndarray | float = np.nan, ct: np.ndarray | float = np.nan,
+                      vv: np.ndarray | float = np.nan, vf: np.ndarray | float = np.nan,
+                      r_discharge: np.ndarray | float = np.nan, **p: np.ndarray) -> Outcome:
+    """``osc.dissipation``: the device's dissipation against its derated rating.
+
+    UJT: P = I_BB²·RBB with I_BB = V1/(RBB + R1 + R2) (the bar's own share; the resistors take
+    the rest)  [1, §9]. PUT: P ≈ f·VF·C_T·(VP − VV), the charge per pulse times VF, at the
+    free-running f (:func:`free_running`); the divider's V1²/(RGA + RGK) is returned as
+    ``divider_power`` for the summary. Rating :func:`allowed_power` at T_a,max + ΔT_enc.
+    Metric allowed/P graded with ``fail_below``.
+
+    v1, vv, vf [V]; pd [W]; t_max_ambient [K]; t_max_rise [K]; rt, r_discharge [Ω]; ct [F];
+    peak_params as in :func:`peak_voltage`.
+
+    >>> out = dissipation_check(device="ujt", v1=30.0, pd=0.3, t_max_ambient=328.15,
+    ...     t_max_rise=0.0, eta=0.51, rbb=5e3, r1=100.0, r2=654.0, vd=0.5,
+    ...     limits={"fail_below": 1.0, "marginal_below": 1.0})
+    >>> round(float(out.values["dissipation"]), 3), out.status.tolist()
+    (0.136, 0)
+    """
+    allowed = allowed_power(pd=pd, t_amb=_arr(t_max_ambient) + t_max_rise)
+    values: dict[str, np.ndarray] = {}
+    if device == "ujt":
+        ibb = v1 / (p["rbb"] + p["r1"] + p["r2"])
+        power = ibb * ibb * p["rbb"]
+        values["circuit_power"] = v1 * ibb
+    else:
+        fr = free_running(device=device, v1=v1, rt=rt, ct=ct, vv=vv, r_discharge=r_discharge,
+                          **p)
+        power = np.nan_to_num(fr["frequency"]) * vf * ct * (fr["peak_voltage"] - vv)
+        values["divider_power"] = v1 * v1 / (p["r_upper"] + p["r_lower"])
+    with np.errstate(divide="ignore"):
+        metric = np.where(power > 0, allowed / power, np.inf)
+    margin, status = grade(metric, limits)
+    values |= {"dissipation": power, "allowed_power": allowed + 0.0 * power}
+    return Outcome(values, margin, status, ["pd derated linearly to zero at 125 °C from 25 °C "
+                                            "(assumed)"])
+
+
+def leakage_check(*, device: str, v1: np.ndarray, rt: np.ndarray, ip: np.ndarray,
+                  leakage: np.ndarray, ct: np.ndarray, limits: Mapping[str, float],
+                  leakage_given: bool = True, **p: np.ndarray) -> Outcome:
+    """``osc.leakage``: the charging current at the peak point against IP plus leakage.
+
+    charge_current = (V1 − VP)/R_T; metric = charge_current/(IP + I_leak) graded with
+    ``fail_below`` (1) and ``marginal_below`` (2)  [1, §9], [2]. Without leakage data
+    (``leakage_given`` false, leakage 0) it says so; a C_T of 1 µF or more is flagged as a likely
+    electrolytic with the common-practice leakage max(0.01·C[µF]·V µA, 3 µA).
+
+    v1 [V]; rt [Ω]; ip, leakage [A]; ct [F]; peak_params as in :func:`peak_voltage`.
+
+    >>> out = leakage_check(device="put", v1=30.0, rt=82.21e3, ip=5e-6, leakage=0.0, ct=0.5e-6,
+    ...     r_upper=60e3, r_lower=30e3, offset=0.0, limits={"fail_below": 1.0,
+    ...     "marginal_below": 2.0})
+    >>> round(float(out.values["charge_current"]) * 1e6), out.status.tolist()
+    (243, 0)
+    """
+    vp = peak_voltage(device=device, v1=v1, **p)
+    i_ch = (v1 - vp) / rt
+    with np.errstate(divide="ignore", invalid="ignore"):
+        metric = i_ch / (ip + leakage)
+    margin, status = grade(metric, limits)
+    notes = []
+    if not leakage_given:
+        notes.append("no leakage data: judged on IP alone")
+        if np.any(_arr(ct) >= 1e-6):
+            c_uf = float(np.max(ct)) * 1e6
+            est = max(0.01 * c_uf * float(np.max(v1)), 3.0) * 1e-6
+            worst = float(np.nanmin(i_ch / (ip + est)))
+            notes.append(f"C_T ≥ 1 µF suggests an electrolytic: its typical leakage "
+                         f"{est * 1e6:.3g} µA would leave a ratio of {worst:.3g}")
+    return Outcome({"charge_current": i_ch, "ip": ip + 0.0 * i_ch, "leakage": leakage + 0.0 * i_ch,
+                    "peak_voltage": vp}, margin, status, notes)
+
+
+def base2_rule(*, eta: np.ndarray, v1: np.ndarray) -> np.ndarray:
+    """Rule-of-thumb base-2 resistor for temperature compensation, R2 = 10⁴/(η·V1) [Ω]  [1].
+
+    eta [–] nominal intrinsic standoff ratio; v1 [V]. A rule of thumb (it corresponds to
+    k_D/TC_BB·R_BB = 10⁴ V·Ω).
+
+    >>> round(float(base2_rule(eta=0.51, v1=30.0)), 1)
+    653.6
+    """
+    return 1e4 / (eta * v1)
+
+
+def base2_physical(*, eta: np.ndarray, rbb: np.ndarray, r1: np.ndarray, v1: np.ndarray,
+                   tc_bb: np.ndarray, k_d: float = 2e-3) -> np.ndarray:
+    """Base-2 resistor that makes dVP/dT = 0, solved exactly [Ω].
+
+    From VP = VD + V1·(η·RBB + R1)/(RBB + R1 + R2) with dVD/dT = −k_D and dRBB/dT = TC_BB·RBB:
+    η·R2 − (1 − η)·R1 = k_D·(RBB + R1 + R2)²/(V1·TC_BB·RBB), the smaller root of that quadratic
+    in R2; NaN where it has none. The small-resistor form is
+    R2 ≈ (k_D/TC_BB)·RBB/(η·V1) + (1 − η)·R1/η  [1, §9].
+
+    eta [–]; rbb, r1 [Ω]; v1 [V]; tc_bb [1/K]; k_d [V/K] (about 2 mV/K, common practice).
+
+    >>> round(float(base2_physical(eta=0.51, rbb=7e3, r1=100.0, v1=30.0, tc_bb=0.005)))
+    301
+    """
+    c = k_d / (v1 * tc_bb * rbb)
+    s = rbb + r1
+    # c·(s + x)² − η·x + (1 − η)·R1 = 0  →  c·x² + (2cs − η)·x + c·s² + (1 − η)·R1 = 0
+    qa, qb, qc = c, 2 * c * s - eta, c * s * s + (1 - eta) * r1
+    disc = qb * qb - 4 * qa * qc
+    with np.errstate(invalid="ignore"):
+        return np.where(disc >= 0, (-qb - np.sqrt(np.maximum(disc, 0.0))) / (2 * qa), np.nan)
+
+
+def temp_comp_check(*, eta: np.ndarray, v1: np.ndarray, r2: np.ndarray,
+                    limits: Mapping[str, float], rbb: np.ndarray | float = np.nan,
+                    r1: np.ndarray | float = np.nan,
+                    tc_bb: np.ndarray | float = np.nan) -> Outcome:
+    """``osc.temp-comp`` (UJT, advisory): base-2 resistor against the rule of thumb.
+
+    Pass inside ``low``·R2,rule … ``high``·R2,rule (0.3–3) with R2,rule = :func:`base2_rule`
+    at the nominal η; otherwise marginal, never fail  [1]. Metric = min(R2/(low·rule),
+    high·rule/R2); margin = metric − 1. With ``tc_bb`` the physical value
+    (:func:`base2_physical`) is returned as ``base2_r_physical`` for the summary.
+
+    eta [–]; v1 [V]; r2, rbb, r1 [Ω]; tc_bb [1/K].
+
+    >>> out = temp_comp_check(eta=0.51, v1=30.0, r2=654.0, limits={"low": 0.3, "high": 3.0})
+    >>> round(float(out.values["base2_r_rule"]), 1), out.status.tolist()
+    (653.6, 0)
+    """
+    low = float(limits.get("low", 0.3))
+    high = float(limits.get("high", 3.0))
+    rule = base2_rule(eta=eta, v1=v1)
+    r2 = _arr(r2)
+    with np.errstate(divide="ignore"):
+        metric = np.minimum(r2 / (low * rule), np.where(r2 > 0, high * rule / r2, np.inf))
+    status = cap_status(np.where(metric >= 1.0, PASS, MARGINAL), MARGINAL)
+    values = {"base2_r": r2 + 0.0 * rule, "base2_r_rule": rule}
+    if np.isfinite(_arr(tc_bb)).all():
+        values["base2_r_physical"] = base2_physical(eta=eta, rbb=rbb, r1=r1, v1=v1, tc_bb=tc_bb)
+    return Outcome(values, metric - 1.0, status)

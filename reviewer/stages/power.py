@@ -2,7 +2,29 @@
 
 from __future__ import annotations
 
-from reviewer.registry import Param, StageKind, register_kind
+import math
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+
+from checks import oscillator, power
+from checks import snubber as snubber_mod
+from checks.core import Outcome, cold_value
+from reviewer.fmt import eng, pct, span
+from reviewer.model import Part, Stage, Value
+from reviewer.registry import (
+    Bound,
+    CheckDef,
+    Context,
+    Param,
+    Reduced,
+    StageKind,
+    register,
+    register_kind,
+)
+from reviewer.schema import POWER
+from reviewer.stages import oscillator as osc_stage_mod
 
 V = "value"
 
@@ -43,3 +65,831 @@ DC_SWITCH = register_kind(StageKind("dc-switch", {
     "fuse": Param("table", fields=FUSE),
     "duty": Param(V, "dimensionless"),
 }, "an SCR switching a DC load, turned off by a turn-off network"))
+
+
+# --------------------------------------------------------------------------------------------
+# Binding helpers: every check reads exactly what it uses.
+
+def _is_dc(ctx: Context) -> bool:
+    return ctx.stage.kind == "dc-switch"
+
+
+def _scr(ctx: Context) -> Part:
+    part = ctx.part("scr")
+    assert part is not None  # the loader checks the link
+    return part
+
+
+def _sp(ctx: Context, key: str) -> str:
+    return ctx.stage_path(key)
+
+
+def _bind_supply(ctx: Context, b: Bound, *, freq: bool = True) -> None:
+    ctx.need(b, "vs", "supply.voltage")
+    if freq and not _is_dc(ctx):
+        ctx.need(b, "freq", "supply.frequency")
+
+
+def _bind_load(ctx: Context, b: Bound, *, l_needed: bool = True) -> None:
+    ctx.need(b, "r", _sp(ctx, "load.r"))
+    if l_needed:
+        ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+        # A missing inductance is the resistive case, not an assumption worth a note.
+        b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+
+
+def _bind_stage_options(ctx: Context, b: Bound) -> None:
+    if _is_dc(ctx):
+        b.options["kind"] = "dc"
+        return
+    b.options["kind"] = "ac"
+    b.options["topology"] = ctx.stage.get("topology")
+    fw = bool(ctx.stage.get("freewheel", False))
+    if fw and ctx.stage.get("topology") == "ac-switch":
+        b.notes.append("freewheel ignored: an ac-switch load sees AC")
+        fw = False
+    b.options["freewheel"] = fw
+
+
+def _osc_stage(ctx: Context) -> Stage | None:
+    gate = ctx.linked_stage("gate")
+    return ctx.linked_stage("source", gate) if gate is not None else None
+
+
+def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
+                 extra: tuple[float, ...] = ()) -> bool:
+    """Add the firing range: ``alpha`` (per row) with ``alpha_lo``/``alpha_hi`` (its ends).
+
+    From ``firing`` when given; else from the gate's line-synchronised oscillator (its
+    timing resistor sets the angle, so it is swept; the other oscillator values are corners).
+    Returns False (with ``not_applicable`` set) when no firing range can be had.
+    """
+    fv = ctx.stage.get("firing")
+    path = _sp(ctx, "firing")
+    if isinstance(fv, Value):
+        if _osc_stage(ctx) is not None:
+            b.notes.append("firing range taken from `firing`, not from the gate's oscillator")
+        b.add("alpha", path, fv, sweep=sweep if fv.varies else 0, extra=extra)
+        b.add("alpha_lo", path + "#min", fv.at(fv.lo))
+        b.add("alpha_hi", path + "#max", fv.at(fv.hi))
+        return True
+    osc = _osc_stage(ctx)
+    if osc is None:
+        b.not_applicable = ("no firing range: give `firing`, or a `gate` whose oscillator is "
+                            "line-synchronised")
+        return False
+    if osc.get("sync") != "line":
+        b.not_applicable = (f"the oscillator `{osc.id}` is free-running, so its pulses are not "
+                            "tied to the line: give `firing`")
+        return False
+    tmp = Bound()
+    dev = osc_stage_mod.bind_device(ctx, tmp, stage=osc)
+    keys = ("eta", "rbb", "vd", "r1", "r2") if dev == "ujt" else ("offset", "r_upper", "r_lower")
+    for k in keys:
+        b.inputs["osc_" + k] = tmp.inputs[k]
+    b.notes.extend(tmp.notes)
+    b.options["osc_device"] = dev
+    rt = ctx.need(b, "osc_rt", ctx.stage_path("timing_r", osc), sweep=max(sweep, 2) if sweep
+                  else 0)
+    b.add("osc_rt_lo", ctx.stage_path("timing_r", osc) + "#min", rt.at(rt.lo))
+    b.add("osc_rt_hi", ctx.stage_path("timing_r", osc) + "#max", rt.at(rt.hi))
+    ctx.need(b, "osc_ct", ctx.stage_path("timing_c", osc))
+    ctx.need(b, "osc_vz", ctx.stage_path("zener", osc))
+    # The oscillator runs from the line: its angle depends on the line voltage and frequency.
+    ctx.need(b, "vs", "supply.voltage")
+    if "freq" not in b.inputs:
+        ctx.need(b, "freq", "supply.frequency")
+        b.options["firing_freq_only"] = True
+    b.notes.append(f"firing range from the line-synchronised oscillator `{osc.id}`")
+    return True
+
+
+def _firing(kw: dict[str, Any], vs: Any = None,
+            freq: Any = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Pop the firing inputs from ``kw``: (α per row, α_lo, α_hi) [rad].
+
+    With a line-synchronised oscillator the angles are solved from its inputs on the line
+    ``vs``/``freq`` (taken from ``kw`` unless given; ``freq`` is popped when only the
+    oscillator needed it).
+    """
+    if "osc_device" not in kw:
+        return kw.pop("alpha"), kw.pop("alpha_lo"), kw.pop("alpha_hi")
+    dev = kw.pop("osc_device")
+    osc = {k[4:]: kw.pop(k) for k in list(kw) if k.startswith("osc_")}
+    vm = np.sqrt(2.0) * np.asarray(kw["vs"] if vs is None else vs, dtype=float)
+    if kw.pop("firing_freq_only", False):
+        freq = kw.pop("freq")
+    elif freq is None:
+        freq = kw["freq"]
+    omega = 2 * np.pi * np.asarray(freq, dtype=float)
+    params = {k: osc[k] for k in ("eta", "rbb", "vd", "r1", "r2", "offset", "r_upper",
+                                  "r_lower") if k in osc}
+
+    def at(rt: np.ndarray) -> np.ndarray:
+        return oscillator.line_sync_firing_angle(device=dev, vm=vm, omega=omega, vz=osc["vz"],
+                                                 rt=rt, ct=osc["ct"], **params)
+
+    return at(osc["rt"]), at(osc["rt_lo"]), at(osc["rt_hi"])
+
+
+def _omega(kw: dict[str, Any]) -> np.ndarray:
+    return 2 * np.pi * np.asarray(kw.pop("freq"), dtype=float)
+
+
+def _hot_or_na(ctx: Context, b: Bound, names: dict[str, str]) -> bool:
+    """Read part ratings ``names`` (input name → part key); not applicable when one is missing."""
+    part = _scr(ctx)
+    missing = [key for name, key in names.items()
+               if ctx.read(b, name, f"parts.{part.ref}.{key}") is None]
+    if missing:
+        b.not_applicable = f"the part {part.ref} gives no " + ", ".join(f"`{m}`" for m in missing)
+        return False
+    return True
+
+
+def _deg(x: float) -> str:
+    return eng(x, "deg")
+
+
+# --------------------------------------------------------------------------------------------
+# power.output
+
+def _bind_output(ctx: Context) -> Bound:
+    b = Bound()
+    if _is_dc(ctx):
+        b.not_applicable = "a DC switch has no firing angle"
+        return b
+    _bind_stage_options(ctx, b)
+    _bind_supply(ctx, b)
+    _bind_load(ctx, b)
+    if not _bind_firing(ctx, b, sweep=7):
+        return b
+    req = ctx.stage.get("required")
+    if not isinstance(req, Value):
+        b.not_applicable = ("no `required` range to compare the output with (the output over "
+                            "the firing range is shown in the waveform view)")
+        return b
+    path = _sp(ctx, "required")
+    b.options["quantity"] = "power" if req.dim == "power" else "voltage"
+    b.add("req_hi", path + "#max", req.at(req.hi))
+    b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
+          else Value.fixed(float("nan"), req.dim, req.unit))
+    return b
+
+
+def _fn_output(**kw: Any) -> Outcome:
+    a, lo, hi = _firing(kw)
+    kw.pop("kind", None)
+    return power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=_omega(kw), **kw)
+
+
+def _sum_output(r: Reduced) -> str:
+    q = r.bound.options.get("quantity", "power")
+    topo = r.bound.options.get("topology")
+    unit = "W" if q == "power" else "V"
+    name = "load power" if q == "power" else ("V_rms" if topo == "ac-switch" else "V_dc")
+    text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
+            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
+    req_hi = r.bound.inputs["req_hi"].value.nom
+    req_lo = r.bound.inputs["req_lo"].value.nom
+    if r.status != "pass":
+        fixes = []
+        if r.lo["output_at_min"] < req_hi:
+            short = (f"full output {eng(r.lo['output_at_min'], unit)} at low line is short of "
+                     f"{eng(req_hi, unit)}: needs a smaller α_min")
+            if q == "power":
+                # P ∝ 1/R at a given α and line: the load R that would just reach it.
+                r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
+                short += f", or load R ≤ {eng(r_need, 'ohm')}"
+            fixes.append(short)
+        if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
+            fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
+                         f"{eng(req_lo, unit)}: needs a later α_max")
+        text += "; fails: " + "; ".join(fixes)
+    err_hi = r.hi.get("shortcut_error", float("nan"))
+    inductive = r.hi.get("load_angle", 0.0) > 0 and not r.bound.options.get("freewheel")
+    alpha_hi = r.hi.get("conduction_angle", 0.0)
+    if err_hi == err_hi and (abs(err_hi) > 0.10 or inductive or alpha_hi < math.pi / 2):
+        text += f"; the conduction-angle shortcut is off by up to {pct(err_hi)}"
+    if inductive:
+        beta = span(r.lo["extinction_angle"], r.hi["extinction_angle"], "deg")
+        text += f"; current runs on to β = {beta}"
+    return text
+
+
+register(CheckDef(
+    id="power.output", kinds=("phase-control",),
+    question="What does the load get over the firing range, and does it meet `required`?",
+    method="Exact waveforms: R load closed forms; R–L from i(θ) = (Vm/Z)[sin(θ−φ) − "
+           "sin(α−φ)e^(−(θ−α)/tanφ)] up to β, steady state where continuous or freewheeling. "
+           "Full output (α_min, low line) must reach required.max; minimum (α_max, high line) "
+           "must be at or below required.min.",
+    source="Rashid, Power Electronics 4th ed. §10–11 (Ex 10.1, 11.1, 11.2); Hart, Power "
+           "Electronics §3",
+    fn=_fn_output, bind=_bind_output,
+    units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
+           "conduction_angle": "deg", "shortcut_error": "1"},
+    summarise=_sum_output,
+    fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
+        "change the load or topology.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.blocking
+
+def _bind_blocking(ctx: Context) -> Bound:
+    b = Bound()
+    part = _scr(ctx)
+    ctx.need(b, "vdrm", f"parts.{part.ref}.vdrm")
+    ctx.need(b, "vrrm", f"parts.{part.ref}.vrrm")
+    ctx.need(b, "vs", "supply.voltage")
+    b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
+    if snubs:
+        sn = snubs[0]
+        b.options["snubber"] = sn.id
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+        if ctx.read(b, "snub_l", ctx.stage_path("inductance", sn)) is None:
+            ctx.read(b, "snub_l", "supply.inductance", default=0.0, dim="inductance", unit="H")
+        step = sn.get("step", "line")
+        if isinstance(step, Value):
+            b.options["step"] = "value"
+            b.add("snub_e", ctx.stage_path("step", sn), step)
+        else:
+            b.options["step"] = step
+    if _is_dc(ctx):
+        nets = ctx.stages_of(("capacitor-commutation", "resonant-commutation"), "for",
+                             ctx.stage.id)
+        if nets:
+            b.options["reverse_from"] = nets[0].id
+            ctx.read(b, "v_c0", ctx.stage_path("charge_voltage", nets[0]))
+    return b
+
+
+def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarray,
+                 limits: Mapping[str, float], snubber: str = "", step: str = "",
+                 snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
+                 snub_e: Any = None, reverse_from: str = "", v_c0: Any = None) -> Outcome:
+    vs = np.asarray(vs, dtype=float)
+    v_line = vs if kind == "dc" else np.sqrt(2.0) * vs
+    v_fwd = v_line
+    if snubber:
+        e = {"line": np.sqrt(2.0) * vs, "dc": vs}.get(step, snub_e)
+        v_fwd, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
+    if kind == "dc":
+        v_rev = (v_c0 if v_c0 is not None else vs) if reverse_from else 0.0 * vs
+    else:
+        v_rev = v_fwd
+    out = power.blocking_check(vdrm=vdrm, vrrm=vrrm, v_fwd=v_fwd, v_rev=v_rev, limits=limits)
+    out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
+    return out
+
+
+def _sum_blocking(r: Reduced) -> str:
+    vdrm = r.bound.inputs["vdrm"].value.nom
+    vrrm = r.bound.inputs["vrrm"].value.nom
+    sn = r.bound.options.get("snubber")
+    src = (f"the snubber `{sn}` overshoot peak" if sn else
+           ("V_s" if r.bound.options["kind"] == "dc" else "√2·V_s"))
+    text = (f"VDRM {eng(vdrm, 'V')} / VRRM {eng(vrrm, 'V')} against "
+            f"{eng(r.hi['peak_voltage'], 'V')} ({src}, high line): ratio "
+            f"{r.worst['blocking_ratio']:.2f}")
+    if r.bound.options["kind"] == "dc" and not r.bound.options.get("reverse_from"):
+        text += "; no turn-off network reverse-biases it, so VRRM is not stressed"
+    if r.status != "pass":
+        k = r.limits.get("marginal_below", 2.0)
+        text += (f"; {r.status}: needs VDRM and VRRM ≥ {eng(k * r.hi['peak_voltage'], 'V')} "
+                 f"for {k:g}×")
+    return text
+
+
+register(CheckDef(
+    id="power.blocking", kinds=POWER,
+    question="Are VDRM and VRRM above the peak voltage at high line, with margin?",
+    method="blocking_ratio = min(VDRM/V_fwd, VRRM/V_rev) with V = √2·V_s,max (AC), V_s,max "
+           "(DC forward), the commutating charge voltage (DC reverse), or the snubber's "
+           "overshoot peak when a snubber is across the stage; ≥ 2.0 passes, 1.5–2.0 marginal.",
+    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6",
+    fn=_fn_blocking, bind=_bind_blocking,
+    units={"peak_voltage": "V", "blocking_ratio": "1"},
+    summarise=_sum_blocking,
+    fix="Choose a higher voltage class, or damp the snubber overshoot.",
+    cautions=("The non-repetitive ratings must also cover the clamped line surge; that is a "
+              "manual checklist item.",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.rms-current, power.average-current, power.junction: the current and loss family
+
+def _bind_currents(ctx: Context, b: Bound, *, sweep: int = 0,
+                   extra: tuple[float, ...] = ()) -> bool:
+    _bind_stage_options(ctx, b)
+    _bind_supply(ctx, b)
+    if _is_dc(ctx):
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.read(b, "duty", _sp(ctx, "duty"), default=1.0, dim="dimensionless", unit="1")
+        return True
+    _bind_load(ctx, b)
+    return _bind_firing(ctx, b, sweep=sweep, extra=extra)
+
+
+def _fn_currents(core: Any) -> Any:
+    def fn(**kw: Any) -> Outcome:
+        if kw.get("kind") == "ac":
+            a, _, _ = _firing(kw)
+            kw["alpha"] = a
+            kw["omega"] = _omega(kw)
+        return core(**kw)
+    return fn
+
+
+def _bind_rms(ctx: Context) -> Bound:
+    b = Bound()
+    if _hot_or_na(ctx, b, {"it_rms_rating": "it_rms"}):
+        _bind_currents(ctx, b)
+    return b
+
+
+def _sum_rms(r: Reduced) -> str:
+    rating = r.bound.inputs["it_rms_rating"].value.nom
+    text = (f"IT(RMS) {span(r.lo['it_rms'], r.hi['it_rms'], 'A')} per SCR against "
+            f"{eng(rating, 'A')}")
+    if r.status != "pass":
+        text += f"; fails: needs IT(RMS) rating ≥ {eng(r.hi['it_rms'], 'A')}"
+    return text
+
+
+register(CheckDef(
+    id="power.rms-current", kinds=POWER,
+    question="Is IT(RMS) within rating?",
+    method="IT(RMS) per SCR from the exact waveform at high line, α_min and R at its low end "
+           "(DC: √D·V_s/R).",
+    source="Rashid 4e §11 (Ex 11.8); Bimbhra ch. 4",
+    fn=_fn_currents(power.rms_current_check), bind=_bind_rms,
+    units={"it_rms": "A"}, summarise=_sum_rms,
+    fix="Choose a part with a higher IT(RMS), or limit the load current.",
+))
+
+
+def _bind_avg(ctx: Context) -> Bound:
+    b = Bound()
+    if not _hot_or_na(ctx, b, {"it_av_rating": "it_av"}):
+        return b
+    part = _scr(ctx)
+    vt0 = ctx.read(b, "vt0", f"parts.{part.ref}.vt0")
+    rt = ctx.read(b, "rt", f"parts.{part.ref}.rt")
+    if vt0 is None or rt is None:
+        b.inputs.pop("vt0", None)
+        b.inputs.pop("rt", None)
+        b.notes.append("no vt0/rt: the equal-RMS derating bound is used (conservative)")
+    _bind_currents(ctx, b)
+    return b
+
+
+def _sum_avg(r: Reduced) -> str:
+    rating = r.bound.inputs["it_av_rating"].value.nom
+    text = (f"IT(AV) {span(r.lo['it_av'], r.hi['it_av'], 'A')} against {eng(rating, 'A')} "
+            f"derated to {eng(r.worst['it_av_allowed'], 'A')} at form factor "
+            f"{r.worst['form_factor']:.3g}")
+    if r.status != "pass":
+        need = rating * r.worst["it_av"] / r.worst["it_av_allowed"]
+        text += f"; fails: needs an IT(AV) rating of about {eng(need, 'A')}"
+    return text
+
+
+register(CheckDef(
+    id="power.average-current", kinds=POWER,
+    question="Is IT(AV) within the rating derated for the conduction angle (form factor)?",
+    method="it_av_allowed solves rT·FF²·I² + VT0·I = VT0·IT(AV),r + rT·(π/2)²·IT(AV),r² "
+           "(equal loss with the 180° half-sine rating); without VT0/rT the equal-RMS bound "
+           "IT(AV),r·(π/2)/FF.",
+    source="Bimbhra, Power Electronics ch. 4 (form factor, current derating)",
+    fn=_fn_currents(power.average_current_check), bind=_bind_avg,
+    units={"it_av": "A", "form_factor": "1", "it_av_allowed": "A"}, summarise=_sum_avg,
+    fix="Choose a part with a higher IT(AV), or widen the conduction angle at full load.",
+))
+
+
+def _bind_junction(ctx: Context) -> Bound:
+    b = Bound()
+    hs = ctx.stage.get("heatsink")
+    if not isinstance(hs, dict):
+        b.not_applicable = "no `heatsink` given: the junction temperature needs Rth(s-a)"
+        return b
+    if not _hot_or_na(ctx, b, {"vt0": "vt0", "rt": "rt", "rth_jc": "rth_jc",
+                               "tj_max": "tj_max"}):
+        return b
+    ctx.need(b, "rth_sa", _sp(ctx, "heatsink.rth_sa"))
+    ctx.read(b, "rth_cs", _sp(ctx, "heatsink.rth_cs"), default=0.0,
+             dim="thermal_resistance", unit="K/W")
+    b.options["devices"] = int(hs.get("devices", 1))
+    ctx.ambient_max(b, "t_max")
+    _bind_currents(ctx, b, sweep=7, extra=(math.pi / 2,))
+    return b
+
+
+def _sum_junction(r: Reduced) -> str:
+    tj_max = r.bound.inputs["tj_max"].value.nom
+    n = r.bound.options.get("devices", 1)
+    text = (f"Tj {eng(r.hi['junction_temperature'], 'degC')} at maximum ambient with "
+            f"{eng(r.hi['device_loss'], 'W')} per SCR"
+            + (f" ({n} on the heatsink)" if n > 1 else "")
+            + f", against {eng(tj_max, 'degC')}")
+    if r.status != "pass":
+        h = r.limits.get("headroom_marginal", 25.0)
+        need = r.lo["rth_sa_required"]
+        fix = (f"needs Rth(s-a) ≤ {eng(need, 'K/W')}" if need > 0 else
+               "no heatsink is enough: less loss or a lower Rth(j-c) + Rth(c-s) is needed")
+        text += f"; {r.status} ({h:g} K headroom wanted): {fix}"
+    else:
+        text += f"; Rth(s-a) up to {eng(r.lo['rth_sa_required'], 'K/W')} would do"
+    return text + "; steady state only"
+
+
+register(CheckDef(
+    id="power.junction", kinds=POWER,
+    question="Steady junction temperature at maximum ambient, high line, worst firing angle.",
+    method="P = VT0·IT(AV) + rT·IT(RMS)²; Tj = Ta,max + ΔT_enc + n·P·Rth(s-a) + "
+           "P·(Rth(j-c) + Rth(c-s)); Tj ≤ tj_max − 25 K passes, ≤ tj_max marginal.",
+    source="Rashid 4e §17 (cooling); Bimbhra ch. 4 (thyristor losses)",
+    fn=_fn_currents(power.junction_check), bind=_bind_junction,
+    units={"device_loss": "W", "junction_temperature": "degC", "rth_sa_required": "K/W"},
+    summarise=_sum_junction,
+    fix="A heatsink with a lower Rth(s-a), fewer devices on it, or a part with less drop.",
+    cautions=("Rth(s-a) is normally quoted for free air, vertical fins and sea level; derate it "
+              "for the installation.",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.surge
+
+def _bind_surge(ctx: Context) -> Bound:
+    b = Bound()
+    if not _hot_or_na(ctx, b, {"itsm": "itsm"}):
+        return b
+    part = _scr(ctx)
+    _bind_supply(ctx, b)
+    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
+    if ctx.read(b, "r_cold", _sp(ctx, "load.cold_r")) is None:
+        ctx.need(b, "r_cold", _sp(ctx, "load.r"))
+        b.notes.append("cold_r not given: the running load R is used for the inrush")
+    ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+    b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+    b.options["topology"] = ctx.stage.get("topology")
+    _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
+    return b
+
+
+def _fn_surge(**kw: Any) -> Outcome:
+    a, lo, hi = _firing(kw)
+    return power.surge_check(alpha=a, omega=_omega(kw), **kw)
+
+
+def _sum_surge(r: Reduced) -> str:
+    rating = r.lo["itsm_at_line"]
+    text = (f"cold-load inrush peak {eng(r.hi['inrush_peak'], 'A')} against ITSM "
+            f"{eng(rating, 'A')} (at the line's half-cycle)")
+    if r.status != "pass":
+        text += (f"; fails: needs ITSM ≥ {eng(r.hi['inrush_peak'], 'A')}, a soft start "
+                 "(α_min later), or an inrush limiter")
+    if r.bound.inputs["r_cold"].path.endswith("cold_r"):
+        text += "; a cold lamp's inrush lasts several cycles and ITSM covers one"
+    return text
+
+
+register(CheckDef(
+    id="power.surge", kinds=("phase-control",),
+    question="Is the worst inrush (cold load, first half-cycle at high line) within ITSM?",
+    method="R load: √2·V_s,max/R_cold when the range reaches 90° (else at α_min); R–L: the peak "
+           "of i(θ) with R_cold. ITSM converted to the line's half-cycle by I^N·t = const "
+           "(N = 4 below t_sm, 2 above).",
+    source="Rashid 4e §17; Bimbhra ch. 4 (surge rating)",
+    fn=_fn_surge, bind=_bind_surge,
+    units={"inrush_peak": "A"}, summarise=_sum_surge,
+    fix="A part with a higher ITSM, a soft start, or an inrush limiter.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.fuse
+
+def _bind_fuse(ctx: Context) -> Bound:
+    b = Bound()
+    fuse = ctx.stage.get("fuse")
+    if not isinstance(fuse, dict):
+        b.not_applicable = "no `fuse` given"
+        return b
+    part = _scr(ctx)
+    ctx.need(b, "fuse_i2t", _sp(ctx, "fuse.i2t"))
+    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
+    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is None:
+        itsm = ctx.read(b, "itsm", f"parts.{part.ref}.itsm")
+        if itsm is None:
+            b.not_applicable = f"the part {part.ref} gives neither `i2t` nor `itsm`"
+            return b
+        b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    if ctx.read(b, "t_base", _sp(ctx, "fuse.clearing_time")) is not None:
+        b.options["base"] = "the fuse's clearing time"
+    elif _is_dc(ctx):
+        b.inputs["t_base"] = b.inputs["t_sm"]
+        b.options["base"] = "t_sm (DC supply)"
+    else:
+        ctx.need(b, "freq", "supply.frequency")
+        b.options["base"] = "the line's half-cycle"
+    return b
+
+
+def _fn_fuse(*, fuse_i2t: Any, t_sm: Any, limits: Mapping[str, float], base: str = "",
+             i2t: Any = None, itsm: Any = None, t_base: Any = None, freq: Any = None) -> Outcome:
+    t_sm = np.asarray(t_sm, dtype=float)
+    dev = i2t if i2t is not None else np.asarray(itsm, dtype=float) ** 2 * t_sm / 2
+    tb = t_base if t_base is not None else 0.5 / np.asarray(freq, dtype=float)
+    out = power.fuse_check(fuse_i2t=fuse_i2t, i2t=dev, t_sm=t_sm, t_base=tb, limits=limits)
+    out.values["t_base"] = np.asarray(tb, dtype=float) + 0 * out.values["device_i2t"]
+    return out
+
+
+def _sum_fuse(r: Reduced) -> str:
+    text = (f"fuse clearing I²t {eng(r.hi['fuse_i2t'], 'A^2*s')} against the SCR's "
+            f"{eng(r.lo['device_i2t'], 'A^2*s')} at {eng(r.worst['t_base'], 's')} "
+            f"({r.bound.options.get('base', '')})")
+    if r.status != "pass":
+        text += (f"; fails: needs a fuse with clearing I²t < {eng(r.lo['device_i2t'], 'A^2*s')}"
+                 " or an SCR with more I²t")
+    return text
+
+
+register(CheckDef(
+    id="power.fuse", kinds=POWER,
+    question="Does the fuse clear before the SCR's I²t is spent?",
+    method="device I²t converted to the fuse's clearing time (else the line half-cycle; DC: "
+           "t_sm) by I²t(t) = I²t(t_sm)·(t/t_sm)^((N−2)/N), N = 4 below t_sm, 2 above; pass when "
+           "the fuse's total clearing I²t is smaller.",
+    source="Rashid 4e §17 (Ex 17.6, fuse coordination); Bimbhra ch. 4",
+    fn=_fn_fuse, bind=_bind_fuse,
+    units={"fuse_i2t": "A^2*s", "device_i2t": "A^2*s"}, summarise=_sum_fuse,
+    fix="A faster semiconductor-protection fuse, or an SCR with a larger I²t.",
+    cautions=("Fuse class, voltage rating, arc voltage and current rating are manual checklist "
+              "questions.",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.latching, power.holding
+
+def _bind_cold(ctx: Context, b: Bound, key: str) -> bool:
+    part = _scr(ctx)
+    if part.params.get(key) is None:
+        b.not_applicable = f"the part {part.ref} gives no `{key}`"
+        return False
+    ctx.cold(b, key, part, key)
+    ctx.ambient_min(b)
+    return True
+
+
+def _cold_of(kw: dict[str, Any], key: str) -> np.ndarray:
+    v = kw.pop(key)
+    return cold_value(v, kw.pop("t_min"), v_cold=kw.pop(key + "_cold"),
+                      t_cold=kw.pop(key + "_cold_at"), k=2.0)
+
+
+def _bind_latching(ctx: Context) -> Bound:
+    b = Bound()
+    if not _bind_cold(ctx, b, "il"):
+        return b
+    b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    ctx.need(b, "vs", "supply.voltage")
+    _bind_load(ctx, b)
+    if not _is_dc(ctx):
+        ctx.need(b, "freq", "supply.frequency")
+        _bind_firing(ctx, b)
+    return b
+
+
+def _fn_latching(**kw: Any) -> Outcome:
+    il = _cold_of(kw, "il")
+    if kw["kind"] == "dc":
+        l_load = kw.pop("l")
+        out = power.latching_check(il_cold=il, **kw)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            x = np.asarray(il * kw["r"] / kw["vs"], dtype=float)
+            t_il = np.where(x < 1, -np.asarray(l_load) / kw["r"] * np.log1p(-np.minimum(x, 1)),
+                            np.nan)
+        out.values["time_to_il"] = t_il + 0 * out.margin
+        return out
+    a, lo, hi = _firing(kw)
+    return power.latching_check(il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
+                                omega=_omega(kw), **kw)
+
+
+def _sum_latching(r: Reduced) -> str:
+    il = r.worst["il"]
+    if r.bound.options["kind"] == "dc":
+        text = (f"load current {eng(r.lo['anode_current_at_fire'], 'A')} at low line against "
+                f"IL {eng(il, 'A')} (cold)")
+        t = r.hi.get("time_to_il", float("nan"))
+        if t == t and t > 0:
+            text += f"; the inductive load needs {eng(t, 's')} to reach IL (see gate.latch-time)"
+        if r.status != "pass":
+            r_need = r.bound.inputs["vs"].value.lo / il
+            text += f"; fails: needs load R ≤ {eng(r_need, 'ohm')}"
+        return text + "; on-state drop not subtracted"
+    amax = r.lo["max_firing_angle"]
+    text = (f"anode current after firing reaches {eng(r.lo['reach_current'], 'A')} at the ends "
+            f"of the firing range against IL {eng(il, 'A')} (cold, low line)")
+    if amax == amax:
+        text += f"; latest firing that latches {_deg(amax)}"
+    if r.status != "pass":
+        text += (f"; fails: needs α_max ≤ {_deg(amax)}" if amax == amax else
+                 f"; fails: even full output stays below IL: needs load R ≤ "
+                 f"{eng(r.bound.inputs['r'].value.lo * r.lo['reach_current'] / il, 'ohm')}")
+    return text + "; the SCR as an ideal switch"
+
+
+register(CheckDef(
+    id="power.latching", kinds=POWER,
+    question="Does the anode current reach IL at the extremes of the firing range (cold IL)?",
+    method="AC: the largest current after firing at α_min and α_max (R: Vm·sin(max(α, 90°))/R; "
+           "R–L: the peak of i(θ)) ≥ IL_c at low line; max_firing_angle = π − asin(IL_c·R/Vm). "
+           "DC: V_s,min/R ≥ IL_c.",
+    source="Rashid 4e §7 (latching current); Bimbhra ch. 4",
+    fn=_fn_latching, bind=_bind_latching,
+    units={"anode_current_at_fire": "A", "il": "A", "max_firing_angle": "deg"},
+    summarise=_sum_latching,
+    fix="Limit α_max, lower the load R, or add a bleeder resistor across the load.",
+))
+
+
+def _bind_holding(ctx: Context) -> Bound:
+    b = Bound()
+    if not _bind_cold(ctx, b, "ih"):
+        return b
+    b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    ctx.need(b, "vs", "supply.voltage")
+    if _is_dc(ctx):
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        return b
+    _bind_load(ctx, b)
+    ctx.need(b, "freq", "supply.frequency")
+    _bind_firing(ctx, b)
+    return b
+
+
+def _fn_holding(**kw: Any) -> Outcome:
+    ih = _cold_of(kw, "ih")
+    if kw["kind"] == "dc":
+        return power.holding_check(ih_cold=ih, **kw)
+    a, _, _ = _firing(kw)
+    return power.holding_check(ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
+
+
+def _sum_holding(r: Reduced) -> str:
+    ih = r.worst["ih"]
+    if r.bound.options["kind"] == "dc":
+        text = (f"load current {eng(r.lo['load_current'], 'A')} at low line against IH "
+                f"{eng(ih, 'A')} (cold)")
+        if r.status != "pass":
+            k = r.limits.get("marginal_below", 2.0)
+            vs = r.bound.inputs["vs"].value.lo
+            text += f"; {r.status}: needs load R ≤ {eng(vs / (k * ih), 'ohm')} for {k:g}×IH"
+        return text + "; on-state drop not subtracted"
+    text = (f"the anode current falls to IH {eng(ih, 'A')} (cold) at "
+            f"{span(r.lo['dropout_angle'], r.hi['dropout_angle'], 'deg')}")
+    if r.status != "pass":
+        text += (f"; fails: the current never reaches IH at some corner (peak "
+                 f"{eng(r.lo['load_current'], 'A')}): needs a lower load R or an earlier α_max")
+    return text + "; the SCR as an ideal switch"
+
+
+register(CheckDef(
+    id="power.holding", kinds=POWER,
+    question="DC switch: does the load current stay above IH? AC: where does it drop out?",
+    method="DC: V_s,min/R against IH_c (pass ≥ 2×, marginal 1–2×). AC: dropout angle π − "
+           "asin(IH_c·R/Vm) (R), or where i(θ) falls to IH_c before β (R–L); reported.",
+    source="Singhal & Gupta, Introduction to Electric Drives ch. 1 (Ex 1_3); Rashid 4e §7",
+    fn=_fn_holding, bind=_bind_holding,
+    units={"load_current": "A", "ih": "A", "dropout_angle": "deg"}, summarise=_sum_holding,
+    fix="Lower the load R (or add a bleeder) so the current stays above IH.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.didt
+
+def _bind_didt(ctx: Context) -> Bound:
+    b = Bound()
+    if not _hot_or_na(ctx, b, {"didt_rating": "didt"}):
+        return b
+    b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    ctx.need(b, "vs", "supply.voltage")
+    ls = ctx.read(b, "l_s", "supply.inductance")
+    ll = ctx.read(b, "l", _sp(ctx, "load.l"))
+    if ls is None and ll is None:
+        b.not_applicable = ("no inductance in the load loop is given (supply.inductance, "
+                            "load.l): di/dt is bounded only by the wiring")
+        return b
+    snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
+    if snubs:
+        sn = snubs[0]
+        b.options["snubber"] = sn.id
+        if ctx.read(b, "snub_ld", ctx.stage_path("discharge_inductance", sn)) is None:
+            ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+            part = _scr(ctx)
+            ctx.read(b, "t_on", f"parts.{part.ref}.tgt", default=1e-6, dim="time", unit="s")
+    if not _is_dc(ctx):
+        _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
+    return b
+
+
+def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float],
+             l_s: Any = 0.0, l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
+             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+    if kind == "ac":
+        a, _, _ = _firing(kw, vs=vs)
+    else:
+        a = np.pi / 2
+    v = np.asarray(vs, dtype=float) if kind == "dc" else np.sqrt(2.0) * np.asarray(vs) * np.sin(a)
+    snub = 0.0
+    if snubber:
+        with np.errstate(divide="ignore"):
+            snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
+    return power.didt_check(kind=kind, vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
+                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+
+
+def _sum_didt(r: Reduced) -> str:
+    rating = r.bound.inputs["didt_rating"].value.nom
+    sn = r.bound.options.get("snubber")
+    text = f"di/dt at firing up to {eng(r.hi['didt'], 'A/s')} against {eng(rating, 'A/s')}"
+    if sn:
+        text += (f", with the snubber `{sn}` discharge"
+                 + ("" if "snub_ld" in r.bound.inputs else
+                    " (estimated over the turn-on time: no discharge_inductance given)"))
+    if r.status != "pass":
+        ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
+        need = ls * r.hi["didt"] / rating
+        text += (f"; fails: needs the loop inductance ≥ {eng(need, 'H')} (add a series "
+                 "inductor, then re-run the snubber checks)")
+    return text + "; the rating assumes a hard, fast gate drive"
+
+
+register(CheckDef(
+    id="power.didt", kinds=POWER,
+    question="Rate of rise of on-state current at firing, including the snubber's discharge.",
+    method="V_m,max·sin α*/(L_s + L), α* = 90° where the range spans it, else the end nearest "
+           "it (DC: V_s,max/L_tot); plus the snubber discharge V/L_d, or (V/R_sn)/t_on without "
+           "L_d.",
+    source="Rashid 4e §17 (di/dt protection)",
+    fn=_fn_didt, bind=_bind_didt,
+    units={"didt": "A/s"}, summarise=_sum_didt,
+    fix="Add a series inductor L ≥ V_m,max/(di/dt)cr, or a larger snubber resistor.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# power.control
+
+def _bind_control(ctx: Context) -> Bound:
+    b = Bound()
+    if ctx.stage.get("topology") != "ac-switch":
+        b.not_applicable = "only an ac-switch loses control below the load angle"
+        return b
+    ll = ctx.read(b, "l", _sp(ctx, "load.l"))
+    if ll is None or ll.hi == 0:
+        b.not_applicable = "a resistive load: no load angle"
+        return b
+    ctx.need(b, "r", _sp(ctx, "load.r"))
+    ctx.need(b, "freq", "supply.frequency")
+    _bind_firing(ctx, b)
+    return b
+
+
+def _fn_control(**kw: Any) -> Outcome:
+    _, lo, _ = _firing(kw)
+    kw.pop("vs", None)
+    return power.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
+
+
+def _sum_control(r: Reduced) -> str:
+    phi = r.hi["load_angle"]
+    text = f"load angle φ up to {_deg(phi)} against the earliest firing"
+    if r.status != "pass":
+        text += (f"; fails: needs α_min ≥ {_deg(phi)}, or wide gate pulses / a pulse train "
+                 "(else one SCR can miss its pulse and DC flows in the load)")
+    return text
+
+
+register(CheckDef(
+    id="power.control", kinds=("phase-control",),
+    question="AC switch with an inductive load: is the minimum firing angle at or above the "
+             "load angle?",
+    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
+    source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
+    fn=_fn_control, bind=_bind_control,
+    units={"load_angle": "deg"}, summarise=_sum_control,
+    fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train.",
+))
