@@ -558,10 +558,16 @@ def inrush_peak(*, topology: str, vs: np.ndarray, r_cold: np.ndarray,
     ...                         omega=314.16, alpha=0.0)), 1)
     40.6
     """
-    vm, z, phi = _vm_z_phi(vs, r_cold, l, omega)
-    a = _a(alpha)
-    beta = extinction_angle(alpha=a, phi=phi)
-    return vm / z * _segment_peak(a, beta, phi, -np.sin(a - phi))
+    vm, z, phi, a = np.broadcast_arrays(*_vm_z_phi(vs, r_cold, l, omega), _a(alpha))
+    # Resistive rows in closed form; the R–L peak search only where there is inductance.
+    out = np.array(vm / z * np.where(a <= np.pi / 2, 1.0, np.sin(a)), dtype=float)
+    rl = phi > 0
+    if np.any(rl):
+        ar, pr = a[rl], phi[rl]
+        beta = extinction_angle(alpha=ar, phi=pr)
+        out = out.copy()
+        out[rl] = (vm / z)[rl] * _segment_peak(ar, beta, pr, -np.sin(ar - pr))
+    return out
 
 
 def surge_check(*, topology: str, vs: np.ndarray, r_cold: np.ndarray,
@@ -633,16 +639,20 @@ def max_firing_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E
     """
     vs, r, l, il = np.broadcast_arrays(_a(vs), _a(r), _a(l), _a(il))  # noqa: E741
     omega = np.broadcast_to(_a(omega), vs.shape)
-    lo = np.full(vs.shape, np.pi / 2)
-    hi = np.full(vs.shape, np.pi)
-    ok = peak_after_firing(vs=vs, r=r, l=l, omega=omega, alpha=lo) >= il
-    for _ in range(40):  # vectorised bisection over every row
-        mid = 0.5 * (lo + hi)
-        reach = peak_after_firing(vs=vs, r=r, l=l, omega=omega, alpha=mid) >= il
-        lo = np.where(reach, mid, lo)
-        hi = np.where(reach, hi, mid)
-    exact_r = np.pi - np.arcsin(np.clip(il * r / (np.sqrt(2) * vs), 0.0, 1.0))
-    out = np.where(l > 0, 0.5 * (lo + hi), exact_r)
+    ok = peak_after_firing(vs=vs, r=r, l=l, omega=omega, alpha=np.full(vs.shape, np.pi / 2)) >= il
+    out = np.array(np.pi - np.arcsin(np.clip(il * r / (np.sqrt(2) * vs), 0.0, 1.0)), dtype=float)
+    m = l > 0
+    if np.any(m):  # vectorised bisection over the inductive rows only
+        s = {k: v[m] for k, v in (("vs", vs), ("r", r), ("l", l), ("omega", omega))}
+        lo = np.full(int(m.sum()), np.pi / 2)
+        hi = np.full(lo.shape, np.pi)
+        for _ in range(40):
+            mid = 0.5 * (lo + hi)
+            reach = peak_after_firing(alpha=mid, **s) >= il[m]
+            lo = np.where(reach, mid, lo)
+            hi = np.where(reach, hi, mid)
+        out = out.copy()
+        out[m] = 0.5 * (lo + hi)
     # An R–L peak can exceed the R-load one below 90°: check α ≤ π/2 is even possible.
     return np.where(ok, out, np.nan)
 
