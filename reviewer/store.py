@@ -1,0 +1,639 @@
+"""Safe files: atomic writes, the sidecar lock, the on-disk hash check, and the edit journal.
+
+Every file Latchbook writes goes through :func:`atomic_write`: the new text goes to a temp file in
+the same folder, is flushed to disk, gets the old file's permissions, replaces the old file in one
+``os.replace`` and the folder is flushed too, so a crash leaves either the old or the new file.
+
+A project and its review record are guarded by one sidecar lock, ``NAME.lock`` beside
+``NAME.toml`` (the data files are never locked themselves: replacing a file would drop a lock held
+on it). The lock names its holder (login from the password database, host, pid, start time);
+a second writer is told who holds it and works read-only. A lock left by a dead process on this
+host is broken after checking that its pid is gone; a lock from another host is never broken.
+
+Unsaved edits are kept in ``NAME.journal`` (JSON lines: a header, then one ``{path, text}`` per
+pending edit), written by the caller on a timer and on SIGHUP/SIGTERM, so that a dropped SSH
+session loses nothing; :func:`pending_journal` offers them back on the next open.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import errno
+import fcntl
+import hashlib
+import json
+import os
+import pwd
+import signal
+import socket
+import stat
+import tempfile
+import time
+from collections.abc import Callable, Iterable, Iterator, Mapping
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from pathlib import Path
+from types import FrameType
+from typing import Any
+
+from reviewer.errors import RecordError, Where
+
+JOURNAL_FORMAT = "latchbook.journal/1"
+LOCK_FORMAT = "latchbook.lock/1"
+
+
+# --------------------------------------------------------------------------------------------
+# Who and where
+# --------------------------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Person:
+    """The operating-system account running this process: login, display name, host."""
+
+    login: str
+    name: str
+    host: str
+
+    def as_dict(self) -> dict[str, str]:
+        """The ``by = {login, name, host}`` table of a record entry."""
+        return {"login": self.login, "name": self.name, "host": self.host}
+
+
+def current_person() -> Person:
+    """The account from the password database (never ``$USER``/``$LOGNAME``, which anyone sets)."""
+    uid = os.getuid()
+    try:
+        pw = pwd.getpwuid(uid)
+    except KeyError:
+        login, gecos = f"uid{uid}", ""
+    else:
+        login, gecos = pw.pw_name, pw.pw_gecos
+    name = gecos.split(",")[0].strip() or login
+    return Person(login, name, socket.gethostname())
+
+
+def utc_now() -> datetime:
+    """The current time in UTC, to the second (records and locks show it)."""
+    return datetime.now(UTC).replace(microsecond=0)
+
+
+def stamp(t: datetime | None = None) -> str:
+    """A compact UTC time stamp for file names: ``20261201T174500Z``."""
+    return (t or utc_now()).strftime("%Y%m%dT%H%M%SZ")
+
+
+# --------------------------------------------------------------------------------------------
+# Hashes and atomic writes
+# --------------------------------------------------------------------------------------------
+
+def sha256_bytes(data: bytes) -> str:
+    """Hex SHA-256 of ``data``."""
+    return hashlib.sha256(data).hexdigest()
+
+
+def file_sha256(path: str | Path) -> str | None:
+    """Hex SHA-256 of the file's bytes, or None when there is no such file."""
+    try:
+        return sha256_bytes(Path(path).read_bytes())
+    except FileNotFoundError:
+        return None
+
+
+def read_with_hash(path: str | Path) -> tuple[str | None, str | None]:
+    """The file's text and the hash of its bytes, read once (None, None when it does not exist).
+
+    Pass the hash back to :func:`save_checked` so that a change made by someone else in between
+    is noticed instead of overwritten.
+    """
+    p = Path(path)
+    try:
+        data = p.read_bytes()
+    except FileNotFoundError:
+        return None, None
+    except OSError as exc:
+        raise RecordError(f"cannot read the file: {exc.strerror}", Where(str(p))) from None
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise RecordError("not UTF-8 text; restore it from version control",
+                          Where(str(p))) from None
+    return text, sha256_bytes(data)
+
+
+def _umask() -> int:
+    """The process umask, read without changing it where the system allows."""
+    with contextlib.suppress(OSError, ValueError):
+        for line in Path("/proc/self/status").read_text().splitlines():
+            if line.startswith("Umask:"):
+                return int(line.split()[1], 8)
+    old = os.umask(0o022)
+    os.umask(old)
+    return old
+
+
+def _fsync_dir(folder: Path) -> None:
+    """Flush a folder's entry table so a rename survives a power cut."""
+    try:
+        fd = os.open(folder, os.O_RDONLY | getattr(os, "O_DIRECTORY", 0))
+    except OSError:
+        return
+    try:
+        with contextlib.suppress(OSError):  # some file systems refuse fsync on a folder
+            os.fsync(fd)
+    finally:
+        os.close(fd)
+
+
+def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = None,
+                 check: bool = False) -> Path:
+    """Replace the file at ``path`` with ``text`` so that readers see the old or the new file.
+
+    Temp file in the same folder → write → fsync → the old file's permissions (a temp file is
+    created owner-only; a new file gets the usual ``0666 & ~umask``) → ``os.replace`` → fsync the
+    folder. A symlink is followed, so the link survives. With ``check=True`` the file on disk
+    must still hash to ``expected_sha256`` (None: must not exist yet), else
+    :class:`RecordError` and nothing is written (see :func:`save_checked` to keep the text).
+    Returns the real path written.
+    """
+    target = Path(os.path.realpath(path))
+    folder = target.parent
+    if check:
+        on_disk = file_sha256(target)
+        if on_disk != expected_sha256:
+            raise RecordError("the file was changed on disk since it was read; nothing was "
+                              "written. Reload it and apply your change again",
+                              Where(str(target)))
+    data = text.encode("utf-8")
+    try:
+        old = target.stat()
+    except FileNotFoundError:
+        old = None
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
+                          "permissions", Where(str(target))) from None
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        if old is not None:
+            os.chmod(tmp, stat.S_IMODE(old.st_mode))
+            with contextlib.suppress(OSError):  # keep the group where we are allowed to
+                if old.st_gid != os.stat(tmp).st_gid:
+                    os.chown(tmp, -1, old.st_gid)
+        else:
+            os.chmod(tmp, 0o666 & ~_umask())
+        os.replace(tmp, target)
+    except BaseException as exc:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        if isinstance(exc, OSError):
+            raise RecordError(f"cannot write the file: {exc.strerror}",
+                              Where(str(target))) from None
+        raise
+    _fsync_dir(folder)
+    _clean_orphans(target)
+    return target
+
+
+ORPHAN_AGE = 600.0  # s: no save takes this long, so an older temp file is a killed writer's
+
+
+def _clean_orphans(target: Path) -> None:
+    """Remove temp files that writers killed mid-save left beside ``target``."""
+    now = time.time()
+    for tmp in target.parent.glob(f".{glob_escape(target.name)}.*.tmp"):
+        with contextlib.suppress(OSError):
+            if now - tmp.stat().st_mtime > ORPHAN_AGE:
+                tmp.unlink()
+
+
+def glob_escape(name: str) -> str:
+    """``name`` with glob metacharacters made literal."""
+    return "".join(f"[{c}]" if c in "*?[" else c for c in name)
+
+
+def mine_path(path: str | Path, t: datetime | None = None) -> Path:
+    """Where the user's version is kept when the file changed underneath: NAME.mine-<ts>.toml."""
+    p = Path(path)
+    stem = p.name[:-5] if p.name.endswith(".toml") else p.name
+    candidate = p.with_name(f"{stem}.mine-{stamp(t)}.toml")
+    n = 1
+    while candidate.exists():
+        n += 1
+        candidate = p.with_name(f"{stem}.mine-{stamp(t)}-{n}.toml")
+    return candidate
+
+
+def save_checked(path: str | Path, text: str, read_sha256: str | None) -> Path:
+    """Write ``text`` only if the file on disk is still the one read (hash ``read_sha256``).
+
+    When it is not, nothing is overwritten: ``text`` is saved beside it as
+    ``NAME.mine-<timestamp>.toml`` and a :class:`RecordError` says so and what to do.
+    """
+    target = Path(os.path.realpath(path))
+    on_disk = file_sha256(target)
+    if on_disk != read_sha256:
+        mine = mine_path(target)
+        atomic_write(mine, text)
+        what = "deleted" if on_disk is None else "changed by someone else"
+        raise RecordError(f"the file was {what} since it was read, so it was not overwritten; "
+                          f"your version is saved as {mine.name}. Reload the file and apply "
+                          "your changes again (compare the two files)", Where(str(target)))
+    return atomic_write(target, text, expected_sha256=read_sha256, check=True)
+
+
+# --------------------------------------------------------------------------------------------
+# The sidecar lock
+# --------------------------------------------------------------------------------------------
+
+def base_name(project_path: str | Path) -> Path:
+    """``/dir/NAME`` for ``/dir/NAME.toml`` (also for ``NAME.review.toml``)."""
+    p = Path(project_path)
+    name = p.name
+    for suffix in (".review.toml", ".toml"):
+        if name.endswith(suffix):
+            name = name[: -len(suffix)]
+            break
+    return p.with_name(name)
+
+
+def lock_path(project_path: str | Path) -> Path:
+    """The sidecar lock of a project (and of its review record): ``NAME.lock``."""
+    return base_name(project_path).with_name(base_name(project_path).name + ".lock")
+
+
+@dataclass(frozen=True)
+class LockInfo:
+    """Who holds a lock: the content of ``NAME.lock``."""
+
+    login: str
+    host: str
+    pid: int
+    started: str
+    token: str = ""
+
+    def text(self) -> str:
+        """``alice on buildhost since 2026-12-01 17:40 UTC (pid 4242)``."""
+        return f"{self.login} on {self.host} since {self.started} (pid {self.pid})"
+
+
+def _pid_alive(pid: int) -> bool:
+    """True unless the system says there is no such process (EPERM means it exists)."""
+    if pid <= 0:
+        return False
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    except OSError as exc:
+        return exc.errno != errno.ESRCH
+    return True
+
+
+def read_lock(project_path: str | Path) -> LockInfo | None:
+    """The holder of the project's lock, or None when it is not locked.
+
+    An unreadable lock file is reported with an unknown holder rather than ignored.
+    """
+    lp = lock_path(project_path)
+    try:
+        raw = lp.read_text("utf-8")
+    except FileNotFoundError:
+        return None
+    except (OSError, UnicodeDecodeError):
+        return LockInfo("?", "?", 0, "?")
+    return _parse_lock(raw)
+
+
+def _parse_lock(raw: str) -> LockInfo:
+    try:
+        d = json.loads(raw)
+        return LockInfo(str(d["login"]), str(d["host"]), int(d["pid"]), str(d["started"]),
+                        str(d.get("token", "")))
+    except (ValueError, KeyError, TypeError):
+        return LockInfo("?", "?", 0, "?")
+
+
+class LockedError(RecordError):
+    """The project is locked by another session; ``holder`` says by whom."""
+
+    def __init__(self, message: str, where: Where | None, holder: LockInfo) -> None:
+        super().__init__(message, where)
+        self.holder = holder
+
+
+# Locks this process holds, by lock path: (lock, depth). Re-entrant so that the workbook, which
+# holds the lock for its whole session, can call the same functions the command line uses.
+_HELD: dict[str, list[Any]] = {}
+
+
+class ProjectLock:
+    """An exclusive, re-entrant (within this process) lock on a project and its review record.
+
+    Use as a context manager, or :meth:`acquire` / :meth:`release`.
+    """
+
+    def __init__(self, project_path: str | Path) -> None:
+        self.path = lock_path(project_path)
+        self.project = Path(project_path)
+        self.info: LockInfo | None = None
+
+    @property
+    def held(self) -> bool:
+        """True while this object holds the lock."""
+        return self.info is not None
+
+    def acquire(self) -> ProjectLock:
+        """Take the lock or raise :class:`LockedError` naming the holder."""
+        key = str(self.path.absolute())
+        held = _HELD.get(key)
+        if held is not None and held[0].info is not None and held[0].info.pid == os.getpid():
+            held[1] += 1
+            self.info = held[0].info
+            return self
+        me = current_person()
+        info = LockInfo(me.login, me.host, os.getpid(),
+                        utc_now().strftime("%Y-%m-%d %H:%M:%S UTC"), os.urandom(8).hex())
+        body = json.dumps({"format": LOCK_FORMAT, "login": info.login, "host": info.host,
+                           "pid": info.pid, "started": info.started, "token": info.token})
+        for _ in range(5):
+            # Write the content to a private file, then hard-link it into place: the lock
+            # appears complete or not at all, and link() fails if the name exists.
+            try:
+                fd, tmp = tempfile.mkstemp(prefix=f".{self.path.name}.", suffix=".tmp",
+                                           dir=self.path.parent)
+            except OSError as exc:
+                raise RecordError(f"cannot create the lock file {self.path.name}: "
+                                  f"{exc.strerror}; check the folder's permissions",
+                                  Where(str(self.project))) from None
+            try:
+                with os.fdopen(fd, "w", encoding="utf-8") as fh:
+                    fh.write(body + "\n")
+                    fh.flush()
+                    os.fsync(fh.fileno())
+                os.chmod(tmp, 0o644)
+                try:
+                    os.link(tmp, self.path)
+                except FileExistsError:
+                    holder = self._break_if_stale()
+                    if holder is None:
+                        continue  # broken, or gone meanwhile: try again
+                    raise self._locked(holder) from None
+                except OSError as exc:
+                    if exc.errno not in (errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP):
+                        raise RecordError(f"cannot create the lock file {self.path.name}: "
+                                          f"{exc.strerror}", Where(str(self.project))) from None
+                    if not self._create_exclusive(body):  # no hard links on this file system
+                        holder = self._break_if_stale()
+                        if holder is None:
+                            continue
+                        raise self._locked(holder) from None
+            finally:
+                with contextlib.suppress(OSError):
+                    os.unlink(tmp)
+            _fsync_dir(self.path.parent)
+            self.info = info
+            _HELD[key] = [self, 1]
+            return self
+        holder = read_lock(self.project) or LockInfo("?", "?", 0, "?")
+        raise self._locked(holder)
+
+    def _create_exclusive(self, body: str) -> bool:
+        """Create the lock with O_EXCL (for file systems without hard links)."""
+        try:
+            fd = os.open(self.path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o644)
+        except FileExistsError:
+            return False
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(body + "\n")
+            fh.flush()
+            os.fsync(fh.fileno())
+        return True
+
+    def _locked(self, holder: LockInfo) -> LockedError:
+        me = current_person()
+        if holder.pid == 0:
+            return LockedError(f"the lock file {self.path.name} is damaged or not ours; "
+                               "opened read-only: if no session has this project open, delete "
+                               "it by hand", Where(str(self.project)), holder)
+        hint = ("close it there" if holder.host == me.host else
+                f"close it there; if that session is gone, check on {holder.host} and then "
+                f"delete {self.path.name} by hand")
+        return LockedError(f"locked by {holder.login} on {holder.host} since {holder.started} "
+                           f"(pid {holder.pid}); opened read-only: {hint}",
+                           Where(str(self.project)), holder)
+
+    def _break_if_stale(self) -> LockInfo | None:
+        """Remove the lock if its process is dead on this host; return the live holder if not.
+
+        The break is serialised with ``flock`` on the lock file and re-checks that the path still
+        names the inode it judged, so two breakers cannot remove a fresh lock.
+        """
+        try:
+            fd = os.open(self.path, os.O_RDONLY)
+        except FileNotFoundError:
+            return None
+        try:
+            try:
+                fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+            except OSError:  # someone else is breaking or releasing it right now
+                time.sleep(0.05)
+                return read_lock(self.project) if self.path.exists() else None
+            try:
+                if os.stat(self.path).st_ino != os.fstat(fd).st_ino:
+                    return None  # replaced meanwhile: look again
+            except FileNotFoundError:
+                return None
+            holder = _parse_lock(os.read(fd, 4096).decode("utf-8", "replace"))
+            if holder.host != socket.gethostname() or _pid_alive(holder.pid):
+                return holder
+            os.unlink(self.path)  # its process is gone on this host: a stale lock
+            return None
+        finally:
+            os.close(fd)
+
+    def release(self) -> None:
+        """Give the lock up (the outermost release removes the file, if it is still ours)."""
+        if self.info is None:
+            return
+        key = str(self.path.absolute())
+        held = _HELD.get(key)
+        self_info, self.info = self.info, None
+        if held is not None:
+            held[1] -= 1
+            if held[1] > 0:
+                return
+            del _HELD[key]
+        try:
+            fd = os.open(self.path, os.O_RDONLY)
+        except FileNotFoundError:
+            return
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX)
+            with contextlib.suppress(FileNotFoundError):
+                same = os.stat(self.path).st_ino == os.fstat(fd).st_ino
+                if same and _parse_lock(os.read(fd, 4096).decode("utf-8", "replace")).token \
+                        == self_info.token:
+                    os.unlink(self.path)
+        finally:
+            os.close(fd)
+
+    def __enter__(self) -> ProjectLock:
+        return self.acquire()
+
+    def __exit__(self, *exc: object) -> None:
+        self.release()
+
+
+def lock_project(project_path: str | Path) -> ProjectLock:
+    """Take the project's lock (raises :class:`LockedError` naming the holder)."""
+    return ProjectLock(project_path).acquire()
+
+
+# --------------------------------------------------------------------------------------------
+# The journal of unsaved edits
+# --------------------------------------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Edit:
+    """One pending edit: the dotted key and the value as the user typed it."""
+
+    path: str
+    text: str
+
+
+@dataclass
+class Journal:
+    """Unsaved edits found beside a project, to offer on the next open."""
+
+    path: Path
+    edits: list[Edit]
+    saved_at: str = ""
+    base_sha256: str = ""
+    by: dict[str, str] = field(default_factory=dict)
+
+    def base_changed(self, project_path: str | Path) -> bool:
+        """True when the project file is no longer the one the edits were made on."""
+        return bool(self.base_sha256) and file_sha256(project_path) != self.base_sha256
+
+
+def journal_path(project_path: str | Path) -> Path:
+    """``NAME.journal`` beside ``NAME.toml``."""
+    b = base_name(project_path)
+    return b.with_name(b.name + ".journal")
+
+
+def write_journal(project_path: str | Path, edits: Iterable[Edit | Mapping[str, str]], *,
+                  base_sha256: str = "") -> Path | None:
+    """Save the pending edits (all of them, atomically); with no edits, remove the journal.
+
+    ``base_sha256`` is the hash of the project file the edits apply to (so recovery can warn
+    when the file changed meanwhile). Returns the journal's path, or None when cleared.
+    """
+    items = [e if isinstance(e, Edit) else Edit(str(e["path"]), str(e["text"])) for e in edits]
+    if not items:
+        clear_journal(project_path)
+        return None
+    head = {"format": JOURNAL_FORMAT, "project": Path(project_path).name,
+            "saved_at": utc_now().isoformat().replace("+00:00", "Z"),
+            "base_sha256": base_sha256, "by": current_person().as_dict()}
+    lines = [json.dumps(head, ensure_ascii=False)]
+    lines += [json.dumps({"path": e.path, "text": e.text}, ensure_ascii=False) for e in items]
+    return atomic_write(journal_path(project_path), "\n".join(lines) + "\n")
+
+
+def pending_journal(project_path: str | Path) -> Journal | None:
+    """The unsaved edits left by an earlier session, or None.
+
+    A journal that is not ours to read is an error naming it (never silently dropped).
+    """
+    jp = journal_path(project_path)
+    try:
+        raw = jp.read_text("utf-8")
+    except FileNotFoundError:
+        return None
+    except (OSError, UnicodeDecodeError) as exc:
+        raise RecordError(f"cannot read the unsaved-edits journal: {exc}; move it aside to "
+                          "open the project without it", Where(str(jp))) from None
+    rows = [ln for ln in raw.splitlines() if ln.strip()]
+    try:
+        head = json.loads(rows[0]) if rows else {}
+        if head.get("format") != JOURNAL_FORMAT:
+            raise ValueError("not a Latchbook journal")
+        edits = []
+        for ln in rows[1:]:
+            d = json.loads(ln)
+            if not isinstance(d.get("path"), str) or not isinstance(d.get("text"), str):
+                raise ValueError("an edit needs `path` and `text` strings")
+            edits.append(Edit(d["path"], d["text"]))
+    except (ValueError, AttributeError) as exc:
+        raise RecordError(f"the unsaved-edits journal is damaged ({exc}); move it aside to "
+                          "open the project without it", Where(str(jp))) from None
+    if not edits:
+        return None
+    return Journal(jp, edits, str(head.get("saved_at", "")), str(head.get("base_sha256", "")),
+                   dict(head.get("by", {})))
+
+
+def clear_journal(project_path: str | Path) -> None:
+    """Remove the journal (after the edits were saved or discarded)."""
+    jp = journal_path(project_path)
+    with contextlib.suppress(FileNotFoundError):
+        jp.unlink()
+        _fsync_dir(jp.parent)
+
+
+def install_hangup_handler(callback: Callable[[], object]) -> Callable[[], None]:
+    """On SIGHUP or SIGTERM call ``callback`` (save the journal), then end as the signal asks.
+
+    A dropped SSH session sends SIGHUP; ``callback`` must be quick and must not raise (an
+    exception is reported on stderr, and the process still ends). Call from the main thread.
+    Returns a function that puts the previous handlers back.
+    """
+    sigs = [s for s in (getattr(signal, "SIGHUP", None), signal.SIGTERM) if s is not None]
+    previous: dict[int, Any] = {}
+
+    def handler(signum: int, frame: FrameType | None) -> None:
+        try:
+            callback()
+        except Exception as exc:  # the process is ending: say what was lost, and end
+            with contextlib.suppress(OSError):
+                os.write(2, f"latchbook: could not save unsaved edits: {exc}\n".encode())
+        prev = previous.get(signum, signal.SIG_DFL)
+        restore()
+        if callable(prev):
+            prev(signum, frame)
+        elif prev != signal.SIG_IGN:
+            signal.signal(signum, signal.SIG_DFL)
+            os.kill(os.getpid(), signum)
+
+    def restore() -> None:
+        for s, h in previous.items():
+            with contextlib.suppress(ValueError, TypeError):
+                signal.signal(s, h)
+
+    for s in sigs:
+        previous[s] = signal.signal(s, handler)
+    return restore
+
+
+@contextlib.contextmanager
+def hangup_saves(callback: Callable[[], object]) -> Iterator[None]:
+    """Context manager form of :func:`install_hangup_handler`."""
+    restore = install_hangup_handler(callback)
+    try:
+        yield
+    finally:
+        restore()
+
+
+__all__ = ["Edit", "Journal", "LockInfo", "LockedError", "Person", "ProjectLock",
+           "atomic_write", "base_name", "clear_journal", "current_person", "file_sha256",
+           "hangup_saves", "install_hangup_handler", "journal_path", "lock_path", "lock_project",
+           "mine_path", "pending_journal", "read_lock", "read_with_hash", "save_checked",
+           "sha256_bytes", "stamp", "utc_now", "write_journal"]

@@ -1,0 +1,139 @@
+"""The sign / waive / revoke / verify / status commands: output and exit codes."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import re
+from pathlib import Path
+
+import pytest
+
+from reviewer import cli_review
+from reviewer.review import record_path
+
+from .test_review import make
+
+
+def run(argv: list[str]) -> int:
+    """Parse with only our subcommands registered, as the lead's CLI does, and run."""
+    parser = argparse.ArgumentParser(prog="latchbook")
+    cli_review.register(parser.add_subparsers(dest="command"))
+    args = parser.parse_args(argv)
+    return int(args.func(args))
+
+
+def test_sign_then_verify_intact(tmp_path, capsys):
+    """sign exits 0; verify exits 0 and says the history is intact and what anchors it."""
+    p = make(tmp_path)
+    assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window",
+                "--meaning", "reviewed", "--note", "by hand"]) == 0
+    assert "signed: #1 signoff of stage trigger" in capsys.readouterr().out
+    assert run(["verify", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "history intact: 1 entries" in out and "not SSH-signed" in out
+
+
+def test_verify_names_first_bad_entry_and_exits_1(tmp_path, capsys):
+    """A tampered entry: exit 1, and the output names the entry."""
+    p = make(tmp_path)
+    for note in ("one", "two"):
+        assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window",
+                    "--note", note]) == 0
+    rp = record_path(p)
+    rp.write_text(rp.read_text("utf-8").replace('note = "one"', 'note = "uno"'), "utf-8")
+    capsys.readouterr()
+    assert run(["verify", str(p)]) == 1
+    assert "history BROKEN at entry 1" in capsys.readouterr().out
+    assert run(["verify", str(p), "--json"]) == 1
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["ok"] is False and doc["first_bad"] == 1
+
+
+def test_sign_refused_on_fail_exits_1_with_reason(tmp_path, capsys):
+    """A failing check: exit 1 and a message saying how to proceed."""
+    p = make(tmp_path, rmax="10 Mohm")
+    assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window"]) == 1
+    err = capsys.readouterr().err
+    assert "osc.window fails" in err and "waive" in err and "Traceback" not in err
+
+
+def test_waive_then_sign_then_revoke(tmp_path, capsys):
+    """waive with a reason, sign, revoke the sign-off: each exits 0."""
+    p = make(tmp_path, rmax="10 Mohm")
+    assert run(["waive", str(p), "--stage", "trigger", "--check", "osc.window",
+                "--note", "ok"]) == 1
+    assert "too short" in capsys.readouterr().err
+    assert run(["waive", str(p), "--stage", "trigger", "--check", "osc.window", "--note",
+                "knob end-stop limits the pot to 90 kohm, checked on the bench"]) == 0
+    assert "fail — waived" in capsys.readouterr().out
+    assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window"]) == 0
+    assert run(["revoke", str(p), "--entry", "2", "--note",
+                "sign-off made before the bench report was filed"]) == 0
+    assert run(["verify", str(p)]) == 0
+
+
+def test_bad_input_exits_2(tmp_path, capsys):
+    """A missing project or an unknown stage is bad input: exit 2, no traceback."""
+    assert run(["sign", str(tmp_path / "nope.toml"), "--stage", "x"]) == 2
+    assert "no such project file" in capsys.readouterr().err
+    p = make(tmp_path)
+    assert run(["sign", str(p), "--stage", "nosuch"]) == 2
+    assert "the stages are trigger" in capsys.readouterr().err
+    assert run(["status", str(tmp_path / "missing-dir")]) == 2
+    assert run(["verify", str(tmp_path / "nope.toml")]) == 2
+
+
+def test_status_counts_and_exit_codes(tmp_path, capsys):
+    """status: one row per project; 1 while a fail is unwaived or a sign-off is stale."""
+    good = make(tmp_path, name="good.toml")
+    bad = make(tmp_path, rmax="10 Mohm", name="bad.toml")
+    assert run(["sign", str(good), "--stage", "trigger", "--check", "osc.window"]) == 0
+    capsys.readouterr()
+    assert run(["status", str(good)]) == 0
+    assert "good.toml" in capsys.readouterr().out
+    assert run(["status", str(tmp_path), "--json"]) == 1  # bad.toml fails, unwaived
+    rows = {Path(r["file"]).name: r for r in json.loads(capsys.readouterr().out)}
+    assert set(rows) == {"good.toml", "bad.toml"}
+    assert "trigger/osc.window" in rows["bad.toml"]["failing"]
+    failing = rows["bad.toml"]["failing"]
+    assert rows["bad.toml"]["counts"]["fail"] >= 1
+    g = rows["good.toml"]["counts"]
+    assert g["fail"] == 0 and g["stale"] == 0 and g["pass"] >= 1
+    assert g["unsigned"] == g["pass"] + g["marginal"] - 1  # all but the signed osc.window
+    # Make the sign-off stale: exit 1, and the row says which input changed.
+    good.write_text(good.read_text("utf-8").replace('"100 kohm"', '"120 kohm"'), "utf-8")
+    assert run(["status", str(good)]) == 1
+    out = capsys.readouterr().out
+    assert re.search(r"good\.toml: trigger/osc\.window stale \(stages\.trigger\.timing_r: ", out)
+    # Waive the failures: bad.toml no longer fails the build.
+    for key in failing:
+        stage, check = key.split("/")
+        assert run(["waive", str(bad), "--stage", stage, "--check", check, "--note",
+                    "knob end-stop limits the pot to 90 kohm, checked on the bench"]) == 0
+    capsys.readouterr()
+    assert run(["status", str(bad), "--json"]) == 0
+    [row] = json.loads(capsys.readouterr().out)
+    assert row["counts"]["waived"] == len(failing) and row["failing"] == []
+
+
+def test_status_skips_record_and_checklist_files(tmp_path, capsys):
+    """A folder scan lists projects only."""
+    p = make(tmp_path, name="only.toml")
+    (tmp_path / "x.checklist.toml").write_text('[checklist]\nname = "x"\n')
+    assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window"]) == 0
+    capsys.readouterr()
+    run(["status", str(tmp_path), "--json"])
+    assert [Path(r["file"]).name for r in json.loads(capsys.readouterr().out)] == ["only.toml"]
+
+
+@pytest.mark.parametrize("name", ["kiln-230.toml", "kiln-120.toml", "flasher-dc.toml"])
+def test_status_on_demo_projects_reports_without_traceback(name, capsys):
+    """The shipped demo projects give a status row (they are fixtures, read-only here)."""
+    demo = Path(__file__).resolve().parents[2] / "projects" / name
+    if not demo.exists():
+        pytest.skip(f"demo project {name} not present")
+    code = run(["status", str(demo), "--json"])
+    [row] = json.loads(capsys.readouterr().out)
+    assert code in (0, 1) and "error" not in row
+    assert sum(row["counts"].values()) >= 1
