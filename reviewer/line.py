@@ -1,0 +1,314 @@
+"""The product line at a glance: projects and variants × stages, the review state of each stage.
+
+:func:`status_matrix` loads every project under the given folders or files, computes each one
+once, reads its review record, and reduces the per-check states of :mod:`reviewer.review` to one
+word per stage, by precedence (the first that applies wins):
+
+1. ``fail`` — a check fails (or errors) without a current waiver;
+2. ``stale`` — a sign-off, approval or waiver covering one of its checks no longer matches;
+3. ``marginal`` — a check is marginal without a current waiver;
+4. ``waived`` — a failing or marginal check is covered by a current waiver ("fail — waived");
+5. ``unsigned`` — an applicable check has no reviewed sign-off at all;
+6. ``n/a`` — nothing in the stage applies;
+7. ``pass`` — every applicable check passes (or is waived) and is signed.
+
+A project that does not load is a row with its error. :func:`matrix_exit_code` gives what a build
+should exit with: 2 when a project does not load, 1 when any stage fails or is stale, else 0.
+"""
+
+from __future__ import annotations
+
+import sys
+import tomllib
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, TextIO
+
+from reviewer.errors import LatchbookError
+
+STATES = ("fail", "stale", "marginal", "waived", "unsigned", "n/a", "pass")
+STYLES = {"pass": "green", "marginal": "yellow", "fail": "bold red", "stale": "bold magenta",
+          "waived": "cyan", "unsigned": "dim", "n/a": "dim", "error": "bold red"}
+
+
+@dataclass
+class Cell:
+    """One stage of one project: its state word, the per-check labels and a short detail."""
+
+    state: str
+    checks: dict[str, str] = field(default_factory=dict)
+    counts: dict[str, int] = field(default_factory=dict)
+    detail: str = ""
+
+    def as_dict(self) -> dict[str, Any]:
+        """JSON form."""
+        return {"state": self.state, "detail": self.detail, "counts": dict(self.counts),
+                "checks": dict(self.checks)}
+
+
+@dataclass
+class Row:
+    """One project or variant: identity, the chain of files it resolves through, its cells."""
+
+    path: str
+    name: str = ""
+    revision: str = ""
+    variant_of: str = ""
+    chain: list[str] = field(default_factory=list)
+    checklist: dict[str, str] = field(default_factory=dict)
+    cells: dict[str, Cell] = field(default_factory=dict)
+    counts: dict[str, int] = field(default_factory=dict)
+    state: str = ""
+    error: str = ""
+    record: str = ""
+    chain_ok: bool = True
+
+    def as_dict(self) -> dict[str, Any]:
+        """JSON form."""
+        return {"file": self.path, "name": self.name or None, "revision": self.revision or None,
+                "variant_of": self.variant_of or None, "chain": list(self.chain),
+                "checklist": dict(self.checklist) or None, "state": self.state,
+                "counts": dict(self.counts), "error": self.error or None,
+                "record": self.record or None, "history_ok": self.chain_ok,
+                "stages": {k: c.as_dict() for k, c in self.cells.items()}}
+
+
+@dataclass
+class Matrix:
+    """Rows of projects × columns of stage ids (in order of first appearance)."""
+
+    stages: list[str]
+    rows: list[Row]
+
+    @property
+    def failing(self) -> list[Row]:
+        """Rows with a failing stage."""
+        return [r for r in self.rows if any(c.state == "fail" for c in r.cells.values())]
+
+    @property
+    def stale(self) -> list[Row]:
+        """Rows with a stale stage."""
+        return [r for r in self.rows if any(c.state == "stale" for c in r.cells.values())]
+
+    @property
+    def broken(self) -> list[Row]:
+        """Rows whose project does not load."""
+        return [r for r in self.rows if r.error]
+
+
+def stage_state(states: Iterable[Any]) -> Cell:
+    """Reduce the :class:`reviewer.review.CheckState` of one stage's checks to one cell."""
+    sts = list(states)
+    flags: dict[str, list[str]] = {s: [] for s in STATES}
+    for st in sts:
+        waived = st.waiver == "waived" and st.status in ("fail", "marginal")
+        if st.status in ("fail", "error") and not waived:
+            flags["fail"].append(st.check)
+        if "stale" in (st.signoff, st.approval, st.waiver):
+            flags["stale"].append(st.check)
+        if st.status == "marginal" and not waived:
+            flags["marginal"].append(st.check)
+        if waived:
+            flags["waived"].append(st.check)
+        if st.status != "not-applicable" and st.signoff == "unsigned":
+            flags["unsigned"].append(st.check)
+    applicable = [st for st in sts if st.status != "not-applicable"]
+    if not applicable and not flags["stale"]:
+        state = "n/a"
+    else:
+        state = next((s for s in STATES[:5] if flags[s]), "pass")
+    counts = {s: len(v) for s, v in flags.items() if v and s != "n/a"}
+    detail_parts = []
+    for s in STATES[:5]:
+        if flags[s]:
+            names = ", ".join(flags[s][:3]) + (" …" if len(flags[s]) > 3 else "")
+            detail_parts.append(f"{s}: {names}" if s != "unsigned" else
+                                f"{len(flags[s])} unsigned")
+    return Cell(state, {st.check: st.label for st in sts}, counts, "; ".join(detail_parts))
+
+
+def _worst(states: Iterable[str]) -> str:
+    order = {s: i for i, s in enumerate(STATES)}
+    found = [s for s in states if s in order]
+    return min(found, key=order.__getitem__) if found else "n/a"
+
+
+def run_project(path: str | Path) -> Any:
+    """Load a project (variants resolved), its checklist, and compute every check once."""
+    from reviewer.checklist import load_checklist
+    from reviewer.engine import evaluate
+    from reviewer.project import load_project
+
+    project = load_project(path)
+    checklist = load_checklist(project.checklist, Path(path).parent)
+    return evaluate(project, checklist)
+
+
+def _is_project(path: Path) -> bool:
+    """A TOML file with a [project] table (an unreadable one counts: its error is shown)."""
+    name = path.name
+    if name.endswith((".review.toml", ".checklist.toml")) or name == "pyproject.toml" \
+            or ".mine-" in name:  # a copy kept aside after a conflicting save
+        return False
+    try:
+        doc = tomllib.loads(path.read_text("utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return True
+    return isinstance(doc.get("project"), dict)
+
+
+def find_projects(paths: Sequence[str | Path]) -> list[Path]:
+    """The project files named, and those under the folders named (recursively, sorted)."""
+    out: list[Path] = []
+    for p in paths:
+        p = Path(p)
+        if p.is_dir():
+            for f in sorted(p.rglob("*.toml")):
+                if any(part.startswith(".") for part in f.relative_to(p).parts):
+                    continue
+                if _is_project(f):
+                    out.append(f)
+        else:
+            out.append(p)
+    return list(dict.fromkeys(out))
+
+
+def _row(path: Path) -> tuple[Row, list[str]]:
+    from reviewer.review import check_states, counts, load_record
+
+    row = Row(str(path))
+    try:
+        run = run_project(path)
+        record = load_record(path)
+    except LatchbookError as exc:
+        row.error, row.state = str(exc), "error"
+        return row, []
+    p = run.project
+    row.name, row.revision, row.variant_of = p.name, p.revision, p.variant_of
+    row.chain = [str(c) for c in p.chain]
+    row.checklist = run.checklist.identity()
+    row.record = str(record.path) if record.exists else ""
+    row.chain_ok = record.chain.ok
+    states = check_states(record, run)
+    row.counts = counts(states)
+    order = list(dict.fromkeys(r.stage for r in run.results))
+    for sid in order:
+        row.cells[sid] = stage_state(st for (s, _), st in states.items() if s == sid)
+    row.state = _worst(c.state for c in row.cells.values())
+    return row, order
+
+
+def _sort_key(row: Row) -> tuple[str, int, str]:
+    root = row.chain[-1] if row.chain else row.path
+    return (str(Path(root).resolve()), len(row.chain), row.path)
+
+
+def status_matrix(paths: Sequence[str | Path]) -> Matrix:
+    """Projects × stages for the folders or project files in ``paths``.
+
+    Each project is loaded and computed once; rows come grouped by base project (the base, then
+    its variants by depth); columns are stage ids in order of first appearance.
+    """
+    rows: list[Row] = []
+    stages: list[str] = []
+    for f in find_projects(paths):
+        row, order = _row(f)
+        rows.append(row)
+        for sid in order:
+            if sid not in stages:
+                stages.append(sid)
+    rows.sort(key=_sort_key)
+    return Matrix(stages, rows)
+
+
+def matrix_exit_code(m: Matrix) -> int:
+    """2 when a project does not load; 1 when a stage fails or is stale, or a history is
+    broken; else 0."""
+    if m.broken or not m.rows:
+        return 2
+    return 1 if m.failing or m.stale or any(not r.chain_ok for r in m.rows) else 0
+
+
+def matrix_json(m: Matrix) -> dict[str, Any]:
+    """The ``--json`` document of a matrix."""
+    from reviewer import TOOL
+
+    return {"tool": TOOL, "stages": list(m.stages), "rows": [r.as_dict() for r in m.rows],
+            "exit_code": matrix_exit_code(m)}
+
+
+def _display_name(row: Row, base_dir: Path | None) -> str:
+    p = Path(row.path)
+    if base_dir is not None:
+        try:
+            return str(p.resolve().relative_to(base_dir.resolve()))
+        except ValueError:
+            pass
+    return p.name
+
+
+def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path | None = None,
+                  width: int | None = None) -> None:
+    """Print the matrix as a table (rich; every cell is plain text, never markup)."""
+    from rich import box
+    from rich.console import Console
+    from rich.table import Table
+    from rich.text import Text
+
+    stream = out or sys.stdout
+    if width is None and not (hasattr(stream, "isatty") and stream.isatty()):
+        width = 140
+    console = Console(file=stream, highlight=False, soft_wrap=False, width=width)
+    bd = Path(base_dir) if base_dir is not None else None
+    table = Table(title="Review status by project and stage", title_justify="left",
+                  box=box.SIMPLE_HEAD, pad_edge=False)
+    table.add_column("project", overflow="fold", ratio=1)
+    table.add_column("rev", no_wrap=True)
+    table.add_column("variant of", overflow="fold", ratio=1)
+    for sid in m.stages:  # the state words must never be cut: they are the table
+        table.add_column(sid, no_wrap=True, min_width=8, overflow="fold")
+    table.add_column("overall", no_wrap=True, min_width=8)
+    for row in m.rows:
+        name = Text(_display_name(row, bd))
+        if row.error:
+            table.add_row(name, Text(""), Text(""),
+                          *[Text("") for _ in m.stages], Text("error", style=STYLES["error"]))
+            continue
+        base = Text(Path(row.variant_of).name if row.variant_of else "")
+        cells = []
+        for sid in m.stages:
+            c = row.cells.get(sid)
+            cells.append(Text("—", style="dim") if c is None
+                         else Text(c.state, style=STYLES.get(c.state, "")))
+        table.add_row(name, Text(row.revision), base, *cells,
+                      Text(row.state, style=STYLES.get(row.state, "")))
+    console.print(table)
+    for row in m.rows:
+        label = _display_name(row, bd)
+        if row.error:
+            console.print(Text(f"  {label}: {row.error}", style="red"))
+            continue
+        notes = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
+                 if c.state in ("fail", "stale", "marginal", "waived") and c.detail]
+        if not row.chain_ok:
+            notes.insert(0, "the review history is broken (latchbook verify)")
+        if notes:
+            console.print(Text(f"  {label}: " + " | ".join(notes)))
+    code = matrix_exit_code(m)
+    verdict = {0: "nothing fails and no sign-off is stale",
+               1: f"{len(m.failing)} project(s) fail, {len(m.stale)} with stale sign-offs",
+               2: "some projects do not load" if m.rows else "no projects found"}[code]
+    console.print(Text(f"{len(m.rows)} project(s): {verdict}"))
+
+
+def summary_counts(rows: Iterable[Row]) -> Mapping[str, int]:
+    """How many rows are in each overall state."""
+    out: dict[str, int] = {}
+    for r in rows:
+        out[r.state] = out.get(r.state, 0) + 1
+    return out
+
+
+__all__ = ["Cell", "Matrix", "Row", "find_projects", "matrix_exit_code", "matrix_json",
+           "render_matrix", "run_project", "stage_state", "status_matrix"]
