@@ -1,0 +1,1 @@
+"""The workbook: a keyboard-driven Textual review of one project (``latchbook open``)."""

@@ -1,0 +1,1 @@
+"""Modal dialogs (``ModalScreen[T]``) that return their answer through ``dismiss``."""

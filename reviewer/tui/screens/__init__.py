@@ -1,0 +1,1 @@
+"""The workbook's screens, one per module, each with its ``.tcss``."""

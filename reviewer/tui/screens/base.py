@@ -1,0 +1,299 @@
+"""What every workbook screen shares: the session, the edit / undo / redo / save flow, the
+sign-off dialogs, and the boundary where a user's mistake becomes a message, not a traceback.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import TYPE_CHECKING, Any, cast
+
+from rich.text import Text
+from textual.binding import Binding
+from textual.screen import Screen
+
+from reviewer.edits import shown_text
+from reviewer.errors import LatchbookError
+from reviewer.fmt import DIM_UNIT
+from reviewer.model import Value
+from reviewer.tui import present
+from reviewer.tui.dialogs.edit_value import EditValueDialog
+from reviewer.tui.dialogs.pick_value import PickValueDialog
+from reviewer.tui.dialogs.revoke import RevokeDialog
+from reviewer.tui.dialogs.sign import SignDialog
+from reviewer.tui.messages import ResultsChanged
+from reviewer.tui.session import Session, State
+from reviewer.units import DIMS
+
+if TYPE_CHECKING:
+    from reviewer.tui.app import Workbook
+
+HINT = ('Same grammar as the file: 47 kohm ±5%, 4k7, 230 V +10% -15%, '
+        '{ min = "10 kohm", max = "110 kohm" }')
+
+
+class WorkbookScreen(Screen[None]):
+    """Base of the workbook's screens."""
+
+    BINDINGS = [
+        Binding("e", "edit", "Edit"),
+        Binding("ctrl+z", "undo", "Undo"),
+        Binding("ctrl+y", "redo", "Redo", show=False),
+        Binding("ctrl+s", "save", "Save"),
+    ]
+
+    @property
+    def workbook(self) -> Workbook:
+        """The app, typed."""
+        return cast("Workbook", self.app)
+
+    @property
+    def session(self) -> Session:
+        """The open project."""
+        return self.workbook.session
+
+    # -- refresh ------------------------------------------------------------------------
+    def refresh_view(self) -> None:
+        """Show the session's current state (each screen fills this in)."""
+
+    def on_screen_resume(self) -> None:
+        self.refresh_view()
+
+    def on_results_changed(self, event: ResultsChanged) -> None:
+        self.refresh_view()
+
+    def attempt(self, fn: Callable[[], Any]) -> Any:
+        """Run a user action; a LatchbookError becomes a notification (other errors propagate)."""
+        try:
+            return fn()
+        except LatchbookError as exc:
+            self.notify(str(exc),
+                        title="not done", severity="error", timeout=8, markup=False)
+            return None
+
+    # -- editing ------------------------------------------------------------------------
+    def edit_candidates(self) -> tuple[str, list[tuple[str, str, bool]]]:
+        """The dialog title and the values offered for editing (each screen narrows it)."""
+        return "Change a value", self._values_of(None, [])
+
+    def _values_of(self, stage_id: str | None, read: list[str]) -> list[tuple[str, str, bool]]:
+        p = self.session.project
+        paths: list[str] = []
+        for q in read:
+            if "#none" not in q:
+                paths.append(q.split("#")[0])
+        stage_ids = [stage_id] if stage_id else list(p.stages)
+        for sid in stage_ids:
+            st = p.stages[sid]
+            for key, v in st.params.items():
+                if isinstance(v, Value):
+                    paths.append(f"stages.{sid}.{key}")
+                elif isinstance(v, dict):
+                    paths += [f"stages.{sid}.{key}.{k}" for k, x in v.items()
+                              if isinstance(x, Value)]
+            refs = [v for k, v in st.params.items() if isinstance(v, (str, list))
+                    and k in ("ujt", "put", "scr")]
+            for ref in [r for x in refs for r in (x if isinstance(x, list) else [x])]:
+                part = p.parts.get(ref)
+                if part is not None:
+                    paths += [f"parts.{ref}.{k}" for k, v in part.params.items()
+                              if isinstance(v, Value)]
+        paths += [f"supply.{k}" for k, v in p.supply.items() if isinstance(v, Value)]
+        paths += [f"conditions.{k}" for k, v in p.conditions.items() if isinstance(v, Value)]
+        out, seen = [], set()
+        read_set = {q.split("#")[0] for q in read}
+        for path in paths:
+            if path in seen:
+                continue
+            seen.add(path)
+            raw = self.session.current_raw(path)
+            out.append((path, "(not given)" if raw is None else shown_text(raw),
+                        path in read_set))
+        return out
+
+    def action_edit(self) -> None:
+        if self.session.read_only:
+            self.notify(f"read-only ({self.session.read_only_reason}): nothing can be changed",
+                        severity="warning", markup=False)
+            return
+        title, candidates = self.edit_candidates()
+        if not candidates:
+            self.notify("nothing to edit here", markup=False)
+            return
+        self.app.push_screen(PickValueDialog(title, candidates), self._picked)
+
+    def _picked(self, path: str | None) -> None:
+        if path is None:
+            return
+        self.edit_path(path)
+
+    def edit_path(self, path: str) -> None:
+        """Open the edit dialog for one value."""
+        raw = self.session.current_raw(path)
+        current = "" if raw is None else shown_text(raw)
+        value = self.session.project.lookup(path)
+        hint = HINT
+        if isinstance(value, Value) and value.dim in DIMS:
+            hint = f"{DIMS[value.dim][1]} ({DIM_UNIT.get(value.dim, '')}), e.g. " \
+                   f"{DIMS[value.dim][2]}.  {HINT}"
+        self.app.push_screen(EditValueDialog(path, current, hint, self.session.propose),
+                             self._edited)
+
+    def _edited(self, state: State | None) -> None:
+        if state is None:
+            return
+        paths = [state.edits[-1].path] if state.edits else None
+        self.session.push(state)
+        self.workbook.computer.start(paths)
+        self.notify(f"changed {state.label}; recomputing what depends on it", markup=False)
+        self.refresh_view()
+
+    def action_undo(self) -> None:
+        if self.session.read_only:
+            return
+        before = self.session.index
+        undone = self.session.undo()
+        if undone is None:
+            self.notify("nothing to undo", markup=False)
+            return
+        self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
+        self.notify(f"undone: {undone.label}", markup=False)
+        self.refresh_view()
+
+    def action_redo(self) -> None:
+        if self.session.read_only:
+            return
+        before = self.session.index
+        redone = self.session.redo()
+        if redone is None:
+            self.notify("nothing to redo", markup=False)
+            return
+        self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
+        self.notify(f"redone: {redone.label}", markup=False)
+        self.refresh_view()
+
+    def action_save(self) -> None:
+        if not self.session.dirty:
+            self.notify("nothing to save", markup=False)
+            return
+        written = self.attempt(self.session.save)
+        if written is not None:
+            self.notify(f"saved {written.name}", markup=False)
+            self.refresh_view()
+
+    # -- signing ------------------------------------------------------------------------
+    def refusal(self) -> str:
+        """Why signing is refused right now ("" when it is allowed)."""
+        s = self.session
+        if s.read_only:
+            return f"read-only ({s.read_only_reason})"
+        if not s.review_available:
+            return "sign-off not available in this version"
+        if s.dirty:
+            return "there are unsaved edits: save them (ctrl+s) or undo them first"
+        if not s.computed:
+            return "the checks are still being computed"
+        return ""
+
+    def what_is_signed(self, stage: str, checks: list[str] | None, meaning: str) -> Text:
+        """The list a signer sees: each check, its result and its inputs hash, and the meaning."""
+        out = Text()
+        rows = [r for r in self.session.run.results if r.stage == stage
+                and (checks is None or r.check in checks)]
+        out.append(f"stage {stage}: {len(rows)} check(s)\n", style="bold")
+        for r in rows:
+            out.append(f"  {r.check:<24} ")
+            out.append_text(present.status_text(r.status))
+            out.append(f"  inputs {present.short_hash(r.inputs_sha256)}\n", style="dim")
+        words = {"reviewed": "I reviewed these results against the checklist.",
+                 "approved": "I approve this stage's review.",
+                 "waived": "I accept this failure, for the reason given."}
+        out.append(words.get(meaning, meaning))
+        out.append(f"\nsigned as {self._login()}; the record is tamper-evident, not "
+                   "tamper-proof", style="dim")
+        return out
+
+    def _login(self) -> str:
+        try:
+            from reviewer.store import current_person
+
+            return current_person().login
+        except (ImportError, KeyError):
+            return "?"
+
+    def sign_stage(self, stage: str, checks: list[str] | None, meaning: str = "reviewed") -> None:
+        """Ask, then sign ``stage`` (or some of its checks)."""
+        title = f"Sign {'stage ' + stage if checks is None else ', '.join(checks)} as {meaning}"
+
+        def done(note: str | None) -> None:
+            if note is None:
+                return
+            self.background(f"signing {stage}", lambda: self.session.sign(
+                stage=stage, checks=checks, meaning=meaning, note=note),
+                lambda e: f"signed {stage} as {meaning} (entry #{getattr(e, 'seq', '?')})")
+
+        self.app.push_screen(SignDialog(title, self.what_is_signed(stage, checks, meaning),
+                                        meaning=meaning, refusal=self.refusal()), done)
+
+    def waive_check(self, stage: str, check: str) -> None:
+        """Ask for the justification, then waive a failing check."""
+        r = self.session.result(stage, check)
+        refusal = self.refusal()
+        if not refusal and (r is None or r.status not in ("fail", "marginal", "error")):
+            refusal = "only a failing or marginal check can be waived"
+
+        def done(note: str | None) -> None:
+            if note is None:
+                return
+            self.background(f"waiving {stage} · {check}", lambda: self.session.waive(
+                stage=stage, check=check, note=note),
+                lambda e: f"waived {stage} · {check} (entry #{getattr(e, 'seq', '?')}): "
+                          "reported as fail (waived)")
+
+        self.app.push_screen(SignDialog(f"Waive {stage} · {check}",
+                                        self.what_is_signed(stage, [check], "waived"),
+                                        meaning="waived", note_required=True,
+                                        refusal=refusal, note_check=self.session.note_problem),
+                             done)
+
+    def background(self, what: str, fn: Callable[[], Any],
+                   said: Callable[[Any], str]) -> None:
+        """Run a review action off the UI thread (it recomputes from disk), then say what it did.
+
+        A LatchbookError is shown as a notification; anything else reaches the app's worker
+        report (never swallowed).
+        """
+        self.notify(f"{what}…", markup=False)
+        app = self.app
+
+        def work() -> None:
+            try:
+                value = fn()
+            except LatchbookError as exc:
+                app.call_from_thread(app.notify, str(exc), title="not done", severity="error",
+                                     timeout=12, markup=False)
+                return
+            app.call_from_thread(self._after_review, said(value))
+
+        app.run_worker(work, name=what, group="review", thread=True, exit_on_error=False)
+
+    def _after_review(self, message: str) -> None:
+        self.notify(message, markup=False)
+        self.refresh_view()
+        if self.app.screen is not self:
+            self.app.screen.post_message(ResultsChanged(True))
+
+    def revoke_entry(self) -> None:
+        """Choose an entry of the history and revoke it, with a reason."""
+        refusal = self.refusal()
+        lines = [(e.seq, f"{e.title()}  {e.at or ''}") for e in self.session.entries()
+                 if e.kind in ("signoff", "approval", "waiver")]
+
+        def done(answer: tuple[int, str] | None) -> None:
+            if answer is None:
+                return
+            seq, note = answer
+            self.background(f"revoking entry #{seq}",
+                            lambda: self.session.revoke(seq=seq, note=note),
+                            lambda e: f"revoked entry #{seq} (entry #{getattr(e, 'seq', '?')})")
+
+        self.app.push_screen(RevokeDialog(lines, refusal), done)

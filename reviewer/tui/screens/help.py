@@ -1,0 +1,67 @@
+"""Every key of the workbook, read from the bindings themselves, and the cautions."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Static
+
+from reviewer.tui.safety import GENERAL, SAFETY_LINE
+
+
+def _rows(bindings: list[BindingType]) -> list[tuple[str, str]]:
+    out = []
+    for b in bindings:
+        if isinstance(b, Binding):
+            out.append((b.key.replace(",", " / "), b.description or b.action))
+        elif isinstance(b, tuple):
+            out.append((str(b[0]).replace(",", " / "), str(b[2]) if len(b) > 2 else str(b[1])))
+    return out
+
+
+def help_text(sections: list[tuple[str, list[BindingType]]]) -> Text:
+    """The help page: each screen's keys, then the cautions."""
+    out = Text()
+    out.append("Latchbook workbook — keys\n", style="bold")
+    for title, bindings in sections:
+        out.append(f"\n{title}\n", style="bold underline")
+        for key, what in _rows(bindings):
+            out.append(f"  {key:<16}", style="bold")
+            out.append(f"{what}\n")
+    out.append("\nValues are typed in the file's grammar: 47 kohm ±5%, 4k7, 230 V +10% -15%, "
+               '{ min = "10 kohm", max = "110 kohm" }, a bare number only where the key has '
+               "no unit.\n")
+    out.append("Sign-offs cover the file on disk: save (or undo) edits first. A waiver needs "
+               "a written reason and reads \"fail (waived)\", never pass.\n")
+    out.append("\nCautions\n", style="bold underline")
+    for c in GENERAL:
+        out.append(f"  ⚠ {c}\n")
+    out.append(f"\n{SAFETY_LINE}\n", style="italic")
+    return out
+
+
+class HelpScreen(Screen[None]):
+    """The key list; Escape or ? closes it."""
+
+    CSS_PATH = Path(__file__).with_suffix(".tcss")
+    BINDINGS = [Binding("escape,question_mark,f1", "close", "Close")]
+
+    def __init__(self, sections: list[tuple[str, list[BindingType]]]) -> None:
+        super().__init__()
+        self.sections = sections
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(id="help-scroll"):
+            yield Static(help_text(self.sections), markup=False)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#help-scroll").focus()
+
+    def action_close(self) -> None:
+        self.dismiss()

@@ -1,0 +1,93 @@
+"""The checklist's manual questions for one stage: answer yes, no or not applicable, with a note.
+
+Answers are kept in the review record's history as notes (append-only, like everything there);
+the latest answer to a question is the one shown.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.widgets import DataTable, Footer, Static
+
+from reviewer.tui.dialogs.sign import SignDialog
+from reviewer.tui.screens.base import WorkbookScreen
+from reviewer.tui.widgets.banner import Banner, banner_text
+
+ANSWERS = {"y": "yes", "n": "no", "x": "not applicable"}
+
+
+class ManualScreen(WorkbookScreen):
+    """The manual questions of ``stage``."""
+
+    CSS_PATH = Path(__file__).with_suffix(".tcss")
+    BINDINGS = [
+        Binding("escape", "back", "Back"),
+        Binding("y", "answer('y')", "Yes"),
+        Binding("n", "answer('n')", "No"),
+        Binding("x", "answer('x')", "Not applicable"),
+    ]
+
+    def __init__(self, stage: str) -> None:
+        super().__init__()
+        self.stage = stage
+
+    def compose(self) -> ComposeResult:
+        yield Banner()
+        yield Static("", id="manual-note", markup=False)
+        yield DataTable(id="manual-table", cursor_type="row")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        table = self.query_one(DataTable)
+        table.add_column(Text("question", style="bold"), key="q", width=52)
+        table.add_column(Text("answer", style="bold"), key="a", width=16)
+        self.refresh_view()
+        table.focus()
+
+    def refresh_view(self) -> None:
+        s = self.session
+        self.query_one(Banner).show(banner_text(s, f"{self.stage} · manual questions"))
+        qs = s.manual_questions(self.stage)
+        answers = s.manual_answers(self.stage)
+        table = self.query_one(DataTable)
+        row = table.cursor_row
+        table.clear()
+        for q in qs:
+            qid = q.get("id", "?")
+            ans = answers.get(qid)
+            cell = Text(ans[0], style="bold") if ans else Text("unanswered", style="dim")
+            table.add_row(Text(f"{qid}: {q.get('question', '')}"), cell, key=qid)
+        if qs:
+            table.move_cursor(row=min(max(row, 0), len(qs) - 1), animate=False)
+        note = "" if qs else ("the checklist asks no manual questions of a "
+                              f"{s.project.stages[self.stage].kind} stage")
+        if not s.review_available:
+            note = "answers are kept in the review record, which this version cannot write"
+        self.query_one("#manual-note", Static).update(Text(note, style="dim"))
+
+    def action_back(self) -> None:
+        self.dismiss()
+
+    def action_answer(self, key: str) -> None:
+        table = self.query_one(DataTable)
+        if table.row_count == 0:
+            return
+        qid = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
+        answer = ANSWERS[key]
+        refusal = "" if not self.session.read_only else \
+            f"read-only ({self.session.read_only_reason})"
+        what = Text(f"{self.stage} · {qid}: {answer}")
+
+        def done(note: str | None) -> None:
+            if note is None:
+                return
+            self.background(f"recording {qid}", lambda: self.session.answer_manual(
+                stage=self.stage, qid=qid, answer=answer, note=note),
+                lambda e: f"{qid}: {answer} (entry #{getattr(e, 'seq', '?')})")
+
+        self.app.push_screen(SignDialog(f"Answer {qid}", what, meaning=f"answer: {answer}",
+                                        refusal=refusal), done)

@@ -1,0 +1,82 @@
+"""The first screen: every stage with its counts, the project's identity and overall state."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.widgets import Footer, Static
+
+from reviewer.engine import status_counts
+from reviewer.tui.screens.base import WorkbookScreen
+from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui.widgets.tables import StageTable
+
+
+class OverviewScreen(WorkbookScreen):
+    """Stages and their counts; Enter opens a stage."""
+
+    CSS_PATH = Path(__file__).with_suffix(".tcss")
+    BINDINGS = [
+        Binding("enter", "open_stage", "Open", show=True),
+        Binding("s", "sign", "Sign"),
+        Binding("a", "approve", "Approve", show=False),
+        Binding("r", "revoke", "Revoke", show=False),
+    ]
+
+    def compose(self) -> ComposeResult:
+        yield Banner(id="banner")
+        yield Static("", id="overview-note", markup=False)
+        yield StageTable(id="stages")
+        yield Static("", id="overview-totals", markup=False)
+        yield Static("", id="overview-safety", markup=False)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.refresh_view()
+        self.query_one(StageTable).focus()
+
+    def refresh_view(self) -> None:
+        s = self.session
+        self.query_one(Banner).show(banner_text(s))
+        note = Text()
+        if s.read_only:
+            note.append(f"read-only: {s.read_only_reason}", style="bold")
+        elif s.review_error:
+            note.append(s.review_error, style="dim")
+        if not s.computed:
+            note.append("  computing the checks…" if note else "computing the checks…",
+                        style="italic")
+        self.query_one("#overview-note", Static).update(note)
+        self.query_one(StageTable).show(s.stage_counts(), computing=not s.computed)
+        counts = status_counts(s.run.results)
+        tot = Text(f" {len(s.project.stages)} stages, {len(s.run.results)} checks: ")
+        tot.append("  ".join(f"{k} {v}" for k, v in sorted(counts.items())))
+        self.query_one("#overview-totals", Static).update(tot)
+        self.query_one("#overview-safety", Static).update(Text(
+            "⚠ Mains circuits can kill. A pass means the computed margin meets the checklist "
+            "limit; nothing here shows compliance with any standard.", style="italic dim"))
+
+    def on_stage_table_stage_chosen(self, event: StageTable.StageChosen) -> None:
+        self.workbook.open_stage(event.stage)
+
+    def action_open_stage(self) -> None:
+        key = self.query_one(StageTable).current_key
+        if key:
+            self.workbook.open_stage(key)
+
+    def _stage(self) -> str | None:
+        return self.query_one(StageTable).current_key
+
+    def action_sign(self) -> None:
+        if (st := self._stage()) is not None:
+            self.sign_stage(st, None, "reviewed")
+
+    def action_approve(self) -> None:
+        if (st := self._stage()) is not None:
+            self.sign_stage(st, None, "approved")
+
+    def action_revoke(self) -> None:
+        self.revoke_entry()

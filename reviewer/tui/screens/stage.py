@@ -1,0 +1,122 @@
+"""One stage's checklist: every check with its result, worst against limit, margin and
+sign-off, the highlighted check's summary below; Enter opens its detail."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.widgets import Footer, Static
+
+from reviewer.schema import CATALOGUE
+from reviewer.tui import present
+from reviewer.tui.screens.base import WorkbookScreen
+from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui.widgets.tables import ChecklistTable
+
+
+class StageScreen(WorkbookScreen):
+    """The checklist of ``stage``."""
+
+    CSS_PATH = Path(__file__).with_suffix(".tcss")
+    BINDINGS = [
+        Binding("escape", "back", "Back"),
+        Binding("enter", "open_check", "Detail"),
+        Binding("s", "sign", "Sign"),
+        Binding("c", "sign_check", "Sign one"),
+        Binding("w", "waive", "Waive"),
+        Binding("m", "manual", "Manual"),
+        Binding("ctrl+z", "undo", "Undo", show=False),
+        Binding("ctrl+s", "save", "Save", show=False),
+        Binding("a", "approve", "Approve", show=False),
+        Binding("r", "revoke", "Revoke", show=False),
+    ]
+
+    def __init__(self, stage: str) -> None:
+        super().__init__()
+        self.stage = stage
+        self.check: str | None = None
+
+    def compose(self) -> ComposeResult:
+        yield Banner(id="banner")
+        yield ChecklistTable(id="checklist")
+        yield Static("", id="stage-summary", markup=False)
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.refresh_view()
+        self.query_one(ChecklistTable).focus()
+
+    def checks(self) -> list[str]:
+        """The stage's checks, in catalogue order."""
+        st = self.session.project.stages.get(self.stage)
+        return [cid for cid, kinds in CATALOGUE if st is not None and st.kind in kinds]
+
+    def refresh_view(self) -> None:
+        s = self.session
+        if self.stage not in s.project.stages:
+            self.dismiss()
+            return
+        kind = s.project.stages[self.stage].kind
+        self.query_one(Banner).show(banner_text(s, f"{self.stage} ({kind})"))
+        results = {r.check: r for r in s.run.results if r.stage == self.stage}
+        table = self.query_one(ChecklistTable)
+        table.show(self.checks(), results,
+                   sign_state=lambda c: s.sign_state(self.stage, c),
+                   changed={c for st, c in s.changed if st == self.stage},
+                   limits=s.checklist.limits_for, signing=s.review_available)
+        self.check = table.current_key
+        self._summary()
+
+    def _summary(self) -> None:
+        r = self.session.result(self.stage, self.check) if self.check else None
+        out = Text()
+        if r is not None:
+            out.append(f"{r.check}: ", style="bold")
+            out.append_text(present.status_text(r.status))
+            out.append(f"  {r.summary}")
+        elif self.check:
+            out.append(f"{self.check}: computing…", style="italic")
+        self.query_one("#stage-summary", Static).update(out)
+
+    def on_checklist_table_check_highlighted(self, event: ChecklistTable.CheckHighlighted) -> None:
+        self.check = event.check
+        self._summary()
+
+    def on_checklist_table_check_chosen(self, event: ChecklistTable.CheckChosen) -> None:
+        self.workbook.open_check(self.stage, event.check)
+
+    def action_open_check(self) -> None:
+        if self.check:
+            self.workbook.open_check(self.stage, self.check)
+
+    def action_back(self) -> None:
+        self.dismiss()
+
+    def edit_candidates(self) -> tuple[str, list[tuple[str, str, bool]]]:
+        r = self.session.result(self.stage, self.check) if self.check else None
+        read = list(r.snapshot.get("inputs", {})) if r else []
+        return (f"Change a value of {self.stage}" + (f" (• read by {self.check})" if r else ""),
+                self._values_of(self.stage, read))
+
+    def action_sign(self) -> None:
+        self.sign_stage(self.stage, None, "reviewed")
+
+    def action_approve(self) -> None:
+        self.sign_stage(self.stage, None, "approved")
+
+    def action_sign_check(self) -> None:
+        if self.check:
+            self.sign_stage(self.stage, [self.check], "reviewed")
+
+    def action_waive(self) -> None:
+        if self.check:
+            self.waive_check(self.stage, self.check)
+
+    def action_revoke(self) -> None:
+        self.revoke_entry()
+
+    def action_manual(self) -> None:
+        self.workbook.open_manual(self.stage)

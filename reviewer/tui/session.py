@@ -1,0 +1,479 @@
+"""One open project in the workbook: its text, the edits, the latest run, the lock and journal.
+
+No Textual here: the screens read this state and ask it to change; the engine computes, the
+store writes, the review module signs. Each state of the edit history is the whole project text
+with the project it loads as, so undo and redo are exact and cheap.
+"""
+
+from __future__ import annotations
+
+import importlib
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from pathlib import Path
+from types import ModuleType
+from typing import Any
+
+from reviewer import edits as edit_text
+from reviewer import store
+from reviewer.checklist import Checklist, load_checklist
+from reviewer.engine import Result, Run, evaluate
+from reviewer.errors import LatchbookError, ProjectError
+from reviewer.model import Project
+from reviewer.project import load_project_text
+from reviewer.schema import CATALOGUE
+
+Key = tuple[str, str]
+NOT_SIGNED = "sign-off not available in this version"
+
+
+@dataclass(frozen=True)
+class State:
+    """One step of the edit history: the file text, its project, and the edits that led here."""
+
+    text: str
+    project: Project
+    edits: tuple[store.Edit, ...] = ()
+    label: str = "as read from disk"
+
+
+@dataclass
+class StageCounts:
+    """How a stage stands: result counts and sign-off counts (None: not known in this version)."""
+
+    stage: str
+    kind: str
+    counts: dict[str, int] = field(default_factory=dict)
+    waived: int | None = None
+    stale: int | None = None
+    unsigned: int | None = None
+
+    @property
+    def state(self) -> str:
+        """The worst result of the stage: fail, error, marginal, pass or not-applicable."""
+        for s in ("error", "fail", "marginal", "pass"):
+            if self.counts.get(s):
+                return s
+        return "not-applicable"
+
+
+def review_module() -> ModuleType | None:
+    """:mod:`reviewer.review` when this version has it, else None (sign-off stays guarded)."""
+    try:
+        return importlib.import_module("reviewer.review")
+    except ImportError:
+        return None
+
+
+class Session:
+    """The project the workbook has open and everything it knows about it."""
+
+    def __init__(self, path: str | Path, *, read_only: bool = False, lock: bool = True) -> None:
+        self.path = Path(path)
+        self.read_only = read_only
+        self.read_only_reason = "opened with --read-only" if read_only else ""
+        self.lock: store.ProjectLock | None = None
+        text, sha = store.read_with_hash(self.path)
+        if text is None:
+            raise ProjectError("no such file; check the path (projects are NAME.toml)")
+        self.disk_text: str = text
+        self.disk_sha: str | None = sha
+        project = load_project_text(text, self.path)
+        self.checklist: Checklist = load_checklist(project.checklist, self.path.parent)
+        self.states: list[State] = [State(text, project)]
+        self.index = 0
+        self.generation = 0  # bumps on every change of state: late runs are dropped
+        self.results: dict[Key, Result] = {}
+        self.computed = False  # True once every check of the current state has a result
+        self.changed: set[Key] = set()
+        self._before: dict[Key, Result] = {}
+        self.record: Any = None
+        self.check_states: dict[Key, Any] = {}
+        self.review_error = ""
+        if lock and not read_only:
+            self._take_lock()
+        self.refresh_review()
+
+    # -- lock ---------------------------------------------------------------------------
+    def _take_lock(self) -> None:
+        try:
+            self.lock = store.lock_project(self.path)
+        except store.LockedError as exc:
+            self.read_only = True
+            self.read_only_reason = exc.bare
+        except LatchbookError as exc:
+            self.read_only = True
+            self.read_only_reason = f"cannot lock the project ({exc.bare})"
+
+    def close(self) -> None:
+        """Give up the lock (the journal stays, if edits are unsaved)."""
+        if self.lock is not None:
+            self.lock.release()
+            self.lock = None
+
+    # -- state --------------------------------------------------------------------------
+    @property
+    def state(self) -> State:
+        """The current step of the history."""
+        return self.states[self.index]
+
+    @property
+    def project(self) -> Project:
+        """The project as currently edited."""
+        return self.state.project
+
+    @property
+    def dirty(self) -> bool:
+        """True when the edited text differs from what is on disk."""
+        return self.state.text != self.disk_text
+
+    @property
+    def can_undo(self) -> bool:
+        """True when there is an edit to step back over."""
+        return self.index > 0
+
+    @property
+    def can_redo(self) -> bool:
+        """True when an undone edit can be applied again."""
+        return self.index < len(self.states) - 1
+
+    def guard_write(self, what: str) -> None:
+        """Raise when this session may not change anything."""
+        if self.read_only:
+            raise ProjectError(f"read-only ({self.read_only_reason}): cannot {what}")
+
+    def current_raw(self, path: str) -> Any:
+        """The value at ``path`` in the resolved project (a variant shows its base's value)."""
+        node: Any = self.project.raw
+        for k in path.split("."):
+            if not isinstance(node, dict) or k not in node:
+                return None
+            node = node[k]
+        return node
+
+    def propose(self, path: str, typed: str) -> State:
+        """Validate an edit without applying it; raises LatchbookError saying what to type."""
+        self.guard_write("edit values")
+        text, project = edit_text.apply_edit(self.state.text, path, typed, self.path)
+        label = f"{path} = {typed.strip()}"
+        return State(text, project, (*self.state.edits, store.Edit(path, typed.strip())), label)
+
+    def push(self, state: State) -> None:
+        """Make ``state`` current, dropping the redo tail, and journal the pending edits."""
+        self.changed = set()
+        del self.states[self.index + 1:]
+        self.states.append(state)
+        self.index += 1
+        self.generation += 1
+        self.write_journal()
+
+    def undo(self) -> State | None:
+        """Step back one edit (the step left is returned), or None when there is none."""
+        if not self.can_undo:
+            return None
+        undone = self.state
+        self.changed = set()
+        self.index -= 1
+        self.generation += 1
+        self.write_journal()
+        return undone
+
+    def redo(self) -> State | None:
+        """Apply the next undone edit again, or None."""
+        if not self.can_redo:
+            return None
+        self.changed = set()
+        self.index += 1
+        self.generation += 1
+        self.write_journal()
+        return self.state
+
+    # -- computing ----------------------------------------------------------------------
+    def keys(self) -> list[Key]:
+        """Every (stage, check) of the current project, in the order the engine reports them."""
+        return [(sid, cid) for sid, st in self.project.stages.items()
+                for cid, kinds in CATALOGUE if st.kind in kinds]
+
+    @property
+    def run(self) -> Run:
+        """The results known so far, in report order, as the engine's Run."""
+        rows = [self.results[k] for k in self.keys() if k in self.results]
+        return Run(self.project, self.checklist, rows)
+
+    def dependents(self, paths: list[str] | None) -> list[Key]:
+        """The checks an edit of ``paths`` can change (None: all of them).
+
+        A check depends on a path when it read it (its snapshot, the same record the inputs
+        hash covers) or a value inside it; a check that read nothing of its stage yet (an error,
+        or no result) is recomputed with its stage, to be safe.
+        """
+        keys = self.keys()
+        if paths is None:
+            return keys
+        out = []
+        for key in keys:
+            r = self.results.get(key)
+            read = [q.split("#")[0] for q in (r.snapshot.get("inputs", {}) if r else {})]
+            if r is None or not read:
+                if any(p.startswith(f"stages.{key[0]}.") for p in paths) or r is None:
+                    out.append(key)
+                continue
+            if any(q == p or q.startswith(p + ".") or p.startswith(q + ".")
+                   for p in paths for q in read):
+                out.append(key)
+        return out
+
+    def plan(self, paths: list[str] | None) -> tuple[int, Project, list[list[Key]]]:
+        """What a worker should compute: the generation, the project and the keys per stage."""
+        groups: dict[str, list[Key]] = {}
+        for key in self.dependents(paths):
+            groups.setdefault(key[0], []).append(key)
+        self._before = dict(self.results)
+        self.computed = not groups
+        return self.generation, self.project, list(groups.values())
+
+    def compute(self, project: Project, keys: list[Key]) -> list[Result]:
+        """Run the engine on some checks of ``project`` (safe in a worker thread)."""
+        return evaluate(project, self.checklist, only=keys).results
+
+    def accept(self, gen: int, results: list[Result], *, done: bool) -> set[Key] | None:
+        """Take results unless the project changed meanwhile; return the rows that changed.
+
+        A row is changed when what the check read (its inputs hash) or what it found changed.
+        """
+        if gen != self.generation:
+            return None
+        changed = set()
+        for r in results:
+            key = (r.stage, r.check)
+            o = self._before.get(key)
+            if o is not None and (o.inputs_sha256, o.status, o.summary, o.margin) != (
+                    r.inputs_sha256, r.status, r.summary, r.margin):
+                changed.add(key)
+            self.results[key] = r
+        self.changed |= changed
+        if done:
+            valid = set(self.keys())
+            for key in [k for k in self.results if k not in valid]:
+                del self.results[key]
+            self.computed = True
+            self.refresh_review()
+        return changed
+
+    def compute_all(self) -> None:
+        """Compute everything now, in this thread (for scripts and tests)."""
+        gen, project, groups = self.plan(None)
+        for g in groups:
+            self.accept(gen, self.compute(project, g), done=False)
+        self.accept(gen, [], done=True)
+
+    def edited_paths(self, before: int, after: int) -> list[str] | None:
+        """The value paths that differ between two steps of the history (None: unknown)."""
+        a, b = self.states[before].edits, self.states[after].edits
+        n = min(len(a), len(b))
+        if a[:n] != b[:n]:
+            return None
+        return sorted({e.path for e in (a[n:] or b[n:])})
+
+    def result(self, stage: str, check: str) -> Result | None:
+        """The latest result of one check."""
+        return self.run.by_key().get((stage, check))
+
+    def stage_counts(self) -> list[StageCounts]:
+        """Per stage, in file order: result counts and the review module's sign-off counts."""
+        rows: dict[str, StageCounts] = {
+            sid: StageCounts(sid, st.kind) for sid, st in self.project.stages.items()}
+        for r in self.run.results:
+            row = rows.get(r.stage)
+            if row is not None:
+                row.counts[r.status] = row.counts.get(r.status, 0) + 1
+        mod = review_module()
+        if self.record is not None and mod is not None and self.computed:
+            for sid, row in rows.items():
+                c = mod.counts({k: v for k, v in self.check_states.items() if k[0] == sid})
+                row.waived, row.stale, row.unsigned = c["waived"], c["stale"], c["unsigned"]
+        return list(rows.values())
+
+    def overall(self) -> str:
+        """The project's state: the worst result, a waived failure shown as "fail (waived)"."""
+        rank = {"pass": 0, "not-applicable": 0, "marginal": 1, "fail (waived)": 2, "fail": 3,
+                "error": 4}
+        worst = "pass"
+        for r in self.run.results:
+            s = r.status
+            if s == "fail" and self.sign_state(r.stage, r.check) == "waived":
+                s = "fail (waived)"
+            if rank.get(s, 0) > rank[worst]:
+                worst = s
+        return worst
+
+    # -- review record (reviewer/review.py) -----------------------------------------------
+    @property
+    def review_available(self) -> bool:
+        """True when this version can sign, waive and revoke."""
+        return review_module() is not None
+
+    def refresh_review(self) -> None:
+        """Re-read the review record and the sign-off state of every check."""
+        mod = review_module()
+        if mod is None:
+            self.record, self.check_states, self.review_error = None, {}, NOT_SIGNED
+            return
+        try:
+            self.record = mod.load_record(self.path)
+            self.check_states = dict(mod.check_states(self.record, self.run)) \
+                if self.computed else {}
+            self.review_error = ""
+        except LatchbookError as exc:
+            self.record, self.check_states = None, {}
+            self.review_error = str(exc)
+
+    def sign_state(self, stage: str, check: str) -> str:
+        """The sign-off word of one check: stale, waived, approved, signed, unsigned or ""."""
+        st = self.check_states.get((stage, check))
+        if st is None:
+            return ""
+        if st.state == "stale":
+            return "stale"
+        if st.waiver == "waived" and st.status in ("fail", "marginal"):
+            return "waived"
+        if st.approval == "approved":
+            return "approved"
+        if st.signoff == "signed":
+            return "signed"
+        return "" if st.status == "not-applicable" else "unsigned"
+
+    def sign_changed(self, stage: str, check: str) -> str:
+        """What changed since the check was signed, in words ("" when nothing)."""
+        st = self.check_states.get((stage, check))
+        changes = list(getattr(st, "changed", []) or []) if st is not None else []
+        return "; ".join(c.text() if hasattr(c, "text") else str(c) for c in changes)
+
+    def note_problem(self, note: str) -> str | None:
+        """Why a waiver or revocation reason would be refused (the review module's rule)."""
+        mod = review_module()
+        fn = getattr(mod, "reason_problem", None)
+        if fn is not None:
+            return fn(note)
+        return None if note.strip() else "a reason is required"
+
+    def _review(self, what: str) -> ModuleType:
+        self.guard_write(what)
+        mod = review_module()
+        if mod is None:
+            raise ProjectError(NOT_SIGNED)
+        if self.dirty:
+            raise ProjectError(f"there are unsaved edits: save them (ctrl+s) or undo them before "
+                               f"you {what}, so that what is signed is what is on disk")
+        return mod
+
+    def sign(self, *, stage: str, checks: list[str] | None, meaning: str, note: str) -> Any:
+        """Sign a stage (or some of its checks) through the review module."""
+        mod = self._review("sign")
+        entry = mod.sign(self.path, stage=stage, checks=checks, meaning=meaning, note=note,
+                         unsaved=self.dirty)
+        self.refresh_review()
+        return entry
+
+    def waive(self, *, stage: str, check: str, note: str) -> Any:
+        """Waive one failing check; the justification is required."""
+        problem = self.note_problem(note)
+        if problem:
+            raise ProjectError(f"not waived: {problem}")
+        mod = self._review("waive a check")
+        entry = mod.waive(self.path, stage=stage, check=check, note=note, unsaved=self.dirty)
+        self.refresh_review()
+        return entry
+
+    def revoke(self, *, seq: int, note: str) -> Any:
+        """Revoke an earlier entry of the history; the reason is required."""
+        problem = self.note_problem(note)
+        if problem:
+            raise ProjectError(f"not revoked: {problem}")
+        mod = self._review("revoke a sign-off")
+        entry = mod.revoke(self.path, seq=seq, note=note)
+        self.refresh_review()
+        return entry
+
+    # -- manual questions: answers are notes in the history ---------------------------------
+    def manual_questions(self, stage: str) -> list[dict[str, str]]:
+        """The checklist's manual questions for the kind of ``stage``."""
+        st = self.project.stages.get(stage)
+        if st is None:
+            return []
+        return [m for m in self.checklist.manual if m.get("stage_kind") == st.kind]
+
+    def manual_answers(self, stage: str) -> dict[str, tuple[str, str, str]]:
+        """The latest answer to each manual question of ``stage``: id → (answer, note, who)."""
+        out: dict[str, tuple[str, str, str]] = {}
+        for e in self.entries():
+            if getattr(e, "kind", "") != "note" or getattr(e, "stage", "") != stage:
+                continue
+            for c in getattr(e, "checks", []):
+                if c.startswith("manual:"):
+                    qid = c[len("manual:"):]
+                    text = getattr(e, "note", "")
+                    head, _, rest = text.partition(" — ")
+                    answer = head.rsplit(": ", 1)[-1]
+                    who = e.who() if hasattr(e, "who") else ""
+                    out[qid] = (answer, rest, who)
+        return out
+
+    def answer_manual(self, *, stage: str, qid: str, answer: str, note: str) -> Any:
+        """Record a manual answer (yes / no / not applicable) as a note of the history."""
+        if answer not in ("yes", "no", "not applicable"):
+            raise ProjectError("answer yes, no or not applicable")
+        self.guard_write("answer a question")
+        mod = review_module()
+        fn = getattr(mod, "add_note", None)
+        if fn is None:
+            raise ProjectError(NOT_SIGNED)
+        text = f"manual {qid}: {answer}" + (f" — {note.strip()}" if note.strip() else "")
+        entry = fn(self.path, note=text, stage=stage, checks=[f"manual:{qid}"])
+        self.refresh_review()
+        return entry
+
+    def entries(self) -> list[Any]:
+        """The review record's history entries (empty when unknown)."""
+        return list(getattr(self.record, "entries", []) or [])
+
+    # -- saving and the journal -----------------------------------------------------------
+    def save(self) -> Path:
+        """Write the edited text, atomically, only if nobody changed the file since it was read."""
+        self.guard_write("save")
+        written = store.save_checked(self.path, self.state.text, self.disk_sha)
+        self.disk_text = self.state.text
+        self.disk_sha = store.file_sha256(written)
+        store.clear_journal(self.path)
+        return written
+
+    def write_journal(self) -> None:
+        """Keep the pending edits beside the project (cleared when there are none)."""
+        if self.read_only:
+            return
+        pending = self.state.edits if self.dirty else ()
+        store.write_journal(self.path, pending, base_sha256=self.disk_sha or "")
+
+    def pending(self) -> store.Journal | None:
+        """Unsaved edits an earlier session left, or None."""
+        if self.read_only:
+            return None
+        return store.pending_journal(self.path)
+
+    def recover(self, journal: store.Journal) -> list[str]:
+        """Apply the journal's edits in order; return the messages of edits that no longer apply."""
+        problems = []
+        for e in journal.edits:
+            try:
+                self.push(self.propose(e.path, e.text))
+            except LatchbookError as exc:
+                problems.append(f"{e.path} = {e.text}: {exc.bare}")
+        return problems
+
+    def discard_journal(self) -> None:
+        """Forget the unsaved edits of an earlier session."""
+        store.clear_journal(self.path)
+
+    def hangup_callback(self) -> Callable[[], None]:
+        """What to do on SIGHUP/SIGTERM: write the journal (quick, never raises past store)."""
+        return self.write_journal

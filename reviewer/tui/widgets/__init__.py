@@ -1,0 +1,1 @@
+"""Widgets of the workbook; each posts messages and never reaches into a sibling."""

@@ -1,0 +1,138 @@
+"""The detail of one check: the question, the method, the inputs at the worst corner, the
+values, the source, what would fix it, the notes and the cautions.
+
+The inputs are the check's own corner table (``Result.evaluation``): row 0 is the nominal, the
+worst row is the one that set the margin. Which project value each input came from is what
+the check's ``bind`` gathered, asked again here (binding reads the project; it computes
+nothing).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from rich.text import Text
+from textual.widgets import Static
+
+from reviewer.engine import Result
+from reviewer.errors import LatchbookError
+from reviewer.fmt import eng, show
+from reviewer.model import Project
+from reviewer.registry import CHECKS, Context
+from reviewer.tui import present
+from reviewer.tui.safety import SAFETY_LINE, cautions_for
+
+
+@dataclass
+class InputRow:
+    """One input the check read: its name, where it came from, nominal and worst-corner text."""
+
+    name: str
+    path: str
+    nominal: str
+    worst: str
+    varies: bool
+
+
+def input_rows(result: Result, project: Project) -> list[InputRow]:
+    """The inputs of a result with their values at the nominal row and the worst row."""
+    defn = CHECKS.get(result.check)
+    stage = project.stages.get(result.stage)
+    ev = result.evaluation
+    if defn is None or stage is None or ev is None:
+        return []
+    try:
+        bound = defn.bind(Context(project, stage))
+    except LatchbookError:
+        return []
+    rows = []
+    for name in ev.names:
+        inp = bound.inputs.get(name)
+        arr = np.asarray(ev.inputs[name])
+        dim = inp.value.dim if inp else ""
+        path = inp.path.split("#")[0] + (" (assumed)" if inp and "#assumed" in inp.path else "") \
+            if inp else "?"
+        if inp is not None and "#none" in inp.path:
+            continue
+        rows.append(InputRow(name, path, show(float(arr[0]), dim), show(float(arr[ev.worst_row]),
+                             dim), bool(arr.min() != arr.max())))
+    return rows
+
+
+def _head(text: str) -> Text:
+    return Text(f"\n{text}\n", style="bold underline")
+
+
+def detail_text(result: Result, project: Project, *, sign_state: str, changed: object,
+                signing: bool, limits: dict[str, float]) -> Text:
+    """Everything the detail view says about one check, as one Text (no markup parsed)."""
+    defn = CHECKS.get(result.check)
+    stage = project.stages.get(result.stage)
+    out = Text()
+    out.append(f"{result.stage} · {result.check}   ", style="bold")
+    out.append_text(present.status_text(result.status))
+    out.append("   margin ")
+    out.append_text(present.margin_text(result.margin))
+    out.append("   worst vs limit ")
+    out.append_text(present.worst_vs_limit(result, limits))
+    out.append("\n")
+    out.append(result.summary + "\n")
+    if defn is not None:
+        out.append_text(_head("Question"))
+        out.append(defn.question + "\n")
+        out.append_text(_head("Method"))
+        out.append(defn.method + "\n")
+    rows = input_rows(result, project)
+    if rows:
+        out.append_text(_head("Inputs read (nominal → worst corner)"))
+        w = max(len(r.path) for r in rows)
+        for r in rows:
+            out.append(f"  {r.path:<{w}}  {r.nominal:>10}  → ", style="" if r.varies else "dim")
+            out.append(f"{r.worst}\n", style="bold" if r.varies else "dim")
+    if result.worst:
+        out.append_text(_head("Worst corner"))
+        out.append("  " + ", ".join(f"{k} = {v}" for k, v in result.worst.items()) + "\n")
+    if result.values:
+        out.append_text(_head("Values (nominal, min … max)"))
+        for name, st in result.values.items():
+            out.append(f"  {name:<22} {eng(st.nominal, st.unit, si=False):>10}   "
+                       f"{eng(st.min, st.unit, si=False)} … {eng(st.max, st.unit, si=False)}\n")
+    if defn is not None:
+        out.append_text(_head("Published source"))
+        out.append(defn.source + "\n")
+    if result.status in ("fail", "marginal", "error"):
+        out.append_text(_head("What would fix it"))
+        out.append(result.summary + "\n")
+        if defn is not None and defn.fix:
+            out.append(defn.fix + "\n")
+    if result.notes:
+        out.append_text(_head("Notes"))
+        for n in result.notes:
+            out.append(f"  • {n}\n")
+    out.append_text(_head("Sign-off"))
+    if signing:
+        out.append(f"  {sign_state or 'unsigned'}")
+        if changed:
+            out.append(f" — changed since signed: {changed}", style="bold yellow")
+        out.append(f"\n  inputs hash {present.short_hash(result.inputs_sha256)}\n")
+    else:
+        out.append("  sign-off not available in this version\n", style="dim")
+    out.append_text(_head("Cautions"))
+    for c in (defn.cautions if defn else ()) + cautions_for(stage.kind if stage else ""):
+        out.append(f"  ⚠ {c}\n")
+    out.append(f"\n{SAFETY_LINE}\n", style="italic")
+    return out
+
+
+class CheckDetail(Static):
+    """A scrollable body for :func:`detail_text`."""
+
+    DEFAULT_CSS = "CheckDetail { width: 100%; height: auto; }"
+
+    def __init__(self, **kw: object) -> None:
+        super().__init__("", markup=False, **kw)  # type: ignore[arg-type]
+
+    def show(self, text: Text) -> None:
+        """Replace the body."""
+        self.update(text)

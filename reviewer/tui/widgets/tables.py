@@ -1,0 +1,158 @@
+"""The two tables of the workbook: stages with their counts, and one stage's checklist.
+
+Both update their cells in place when results change, so the cursor stays on the row it was on;
+they are rebuilt only when the set of rows changes. They post what the user picked; the screen
+decides what happens.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable, Mapping
+from dataclasses import dataclass
+
+from rich.text import Text
+from textual.message import Message
+from textual.widgets import DataTable
+
+from reviewer.engine import Result
+from reviewer.tui import present
+from reviewer.tui.session import StageCounts
+
+
+@dataclass
+class Row:
+    """One row to show: its key and its cells."""
+
+    key: str
+    cells: tuple[Text, ...]
+
+
+class KeyedTable(DataTable[Text]):
+    """A row-cursor DataTable whose rows are replaced in place by key."""
+
+    COLUMNS: tuple[tuple[str, str, int | None], ...] = ()
+
+    def __init__(self, **kw: object) -> None:
+        super().__init__(cursor_type="row", zebra_stripes=False, **kw)  # type: ignore[arg-type]
+        self._keys: list[str] = []
+
+    def on_mount(self) -> None:
+        for label, key, width in self.COLUMNS:
+            self.add_column(Text(label, style="bold"), key=key, width=width)
+
+    def show_rows(self, rows: Iterable[Row]) -> None:
+        """Put ``rows`` in the table: cell updates when the keys are unchanged, else a rebuild."""
+        rows = list(rows)
+        keys = [r.key for r in rows]
+        cols = [key for _, key, _ in self.COLUMNS]
+        if keys == self._keys:
+            for r in rows:
+                for col, cell in zip(cols, r.cells, strict=True):
+                    if self.get_cell(r.key, col) != cell:
+                        self.update_cell(r.key, col, cell)
+            return
+        current = self.current_key
+        self.clear()
+        for r in rows:
+            self.add_row(*r.cells, key=r.key)
+        self._keys = keys
+        if current in keys:
+            self.move_cursor(row=keys.index(current), animate=False)
+
+    @property
+    def current_key(self) -> str | None:
+        """The key of the row under the cursor."""
+        if not self._keys or self.cursor_row < 0 or self.cursor_row >= len(self._keys):
+            return None
+        return self._keys[self.cursor_row]
+
+    def select_key(self, key: str) -> None:
+        """Put the cursor on the row ``key`` (if it is there)."""
+        if key in self._keys:
+            self.move_cursor(row=self._keys.index(key), animate=False)
+
+
+class StageTable(KeyedTable):
+    """Every stage with its counts; Enter opens it."""
+
+    COLUMNS = (("stage", "stage", 11), ("kind", "kind", 16), ("state", "state", 10),
+               ("pass", "pass", 4), ("marg", "marginal", 4), ("fail", "fail", 4),
+               ("waiv", "waived", 4), ("stale", "stale", 5), ("unsg", "unsigned", 4))
+
+    class StageChosen(Message):
+        """The user opened a stage."""
+
+        def __init__(self, stage: str) -> None:
+            super().__init__()
+            self.stage = stage
+
+    def show(self, rows: list[StageCounts], computing: bool) -> None:
+        """Show the counts of every stage."""
+        def row(c: StageCounts) -> Row:
+            fails = c.counts.get("fail", 0) + c.counts.get("error", 0)
+            state = present.status_text("" if computing and not c.counts else c.state)
+            return Row(c.stage, (
+                Text(c.stage), Text(c.kind, style="dim"), state,
+                present.count_text(c.counts.get("pass", 0), "green"),
+                present.count_text(c.counts.get("marginal", 0), "yellow"),
+                present.count_text(fails, "bold red"),
+                present.count_text(c.waived, "magenta"),
+                present.count_text(c.stale, "bold yellow"),
+                present.count_text(c.unsigned)))
+        self.show_rows(row(c) for c in rows)
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        if event.row_key.value is not None:
+            self.post_message(self.StageChosen(str(event.row_key.value)))
+
+
+class ChecklistTable(KeyedTable):
+    """One stage's checks: result, worst against limit, margin, sign-off, changed mark."""
+
+    COLUMNS = (("", "changed", 1), ("check", "check", 22), ("result", "result", 11),
+               ("worst vs limit", "worst", 14), ("margin", "margin", 7),
+               ("sign-off", "sign", 10))
+
+    class CheckHighlighted(Message):
+        """The cursor moved to a check."""
+
+        def __init__(self, check: str) -> None:
+            super().__init__()
+            self.check = check
+
+    class CheckChosen(Message):
+        """The user opened a check's detail."""
+
+        def __init__(self, check: str) -> None:
+            super().__init__()
+            self.check = check
+
+    def show(self, checks: list[str], results: Mapping[str, Result], *,
+             sign_state: Callable[[str], str], changed: set[str],
+             limits: Callable[[str], Mapping[str, float]], signing: bool) -> None:
+        """Show the checks of a stage (a check without a result yet shows "computing")."""
+        rows = []
+        for cid in checks:
+            r = results.get(cid)
+            st = sign_state(cid)
+            status = "" if r is None else r.status
+            if status == "fail" and st == "waived":
+                status = "fail (waived)"
+            rows.append(Row(cid, (
+                Text("Δ", style="bold yellow") if cid in changed else Text(" "),
+                Text(cid), present.status_text(status),
+                present.worst_vs_limit(r, limits(cid)) if r else Text(""),
+                present.margin_text(r.margin if r else None),
+                present.sign_text(st, signing))))
+        self.show_rows(rows)
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        event.stop()
+        if event.row_key.value is not None:
+            self.post_message(self.CheckHighlighted(str(event.row_key.value)))
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        if event.row_key.value is not None:
+            self.post_message(self.CheckChosen(str(event.row_key.value)))
