@@ -43,6 +43,8 @@ import tomli_w
 
 from reviewer import TOOL
 from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
+from reviewer.fmt import show
+from reviewer.schema import dim_of_path
 from reviewer.store import (
     ProjectLock,
     base_name,
@@ -437,16 +439,21 @@ class Change:
     new: Any
 
     def text(self) -> str:
-        """``stages.trigger.timing_r: 4700 → 5600 (SI)``."""
-        return f"{self.path}: {_show(self.old)} → {_show(self.new)}"
+        """``stages.trigger.timing_r: 4.7 kΩ → 5.6 kΩ`` in engineering notation."""
+        dim = dim_of_path(self.path)
+        return f"{self.path}: {_show(self.old, dim)} → {_show(self.new, dim)}"
 
 
-def _show(v: Any) -> str:
+def _show(v: Any, dim: str = "") -> str:
     if v is None:
         return "(absent)"
     if isinstance(v, list) and len(v) == 3 and all(x is None or isinstance(x, (int, float))
                                                     for x in v):
         nom, lo, hi = v
+        if dim and all(isinstance(x, (int, float)) and math.isfinite(x) for x in v):
+            if lo == hi == nom:
+                return show(nom, dim)
+            return f"{show(nom, dim)} ({show(lo, dim)} … {show(hi, dim)})"
         if lo == hi == nom:
             return _num(nom)
         return f"{_num(nom)} ({_num(lo)} … {_num(hi)})"

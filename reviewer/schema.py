@@ -91,3 +91,47 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("turnoff.capacitor", ("capacitor-commutation", "resonant-commutation")),
     ("turnoff.peak-current", ("resonant-commutation",)), ("turnoff.reapplied-dvdt", TURNOFF),
 ]
+
+
+def dim_of_path(path: str, stage_kind: str = "") -> str:
+    """The dimension of the value at a dotted input path ("" when it cannot be told).
+
+    Stage parameters are looked up in ``stage_kind`` when given, else in any stage kind that
+    has the key (keys mean the same thing in every kind that uses them).
+
+    >>> dim_of_path("parts.Q1.cold.igt"), dim_of_path("stages.power.load.r")
+    ('current', 'resistance')
+    >>> dim_of_path("conditions.ambient.min"), dim_of_path("stages.trigger.timing_c")
+    ('temperature', 'capacitance')
+    """
+    from reviewer.registry import STAGE_KINDS
+
+    parts = path.split("#")[0].split(".")
+    head, rest = parts[0], parts[1:]
+    if head == "conditions" and rest:
+        p = CONDITIONS.get(rest[0])
+        return p.dim if p else ""
+    if head == "supply" and rest:
+        p = SUPPLY.get(rest[0])
+        return p.dim if p else ""
+    if head == "parts" and len(rest) >= 2:
+        if rest[1] == "cold" and len(rest) == 3:
+            p = COLD_KEYS.get(rest[2])
+            return p.dim if p else ""
+        for params in PART_TYPES.values():
+            if rest[1] in params:
+                return params[rest[1]].dim
+        return ""
+    if head == "stages" and len(rest) >= 2:
+        kinds = [STAGE_KINDS[stage_kind]] if stage_kind in STAGE_KINDS else STAGE_KINDS.values()
+        for kind in kinds:
+            p = kind.params.get(rest[1])
+            if p is None:
+                continue
+            if len(rest) == 3 and p.fields:
+                sub = p.fields.get(rest[2])
+                if sub is not None:
+                    return sub.dim
+            elif p.dim or p.kind == "value":
+                return p.dim
+    return ""

@@ -287,8 +287,8 @@ def test_editing_an_input_the_check_reads_makes_it_stale_and_names_it(tmp_path):
     [ch] = st.changed
     assert ch.path == "stages.trigger.timing_r"
     assert ch.old == [55000.0, 10000.0, 100000.0] and ch.new == [65000.0, 10000.0, 120000.0]
-    assert ch.text() == ("stages.trigger.timing_r: 55000 (10000 … 100000) → "
-                         "65000 (10000 … 120000)")
+    assert ch.text() == ("stages.trigger.timing_r: 55 kΩ (10 kΩ … 100 kΩ) → "
+                         "65 kΩ (10 kΩ … 120 kΩ)")
 
 
 def test_editing_an_input_the_check_does_not_read_keeps_it_current(tmp_path):
