@@ -27,6 +27,7 @@ import numpy as np
 from reviewer import TOOL
 from reviewer.fmt import eng, pct
 from reviewer.safety import CAUTIONS, FOOTER
+from reviewer.waveforms import has_waveform, picture
 
 MAX_POINTS = 800
 
@@ -237,65 +238,19 @@ def gather(path: str | Path, *, plots: bool = True) -> ReportData:
 PREFERRED = ("osc.timing", "snubber.dvdt", "turnoff.time")
 
 
-def _power_plots(stage: Any, project: Any, all_results: list[Any]) -> list[Any]:
-    """One cycle of load voltage and current at the nominal firing angle (phase control)."""
-    import importlib
-
-    from reviewer.model import Value
-    from reviewer.tui.waveforms import Plot, Series
-
-    fn = getattr(importlib.import_module("checks.power"), "load_waveform", None)
-    if fn is None or stage.kind != "phase-control":
-        return []
-    firing = stage.get("firing")
-    if isinstance(firing, Value):
-        alpha, where = firing.nom, "the nominal of `firing`"
-    else:
-        gate = project.stages.get(stage.get("gate", ""))
-        src = gate.get("source") if gate is not None else None
-        timing = next((r for r in all_results if r.stage == src and r.check == "osc.timing"),
-                      None)
-        stat = timing.values.get("firing_angle") if timing is not None else None
-        if stat is None or not math.isfinite(stat.min):
-            return []
-        alpha, where = math.radians(stat.min), f"the earliest firing angle of `{src}`, full output"
-    load = stage.get("load") or {}
-    if not isinstance(load.get("r"), Value):
-        return []
-    ind = load.get("l")
-    omega = 2 * math.pi * project.supply["frequency"].nom
-    theta, v, i = fn(topology=stage.get("topology"), freewheel=bool(stage.get("freewheel")),
-                     vs=project.supply["voltage"].nom, r=load["r"].nom,
-                     l=ind.nom if isinstance(ind, Value) else 0.0, omega=omega, alpha=alpha)
-    t = np.asarray(theta) / omega
-    note = f"α = {math.degrees(alpha):.0f}° ({where}); the rest at nominal"
-    marks = [(alpha / omega, "fire")]
-    if stage.get("topology") != "half-wave":  # the second SCR fires half a cycle later
-        marks.append(((alpha + math.pi) / omega, "fire"))
-    return [Plot("load voltage over one cycle", t, [Series("load voltage", np.asarray(v), "V")],
-                 marks, [note]),
-            Plot("load current over one cycle", t, [Series("load current", np.asarray(i), "A")],
-                 marks, [note])]
-
-
 def _stage_plots(results: list[Any], project: Any,
                  all_results: list[Any] | None = None) -> tuple[list[tuple[str, str]], str]:
-    """The waveforms of a stage (SVG), from its most critical check that has one."""
-    try:
-        from reviewer.tui.waveforms import has_waveform, picture
-    except ImportError:
-        return [], "no waveform (the waveform helpers are not in this version)"
-    stage = project.stages.get(results[0].stage) if results else None
-    if stage is not None and stage.kind == "phase-control":
-        try:
-            plots = _power_plots(stage, project, all_results or results)
-        except (ValueError, KeyError, TypeError, ZeroDivisionError, FloatingPointError) as exc:
-            return [], f"no waveform: the load waveform could not be drawn ({exc})"
-        if plots:
-            return [(f"{p.title} ({p.notes[0]})", plot_svg(p)) for p in plots], ""
+    """The waveforms of a stage (SVG), from its most critical check that has one.
+
+    A phase-control stage shows its load waveform first (``power.output``: both ends of the
+    firing range); other stages their most critical check's picture.
+    """
     rank = {"fail": 0, "error": 0, "marginal": 1, "pass": 2}
+    stage = project.stages.get(results[0].stage) if results else None
+    first = "power.output" if stage is not None and stage.kind == "phase-control" else ""
     cands = sorted((r for r in results if has_waveform(r.check)),
-                   key=lambda r: (rank.get(r.status, 3), r.check not in PREFERRED))
+                   key=lambda r: (r.check != first, rank.get(r.status, 3),
+                                  r.check not in PREFERRED))
     reason = "no waveform for this stage"
     for r in cands:
         pic = picture(r, project, "worst" if r.evaluation is not None else "nominal")
@@ -308,8 +263,10 @@ def _stage_plots(results: list[Any], project: Any,
             cap += "; at their nominal: " + ", ".join(pic.nominal_used)
         out = []
         for plot in pic.plots:
+            notes = "; ".join(plot.notes)
             try:
-                out.append((f"{plot.title} ({cap})", plot_svg(plot)))
+                out.append((f"{plot.title} ({cap}{'; ' + notes if notes else ''})",
+                            plot_svg(plot)))
             except (ValueError, FloatingPointError) as exc:
                 reason = f"no waveform: the plot could not be drawn ({exc})"
         if out:

@@ -19,7 +19,7 @@ from textual.worker import Worker, WorkerState
 
 from reviewer import store
 from reviewer.errors import LatchbookError
-from reviewer.tui.compute import Computer
+from reviewer.tui.compute import Analyst, Computer
 from reviewer.tui.dialogs.choice import ChoiceDialog
 from reviewer.tui.screens.check import CheckScreen
 from reviewer.tui.screens.help import HelpScreen
@@ -45,6 +45,7 @@ class Workbook(App[int]):
         super().__init__()
         self.session = session
         self.computer = Computer(self, session)
+        self.analyst = Analyst(self, session)
         self.recompute = recompute
         self.theme = "textual-dark"
         self._small: TooSmallScreen | None = None
@@ -168,6 +169,8 @@ class Workbook(App[int]):
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         if event.worker.group == Computer.GROUP:
             self.computer.on_state(event)
+        elif event.worker.group in (Analyst.YIELD, Analyst.AID):
+            self.analyst.on_state(event)
         elif event.state == WorkerState.ERROR:
             err = event.worker.error
             self.notify(f"{event.worker.name} failed: {type(err).__name__}: {err}",
@@ -190,6 +193,10 @@ class Workbook(App[int]):
                             lambda: call("save"))
         yield SystemCommand("Recompute every check", "Run the engine on the whole project",
                             lambda: self.computer.start(None))
+        yield SystemCommand("Monte Carlo yield", "Sample the production spreads (y)",
+                            lambda: call("yield"))
+        yield SystemCommand("Try the suggested value", "Design aid on a failing check (t)",
+                            lambda: call("try_value"))
         yield SystemCommand("Sign the stage as reviewed", "Shows what is signed first",
                             lambda: call("sign"))
         yield SystemCommand("Revoke a history entry", "With a reason", lambda: call("revoke"))

@@ -1,8 +1,9 @@
-"""Recomputing in the background: the engine runs in a thread worker, stage by stage.
+"""Computing in the background: the engine, Monte Carlo and the design aids run in thread
+workers.
 
-The screen stays responsive while it runs; each stage's results are handed to the session on
+The screen stays responsive while they run; each stage's results are handed to the session on
 the UI thread as they come, and results of a state the user has already left are dropped (the
-session's generation counter).
+session's generation counter; yields and aids are kept with the inputs hash they sampled).
 """
 
 from __future__ import annotations
@@ -11,9 +12,13 @@ import time
 from typing import Any
 
 from textual.app import App
-from textual.worker import Worker, WorkerState
+from textual.worker import Worker, WorkerState, get_current_worker
 
-from reviewer.tui.messages import ResultsChanged
+from reviewer.aids import Aid, passing_range
+from reviewer.engine import Result
+from reviewer.tolerance import Yield, monte_carlo
+from reviewer.tui.analysis import DISTRIBUTION, SAMPLES, SEED
+from reviewer.tui.messages import AnalysisChanged, ResultsChanged
 from reviewer.tui.session import Session
 
 
@@ -59,3 +64,95 @@ class Computer:
         self.app.notify(f"the computation failed: {type(err).__name__}: {err}",
                         title="engine", severity="error", timeout=15, markup=False)
         self.session.computed = True
+
+
+class Analyst:
+    """Monte Carlo yield and design aids in thread workers, delivered to the top screen.
+
+    Monte Carlo goes check by check, so the banner can count them; a new run replaces a
+    running one (exclusive). A design aid is computed once per (check, inputs hash, input).
+    """
+
+    YIELD = "yield"
+    AID = "aid"
+
+    def __init__(self, app: App[Any], session: Session) -> None:
+        self.app = app
+        self.session = session
+        self.samples = SAMPLES
+        self.seed = SEED
+        self.distribution = DISTRIBUTION
+
+    def _tell(self) -> None:
+        self.app.screen.post_message(AnalysisChanged())
+
+    def start_yield(self, stage: str | None) -> Worker[None] | None:
+        """Run Monte Carlo on the checks of ``stage`` (None: the whole project)."""
+        s = self.session
+        if not s.computed:
+            self.app.notify("the checks are still being computed: try again when they are "
+                            "done", severity="warning", markup=False)
+            return None
+        results = [r for r in s.run.results if r.evaluation is not None
+                   and (stage is None or r.stage == stage)]
+        if not results:
+            self.app.notify("no computed check to sample here", markup=False)
+            return None
+        n, seed, dist = self.samples, self.seed, self.distribution
+        s.yield_progress = (0, len(results))
+        self._tell()
+
+        def work() -> None:
+            me = get_current_worker()
+            for k, r in enumerate(results):
+                if me.is_cancelled:
+                    return
+                y = monte_carlo(r, n, seed=seed, distribution=dist, keep_values=True)
+                self.app.call_from_thread(self._yield_done, r, y, k + 1, len(results))
+
+        where = f"stage {stage}" if stage else "the whole project"
+        self.app.notify(f"Monte Carlo on {where}: {len(results)} checks × {n} samples "
+                        f"(seed {seed}, {dist})", markup=False)
+        return self.app.run_worker(work, name="Monte Carlo", group=self.YIELD, thread=True,
+                                   exit_on_error=False, exclusive=True,
+                                   description=f"Monte Carlo on {where}")
+
+    def _yield_done(self, result: Result, y: Yield | None, done: int, total: int) -> None:
+        self.session.store_yield(result, y)
+        self.session.yield_progress = None if done >= total else (done, total)
+        self._tell()
+
+    def start_aid(self, result: Result, name: str) -> None:
+        """Compute the passing range of input ``name`` for ``result`` (once)."""
+        s = self.session
+        key = s.aid_key(result, name)
+        if key in s.aids or key in s.aid_pending:
+            return
+        s.aid_pending.add(key)
+
+        def work() -> None:
+            try:
+                aid = passing_range(result, name)
+            except Exception:
+                self.app.call_from_thread(s.aid_pending.discard, key)
+                raise
+            self.app.call_from_thread(self._aid_done, key, aid)
+
+        self.app.run_worker(work, name="design aid", group=self.AID, thread=True,
+                            exit_on_error=False, description=f"passing range of {name}")
+
+    def _aid_done(self, key: tuple[str, str, str, str], aid: Aid | None) -> None:
+        self.session.aid_pending.discard(key)
+        self.session.aids[key] = aid
+        self._tell()
+
+    def on_state(self, event: Worker.StateChanged) -> None:
+        """A failed run is reported and its progress cleared (exit_on_error=False)."""
+        if event.state != WorkerState.ERROR:
+            return
+        if event.worker.group == self.YIELD:
+            self.session.yield_progress = None
+        err = event.worker.error
+        self.app.notify(f"{event.worker.name} failed: {type(err).__name__}: {err}",
+                        severity="error", timeout=15, markup=False)
+        self._tell()

@@ -15,3 +15,7 @@ class ResultsChanged(Message):
 
 class ProjectChanged(Message):
     """The project text changed (an edit, undo, redo, a save or a sign-off)."""
+
+
+class AnalysisChanged(Message):
+    """A Monte Carlo run or a design aid made progress or finished."""

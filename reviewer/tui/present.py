@@ -11,6 +11,7 @@ from collections.abc import Mapping
 from rich.text import Text
 
 from reviewer.engine import Result
+from reviewer.tolerance import Yield
 
 # symbol, word, style: the symbol carries the meaning when NO_COLOR strips the colour.
 STATUS = {
@@ -38,12 +39,16 @@ def status_text(status: str) -> Text:
     return Text(f"{sym} {word}", style=style)
 
 
-def margin_text(margin: float | None) -> Text:
-    """The margin as a signed percentage, right-aligned by the table."""
+def margin_text(margin: float | None, *, compact: bool = False) -> Text:
+    """The margin as a signed percentage; ``compact`` (the checklist's narrow column) writes
+    ten times the limit and more as a power of ten, ``+7e5 %``."""
     if margin is None or not math.isfinite(margin):
         return Text("—", style="dim")
     style = "bold red" if margin < 0 else ""
-    return Text(f"{margin * 100:+.0f} %".replace("-", "−"), style=style)
+    pc = margin * 100
+    text = f"{pc:+.0e} %".replace("e+0", "e") if compact and abs(pc) >= 999.5 else \
+        f"{pc:+.0f} %"
+    return Text(text.replace("-", "−"), style=style)
 
 
 def worst_vs_limit(result: Result, limits: Mapping[str, float]) -> Text:
@@ -57,7 +62,8 @@ def worst_vs_limit(result: Result, limits: Mapping[str, float]) -> Text:
         return Text("—", style="dim")
     ratio = (1 + result.margin) * k
     op = "≥" if ratio >= k else "<"
-    return Text(f"{ratio:.3g} {op} {k:.3g}", style="bold red" if ratio < k else "")
+    text = f"{ratio:.3g} {op} {k:.3g}".replace("e+0", "e").replace("e+", "e")
+    return Text(text, style="bold red" if ratio < k else "")
 
 
 def sign_text(state: str, available: bool) -> Text:
@@ -78,3 +84,31 @@ def count_text(n: int | None, style: str = "") -> Text:
 def short_hash(h: str) -> str:
     """The first 12 hex digits of a hash, as shown in dialogs."""
     return h[:12] if h else "—"
+
+
+def _pct(x: float, decimals: int) -> str:
+    return f"{x * 100:.{decimals}f}"
+
+
+def yield_cell(y: Yield | None) -> Text:
+    """The fail fraction of a Monte Carlo run in percent, with its 95 % interval: ``39.1±0.7``,
+    ``<0.02`` when no sample failed (the interval's top), ``>99.98`` when all did."""
+    if y is None:
+        return Text("—", style="dim")
+    p, (lo, hi) = y.fail_fraction, y.fail_interval
+    if p == 0:
+        return Text(f"<{hi * 100:.2g}", style="green")
+    if p == 1:
+        return Text(f">{lo * 100:.4g}", style="bold red")
+    half = max(hi - p, p - lo) * 100
+    decimals = max(0, min(3, -math.floor(math.log10(half)))) if half > 0 else 1
+    return Text(f"{_pct(p, decimals)}±{half:.{decimals}f}", style="bold red")
+
+
+def yield_line(y: Yield) -> str:
+    """One line for the detail: samples, fail and marginal fractions with their intervals."""
+    def frac(p: float, iv: tuple[float, float]) -> str:
+        return f"{p * 100:.2f} % ({iv[0] * 100:.2f}–{iv[1] * 100:.2f})"
+
+    return (f"{y.samples} samples: fail {frac(y.fail_fraction, y.fail_interval)}, "
+            f"marginal {frac(y.marginal_fraction, y.marginal_interval)}")

@@ -16,12 +16,14 @@ from typing import Any
 
 from reviewer import edits as edit_text
 from reviewer import store
+from reviewer.aids import Aid
 from reviewer.checklist import Checklist, load_checklist
 from reviewer.engine import Result, Run, evaluate
 from reviewer.errors import LatchbookError, ProjectError
 from reviewer.model import Project
 from reviewer.project import load_project_text
 from reviewer.schema import CATALOGUE
+from reviewer.tolerance import Yield
 
 Key = tuple[str, str]
 NOT_SIGNED = "sign-off not available in this version"
@@ -90,6 +92,13 @@ class Session:
         self.record: Any = None
         self.check_states: dict[Key, Any] = {}
         self.review_error = ""
+        # Tolerance analysis and design aids, each kept with the inputs hash of the result it
+        # was computed from: an edit that changes what a check read makes them disappear.
+        self.yields: dict[Key, tuple[str, Yield]] = {}
+        self.yield_progress: tuple[int, int] | None = None
+        self.aids: dict[tuple[str, str, str, str], Aid | None] = {}
+        self.aid_pending: set[tuple[str, str, str, str]] = set()
+        self.aid_choice: dict[Key, str] = {}
         if lock and not read_only:
             self._take_lock()
         self.refresh_review()
@@ -306,6 +315,28 @@ class Session:
             if rank.get(s, 0) > rank[worst]:
                 worst = s
         return worst
+
+    # -- tolerance analysis and design aids ------------------------------------------------
+    def store_yield(self, result: Result, y: Yield | None) -> None:
+        """Keep a Monte Carlo outcome with the inputs hash of the result it sampled."""
+        key = (result.stage, result.check)
+        if y is None:
+            self.yields.pop(key, None)
+        else:
+            self.yields[key] = (result.inputs_sha256, y)
+
+    def yield_of(self, stage: str, check: str) -> Yield | None:
+        """The Monte Carlo outcome of a check, if it was run on the check's current inputs."""
+        got = self.yields.get((stage, check))
+        r = self.result(stage, check)
+        if got is None or r is None or got[0] != r.inputs_sha256:
+            return None
+        return got[1]
+
+    @staticmethod
+    def aid_key(result: Result, name: str) -> tuple[str, str, str, str]:
+        """The key a design aid is kept under: the check, its inputs hash and the input."""
+        return (result.stage, result.check, result.inputs_sha256, name)
 
     # -- review record (reviewer/review.py) -----------------------------------------------
     @property

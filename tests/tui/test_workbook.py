@@ -145,7 +145,7 @@ def test_no_waveform_where_there_is_nothing_to_draw(kiln):
         app = make_app(kiln)
         async with app.run_test(size=SIZE) as pilot:
             await settle(pilot, app)
-            app.open_check("commutation", "turnoff.time")
+            app.open_check("gate", "gate.noise")
             await pilot.pause()
             await pilot.press("v")
             await pilot.pause()

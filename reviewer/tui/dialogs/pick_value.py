@@ -15,15 +15,17 @@ from textual.widgets.option_list import Option
 
 
 class PickValueDialog(ModalScreen[str | None]):
-    """A list of ``(path, current text)``; returns the chosen path or None."""
+    """A list of ``(path, current text, marked)``; returns the chosen path or None."""
 
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
 
-    def __init__(self, title: str, candidates: list[tuple[str, str, bool]]) -> None:
+    def __init__(self, title: str, candidates: list[tuple[str, str, bool]], *,
+                 legend: str = "• read by this check   Enter: change   Esc: cancel") -> None:
         super().__init__()
         self.title_text = title
         self.candidates = candidates
+        self.legend = legend
 
     def compose(self) -> ComposeResult:
         with Vertical(id="pick-box"):
@@ -35,8 +37,7 @@ class PickValueDialog(ModalScreen[str | None]):
                 t.append(current, style="dim")
                 options.append(Option(t, id=path))
             yield OptionList(*options, id="pick-list")
-            yield Label(Text("• read by this check   Enter: change   Esc: cancel",
-                             style="dim"))
+            yield Label(Text(self.legend, style="dim"))
 
     def on_mount(self) -> None:
         self.query_one("#pick-list", OptionList).focus()

@@ -20,7 +20,7 @@ from reviewer.tui.dialogs.edit_value import EditValueDialog
 from reviewer.tui.dialogs.pick_value import PickValueDialog
 from reviewer.tui.dialogs.revoke import RevokeDialog
 from reviewer.tui.dialogs.sign import SignDialog
-from reviewer.tui.messages import ResultsChanged
+from reviewer.tui.messages import AnalysisChanged, ResultsChanged
 from reviewer.tui.session import Session, State
 from reviewer.units import DIMS
 
@@ -59,6 +59,9 @@ class WorkbookScreen(Screen[None]):
         self.refresh_view()
 
     def on_results_changed(self, event: ResultsChanged) -> None:
+        self.refresh_view()
+
+    def on_analysis_changed(self, event: AnalysisChanged) -> None:
         self.refresh_view()
 
     def attempt(self, fn: Callable[[], Any]) -> Any:

@@ -1,5 +1,6 @@
 """One check in full: the detail (question, method, inputs at the worst corner, source, fix,
-cautions) and, where a picture helps, its waveform in braille."""
+cautions) with its tolerance analysis and design aid, and, where a picture helps, its waveform
+in braille."""
 
 from __future__ import annotations
 
@@ -9,13 +10,18 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
-from textual.widgets import ContentSwitcher, Footer
+from textual.widgets import ContentSwitcher, Footer, Static
 
+from reviewer.aids import failing
+from reviewer.engine import Result
+from reviewer.tui import analysis
+from reviewer.tui.dialogs.pick_value import PickValueDialog
 from reviewer.tui.screens.base import WorkbookScreen
-from reviewer.tui.waveforms import picture
 from reviewer.tui.widgets.banner import Banner, banner_text
-from reviewer.tui.widgets.detail import CheckDetail, detail_text
+from reviewer.tui.widgets.detail import CheckDetail, detail_head, detail_text
+from reviewer.tui.widgets.tolerance import AidView, TolerancePanel, ToleranceView
 from reviewer.tui.widgets.waveform import WaveformView
+from reviewer.waveforms import picture
 
 
 class CheckScreen(WorkbookScreen):
@@ -25,7 +31,10 @@ class CheckScreen(WorkbookScreen):
     BINDINGS = [
         Binding("escape", "back", "Back"),
         Binding("v", "toggle_view", "Wave"),
-        Binding("n", "toggle_corner", "Corner"),
+        Binding("n", "toggle_corner", "Corner", show=False),
+        Binding("y", "yield", "Yield"),
+        Binding("i", "aid_input", "Aid input", show=False),
+        Binding("t", "try_value", "Try"),
         Binding("c", "sign_check", "Sign"),
         Binding("w", "waive", "Waive"),
         Binding("ctrl+z", "undo", "Undo", show=False),
@@ -38,11 +47,14 @@ class CheckScreen(WorkbookScreen):
         self.check = check
         self.corner = "worst"
         self.start_on_wave = waveform
+        self.view = ToleranceView()
 
     def compose(self) -> ComposeResult:
         yield Banner(id="banner")
         with ContentSwitcher(initial="detail-scroll", id="check-switch"):
             with VerticalScroll(id="detail-scroll"):
+                yield Static("", id="detail-head", markup=False)
+                yield TolerancePanel(id="tolerance")
                 yield CheckDetail(id="detail")
             yield WaveformView(id="wave")
         yield Footer(compact=True)
@@ -58,16 +70,106 @@ class CheckScreen(WorkbookScreen):
         self.query_one(Banner).show(banner_text(s, f"{self.stage} · {self.check}"))
         r = s.result(self.stage, self.check)
         detail = self.query_one(CheckDetail)
+        head = self.query_one("#detail-head", Static)
         if r is None:
-            detail.show(Text("computing…", style="italic"))
+            head.update(Text("computing…", style="italic"))
+            detail.show(Text(""))
             return
+        limits = s.checklist.limits_for(self.check)
+        head.update(detail_head(r, limits))
+        self.view = self._tolerance(r)
+        self.query_one(TolerancePanel).show(self.view)
+        self.refresh_bindings()
         detail.show(detail_text(r, s.project, sign_state=s.sign_state(self.stage, self.check),
                                 changed=s.sign_changed(self.stage, self.check),
-                                signing=s.review_available,
-                                limits=s.checklist.limits_for(self.check)))
+                                signing=s.review_available, limits=limits, head=False))
         if self.query_one(ContentSwitcher).current == "wave":
             self.query_one(WaveformView).show(picture(r, s.project, self.corner))
 
+    # -- tolerance analysis and the design aid --------------------------------------------
+    def _tolerance(self, r: Result) -> ToleranceView:
+        s = self.session
+        y = s.yield_of(self.stage, self.check)
+        view = ToleranceView(yield_=y, running=s.yield_progress is not None,
+                             ranking=analysis.ranking(r),
+                             plot=analysis.yield_plot(r, y) if y is not None else None)
+        if r.evaluation is None or not failing(r):
+            return view
+        inputs = analysis.aid_inputs(r)
+        chosen = s.aid_choice.get((self.stage, self.check))
+        names = {a.name for a in inputs}
+        name = chosen if chosen in names else analysis.default_aid_input(r)
+        aid = AidView(offered=True, choices=len(inputs))
+        view.aid = aid
+        if name is None:
+            return view
+        inp = r.evaluation.bound.inputs[name]
+        aid.name, aid.path, aid.chosen = name, inp.path, chosen == name
+        key = s.aid_key(r, name)
+        if key in s.aids:
+            aid.aid = s.aids[key]
+            x = analysis.try_value(aid.aid, inp.value) if aid.aid is not None else None
+            aid.try_text = analysis.edit_text(inp.value, x) if x is not None else ""
+        else:
+            aid.pending = True
+            self.workbook.analyst.start_aid(r, name)
+        return view
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        # "Try" is in the footer only while the design aid has a value to try.
+        if action == "try_value":
+            return bool(self.view.aid.try_text)
+        return True
+
+    def action_yield(self) -> None:
+        self.workbook.analyst.start_yield(self.stage)
+
+    def action_aid_input(self) -> None:
+        r = self.session.result(self.stage, self.check)
+        if r is None or not failing(r):
+            self.notify("the design aid is offered for a failing or marginal check",
+                        markup=False)
+            return
+        inputs = analysis.aid_inputs(r)
+        if not inputs:
+            self.notify("no input of this check can be scaled", markup=False)
+            return
+        current = self.view.aid.path
+        cands = [(a.path, f"share {a.share * 100:.0f} %", a.path == current) for a in inputs]
+        by_path = {a.path: a.name for a in inputs}
+
+        def picked(path: str | None) -> None:
+            if path is None:
+                return
+            self.session.aid_choice[(self.stage, self.check)] = by_path[path]
+            self.refresh_view()
+
+        self.app.push_screen(PickValueDialog(
+            f"Passing range of which input of {self.check}?", cands,
+            legend="• the input shown now   Enter: choose   Esc: cancel"), picked)
+
+    def action_try_value(self) -> None:
+        a = self.view.aid
+        if not a.offered:
+            self.notify("the design aid is offered for a failing or marginal check",
+                        markup=False)
+            return
+        if a.pending:
+            self.notify("the passing range is still being computed", markup=False)
+            return
+        if not a.try_text:
+            self.notify(f"no value of {a.path or 'any input'} to try: choose another input (i)",
+                        markup=False)
+            return
+        if self.session.read_only:
+            self.notify(f"read-only ({self.session.read_only_reason}): nothing can be changed",
+                        severity="warning", markup=False)
+            return
+        state = self.attempt(lambda: self.session.propose(a.path, a.try_text))
+        if state is not None:
+            self._edited(state)
+
+    # -- the rest -----------------------------------------------------------------------
     def action_toggle_view(self) -> None:
         sw = self.query_one(ContentSwitcher)
         sw.current = "detail-scroll" if sw.current == "wave" else "wave"

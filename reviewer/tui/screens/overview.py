@@ -22,6 +22,7 @@ class OverviewScreen(WorkbookScreen):
     BINDINGS = [
         Binding("enter", "open_stage", "Open", show=True),
         Binding("s", "sign", "Sign"),
+        Binding("y", "yield", "Yield (all)"),
         Binding("a", "approve", "Approve", show=False),
         Binding("r", "revoke", "Revoke", show=False),
     ]
@@ -54,6 +55,12 @@ class OverviewScreen(WorkbookScreen):
         counts = status_counts(s.run.results)
         tot = Text(f" {len(s.project.stages)} stages, {len(s.run.results)} checks: ")
         tot.append("  ".join(f"{k} {v}" for k, v in sorted(counts.items())))
+        sampled = [(y.fail_fraction, r) for r in s.run.results
+                   if (y := s.yield_of(r.stage, r.check)) is not None]
+        if sampled:
+            worst, r = max(sampled, key=lambda x: x[0])
+            tot.append(f"  · Monte Carlo on {len(sampled)}: worst {worst * 100:.2f} % fail "
+                       f"({r.stage} · {r.check})", style="bold" if worst > 0 else "")
         self.query_one("#overview-totals", Static).update(tot)
         self.query_one("#overview-safety", Static).update(Text(
             "⚠ Mains circuits can kill. A pass means the computed margin meets the checklist "
@@ -80,3 +87,6 @@ class OverviewScreen(WorkbookScreen):
 
     def action_revoke(self) -> None:
         self.revoke_entry()
+
+    def action_yield(self) -> None:
+        self.workbook.analyst.start_yield(None)

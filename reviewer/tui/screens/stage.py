@@ -25,9 +25,10 @@ class StageScreen(WorkbookScreen):
         Binding("escape", "back", "Back"),
         Binding("enter", "open_check", "Detail"),
         Binding("s", "sign", "Sign"),
-        Binding("c", "sign_check", "Sign one"),
+        Binding("c", "sign_check", "Sign one", show=False),
         Binding("w", "waive", "Waive"),
         Binding("m", "manual", "Manual"),
+        Binding("y", "yield", "Yield"),
         Binding("ctrl+z", "undo", "Undo", show=False),
         Binding("ctrl+s", "save", "Save", show=False),
         Binding("a", "approve", "Approve", show=False),
@@ -66,7 +67,8 @@ class StageScreen(WorkbookScreen):
         table.show(self.checks(), results,
                    sign_state=lambda c: s.sign_state(self.stage, c),
                    changed={c for st, c in s.changed if st == self.stage},
-                   limits=s.checklist.limits_for, signing=s.review_available)
+                   limits=s.checklist.limits_for, signing=s.review_available,
+                   yields=lambda c: s.yield_of(self.stage, c))
         self.check = table.current_key
         self._summary()
 
@@ -76,6 +78,9 @@ class StageScreen(WorkbookScreen):
         if r is not None:
             out.append(f"{r.check}: ", style="bold")
             out.append_text(present.status_text(r.status))
+            y = self.session.yield_of(self.stage, r.check)
+            if y is not None:
+                out.append(f"  Monte Carlo {y.fail_fraction * 100:.2f} % fail", style="bold")
             out.append(f"  {r.summary}")
         elif self.check:
             out.append(f"{self.check}: computing…", style="italic")
@@ -117,6 +122,9 @@ class StageScreen(WorkbookScreen):
 
     def action_revoke(self) -> None:
         self.revoke_entry()
+
+    def action_yield(self) -> None:
+        self.workbook.analyst.start_yield(self.stage)
 
     def action_manual(self) -> None:
         self.workbook.open_manual(self.stage)

@@ -23,6 +23,9 @@ def banner_text(session: Session, where: str = "") -> Text:
     if session.dirty:
         n = len(session.state.edits)
         out.append(f"  ● {n} unsaved edit{'s' if n != 1 else ''}", style="bold yellow")
+    if session.yield_progress is not None:
+        done, total = session.yield_progress
+        out.append(f"  Monte Carlo {done}/{total}…", style="bold cyan")
     if session.read_only:
         out.append("  READ-ONLY", style="bold reverse")
     if where:

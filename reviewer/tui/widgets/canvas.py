@@ -7,8 +7,6 @@ main curve in monochrome as well as in colour. Marked instants get a ``┴`` on 
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 from rich.console import RenderableType
 from rich.text import Text
@@ -16,7 +14,7 @@ from textual.reactive import reactive
 from textual.widget import Widget
 
 from reviewer.fmt import eng
-from reviewer.tui.waveforms import Plot
+from reviewer.waveforms import Plot
 
 # Dot bits of a braille cell, by (column, row) inside the cell.
 _BITS = ((0x01, 0x02, 0x04, 0x40), (0x08, 0x10, 0x20, 0x80))
@@ -24,13 +22,17 @@ _STYLES = ("bold $accent", "$warning", "$secondary", "$success")
 
 
 def braille_grid(width: int, height: int, curves: list[tuple[np.ndarray, np.ndarray, bool]],
-                 x_range: tuple[float, float],
-                 y_range: tuple[float, float]) -> tuple[list[list[int]], list[list[int]]]:
+                 x_range: tuple[float, float], y_range: tuple[float, float], *,
+                 bars: bool = False) -> tuple[list[list[int]], list[list[int]]]:
     """Rasterise curves into ``height`` × ``width`` cells of braille dot masks.
 
     Returns the masks and, per cell, the index of the first curve that lit it (−1: none).
-    Points outside the ranges are clipped to the edge; NaN samples break the line.
+    Points outside the ranges are clipped to the edge; NaN samples break the line. With
+    ``bars`` each dot column is filled from the first curve's value down to the x axis, the
+    value of the nearest sample (a histogram's bins).
     """
+    if bars:
+        return _bar_grid(width, height, curves[0][0], curves[0][1], x_range, y_range)
     masks = [[0] * width for _ in range(height)]
     owner = [[-1] * width for _ in range(height)]
     pw, ph = width * 2, height * 4
@@ -60,6 +62,37 @@ def braille_grid(width: int, height: int, curves: list[tuple[np.ndarray, np.ndar
     return masks, owner
 
 
+def _bar_grid(width: int, height: int, xs: np.ndarray, ys: np.ndarray,
+              x_range: tuple[float, float],
+              y_range: tuple[float, float]) -> tuple[list[list[int]], list[list[int]]]:
+    masks = [[0] * width for _ in range(height)]
+    owner = [[-1] * width for _ in range(height)]
+    pw, ph = width * 2, height * 4
+    x0, x1 = x_range
+    y0, y1 = y_range
+    px = x0 + (np.arange(pw) + 0.5) * (x1 - x0) / pw  # the centre of each dot column
+    order = np.argsort(xs)
+    xs, ys = np.asarray(xs, dtype=float)[order], np.asarray(ys, dtype=float)[order]
+    step = float(np.median(np.diff(xs))) if xs.size > 1 else (x1 - x0)
+    idx = np.clip(np.searchsorted(xs, px), 1, max(1, xs.size - 1)) if xs.size > 1 else \
+        np.zeros(pw, dtype=int)
+    if xs.size > 1:
+        left = idx - 1
+        idx = np.where(np.abs(px - xs[left]) <= np.abs(px - xs[idx]), left, idx)
+    near = np.abs(px - xs[idx]) <= 0.5 * step + 1e-12 * max(1.0, abs(step))
+    sy = (ph - 1) / (y1 - y0) if y1 > y0 else 0.0
+    for qx in range(pw):
+        y = float(ys[idx[qx]])
+        if not near[qx] or not np.isfinite(y) or y <= y0:
+            continue
+        top = int(np.clip(round((y1 - y) * sy), 0, ph - 1))
+        for qy in range(top, ph):
+            cy, cx = qy // 4, qx // 2
+            masks[cy][cx] |= _BITS[qx % 2][qy % 4]
+            owner[cy][cx] = 0
+    return masks, owner
+
+
 def _segment(a: tuple[int, int], b: tuple[int, int]) -> list[tuple[int, int]]:
     """The dots from ``a`` to ``b`` (a vertical run at each column, so steep edges stay joined)."""
     (xa, ya), (xb, yb) = a, b
@@ -67,15 +100,8 @@ def _segment(a: tuple[int, int], b: tuple[int, int]) -> list[tuple[int, int]]:
     return [(round(xa + (xb - xa) * i / n), round(ya + (yb - ya) * i / n)) for i in range(n + 1)]
 
 
-def _time_unit(span: float) -> tuple[float, str]:
-    for scale, unit in ((1.0, "s"), (1e-3, "ms"), (1e-6, "µs"), (1e-9, "ns")):
-        if span >= 5 * scale:
-            return scale, unit
-    return 1e-9, "ns"
-
-
 class BrailleChart(Widget):
-    """Draws one :class:`~reviewer.tui.waveforms.Plot` to fill the widget."""
+    """Draws one :class:`~reviewer.waveforms.Plot` to fill the widget (curves, or bars)."""
 
     DEFAULT_CSS = """
     BrailleChart { height: 1fr; min-height: 6; }
@@ -110,10 +136,13 @@ class BrailleChart(Widget):
         if hi - lo < 1e-12 * max(1.0, abs(hi)):
             lo, hi = lo - 1.0, hi + 1.0
         pad = (hi - lo) * 0.05
-        lo, hi = lo - pad, hi + pad
+        lo, hi = (0.0, hi + pad) if plot.bars else (lo - pad, hi + pad)
         x0, x1 = float(t[0]), float(t[-1])
+        if plot.bars and t.size > 1:  # the bins' outer edges, so the end bars are whole
+            half = 0.5 * (x1 - x0) / (t.size - 1)
+            x0, x1 = x0 - half, x1 + half
         curves = [(t, y, s.dotted) for y, s in zip(ys, plot.series, strict=True)]
-        masks, owner = braille_grid(cols, rows, curves, (x0, x1), (lo, hi))
+        masks, owner = braille_grid(cols, rows, curves, (x0, x1), (lo, hi), bars=plot.bars)
         unit = plot.series[0].unit if plot.series else ""
         out = Text(no_wrap=True, overflow="crop")
         legend = Text("  ".join(f"{'┄' if s.dotted else '━'} {s.name}" for s in plot.series))
@@ -123,6 +152,10 @@ class BrailleChart(Widget):
         head.truncate(width, overflow="ellipsis")
         out.append_text(head)
         out.append("\n")
+        span = x1 - x0
+        # A histogram's marks (its limit) run up through the chart as well as on the axis.
+        lines = {min(cols - 1, int((x - x0) / span * cols)) for x, _ in plot.marks
+                 if plot.bars and span > 0 and x0 <= x <= x1}
         for r in range(rows):
             if r == 0:
                 lab = eng(hi, unit, 3)
@@ -138,29 +171,21 @@ class BrailleChart(Widget):
                 if m:
                     style = _STYLES[owner[r][c] % len(_STYLES)]
                     out.append(chr(0x2800 + m), style=self._style(style))
+                elif c in lines:
+                    out.append("┊", style=self._style("$error"))
                 else:
                     out.append(" ")
             out.append("\n")
         axis = ["─"] * cols
-        span = x1 - x0
         for x, _ in plot.marks:
             if span > 0 and x0 <= x <= x1:
-                axis[min(cols - 1, int((x - x0) / span * (cols - 1)))] = "┴"
+                axis[min(cols - 1, int((x - x0) / span * (cols if plot.bars else cols - 1)))] = "┴"
         out.append(" " * label_w + "└" + "".join(axis) + "\n", style="dim")
-        scale, tu = _time_unit(span if span > 0 else 1.0)
-        left = f"{_num(x0 / scale)} {tu}"
-        right = f"{_num(x1 / scale)} {tu}"
+        # Times and a histogram's values alike, in engineering notation (report units).
+        left, right = eng(x0, plot.x_unit, si=False), eng(x1, plot.x_unit, si=False)
         marks = sorted({m for _, m in plot.marks})
         mid = ("┴ " + ", ".join(marks)) if marks else ""
         gap = max(1, cols - len(left) - len(right) - len(mid))
         out.append(" " * (label_w + 1) + left + " " * (gap // 2) + mid
                    + " " * (gap - gap // 2) + right, style="dim")
         return out
-
-
-
-
-def _num(x: float) -> str:
-    if x == 0 or not math.isfinite(x):
-        return "0"
-    return f"{x:.3g}"

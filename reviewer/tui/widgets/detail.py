@@ -64,11 +64,8 @@ def _head(text: str) -> Text:
     return Text(f"\n{text}\n", style="bold underline")
 
 
-def detail_text(result: Result, project: Project, *, sign_state: str, changed: object,
-                signing: bool, limits: dict[str, float]) -> Text:
-    """Everything the detail view says about one check, as one Text (no markup parsed)."""
-    defn = CHECKS.get(result.check)
-    stage = project.stages.get(result.stage)
+def detail_head(result: Result, limits: dict[str, float]) -> Text:
+    """The first lines of the detail: the check, its status, margin, worst vs limit, summary."""
     out = Text()
     out.append(f"{result.stage} · {result.check}   ", style="bold")
     out.append_text(present.status_text(result.status))
@@ -78,6 +75,16 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
     out.append_text(present.worst_vs_limit(result, limits))
     out.append("\n")
     out.append(result.summary + "\n")
+    return out
+
+
+def detail_text(result: Result, project: Project, *, sign_state: str, changed: object,
+                signing: bool, limits: dict[str, float], head: bool = True) -> Text:
+    """Everything the detail view says about one check, as one Text (no markup parsed);
+    ``head=False`` leaves out :func:`detail_head` (the screen shows it above the analysis)."""
+    defn = CHECKS.get(result.check)
+    stage = project.stages.get(result.stage)
+    out = detail_head(result, limits) if head else Text()
     if defn is not None:
         out.append_text(_head("Question"))
         out.append(defn.question + "\n")

@@ -15,6 +15,7 @@ from textual.message import Message
 from textual.widgets import DataTable
 
 from reviewer.engine import Result
+from reviewer.tolerance import Yield
 from reviewer.tui import present
 from reviewer.tui.session import StageCounts
 
@@ -108,11 +109,12 @@ class StageTable(KeyedTable):
 
 
 class ChecklistTable(KeyedTable):
-    """One stage's checks: result, worst against limit, margin, sign-off, changed mark."""
+    """One stage's checks: result, worst against limit, margin, Monte Carlo fail fraction,
+    sign-off; a check whose result changed with the last edit is marked Δ."""
 
-    COLUMNS = (("", "changed", 1), ("check", "check", 22), ("result", "result", 11),
-               ("worst vs limit", "worst", 14), ("margin", "margin", 7),
-               ("sign-off", "sign", 10))
+    COLUMNS = (("check", "check", 23), ("result", "result", 11),
+               ("worst/limit", "worst", 11), ("margin", "margin", 6),
+               ("fail %", "yield", 9), ("sign-off", "sign", 8))
 
     class CheckHighlighted(Message):
         """The cursor moved to a check."""
@@ -130,7 +132,8 @@ class ChecklistTable(KeyedTable):
 
     def show(self, checks: list[str], results: Mapping[str, Result], *,
              sign_state: Callable[[str], str], changed: set[str],
-             limits: Callable[[str], Mapping[str, float]], signing: bool) -> None:
+             limits: Callable[[str], Mapping[str, float]], signing: bool,
+             yields: Callable[[str], Yield | None] = lambda c: None) -> None:
         """Show the checks of a stage (a check without a result yet shows "computing")."""
         rows = []
         for cid in checks:
@@ -139,11 +142,14 @@ class ChecklistTable(KeyedTable):
             status = "" if r is None else r.status
             if status == "fail" and st == "waived":
                 status = "fail (waived)"
+            name = Text(cid)
+            if cid in changed:
+                name.append("Δ", style="bold yellow")
             rows.append(Row(cid, (
-                Text("Δ", style="bold yellow") if cid in changed else Text(" "),
-                Text(cid), present.status_text(status),
+                name, present.status_text(status),
                 present.worst_vs_limit(r, limits(cid)) if r else Text(""),
-                present.margin_text(r.margin if r else None),
+                present.margin_text(r.margin if r else None, compact=True),
+                present.yield_cell(yields(cid)),
                 present.sign_text(st, signing))))
         self.show_rows(rows)
 

@@ -7,12 +7,12 @@ from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.widgets import Static
 
-from reviewer.tui.waveforms import Picture
 from reviewer.tui.widgets.canvas import BrailleChart
+from reviewer.waveforms import Picture
 
 
 class WaveformView(Vertical):
-    """Shows a :class:`~reviewer.tui.waveforms.Picture`."""
+    """Shows a :class:`~reviewer.waveforms.Picture`."""
 
     DEFAULT_CSS = """
     WaveformView { height: 1fr; }
