@@ -18,21 +18,21 @@ from reviewer.waveforms import picture
 ROOT = Path(__file__).resolve().parents[2]
 
 
-def _variant(workdir: Path, name: str, swaps: list[tuple[str, str]]) -> Path:
-    text = (workdir / "kiln-230.toml").read_text()
+def _variant(demo_copy: Path, name: str, swaps: list[tuple[str, str]]) -> Path:
+    text = (demo_copy / "kiln-230.toml").read_text()
     for old, new in swaps:
         assert old in text, old
         text = text.replace(old, new, 1)
-    path = workdir / name
+    path = demo_copy / name
     path.write_text(text)
     return path
 
 
 @pytest.fixture
-def rashid_rl(workdir: Path) -> Path:
+def rashid_rl(demo_copy: Path) -> Path:
     """The kiln's power stage on the inputs of Rashid 4e Ex 11.2: 120 V, 60 Hz, R = 2.5 Ω,
     L = 6.5 mH, ac-switch fired at 90° [book: Rashid 4e Ex 11.2]."""
-    return _variant(workdir, "rashid-11-2.toml", [
+    return _variant(demo_copy, "rashid-11-2.toml", [
         ('voltage = "230 V +10% -10%"', 'voltage = "120 V"'),
         ('frequency = "50 Hz"', 'frequency = "60 Hz"'),
         ('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }',
@@ -54,10 +54,10 @@ def test_the_adapter_imports_no_textual():
     assert out.stdout.strip() == "False"
 
 
-def test_power_check_draws_both_firing_range_ends(workdir):
+def test_power_check_draws_both_firing_range_ends(demo_copy):
     """With firing 30°–150° the load voltage is the line after each end's firing and zero
     before it, one curve per end (α_min solid, α_max dotted)."""
-    path = _variant(workdir, "kiln-firing.toml", [
+    path = _variant(demo_copy, "kiln-firing.toml", [
         ('topology = "ac-switch"\n',
          'topology = "ac-switch"\nfiring = { min = "30 deg", max = "150 deg" }\n')])
     result, pic = _pic(path, "power", "power.junction")
@@ -105,6 +105,11 @@ def test_line_commutation_marks_the_turn_off_interval(rashid_rl):
     assert "turn-off interval t_c = 8.33 ms" in " ".join(pic.plots[0].notes)
 
 
+@pytest.fixture
+def kiln(demo_copy: Path) -> Path:
+    return demo_copy / "kiln-230.toml"
+
+
 def test_line_commutation_of_a_resistive_load_leaves_half_a_cycle(kiln):
     """Kiln, R load at 50 Hz: t_c = π/ω = 10 ms from the current zero at 180°."""
     _, pic = _pic(kiln, "commutation", "turnoff.time")
@@ -114,7 +119,7 @@ def test_line_commutation_of_a_resistive_load_leaves_half_a_cycle(kiln):
     assert marks["forward voltage"] == pytest.approx(20e-3)
 
 
-def test_dc_switch_says_why_there_is_no_cycle(workdir):
+def test_dc_switch_says_why_there_is_no_cycle(demo_copy):
     """A DC switch's power checks give the reason instead of a plot."""
-    _, pic = _pic(workdir / "flasher-dc.toml", "lamp", "power.junction")
+    _, pic = _pic(demo_copy / "flasher-dc.toml", "lamp", "power.junction")
     assert not pic.plots and "line cycle" in pic.reason
