@@ -175,17 +175,24 @@ def cmd_demo(args: argparse.Namespace) -> int:
 
 
 def cmd_open(args: argparse.Namespace) -> int:
-    """The workbook on a project."""
+    """The workbook on a project; on a review record (NAME.review.toml), on the project it
+    belongs to (its [review] project key, relative to the record), read-only: the lead's view."""
     from reviewer.project import load_project
 
-    load_project(args.project)  # a bad file is reported here, before the screen changes
     try:
         from reviewer.tui.app import run_app
+        from reviewer.tui.session import project_of_record
     except ImportError:
+        run_app = project_of_record = None  # type: ignore[assignment]
+    project, record = args.project, None
+    if project.endswith(".review.toml") and project_of_record is not None:
+        record, project = project, str(project_of_record(project))
+    load_project(project)  # a bad file is reported here, before the screen changes
+    if run_app is None:
         print("The workbook is not available in this version; use `latchbook check`.",
               file=sys.stderr)
         return 2
-    return run_app(args.project, read_only=args.read_only, mouse=not args.no_mouse)
+    return run_app(project, read_only=args.read_only, mouse=not args.no_mouse, record=record)
 
 
 def _positive(text: str) -> int:
@@ -218,8 +225,11 @@ def build_parser() -> argparse.ArgumentParser:
                    help="normal with the tolerance as 3σ (default), or uniform")
     p.set_defaults(func=cmd_check)
 
-    p = sub.add_parser("open", help="the workbook on a project")
-    p.add_argument("project", metavar="PROJECT")
+    p = sub.add_parser("open", help="the workbook on a project (or on a review record's "
+                       "project, read-only: the lead's view)")
+    p.add_argument("project", metavar="PROJECT",
+                   help="NAME.toml; or NAME.review.toml to open its project read-only, where "
+                   "an approver may still approve")
     p.add_argument("--read-only", action="store_true", help="look, export, change nothing")
     p.add_argument("--no-mouse", action="store_true",
                    help="leave the terminal's own mouse selection alone")

@@ -19,6 +19,7 @@ from textual.worker import Worker, WorkerState
 
 from reviewer import store
 from reviewer.errors import LatchbookError
+from reviewer.tui import attention
 from reviewer.tui.compute import Analyst, Computer
 from reviewer.tui.dialogs.choice import ChoiceDialog
 from reviewer.tui.screens.check import CheckScreen
@@ -48,6 +49,7 @@ class Workbook(App[int]):
         self.analyst = Analyst(self, session)
         self.recompute = recompute
         self.theme = "textual-dark"
+        self.filter_key = "all"  # the attention filter, shared by the overview and the stages
         self._small: TooSmallScreen | None = None
         self._size_judged = False  # the size is judged once the first screen is up
 
@@ -73,6 +75,11 @@ class Workbook(App[int]):
         """Show the manual questions of a stage."""
         self.push_screen(ManualScreen(stage))
 
+    def cycle_filter(self) -> str:
+        """Step the attention filter (all → attention → fails → stale → all); returns it."""
+        self.filter_key = attention.next_filter(self.filter_key)
+        return self.filter_key
+
     def action_help(self) -> None:
         sections: list[tuple[str, list]] = [
             ("Everywhere", [*self.BINDINGS, *self._base_bindings()]),
@@ -83,7 +90,18 @@ class Workbook(App[int]):
             ("In a dialog", [Binding("enter", "", "check and accept"),
                              Binding("escape", "", "cancel")]),
         ]
-        self.push_screen(HelpScreen(sections))
+        notes = Text()
+        notes.append("Filter (f, on the stages and a stage's checklist)\n", style="bold underline")
+        for f in attention.FILTERS:
+            mark = "▸ " if f.key == self.filter_key else "  "
+            notes.append(f"{mark}{f.label:<16}", style="bold")
+            notes.append(f"{f.rule}\n")
+        notes.append("\nApproval (a)\n", style="bold underline")
+        notes.append(f"  {self.session.approvers_text()}. An approval covers checks that "
+                     "already have a current reviewed sign-off; the review record decides and "
+                     "refuses anyone else. Opening NAME.review.toml is the lead's view: "
+                     "read-only values, approvals allowed.\n")
+        self.push_screen(HelpScreen(sections, notes))
 
     @staticmethod
     def _base_bindings() -> list:
@@ -199,19 +217,27 @@ class Workbook(App[int]):
                             lambda: call("try_value"))
         yield SystemCommand("Sign the stage as reviewed", "Shows what is signed first",
                             lambda: call("sign"))
+        yield SystemCommand("Approve the stage", "Approvers only (a); the review record "
+                            "decides", lambda: call("approve"))
+        yield SystemCommand("Cycle the attention filter", "All → attention → fails → stale (f)",
+                            lambda: call("cycle_filter"))
         yield SystemCommand("Revoke a history entry", "With a reason", lambda: call("revoke"))
         yield SystemCommand("Leave the workbook", "Quit (asks about unsaved edits)",
                             self.action_leave)
 
 
-def run_app(project_path: str, *, read_only: bool = False, mouse: bool = True) -> int:
+def run_app(project_path: str, *, read_only: bool = False, mouse: bool = True,
+            record: str | None = None) -> int:
     """Open the workbook on ``project_path``; returns the exit code.
+
+    ``record``: the review record the user named (``latchbook open NAME.review.toml``); the
+    project then opens read-only as the lead's view (see :class:`Session`).
 
     A SIGHUP (dropped SSH session) or SIGTERM writes the unsaved edits to the journal before
     the process ends; the next open offers them back.
     """
     try:
-        session = Session(Path(project_path), read_only=read_only)
+        session = Session(Path(project_path), read_only=read_only, record=record)
     except LatchbookError as exc:
         print(f"latchbook: {exc}", file=sys.stderr)
         return 2

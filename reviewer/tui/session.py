@@ -8,6 +8,7 @@ with the project it loads as, so undo and redo are exact and cheap.
 from __future__ import annotations
 
 import importlib
+import tomllib
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -19,11 +20,12 @@ from reviewer import store
 from reviewer.aids import Aid
 from reviewer.checklist import Checklist, load_checklist
 from reviewer.engine import Result, Run, evaluate
-from reviewer.errors import LatchbookError, ProjectError
+from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
 from reviewer.model import Project
 from reviewer.project import load_project_text
 from reviewer.schema import CATALOGUE
 from reviewer.tolerance import Yield
+from reviewer.tui import attention
 
 Key = tuple[str, str]
 NOT_SIGNED = "sign-off not available in this version"
@@ -67,13 +69,61 @@ def review_module() -> ModuleType | None:
         return None
 
 
-class Session:
-    """The project the workbook has open and everything it knows about it."""
+def project_of_record(record: str | Path) -> Path:
+    """The project a review record belongs to: its ``[review] project`` key, relative to the
+    record. Raises a RecordError saying what is wrong (no file, no key, a record that is not
+    the one the project's sign-offs are kept in)."""
+    record = Path(record)
+    where = Where(str(record))
+    text, _ = store.read_with_hash(record)
+    if text is None:
+        raise RecordError("no such review record; check the path (records are "
+                          "NAME.review.toml)", where)
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise RecordError(f"the review record is not valid TOML ({exc}); restore it from "
+                          "version control", where) from None
+    head = doc.get("review")
+    name = head.get("project") if isinstance(head, dict) else None
+    if not isinstance(name, str) or not name:
+        raise RecordError('the record does not say whose it is: it needs [review] project = '
+                          '"NAME.toml"', Where(str(record), "review", "project"))
+    project = record.parent / name
+    if not project.is_file():
+        raise RecordError(f'the record belongs to "{name}", which is not there (looked for '
+                          f"{project}); the project key is relative to the record",
+                          Where(str(record), "review", "project"))
+    mod = review_module()
+    if mod is not None:
+        kept = mod.record_path(project)
+        if kept.resolve() != record.resolve():
+            raise RecordError(f'the record names "{name}", whose sign-offs are kept in '
+                              f"{kept.name}, not in {record.name}; open {kept.name} or the "
+                              "project itself", Where(str(record), "review", "project"))
+    return project
 
-    def __init__(self, path: str | Path, *, read_only: bool = False, lock: bool = True) -> None:
+
+class Session:
+    """The project the workbook has open and everything it knows about it.
+
+    ``record``: the review record the session was opened from (the lead's view). The project
+    is then read-only — no value, sign-off, waiver or answer changes — except that an approver
+    may approve, which writes only the review record (and not even that with ``read_only``).
+    """
+
+    def __init__(self, path: str | Path, *, read_only: bool = False, lock: bool = True,
+                 record: str | Path | None = None) -> None:
         self.path = Path(path)
-        self.read_only = read_only
+        self.lead_view = record is not None
+        # The lead's view may approve (the record only); --read-only as well writes nothing.
+        self.approvals_open = self.lead_view and not read_only
         self.read_only_reason = "opened with --read-only" if read_only else ""
+        if record is not None:
+            self.read_only_reason = f"the lead's view of {Path(record).name}" + (
+                "; --read-only: nothing is written" if read_only else "")
+        read_only = read_only or self.lead_view
+        self.read_only = read_only
         self.lock: store.ProjectLock | None = None
         text, sha = store.read_with_hash(self.path)
         if text is None:
@@ -380,6 +430,79 @@ class Session:
         changes = list(getattr(st, "changed", []) or []) if st is not None else []
         return "; ".join(c.text() if hasattr(c, "text") else str(c) for c in changes)
 
+    # -- approvals: who may approve (the checklist's rule; reviewer.review enforces it) --------
+    @property
+    def approvers(self) -> list[str]:
+        """The checklist's approvers (empty: the checklist names none, anyone may approve)."""
+        return list(self.checklist.approvers)
+
+    def approvers_text(self) -> str:
+        """Who may approve, in words."""
+        if not self.approvers:
+            return f"checklist {self.checklist.name} names no approvers: anyone may approve"
+        return f"approvers ({self.checklist.name}): " + ", ".join(self.approvers)
+
+    @staticmethod
+    def login() -> str:
+        """The login sign-offs are made as (from the password database)."""
+        return store.current_person().login
+
+    def approval_problem(self) -> str:
+        """Why this user may not approve ("" when the checklist allows it).
+
+        Only a friendly early word: reviewer.review.sign decides, and refuses on its own.
+        """
+        if not self.review_available:
+            return NOT_SIGNED
+        if self.read_only and not self.approvals_open:
+            return f"read-only ({self.read_only_reason})"
+        who = self.login()
+        if self.approvers and who not in self.approvers:
+            return (f"{who} is not an approver of checklist {self.checklist.name}; only "
+                    + ", ".join(self.approvers) + " may approve")
+        return ""
+
+    # -- where values come from (variants) --------------------------------------------------
+    @property
+    def has_chain(self) -> bool:
+        """True when the project is a variant: its values come from more than one file."""
+        return len(self.project.chain) > 1
+
+    def origin_of(self, path: str) -> str:
+        """The name of the file the resolved value at ``path`` came from ("" when the project
+        has no variant chain, or no file gives the value: a default or an assumption)."""
+        if not self.has_chain or "#none" in path or "#assumed" in path:
+            return ""
+        bare = path.split("#")[0]
+        got = self.project.origin.get(bare)
+        head, _, last = bare.rpartition(".")
+        if got is None and last in ("min", "max", "nom"):  # one end of a range { min, max }
+            got = self.project.origin.get(head)
+        return Path(got).name if got else ""
+
+    def edit_goes_where(self, path: str) -> str:
+        """What an edit of ``path`` does to the files, in words (variants only)."""
+        if not self.has_chain:
+            return ""
+        here = self.path.name
+        src = self.origin_of(path)
+        if not src:
+            return f"no file gives this value; the edit adds it to {here}"
+        if src == here:
+            return f"from {here} (this file); the edit changes it there"
+        return (f"← {src}: the edit goes into {here} as an override; {src} is not changed "
+                "(the other variants keep its value)")
+
+    # -- the attention filter -------------------------------------------------------------
+    def check_matches(self, key: str, stage: str, check: str) -> bool:
+        """Whether one check passes filter ``key`` (see reviewer.tui.attention)."""
+        r = self.result(stage, check)
+        return attention.matches(key, r.status if r else "", self.sign_state(stage, check))
+
+    def filtered_checks(self, key: str, stage: str) -> list[str]:
+        """The checks of ``stage`` that pass filter ``key``, in report order."""
+        return [c for sid, c in self.keys() if sid == stage and self.check_matches(key, sid, c)]
+
     def note_problem(self, note: str) -> str | None:
         """Why a waiver or revocation reason would be refused (the review module's rule)."""
         mod = review_module()
@@ -388,8 +511,9 @@ class Session:
             return fn(note)
         return None if note.strip() else "a reason is required"
 
-    def _review(self, what: str) -> ModuleType:
-        self.guard_write(what)
+    def _review(self, what: str, *, approving: bool = False) -> ModuleType:
+        if not (approving and self.approvals_open):
+            self.guard_write(what)
         mod = review_module()
         if mod is None:
             raise ProjectError(NOT_SIGNED)
@@ -400,7 +524,7 @@ class Session:
 
     def sign(self, *, stage: str, checks: list[str] | None, meaning: str, note: str) -> Any:
         """Sign a stage (or some of its checks) through the review module."""
-        mod = self._review("sign")
+        mod = self._review("sign", approving=meaning == "approved")
         entry = mod.sign(self.path, stage=stage, checks=checks, meaning=meaning, note=note,
                          unsaved=self.dirty)
         self.refresh_review()
@@ -432,7 +556,7 @@ class Session:
         st = self.project.stages.get(stage)
         if st is None:
             return []
-        return [m for m in self.checklist.manual if m.get("stage_kind") == st.kind]
+        return self.checklist.manual_for(st.kind)
 
     def manual_answers(self, stage: str) -> dict[str, tuple[str, str, str]]:
         """The latest answer to each manual question of ``stage``: id → (answer, note, who)."""

@@ -51,3 +51,26 @@ def test_too_small_snapshot(kiln, snapshot):
             snapshot(app, "too-small-70x20")
             app.session.close()
     asyncio.run(go())
+
+
+def test_lead_view_attention_snapshot(tmp_path, snapshot):
+    """The lead's view of the stale 120 V variant under the attention filter, in the power
+    stage: READ-ONLY and the filter in the banner, only the stale check listed."""
+    import shutil
+
+    from tests.tui.conftest import PROJECTS
+
+    line = tmp_path / "kiln-line"
+    shutil.copytree(PROJECTS / "kiln-line", line)
+
+    async def go():
+        app = Workbook(Session(line / "kiln-120-1k.toml", record=line / "kiln-120-1k.review.toml"))
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot, app)
+            await pilot.press("f")
+            await pilot.pause()
+            app.open_stage("power")
+            await pilot.pause()
+            await pilot.pause()
+            snapshot(app, "lead-view-attention-power")
+    asyncio.run(go())

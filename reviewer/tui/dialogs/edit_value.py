@@ -3,6 +3,9 @@
 The dialog returns the validated new state of the project (never a half-checked text), or None
 when cancelled. What was typed goes through ``reviewer.edits.apply_edit`` (tomlkit edit,
 re-read, whole-project validation) before Enter is accepted.
+
+In a variant, ``origin`` says which file the value comes from and where the edit goes (the
+workbook writes only the file it opened: a base value edited there becomes an override).
 """
 
 from __future__ import annotations
@@ -28,8 +31,9 @@ class EditValueDialog(ModalScreen[State | None]):
     BINDINGS = [Binding("escape", "cancel", "Cancel")]
 
     def __init__(self, path: str, current: str, hint: str,
-                 validate: Callable[[str, str], State]) -> None:
+                 validate: Callable[[str, str], State], *, origin: str = "") -> None:
         super().__init__()
+        self.origin = origin
         self.path = path
         self.current = current
         self.hint = hint
@@ -39,6 +43,9 @@ class EditValueDialog(ModalScreen[State | None]):
         with Vertical(id="edit-box"):
             yield Label(Text(f"Change {self.path}", style="bold"))
             yield Label(Text(f"now: {self.current or '(not given)'}", style="dim"))
+            if self.origin:
+                yield Static(Text(self.origin, style="bold" if "override" in self.origin
+                                  else "dim"), id="edit-origin", markup=False)
             yield Input(value=self.current, id="edit-input", select_on_focus=True)
             yield Static(Text(self.hint, style="dim"), id="edit-hint")
             yield Static("", id="edit-error", markup=False)

@@ -1,5 +1,10 @@
 """What every workbook screen shares: the session, the edit / undo / redo / save flow, the
-sign-off dialogs, and the boundary where a user's mistake becomes a message, not a traceback.
+sign-off and approval dialogs, the attention filter, and the boundary where a user's mistake
+becomes a message, not a traceback.
+
+The footer shows a key only where it applies now (Save with unsaved edits, Approve for an
+approver, Waive on a failing check…); the same key pressed where it does not apply still
+answers, through a hidden twin binding that says why (:func:`applies`).
 """
 
 from __future__ import annotations
@@ -15,7 +20,7 @@ from reviewer.edits import shown_text
 from reviewer.errors import LatchbookError
 from reviewer.fmt import DIM_UNIT
 from reviewer.model import Value
-from reviewer.tui import present
+from reviewer.tui import attention, present
 from reviewer.tui.dialogs.edit_value import EditValueDialog
 from reviewer.tui.dialogs.pick_value import PickValueDialog
 from reviewer.tui.dialogs.revoke import RevokeDialog
@@ -27,6 +32,21 @@ from reviewer.units import DIMS
 if TYPE_CHECKING:
     from reviewer.tui.app import Workbook
 
+def applies(key: str, action: str, description: str, *, show: bool = True) -> list[Binding]:
+    """A binding shown only while :meth:`WorkbookScreen.applies_now` allows ``action``, and its
+    hidden twin on the same key, which runs the action anyway so that it can say why not."""
+    return [Binding(key, action, description, show=show),
+            Binding(key, f"explain('{action}')", description, show=False)]
+
+
+# Inner screens keep ctrl+q (the app's Quit) out of their footer for room: Esc leads back to
+# the overview, which shows it, and the help lists it.
+QUIET_QUIT = Binding("ctrl+q", "app.leave", "Quit", show=False, priority=True)
+
+# The actions whose footer entry follows WorkbookScreen.applies_now (each bound via applies()).
+DYNAMIC = frozenset({"edit", "undo", "redo", "save", "sign", "sign_check", "waive", "approve",
+                     "manual"})
+
 HINT = ('Same grammar as the file: 47 kohm ±5%, 4k7, 230 V +10% -15%, '
         '{ min = "10 kohm", max = "110 kohm" }')
 
@@ -35,10 +55,10 @@ class WorkbookScreen(Screen[None]):
     """Base of the workbook's screens."""
 
     BINDINGS = [
-        Binding("e", "edit", "Edit"),
-        Binding("ctrl+z", "undo", "Undo"),
-        Binding("ctrl+y", "redo", "Redo", show=False),
-        Binding("ctrl+s", "save", "Save"),
+        *applies("e", "edit", "Edit"),
+        *applies("ctrl+z", "undo", "Undo"),
+        *applies("ctrl+y", "redo", "Redo", show=False),
+        *applies("ctrl+s", "save", "Save"),
     ]
 
     @property
@@ -55,14 +75,63 @@ class WorkbookScreen(Screen[None]):
     def refresh_view(self) -> None:
         """Show the session's current state (each screen fills this in)."""
 
-    def on_screen_resume(self) -> None:
+    def refresh_all(self) -> None:
+        """Show the current state, and the footer keys that apply to it."""
         self.refresh_view()
+        self.refresh_bindings()
+
+    def on_screen_resume(self) -> None:
+        self.refresh_all()
 
     def on_results_changed(self, event: ResultsChanged) -> None:
-        self.refresh_view()
+        self.refresh_all()
 
     def on_analysis_changed(self, event: AnalysisChanged) -> None:
         self.refresh_view()
+
+    # -- which keys apply ---------------------------------------------------------------
+    def applies_now(self, action: str) -> bool:
+        """Whether ``action`` applies in the current state (its footer entry shows)."""
+        s = self.session
+        if action == "edit":
+            return not s.read_only
+        if action == "undo":
+            return not s.read_only and s.can_undo
+        if action == "redo":
+            return not s.read_only and s.can_redo
+        if action == "save":
+            return not s.read_only and s.dirty
+        if action in ("sign", "sign_check", "waive"):
+            return not s.read_only and s.review_available
+        if action == "approve":
+            return not s.approval_problem()
+        return True
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        if action in DYNAMIC:
+            return self.applies_now(action)
+        return True
+
+    def action_explain(self, action: str) -> None:
+        """A key pressed where its action does not apply: run it, so it says why."""
+        fn = getattr(self, f"action_{action}", None)
+        if fn is not None:
+            fn()
+
+    # -- the attention filter -----------------------------------------------------------
+    @property
+    def filter_key(self) -> str:
+        """The filter in force (shared by the overview and every stage's checklist)."""
+        return self.workbook.filter_key
+
+    def filter_label(self) -> str:
+        """The banner's word for the filter ("" when every check shows)."""
+        return "" if self.filter_key == "all" else attention.BY_KEY[self.filter_key].label
+
+    def action_cycle_filter(self) -> None:
+        f = attention.BY_KEY[self.workbook.cycle_filter()]
+        self.refresh_all()
+        self.notify(f"filter: {f.label} — {f.rule}", markup=False)
 
     def attempt(self, fn: Callable[[], Any]) -> Any:
         """Run a user action; a LatchbookError becomes a notification (other errors propagate)."""
@@ -138,7 +207,8 @@ class WorkbookScreen(Screen[None]):
         if isinstance(value, Value) and value.dim in DIMS:
             hint = f"{DIMS[value.dim][1]} ({DIM_UNIT.get(value.dim, '')}), e.g. " \
                    f"{DIMS[value.dim][2]}.  {HINT}"
-        self.app.push_screen(EditValueDialog(path, current, hint, self.session.propose),
+        self.app.push_screen(EditValueDialog(path, current, hint, self.session.propose,
+                                             origin=self.session.edit_goes_where(path)),
                              self._edited)
 
     def _edited(self, state: State | None) -> None:
@@ -148,10 +218,12 @@ class WorkbookScreen(Screen[None]):
         self.session.push(state)
         self.workbook.computer.start(paths)
         self.notify(f"changed {state.label}; recomputing what depends on it", markup=False)
-        self.refresh_view()
+        self.refresh_all()
 
     def action_undo(self) -> None:
         if self.session.read_only:
+            self.notify(f"read-only ({self.session.read_only_reason}): nothing to undo",
+                        markup=False)
             return
         before = self.session.index
         undone = self.session.undo()
@@ -160,10 +232,12 @@ class WorkbookScreen(Screen[None]):
             return
         self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
         self.notify(f"undone: {undone.label}", markup=False)
-        self.refresh_view()
+        self.refresh_all()
 
     def action_redo(self) -> None:
         if self.session.read_only:
+            self.notify(f"read-only ({self.session.read_only_reason}): nothing to redo",
+                        markup=False)
             return
         before = self.session.index
         redone = self.session.redo()
@@ -172,7 +246,7 @@ class WorkbookScreen(Screen[None]):
             return
         self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
         self.notify(f"redone: {redone.label}", markup=False)
-        self.refresh_view()
+        self.refresh_all()
 
     def action_save(self) -> None:
         if not self.session.dirty:
@@ -181,13 +255,21 @@ class WorkbookScreen(Screen[None]):
         written = self.attempt(self.session.save)
         if written is not None:
             self.notify(f"saved {written.name}", markup=False)
-            self.refresh_view()
+            self.refresh_all()
 
     # -- signing ------------------------------------------------------------------------
-    def refusal(self) -> str:
-        """Why signing is refused right now ("" when it is allowed)."""
+    def refusal(self, meaning: str = "reviewed") -> str:
+        """Why signing with ``meaning`` is refused right now ("" when it is allowed).
+
+        An approval is refused early, naming the approvers, when this user is not one of
+        them; reviewer.review.sign stays the authority and checks again.
+        """
         s = self.session
-        if s.read_only:
+        if meaning == "approved":
+            problem = s.approval_problem()
+            if problem:
+                return problem
+        elif s.read_only:
             return f"read-only ({s.read_only_reason})"
         if not s.review_available:
             return "sign-off not available in this version"
@@ -211,6 +293,8 @@ class WorkbookScreen(Screen[None]):
                  "approved": "I approve this stage's review.",
                  "waived": "I accept this failure, for the reason given."}
         out.append(words.get(meaning, meaning))
+        if meaning == "approved":
+            out.append(f"\n{self.session.approvers_text()}", style="bold")
         out.append(f"\nsigned as {self._login()}; the record is tamper-evident, not "
                    "tamper-proof", style="dim")
         return out
@@ -225,7 +309,8 @@ class WorkbookScreen(Screen[None]):
 
     def sign_stage(self, stage: str, checks: list[str] | None, meaning: str = "reviewed") -> None:
         """Ask, then sign ``stage`` (or some of its checks)."""
-        title = f"Sign {'stage ' + stage if checks is None else ', '.join(checks)} as {meaning}"
+        what = f"stage {stage}" if checks is None else ", ".join(checks)
+        title = f"Approve {what}" if meaning == "approved" else f"Sign {what} as {meaning}"
 
         def done(note: str | None) -> None:
             if note is None:
@@ -235,7 +320,7 @@ class WorkbookScreen(Screen[None]):
                 lambda e: f"signed {stage} as {meaning} (entry #{getattr(e, 'seq', '?')})")
 
         self.app.push_screen(SignDialog(title, self.what_is_signed(stage, checks, meaning),
-                                        meaning=meaning, refusal=self.refusal()), done)
+                                        meaning=meaning, refusal=self.refusal(meaning)), done)
 
     def waive_check(self, stage: str, check: str) -> None:
         """Ask for the justification, then waive a failing check."""
@@ -281,7 +366,7 @@ class WorkbookScreen(Screen[None]):
 
     def _after_review(self, message: str) -> None:
         self.notify(message, markup=False)
-        self.refresh_view()
+        self.refresh_all()
         if self.app.screen is not self:
             self.app.screen.post_message(ResultsChanged(True))
 

@@ -16,8 +16,8 @@ from reviewer.aids import failing
 from reviewer.engine import Result
 from reviewer.tui import analysis
 from reviewer.tui.dialogs.pick_value import PickValueDialog
-from reviewer.tui.screens.base import WorkbookScreen
-from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
+from reviewer.tui.widgets.banner import Banner, banner_parts
 from reviewer.tui.widgets.detail import CheckDetail, detail_head, detail_text
 from reviewer.tui.widgets.tolerance import AidView, TolerancePanel, ToleranceView
 from reviewer.tui.widgets.waveform import WaveformView
@@ -30,15 +30,16 @@ class CheckScreen(WorkbookScreen):
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
         Binding("escape", "back", "Back"),
+        QUIET_QUIT,
         Binding("v", "toggle_view", "Wave"),
         Binding("n", "toggle_corner", "Corner", show=False),
         Binding("y", "yield", "Yield"),
         Binding("i", "aid_input", "Aid input", show=False),
         Binding("t", "try_value", "Try"),
-        Binding("c", "sign_check", "Sign"),
-        Binding("w", "waive", "Waive"),
-        Binding("ctrl+z", "undo", "Undo", show=False),
-        Binding("ctrl+s", "save", "Save", show=False),
+        *applies("c", "sign_check", "Sign"),
+        *applies("w", "waive", "Waive"),
+        *applies("ctrl+z", "undo", "Undo", show=False),
+        *applies("ctrl+s", "save", "Save", show=False),
     ]
 
     def __init__(self, stage: str, check: str, *, waveform: bool = False) -> None:
@@ -57,7 +58,7 @@ class CheckScreen(WorkbookScreen):
                 yield TolerancePanel(id="tolerance")
                 yield CheckDetail(id="detail")
             yield WaveformView(id="wave")
-        yield Footer(compact=True)
+        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
 
     def on_mount(self) -> None:
         if self.start_on_wave:
@@ -67,7 +68,7 @@ class CheckScreen(WorkbookScreen):
 
     def refresh_view(self) -> None:
         s = self.session
-        self.query_one(Banner).show(banner_text(s, f"{self.stage} · {self.check}"))
+        self.query_one(Banner).show(banner_parts(s, f"{self.stage} · {self.check}"))
         r = s.result(self.stage, self.check)
         detail = self.query_one(CheckDetail)
         head = self.query_one("#detail-head", Static)
@@ -81,6 +82,7 @@ class CheckScreen(WorkbookScreen):
         self.query_one(TolerancePanel).show(self.view)
         self.refresh_bindings()
         detail.show(detail_text(r, s.project, sign_state=s.sign_state(self.stage, self.check),
+                                origin=s.origin_of if s.has_chain else None,
                                 changed=s.sign_changed(self.stage, self.check),
                                 signing=s.review_available, limits=limits, head=False))
         if self.query_one(ContentSwitcher).current == "wave":
@@ -119,7 +121,14 @@ class CheckScreen(WorkbookScreen):
         # "Try" is in the footer only while the design aid has a value to try.
         if action == "try_value":
             return bool(self.view.aid.try_text)
-        return True
+        return super().check_action(action, parameters)
+
+    def applies_now(self, action: str) -> bool:
+        if action == "waive":
+            r = self.session.result(self.stage, self.check)
+            return super().applies_now(action) and r is not None and \
+                r.status in ("fail", "marginal")
+        return super().applies_now(action)
 
     def action_yield(self) -> None:
         self.workbook.analyst.start_yield(self.stage)

@@ -18,14 +18,17 @@ def _rows(bindings: list[BindingType]) -> list[tuple[str, str]]:
     out = []
     for b in bindings:
         if isinstance(b, Binding):
+            if b.action.startswith("explain(") or b.action == "app.leave":
+                continue  # the hidden twin of a key, or ctrl+q: each listed once already
             out.append((b.key.replace(",", " / "), b.description or b.action))
         elif isinstance(b, tuple):
             out.append((str(b[0]).replace(",", " / "), str(b[2]) if len(b) > 2 else str(b[1])))
     return out
 
 
-def help_text(sections: list[tuple[str, list[BindingType]]]) -> Text:
-    """The help page: each screen's keys, then the cautions."""
+def help_text(sections: list[tuple[str, list[BindingType]]], notes: Text | None = None) -> Text:
+    """The help page: each screen's keys, ``notes`` (the filters, who may approve), then the
+    cautions."""
     out = Text()
     out.append("Latchbook workbook — keys\n", style="bold")
     for title, bindings in sections:
@@ -38,6 +41,9 @@ def help_text(sections: list[tuple[str, list[BindingType]]]) -> Text:
                "no unit.\n")
     out.append("Sign-offs cover the file on disk: save (or undo) edits first. A waiver needs "
                "a written reason and reads \"fail (waived)\", never pass.\n")
+    if notes is not None:
+        out.append("\n")
+        out.append_text(notes)
     out.append("\nCautions\n", style="bold underline")
     for c in GENERAL:
         out.append(f"  ⚠ {c}\n")
@@ -51,14 +57,16 @@ class HelpScreen(Screen[None]):
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [Binding("escape,question_mark,f1", "close", "Close")]
 
-    def __init__(self, sections: list[tuple[str, list[BindingType]]]) -> None:
+    def __init__(self, sections: list[tuple[str, list[BindingType]]],
+                 notes: Text | None = None) -> None:
         super().__init__()
         self.sections = sections
+        self.notes = notes
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-scroll"):
-            yield Static(help_text(self.sections), markup=False)
-        yield Footer(compact=True)
+            yield Static(help_text(self.sections, self.notes), markup=False)
+        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
 
     def on_mount(self) -> None:
         self.query_one("#help-scroll").focus()

@@ -1,7 +1,8 @@
 """The checklist's manual questions for one stage: answer yes, no or not applicable, with a note.
 
-Answers are kept in the review record's history as notes (append-only, like everything there);
-the latest answer to a question is the one shown.
+Answers are kept in the review record's history as notes tagged ``manual:<id>`` (append-only,
+like everything there); the latest answer to a question is the one shown, and below the table
+the highlighted question in full with its answer's note and who gave it.
 """
 
 from __future__ import annotations
@@ -14,8 +15,8 @@ from textual.binding import Binding
 from textual.widgets import DataTable, Footer, Static
 
 from reviewer.tui.dialogs.sign import SignDialog
-from reviewer.tui.screens.base import WorkbookScreen
-from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen
+from reviewer.tui.widgets.banner import Banner, banner_parts
 
 ANSWERS = {"y": "yes", "n": "no", "x": "not applicable"}
 
@@ -26,6 +27,7 @@ class ManualScreen(WorkbookScreen):
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
         Binding("escape", "back", "Back"),
+        QUIET_QUIT,
         Binding("y", "answer('y')", "Yes"),
         Binding("n", "answer('n')", "No"),
         Binding("x", "answer('x')", "Not applicable"),
@@ -39,7 +41,8 @@ class ManualScreen(WorkbookScreen):
         yield Banner()
         yield Static("", id="manual-note", markup=False)
         yield DataTable(id="manual-table", cursor_type="row")
-        yield Footer(compact=True)
+        yield Static("", id="manual-detail", markup=False)
+        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
 
     def on_mount(self) -> None:
         table = self.query_one(DataTable)
@@ -50,7 +53,7 @@ class ManualScreen(WorkbookScreen):
 
     def refresh_view(self) -> None:
         s = self.session
-        self.query_one(Banner).show(banner_text(s, f"{self.stage} · manual questions"))
+        self.query_one(Banner).show(banner_parts(s, f"{self.stage} · manual questions"))
         qs = s.manual_questions(self.stage)
         answers = s.manual_answers(self.stage)
         table = self.query_one(DataTable)
@@ -68,6 +71,37 @@ class ManualScreen(WorkbookScreen):
         if not s.review_available:
             note = "answers are kept in the review record, which this version cannot write"
         self.query_one("#manual-note", Static).update(Text(note, style="dim"))
+        self._detail()
+
+    def _current(self) -> str | None:
+        table = self.query_one(DataTable)
+        if table.row_count == 0:
+            return None
+        return str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
+
+    def _detail(self) -> None:
+        """The highlighted question in full, and its latest answer with the note and who."""
+        qid = self._current()
+        out = Text()
+        q = next((m for m in self.session.manual_questions(self.stage) if m.get("id") == qid),
+                 None)
+        if q is not None:
+            out.append(f"{qid}: ", style="bold")
+            out.append(q.get("question", ""))
+            ans = self.session.manual_answers(self.stage).get(qid or "")
+            if ans is None:
+                out.append("\nunanswered — y yes, n no, x not applicable", style="dim")
+            else:
+                answer, note, who = ans
+                out.append("\nanswered ")
+                out.append(answer, style="bold")
+                out.append(f" by {who}" if who else "", style="dim")
+                if note:
+                    out.append(f" — {note}")
+        self.query_one("#manual-detail", Static).update(out)
+
+    def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
+        self._detail()
 
     def action_back(self) -> None:
         self.dismiss()
@@ -76,7 +110,7 @@ class ManualScreen(WorkbookScreen):
         table = self.query_one(DataTable)
         if table.row_count == 0:
             return
-        qid = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
+        qid = self._current() or ""
         answer = ANSWERS[key]
         refusal = "" if not self.session.read_only else \
             f"read-only ({self.session.read_only_reason})"

@@ -1,4 +1,6 @@
-"""The first screen: every stage with its counts, the project's identity and overall state."""
+"""The first screen: every stage with its counts, the project's identity and overall state.
+
+Under the attention filter (f) only the stages with a check that passes it are listed."""
 
 from __future__ import annotations
 
@@ -10,8 +12,9 @@ from textual.binding import Binding
 from textual.widgets import Footer, Static
 
 from reviewer.engine import status_counts
-from reviewer.tui.screens.base import WorkbookScreen
-from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui import attention
+from reviewer.tui.screens.base import WorkbookScreen, applies
+from reviewer.tui.widgets.banner import Banner, banner_parts
 from reviewer.tui.widgets.tables import StageTable
 
 
@@ -21,9 +24,10 @@ class OverviewScreen(WorkbookScreen):
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
         Binding("enter", "open_stage", "Open", show=True),
-        Binding("s", "sign", "Sign"),
+        *applies("s", "sign", "Sign"),
         Binding("y", "yield", "Yield (all)"),
-        Binding("a", "approve", "Approve", show=False),
+        Binding("f", "cycle_filter", "Filter"),
+        *applies("a", "approve", "Approve"),
         Binding("r", "revoke", "Revoke", show=False),
     ]
 
@@ -33,7 +37,7 @@ class OverviewScreen(WorkbookScreen):
         yield StageTable(id="stages")
         yield Static("", id="overview-totals", markup=False)
         yield Static("", id="overview-safety", markup=False)
-        yield Footer(compact=True)
+        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
 
     def on_mount(self) -> None:
         self.refresh_view()
@@ -41,17 +45,32 @@ class OverviewScreen(WorkbookScreen):
 
     def refresh_view(self) -> None:
         s = self.session
-        self.query_one(Banner).show(banner_text(s))
+        self.query_one(Banner).show(banner_parts(s, filter_label=self.filter_label()))
         note = Text()
         if s.read_only:
             note.append(f"read-only: {s.read_only_reason}", style="bold")
+            if s.approvals_open:
+                note.append(" — values cannot change; an approver approves a stage with "
+                            "the a key", style="bold")
         elif s.review_error:
             note.append(s.review_error, style="dim")
         if not s.computed:
             note.append("  computing the checks…" if note else "computing the checks…",
                         style="italic")
+        rows = s.stage_counts()
+        key = self.filter_key
+        if key != "all":
+            rows = [c for c in rows if s.filtered_checks(key, c.stage)]
+            f = attention.BY_KEY[key]
+            note.append("\n" if note else "")
+            note.append(f"filter {f.label}: {len(rows)} of {len(s.project.stages)} stages "
+                        f"have {f.rule}" if rows or s.computed else
+                        f"filter {f.label}: waiting for the results", style="magenta")
+            if not rows and s.computed:
+                note.append(" — none here; f shows the next filter", style="magenta")
         self.query_one("#overview-note", Static).update(note)
-        self.query_one(StageTable).show(s.stage_counts(), computing=not s.computed)
+        self.query_one(StageTable).show(rows, computing=not s.computed,
+                                        order=list(s.project.stages))
         counts = status_counts(s.run.results)
         tot = Text(f" {len(s.project.stages)} stages, {len(s.run.results)} checks: ")
         tot.append("  ".join(f"{k} {v}" for k, v in sorted(counts.items())))

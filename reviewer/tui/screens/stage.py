@@ -1,5 +1,6 @@
 """One stage's checklist: every check with its result, worst against limit, margin and
-sign-off, the highlighted check's summary below; Enter opens its detail."""
+sign-off, the highlighted check's summary below; Enter opens its detail. Under the attention
+filter (f) only the checks that pass it are listed."""
 
 from __future__ import annotations
 
@@ -11,9 +12,9 @@ from textual.binding import Binding
 from textual.widgets import Footer, Static
 
 from reviewer.schema import CATALOGUE
-from reviewer.tui import present
-from reviewer.tui.screens.base import WorkbookScreen
-from reviewer.tui.widgets.banner import Banner, banner_text
+from reviewer.tui import attention, present
+from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
+from reviewer.tui.widgets.banner import Banner, banner_parts
 from reviewer.tui.widgets.tables import ChecklistTable
 
 
@@ -23,15 +24,17 @@ class StageScreen(WorkbookScreen):
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
         Binding("escape", "back", "Back"),
+        QUIET_QUIT,
         Binding("enter", "open_check", "Detail"),
-        Binding("s", "sign", "Sign"),
+        *applies("s", "sign", "Sign"),
         Binding("c", "sign_check", "Sign one", show=False),
-        Binding("w", "waive", "Waive"),
-        Binding("m", "manual", "Manual"),
+        *applies("w", "waive", "Waive"),
+        *applies("m", "manual", "Manual"),
         Binding("y", "yield", "Yield"),
-        Binding("ctrl+z", "undo", "Undo", show=False),
-        Binding("ctrl+s", "save", "Save", show=False),
-        Binding("a", "approve", "Approve", show=False),
+        Binding("f", "cycle_filter", "Filter"),
+        *applies("ctrl+z", "undo", "Undo", show=False),
+        *applies("ctrl+s", "save", "Save", show=False),
+        *applies("a", "approve", "Approve"),
         Binding("r", "revoke", "Revoke", show=False),
     ]
 
@@ -44,7 +47,7 @@ class StageScreen(WorkbookScreen):
         yield Banner(id="banner")
         yield ChecklistTable(id="checklist")
         yield Static("", id="stage-summary", markup=False)
-        yield Footer(compact=True)
+        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
 
     def on_mount(self) -> None:
         self.refresh_view()
@@ -61,21 +64,31 @@ class StageScreen(WorkbookScreen):
             self.dismiss()
             return
         kind = s.project.stages[self.stage].kind
-        self.query_one(Banner).show(banner_text(s, f"{self.stage} ({kind})"))
+        self.query_one(Banner).show(banner_parts(s, self.stage, self.filter_label(), kind))
         results = {r.check: r for r in s.run.results if r.stage == self.stage}
         table = self.query_one(ChecklistTable)
-        table.show(self.checks(), results,
+        every = self.checks()
+        shown = every if self.filter_key == "all" else \
+            [c for c in every if s.check_matches(self.filter_key, self.stage, c)]
+        table.show(shown, results, order=every,
                    sign_state=lambda c: s.sign_state(self.stage, c),
                    changed={c for st, c in s.changed if st == self.stage},
                    limits=s.checklist.limits_for, signing=s.review_available,
                    yields=lambda c: s.yield_of(self.stage, c))
         self.check = table.current_key
-        self._summary()
+        self._summary(len(shown), len(every))
 
-    def _summary(self) -> None:
+    def _summary(self, shown: int | None = None, every: int | None = None) -> None:
         r = self.session.result(self.stage, self.check) if self.check else None
         out = Text()
-        if r is not None:
+        if self.filter_key != "all" and shown is not None and not shown:
+            f = attention.BY_KEY[self.filter_key]
+            out.append(f"filter {f.label}: none of the {every} checks of {self.stage} has "
+                       f"{f.rule}" if self.session.computed else
+                       f"filter {f.label}: waiting for the results", style="magenta")
+            out.append("\nf shows the next filter; f again until all checks shows them all",
+                       style="dim")
+        elif r is not None:
             out.append(f"{r.check}: ", style="bold")
             out.append_text(present.status_text(r.status))
             y = self.session.yield_of(self.stage, r.check)
@@ -89,6 +102,16 @@ class StageScreen(WorkbookScreen):
     def on_checklist_table_check_highlighted(self, event: ChecklistTable.CheckHighlighted) -> None:
         self.check = event.check
         self._summary()
+        self.refresh_bindings()
+
+    def applies_now(self, action: str) -> bool:
+        if action == "waive":
+            r = self.session.result(self.stage, self.check) if self.check else None
+            return super().applies_now(action) and r is not None and \
+                r.status in ("fail", "marginal")
+        if action == "manual":
+            return bool(self.session.manual_questions(self.stage))
+        return super().applies_now(action)
 
     def on_checklist_table_check_chosen(self, event: ChecklistTable.CheckChosen) -> None:
         self.workbook.open_check(self.stage, event.check)
@@ -119,6 +142,8 @@ class StageScreen(WorkbookScreen):
     def action_waive(self) -> None:
         if self.check:
             self.waive_check(self.stage, self.check)
+        else:
+            self.notify("no check here to waive", markup=False)
 
     def action_revoke(self) -> None:
         self.revoke_entry()

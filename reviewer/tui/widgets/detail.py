@@ -4,12 +4,14 @@ values, the source, what would fix it, the notes and the cautions.
 The inputs are the check's own corner table (``Result.evaluation``): row 0 is the nominal, the
 worst row is the one that set the margin. Which project value each input came from is what
 the check's ``bind`` gathered, asked again here (binding reads the project; it computes
-nothing).
+nothing). In a variant each input also names the file its value came from.
 """
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
+from pathlib import Path
 
 import numpy as np
 from rich.text import Text
@@ -26,17 +28,21 @@ from reviewer.tui.safety import SAFETY_LINE, cautions_for
 
 @dataclass
 class InputRow:
-    """One input the check read: its name, where it came from, nominal and worst-corner text."""
+    """One input the check read: its name, where it came from, nominal and worst-corner text,
+    and (in a variant) the file that gave the value ("" when none did: a default)."""
 
     name: str
     path: str
     nominal: str
     worst: str
     varies: bool
+    source: str = ""
 
 
-def input_rows(result: Result, project: Project) -> list[InputRow]:
-    """The inputs of a result with their values at the nominal row and the worst row."""
+def input_rows(result: Result, project: Project,
+               origin: Callable[[str], str] | None = None) -> list[InputRow]:
+    """The inputs of a result with their values at the nominal row and the worst row;
+    ``origin`` maps an input's path to the file its value came from."""
     defn = CHECKS.get(result.check)
     stage = project.stages.get(result.stage)
     ev = result.evaluation
@@ -56,7 +62,8 @@ def input_rows(result: Result, project: Project) -> list[InputRow]:
         if inp is not None and "#none" in inp.path:
             continue
         rows.append(InputRow(name, path, show(float(arr[0]), dim), show(float(arr[ev.worst_row]),
-                             dim), bool(arr.min() != arr.max())))
+                             dim), bool(arr.min() != arr.max()),
+                             origin(inp.path) if origin is not None and inp else ""))
     return rows
 
 
@@ -79,9 +86,11 @@ def detail_head(result: Result, limits: dict[str, float]) -> Text:
 
 
 def detail_text(result: Result, project: Project, *, sign_state: str, changed: object,
-                signing: bool, limits: dict[str, float], head: bool = True) -> Text:
+                signing: bool, limits: dict[str, float], head: bool = True,
+                origin: Callable[[str], str] | None = None) -> Text:
     """Everything the detail view says about one check, as one Text (no markup parsed);
-    ``head=False`` leaves out :func:`detail_head` (the screen shows it above the analysis)."""
+    ``head=False`` leaves out :func:`detail_head` (the screen shows it above the analysis);
+    ``origin`` (variants): an input's path → the file its value came from."""
     defn = CHECKS.get(result.check)
     stage = project.stages.get(result.stage)
     out = detail_head(result, limits) if head else Text()
@@ -90,13 +99,22 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
         out.append(defn.question + "\n")
         out.append_text(_head("Method"))
         out.append(defn.method + "\n")
-    rows = input_rows(result, project)
+    rows = input_rows(result, project, origin)
     if rows:
-        out.append_text(_head("Inputs read (nominal → worst corner)"))
+        out.append_text(_head("Inputs read (nominal → worst corner" +
+                              ("; ← the file each value comes from)" if origin else ")")))
         w = max(len(r.path) for r in rows)
+        ww = max(len(r.worst) for r in rows)
+        here = Path(project.path).name
         for r in rows:
             out.append(f"  {r.path:<{w}}  {r.nominal:>10}  → ", style="" if r.varies else "dim")
-            out.append(f"{r.worst}\n", style="bold" if r.varies else "dim")
+            out.append(f"{r.worst:<{ww}}" if origin else r.worst,
+                       style="bold" if r.varies else "dim")
+            if origin:
+                src = r.source or "(not in any file)"
+                out.append(f"  ← {src}", style="cyan" if r.source and r.source != here
+                           else "dim")
+            out.append("\n")
     if result.worst:
         out.append_text(_head("Worst corner"))
         out.append("  " + ", ".join(f"{k} = {v}" for k, v in result.worst.items()) + "\n")

@@ -28,6 +28,32 @@ class Row:
     cells: tuple[Text, ...]
 
 
+def nearest(current: str | None, keys: list[str], order: list[str]) -> str | None:
+    """The key of ``keys`` the cursor should stand on when it stood on ``current``.
+
+    ``current`` itself if it is still shown; else the first shown key after it in ``order``;
+    else the last shown key before it; None when there is nothing to stand on.
+
+    >>> nearest("b", ["a", "c"], ["a", "b", "c"]), nearest("c", ["a", "b"], ["a", "b", "c"])
+    ('c', 'b')
+    """
+    if current is None or not keys:
+        return None
+    if current in keys:
+        return current
+    if current not in order:
+        return None
+    at = order.index(current)
+    rank = {k: order.index(k) for k in keys if k in order}
+    after = [k for k in keys if rank.get(k, -1) > at]
+    before = [k for k in keys if -1 < rank.get(k, -1) < at]
+    if after:
+        return min(after, key=rank.__getitem__)
+    if before:
+        return max(before, key=rank.__getitem__)
+    return None
+
+
 class KeyedTable(DataTable[Text]):
     """A row-cursor DataTable whose rows are replaced in place by key."""
 
@@ -36,13 +62,19 @@ class KeyedTable(DataTable[Text]):
     def __init__(self, **kw: object) -> None:
         super().__init__(cursor_type="row", zebra_stripes=False, **kw)  # type: ignore[arg-type]
         self._keys: list[str] = []
+        self._last: str | None = None  # where the cursor stood before a filter emptied the table
 
     def on_mount(self) -> None:
         for label, key, width in self.COLUMNS:
             self.add_column(Text(label, style="bold"), key=key, width=width)
 
-    def show_rows(self, rows: Iterable[Row]) -> None:
-        """Put ``rows`` in the table: cell updates when the keys are unchanged, else a rebuild."""
+    def show_rows(self, rows: Iterable[Row], *, order: list[str] | None = None) -> None:
+        """Put ``rows`` in the table: cell updates when the keys are unchanged, else a rebuild.
+
+        On a rebuild the cursor stays on its row; when a filter took that row away it goes to
+        the next row shown after it in ``order`` (every key, unfiltered), else the last before.
+        Through a filter that shows nothing, the row it stood on is remembered.
+        """
         rows = list(rows)
         keys = [r.key for r in rows]
         cols = [key for _, key, _ in self.COLUMNS]
@@ -52,13 +84,15 @@ class KeyedTable(DataTable[Text]):
                     if self.get_cell(r.key, col) != cell:
                         self.update_cell(r.key, col, cell)
             return
-        current = self.current_key
+        current = self.current_key or self._last
         self.clear()
         for r in rows:
             self.add_row(*r.cells, key=r.key)
+        target = nearest(current, keys, order or [*self._keys, *keys])
         self._keys = keys
-        if current in keys:
-            self.move_cursor(row=keys.index(current), animate=False)
+        self._last = current if not keys else None
+        if target is not None:
+            self.move_cursor(row=keys.index(target), animate=False)
 
     @property
     def current_key(self) -> str | None:
@@ -87,8 +121,9 @@ class StageTable(KeyedTable):
             super().__init__()
             self.stage = stage
 
-    def show(self, rows: list[StageCounts], computing: bool) -> None:
-        """Show the counts of every stage."""
+    def show(self, rows: list[StageCounts], computing: bool, *,
+             order: list[str] | None = None) -> None:
+        """Show the counts of the stages in ``rows`` (``order``: every stage, unfiltered)."""
         def row(c: StageCounts) -> Row:
             fails = c.counts.get("fail", 0) + c.counts.get("error", 0)
             state = present.status_text("" if computing and not c.counts else c.state)
@@ -100,7 +135,7 @@ class StageTable(KeyedTable):
                 present.count_text(c.waived, "magenta"),
                 present.count_text(c.stale, "bold yellow"),
                 present.count_text(c.unsigned)))
-        self.show_rows(row(c) for c in rows)
+        self.show_rows((row(c) for c in rows), order=order)
 
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()
@@ -133,8 +168,10 @@ class ChecklistTable(KeyedTable):
     def show(self, checks: list[str], results: Mapping[str, Result], *,
              sign_state: Callable[[str], str], changed: set[str],
              limits: Callable[[str], Mapping[str, float]], signing: bool,
-             yields: Callable[[str], Yield | None] = lambda c: None) -> None:
-        """Show the checks of a stage (a check without a result yet shows "computing")."""
+             yields: Callable[[str], Yield | None] = lambda c: None,
+             order: list[str] | None = None) -> None:
+        """Show the checks of a stage (a check without a result yet shows "computing");
+        ``order``: every check of the stage, when ``checks`` is filtered."""
         rows = []
         for cid in checks:
             r = results.get(cid)
@@ -151,7 +188,7 @@ class ChecklistTable(KeyedTable):
                 present.margin_text(r.margin if r else None, compact=True),
                 present.yield_cell(yields(cid)),
                 present.sign_text(st, signing))))
-        self.show_rows(rows)
+        self.show_rows(rows, order=order)
 
     def on_data_table_row_highlighted(self, event: DataTable.RowHighlighted) -> None:
         event.stop()
