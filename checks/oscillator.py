@@ -25,11 +25,13 @@ import numpy as np
 
 from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, grade
 
-# Coarse grid per half-cycle segment (ramp up, clamp plateau, ramp down) for the first-crossing
-# search; a safeguarded Newton iteration then refines to machine precision. On the plateau the
-# capacitor rises monotonically against a constant peak point, so one crossing at most.
-_GRID = (32, 48, 64)
-_REFINE = 14
+# The first-crossing search (see _first_crossing): grid points where no monotonicity bound
+# applies, and the safeguarded Newton iteration's cap and stopping step (relative).
+_RAMP_GRID = 32
+_FALL_GRID = 64
+_TAIL_GRID = 64
+_NEWTON_MAX = 60
+_NEWTON_TOL = 1e-15
 _T0C = 273.15
 
 
@@ -223,7 +225,10 @@ class _LineSync:
     def __init__(self, *, vm: np.ndarray, omega: np.ndarray, vz: np.ndarray, tau: np.ndarray,
                  t0: np.ndarray, v0: np.ndarray) -> None:
         self.vm, self.omega, self.vz, self.tau = vm, omega, vz, tau
-        self.tz = clamp_onset(vm=vm, vz=vz) / omega
+        # sin and cos of the clamp onset θz (and, mirrored, of the plateau's end), exactly
+        self.s_z = np.clip(_arr(vz) / _arr(vm), 0.0, 1.0)
+        self.c_z = np.sqrt((1.0 - self.s_z) * (1.0 + self.s_z))
+        self.tz = np.arcsin(self.s_z) / omega
         self.t3 = np.pi / omega - self.tz
         self.t_end = np.pi / omega
         self.vz_eff = np.minimum(vz, vm)
@@ -231,7 +236,13 @@ class _LineSync:
         # state entering the plateau and entering the falling ramp
         on_ramp = t0 < self.tz
         self.tb = np.where(on_ramp, self.tz, t0)
-        self.vb = np.where(on_ramp, _sine_resp(self.tz, t0, v0, vm, omega, tau), v0)
+        wt = omega * tau
+        amp = vm / (1.0 + wt * wt)
+        p_tz = amp * (self.s_z - wt * self.c_z)  # the forced response at tz
+        p_t0 = (-amp * wt if not np.any(t0) else _forced(_arr(t0), vm, omega, tau))
+        with np.errstate(over="ignore"):
+            v_tz = p_tz + (v0 - p_t0) * np.exp(-(self.tz - t0) / tau)
+        self.vb = np.where(on_ramp, v_tz, v0)
         on_plateau = self.tb < self.t3
         self.tc = np.where(on_plateau, self.t3, self.tb)
         self.vc = np.where(on_plateau, _plateau_resp(self.t3, self.tb, self.vb, self.vz_eff, tau),
@@ -252,49 +263,191 @@ class _LineSync:
             down = _sine_resp(t, e(self.tc), e(self.vc), vm, om, tau)
         return np.where(t <= e(self.tz), up, np.where(t <= e(self.t3), flat, down))
 
-    def slope_gap(self, t: np.ndarray, a: np.ndarray) -> np.ndarray:
-        """d/dt of v_C − a·V_b at times ``t`` (same shape as the rows): (V_b − v)/τ − a·V_b'."""
-        vb = self.supply(t[..., None])[..., 0]
-        v = self.v(t[..., None])[..., 0]
-        ramp = (t <= self.tz) | (t > self.t3)
-        dvb = np.where(ramp, self.vm * self.omega * np.cos(self.omega * t), 0.0)
-        return (vb - v) / self.tau - a * dvb
 
-    def grid(self) -> np.ndarray:
-        """Search points from t0 to the end of the half-cycle, dense in each segment: (n, N)."""
-        edges = [(self.t0, np.maximum(self.tz, self.t0)),
-                 (np.maximum(self.tz, self.t0), np.maximum(self.t3, self.t0)),
-                 (np.maximum(self.t3, self.t0), self.t_end)]
-        cols = []
-        for (a, b), n in zip(edges, _GRID, strict=True):
-            u = np.linspace(0.0, 1.0, n)
-            cols.append(a[..., None] + (b - a)[..., None] * u)
-        return np.concatenate(cols, axis=-1)
+class _Ramp:
+    """g = v_C − (a·V_b + d) and dg/dt on a ramp (V_b = Vm·sin ωt) from the state (ts, vs).
+
+    One sine, one cosine and one exponential per evaluation (the sine and cosine can be given
+    where they are known); every array is 1-D over the rows being searched (or that with a
+    trailing grid axis, see :meth:`search`). Used inside :func:`_first_crossing`, whose
+    ``np.errstate`` covers its floating-point warnings (and those of :func:`_refine`).
+    """
+
+    def __init__(self, *, vm: np.ndarray, om: np.ndarray, tau: np.ndarray, a: np.ndarray,
+                 d: np.ndarray, ts: np.ndarray, vs: np.ndarray,
+                 sc: tuple[np.ndarray, np.ndarray] | None = None) -> None:
+        self.vm, self.om, self.tau, self.a, self.d, self.ts = vm, om, tau, a, d, ts
+        self.wt = om * tau
+        self.amp = vm / (1.0 + self.wt * self.wt)
+        s, c = sc if sc is not None else (np.sin(om * ts), np.cos(om * ts))
+        self.c0 = vs - self.amp * (s - self.wt * c)  # natural-response amplitude v0 − p(ts)
+
+    def __call__(self, t: np.ndarray, *, ex: bool = False,
+                 sc: tuple[np.ndarray, np.ndarray] | None = None
+                 ) -> tuple[np.ndarray, np.ndarray]:
+        p = [_last(x) if ex else x for x in (self.vm, self.om, self.tau, self.a, self.d,
+                                             self.ts, self.wt, self.amp, self.c0)]
+        vm, om, tau, a, d, ts, wt, amp, c0 = p
+        s, c = sc if sc is not None else (np.sin(om * t), np.cos(om * t))
+        v = amp * (s - wt * c) + c0 * np.exp(-(t - ts) / tau)
+        vb = vm * s
+        return v - a * vb - d, (vb - v) / tau - a * vm * om * c
+
+    def search(self, lo: np.ndarray, hi: np.ndarray, n: int) -> np.ndarray:
+        """First t in [lo, hi] with g ≥ 0: an n-point grid brackets it, Newton refines it."""
+        u = np.linspace(0.0, 1.0, n)
+        tg = lo[:, None] + (hi - lo)[:, None] * u
+        g, _ = self(tg, ex=True)
+        hit = g >= 0.0
+        k = np.argmax(hit, axis=-1)
+        rows = np.arange(len(k))
+        t_hi = tg[rows, k]
+        t_lo = tg[rows, np.maximum(k - 1, 0)]
+        t = _refine(self, t_lo, t_hi, 0.5 * (t_lo + t_hi))
+        t = np.where(k == 0, tg[:, 0], t)
+        return np.where(hit.any(axis=-1), t, np.nan)
+
+
+def _refine(gap: _Ramp, lo: np.ndarray, hi: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """The root of g in [lo, hi] (g(lo) < 0 ≤ g(hi)) by Newton, bisecting whenever a step would
+    leave the bracket; stops when every row's step is below 1e-15 of the bracket's end."""
+    tol = _NEWTON_TOL * np.abs(hi)
+    for _ in range(_NEWTON_MAX):
+        g, dg = gap(t)
+        up = g >= 0.0
+        hi = np.where(up, t, hi)
+        lo = np.where(up, lo, t)
+        step = t - g / dg
+        inside = (step >= lo) & (step <= hi) & np.isfinite(step)
+        t_new = np.where(g == 0.0, t, np.where(inside, step, 0.5 * (lo + hi)))
+        done = (np.abs(t_new - t) <= tol) | (hi - lo <= tol) | ~np.isfinite(t_new)
+        t = t_new
+        if done.all():
+            break
+    return t
 
 
 def _first_crossing(ls: _LineSync, a: np.ndarray, d: np.ndarray) -> np.ndarray:
-    """First t ≥ t0 in the half-cycle where v_C reaches a·V_b(t) + d; NaN when it does not."""
-    g_of = lambda t: ls.v(t) - (_last(a) * ls.supply(t) + _last(d))  # noqa: E731
-    tg = ls.grid()
-    g = g_of(tg)
-    hit = g >= 0.0
-    any_hit = hit.any(axis=-1)
-    k = np.argmax(hit, axis=-1)
-    hi = np.take_along_axis(tg, k[..., None], axis=-1)[..., 0]
-    lo = np.take_along_axis(tg, np.maximum(k - 1, 0)[..., None], axis=-1)[..., 0]
-    g_of1 = lambda t: g_of(t[..., None])[..., 0]  # noqa: E731
-    t = 0.5 * (lo + hi)
-    for _ in range(_REFINE):  # Newton inside the bracket, bisecting whenever it would leave it
-        gt = g_of1(t)
-        up = gt >= 0.0
-        hi = np.where(up, t, hi)
-        lo = np.where(up, lo, t)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            step = t - gt / ls.slope_gap(t, a)
-        inside = (step > lo) & (step < hi) & np.isfinite(step)
-        t = np.where(inside, step, 0.5 * (lo + hi))
-    t_fire = np.where(k == 0, tg[..., 0], t)
-    return np.where(any_hit, t_fire, np.nan)
+    """First t ≥ t0 in the half-cycle where v_C reaches a·V_b(t) + d; NaN when it does not.
+
+    Segment by segment, each row stopping at its first crossing:
+
+    * rising ramp: from rest at the zero (t0 = 0, v0 = 0) v ≤ ∫V_b/τ = Vm(1 − cos ωt)/(ωτ)
+      = V_b·tan(ωt/2)/(ωτ), so with κ = tan(θz/2)/(ωτ) ≤ a and d > 0 it cannot fire there;
+      other rows search the ramp on a grid;
+    * plateau: v = VZ − (VZ − v_b)·e^(−(t − tb)/τ) against the constant a·VZ + d, solved in
+      closed form, t = tb + τ·ln[(VZ − v_b)/(VZ − a·VZ − d)];
+    * falling ramp: while V_b ≥ d/(1 − a) (0 ≤ a < 1, d ≥ 0), g < 0 implies v < V_b, hence
+      dg/dt = (V_b − v)/τ − a·V_b' > 0: g crosses zero at most once there, and a safeguarded
+      Newton from the regula-falsi point finds it; only the last stretch (V_b < d/(1 − a)) and
+      rows outside those bounds are searched on a grid.
+    """
+    with np.errstate(all="ignore"):  # NaN rows and empty brackets are handled explicitly
+        return _crossing(ls, a, d)
+
+
+def _crossing(ls: _LineSync, a: np.ndarray, d: np.ndarray) -> np.ndarray:
+    """The body of :func:`_first_crossing` (floating-point warnings off)."""
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (
+        ls.vm, ls.omega, ls.tau, ls.vz_eff, ls.t0, ls.v0, a, d)))
+
+    def flat(x: object) -> np.ndarray:
+        if isinstance(x, np.ndarray) and x.shape == shape and x.dtype == np.float64:
+            return x.ravel()
+        return np.broadcast_to(np.asarray(x, dtype=float), shape).ravel()
+
+    vm, om, tau, vze = flat(ls.vm), flat(ls.omega), flat(ls.tau), flat(ls.vz_eff)
+    t0, v0, tz, t3, t_end = flat(ls.t0), flat(ls.v0), flat(ls.tz), flat(ls.t3), flat(ls.t_end)
+    tb, vb, tc, vc = flat(ls.tb), flat(ls.vb), flat(ls.tc), flat(ls.vc)
+    s_z, c_z = flat(ls.s_z), flat(ls.c_z)
+    a, d = flat(a), flat(d)
+    n = vm.size
+    out = np.full(n, np.nan)
+
+    def ramp(m: _Sel, ts: np.ndarray, vs: np.ndarray,
+             sc: tuple[np.ndarray, np.ndarray] | None = None) -> _Ramp:
+        return _Ramp(vm=vm[m], om=om[m], tau=tau[m], a=a[m], d=d[m], ts=ts[m], vs=vs[m], sc=sc)
+
+    # at t0 itself (from rest at the zero: V_b = 0, g = −d)
+    vb0 = np.minimum(vm * np.abs(np.sin(om * t0)), vze) if np.any(t0) else 0.0
+    g0 = v0 - (a * vb0 + d)
+    at_start = g0 >= 0.0
+    out[at_start] = t0[at_start]
+    open_ = ~at_start  # rows still looking for their crossing
+
+    # rising ramp
+    on_ramp = open_ & (t0 < tz)
+    kappa = np.tan(0.5 * om * tz) / (om * tau)
+    clear = (t0 == 0.0) & (v0 == 0.0) & (d > 0.0) & (kappa <= a)
+    m = _rows(on_ramp & ~clear)
+    if m is not None:
+        t = ramp(m, t0, v0).search(t0[m], tz[m], _RAMP_GRID)
+        hit = np.isfinite(t)
+        out[m] = np.where(hit, t, out[m])
+        open_[m] &= ~hit
+
+    # plateau: closed form
+    thr = a * vze + d
+    t_flat = tb + tau * np.log((vze - vb) / (vze - thr))
+    fires = open_ & (tb < t3) & (vze > thr) & (vb < thr) & (t_flat <= t3)
+    out[fires] = t_flat[fires]
+    open_ &= ~fires
+
+    # falling ramp
+    on_fall = open_ & (tc < t_end)
+    mono = (a >= 0.0) & (a < 1.0) & (d >= 0.0)
+    m = _rows(on_fall & ~mono)
+    if m is not None:
+        out[m] = ramp(m, tc, vc).search(tc[m], t_end[m], _FALL_GRID)
+    m = _rows(on_fall & mono)
+    if m is not None:
+        lo, vc_m, t_end_m = tc[m], vc[m], t_end[m]
+        # Rows that came over the plateau start at t3, where sin ωt = sin θz, cos = −cos θz
+        # and V_b = VZ; a row starting inside the ramp has its g0 already.
+        at_t3 = lo == t3[m]
+        s_lo = np.where(at_t3, s_z[m], np.sin(om[m] * lo)) if not at_t3.all() else s_z[m]
+        c_lo = np.where(at_t3, -c_z[m], np.cos(om[m] * lo)) if not at_t3.all() else -c_z[m]
+        gap = ramp(m, tc, vc, sc=(s_lo, c_lo))
+        g_lo = np.where(at_t3, vc_m - thr[m], g0[m])
+        ratio = np.clip(d[m] / ((1.0 - a[m]) * vm[m]), 0.0, 1.0)
+        t_d = (np.pi - np.arcsin(ratio)) / om[m]  # where V_b falls to d/(1 − a)
+        hi = np.clip(t_d, lo, t_end_m)
+        moved = hi != t_d
+        if moved.any():
+            g_hi, _ = gap(hi)
+        else:  # sin ωt_d = ratio, cos ωt_d = −√(1 − ratio²)
+            g_hi, _ = gap(hi, sc=(ratio, -np.sqrt((1.0 - ratio) * (1.0 + ratio))))
+        now = g_lo >= 0.0  # only by rounding: the plateau's closed form just missed it
+        one = ~now & (g_hi >= 0.0) & (hi > lo)
+        res = np.where(now, lo, np.nan)
+        k = _rows(one)
+        if k is not None:
+            sub = _Ramp(vm=gap.vm[k], om=gap.om[k], tau=gap.tau[k], a=gap.a[k], d=gap.d[k],
+                        ts=gap.ts[k], vs=vc_m[k], sc=(s_lo[k], c_lo[k]))
+            l, h, gl, gh = lo[k], hi[k], g_lo[k], g_hi[k]
+            guess = l - gl * (h - l) / (gh - gl)
+            guess = np.where((guess > l) & (guess < h), guess, 0.5 * (l + h))
+            res[k] = _refine(sub, l, h, guess)
+        tail = np.flatnonzero(~now & ~one & (hi < t_end_m))
+        if tail.size:
+            g = _Ramp(vm=gap.vm[tail], om=gap.om[tail], tau=gap.tau[tail], a=gap.a[tail],
+                      d=gap.d[tail], ts=gap.ts[tail], vs=vc_m[tail],
+                      sc=(s_lo[tail], c_lo[tail]))
+            res[tail] = g.search(hi[tail], t_end_m[tail], _TAIL_GRID)
+        out[m] = res
+    return out.reshape(shape)
+
+
+_Sel = slice | np.ndarray
+
+
+def _rows(mask: np.ndarray) -> _Sel | None:
+    """Rows selected by ``mask``: all of them as a slice (views, no copies), some as indices,
+    none as None."""
+    if mask.all():
+        return slice(None)
+    idx = np.flatnonzero(mask)
+    return idx if idx.size else None
 
 
 def _line_rows(vm: object, omega: object, vz: object, rt: object, ct: object,

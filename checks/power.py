@@ -90,15 +90,31 @@ def segment_integrals(*, a: np.ndarray, b: np.ndarray, phi: np.ndarray,
 def _segment_peak(a: np.ndarray, b: np.ndarray, phi: np.ndarray, c: np.ndarray) -> np.ndarray:
     """Largest value of i(θ) = sin(θ − φ) + C·e^(−(θ − a)/tan φ) on [a, b] [per unit].
 
-    A 257-point grid per row finds the bracket, then 40 golden-section steps refine it (i has
-    one interior maximum on a conduction interval).
+    Resistive rows (tan φ ≤ 1e-12, the exponential is 0) in closed form: 1 where the range
+    holds θ = φ + π/2, else the larger end. R–L rows: a 257-point grid finds the bracket, then
+    40 golden-section steps refine it (i has one interior maximum on a conduction interval).
     """
     a, b = np.broadcast_arrays(_a(a), _a(b))
     phi, c = np.broadcast_to(_a(phi), a.shape), np.broadcast_to(_a(c), a.shape)
     tau = np.tan(np.clip(phi, 0.0, np.pi / 2))
-    frac = np.linspace(0.0, 1.0, 257)
     length = np.maximum(b - a, 0.0)
+    top = phi + 0.5 * np.pi
+    out = np.where((a <= top) & (top <= a + length), 1.0,
+                   np.maximum(np.sin(a - phi), np.sin(a + length - phi)))
+    rl = tau > _TINY
+    if not rl.any():
+        return out
+    out = np.array(out, dtype=float)
+    out[rl] = _segment_peak_rl(a[rl], length[rl], phi[rl], c[rl], tau[rl])
+    return out
+
+
+def _segment_peak_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np.ndarray,
+                     tau: np.ndarray) -> np.ndarray:
+    """:func:`_segment_peak` for 1-D R–L rows (tan φ > 0): grid bracket, golden section."""
+    frac = np.linspace(0.0, 1.0, 257)
     grid = a[..., None] + length[..., None] * frac
+    b = a + length
 
     def f(th: np.ndarray, ex: int = 0) -> np.ndarray:
         aa = a[..., None] if ex else a
@@ -129,7 +145,7 @@ def _segment_peak(a: np.ndarray, b: np.ndarray, phi: np.ndarray, c: np.ndarray) 
 
 
 def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
-                phi: np.ndarray) -> dict[str, np.ndarray]:
+                phi: np.ndarray, peak: bool = True) -> dict[str, np.ndarray]:
     """Per-unit averages of a phase-controlled stage: currents in Vm/Z, voltages in Vm.
 
     Returns ``vdc``, ``vrms`` (load mean and RMS voltage), ``idc``, ``irms`` (load current),
@@ -150,7 +166,8 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
       of the period; steady state i(α) = k2·(sin φ − sin(α − φ)·k1)/(1 − k1·k2) with
       k1 = e^(−(π − α)/tan φ), k2 = e^(−Δ/tan φ), Δ = π + α (half-wave) or α (bridge).
 
-    alpha [rad] 0 ≤ α ≤ π; phi [rad] load angle (0 for a resistive load).
+    alpha [rad] 0 ≤ α ≤ π; phi [rad] load angle (0 for a resistive load). ``peak=False``
+    leaves out ``it_peak`` (the one value that needs a search on an R–L load).
 
     >>> w = waveform_pu(topology="half-wave", freewheel=False, alpha=np.pi / 2, phi=0.0)
     >>> round(float(w["vdc"]), 4), round(float(w["vrms"]), 4)
@@ -207,13 +224,14 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
         idc, irms2 = (s1 + f1) / period, (s2 + f2) / period
         it_av, it_rms2 = s1 / two_pi, s2 / two_pi
         cont = (i0 > 0).astype(float)
-    peak = _segment_peak(a, beta, phi, c)
     none = alpha >= np.pi
     clean = {
         "vdc": vdc, "vrms": np.sqrt(np.maximum(vrms2, 0.0)), "idc": idc,
         "irms": np.sqrt(np.maximum(irms2, 0.0)), "it_av": it_av,
-        "it_rms": np.sqrt(np.maximum(it_rms2, 0.0)), "it_peak": peak,
+        "it_rms": np.sqrt(np.maximum(it_rms2, 0.0)),
     }
+    if peak:
+        clean["it_peak"] = _segment_peak(a, beta, phi, c)
     out = {k: np.where(none, 0.0, v) for k, v in clean.items()}
     out.update(beta=beta, conduction=np.maximum(cond, 0.0), alpha_eff=a, continuous=cont,
                seg_a=a, seg_b=beta, seg_c=c)
@@ -229,10 +247,10 @@ def _vm_z_phi(vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
 
 def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
                  l: np.ndarray, omega: np.ndarray,  # noqa: E741
-                 alpha: np.ndarray) -> dict[str, np.ndarray]:
+                 alpha: np.ndarray, peak: bool = True) -> dict[str, np.ndarray]:
     """:func:`waveform_pu` in SI for supply ``vs`` [V RMS], load ``r`` [Ω], ``l`` [H] at
     ``omega`` [rad/s], fired at ``alpha`` [rad]. Adds ``phi`` [rad], ``load_power`` [W] =
-    I_rms²·R and ``vm`` [V].
+    I_rms²·R and ``vm`` [V]. ``peak=False`` leaves out ``it_peak``.
 
     >>> v = stage_values(topology="ac-switch", freewheel=False, vs=120.0, r=10.0, l=0.0,
     ...                  omega=2 * np.pi * 60, alpha=np.pi / 2)  # Rashid 4e Ex 11.1 [book]
@@ -240,10 +258,10 @@ def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     (84.85, 720.0)
     """
     vm, z, phi = _vm_z_phi(vs, r, l, omega)
-    w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi)
+    w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi, peak=peak)
     ib = vm / z
     out = {k: w[k] * vm for k in ("vdc", "vrms")}
-    out.update({k: w[k] * ib for k in ("idc", "irms", "it_av", "it_rms", "it_peak")})
+    out.update({k: w[k] * ib for k in ("idc", "irms", "it_av", "it_rms", "it_peak") if k in w})
     out.update(beta=w["beta"], conduction=w["conduction"], alpha_eff=w["alpha_eff"],
                continuous=w["continuous"], phi=phi + 0 * w["beta"], vm=vm + 0 * w["beta"],
                load_power=out["irms"] ** 2 * _a(r), seg_a=w["seg_a"], seg_b=w["seg_b"],
@@ -350,7 +368,7 @@ def output_check(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     """
     def out_of(a: np.ndarray) -> tuple[np.ndarray, dict[str, np.ndarray]]:
         v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=omega,
-                         alpha=a)
+                         alpha=a, peak=False)
         if quantity == "power":
             return v["load_power"], v
         return (v["vrms"] if topology == "ac-switch" else v["vdc"]), v
@@ -414,7 +432,7 @@ def _currents(kind: str, topology: str, freewheel: bool, vs: np.ndarray, r: np.n
     if kind == "dc":
         return dc_currents(vs=vs, r=r, duty=duty)
     v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=omega,
-                     alpha=alpha)
+                     alpha=alpha, peak=False)
     with np.errstate(divide="ignore", invalid="ignore"):
         ff = np.where(v["it_av"] > 0, v["it_rms"] / v["it_av"], np.nan)
     return {"it_av": v["it_av"], "it_rms": v["it_rms"], "form_factor": ff}
@@ -711,14 +729,21 @@ def dropout_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
     # The R–L current falls monotonically after the peak; bracket from the R-load peak angle
     # max(α, π/2 + φ), a point on or after the maximum of the forced term.
     lo = np.minimum(np.maximum(a, np.pi / 2 + phi), beta)
-    hi = beta.copy()
+    lo, hi, a, phi, target = np.broadcast_arrays(lo, beta, a, phi, target)
     cur = rl_current(theta=lo, alpha=a, phi=phi, vm=1.0, z=1.0)
-    for _ in range(50):  # vectorised bisection: i(θ) − IH changes sign once on [lo, hi]
-        mid = 0.5 * (lo + hi)
-        above = rl_current(theta=mid, alpha=a, phi=phi, vm=1.0, z=1.0) >= target
-        lo = np.where(above, mid, lo)
-        hi = np.where(above, hi, mid)
-    return np.where(cur >= target, 0.5 * (lo + hi), np.nan)
+    # Resistive rows (no exponential in rl_current): sin(θ − φ) = IH·Z/Vm past the crest.
+    out = np.clip(phi + np.pi - np.arcsin(np.clip(target, -1.0, 1.0)), lo, hi)
+    rl = np.tan(phi) > 1e-12
+    if rl.any():
+        lo_r, hi_r, a_r, p_r, t_r = lo[rl], hi[rl], a[rl], phi[rl], target[rl]
+        for _ in range(50):  # vectorised bisection: i(θ) − IH changes sign once on [lo, hi]
+            mid = 0.5 * (lo_r + hi_r)
+            above = rl_current(theta=mid, alpha=a_r, phi=p_r, vm=1.0, z=1.0) >= t_r
+            lo_r = np.where(above, mid, lo_r)
+            hi_r = np.where(above, hi_r, mid)
+        out = np.array(out, dtype=float)
+        out[rl] = 0.5 * (lo_r + hi_r)
+    return np.where(cur >= target, out, np.nan)
 
 
 def holding_check(*, kind: str, vs: np.ndarray, r: np.ndarray, l: np.ndarray = 0.0,  # noqa: E741

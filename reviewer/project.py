@@ -10,6 +10,7 @@ from __future__ import annotations
 import difflib
 import re
 import tomllib
+from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -59,8 +60,38 @@ def parse_toml(text: str, path: Path) -> dict[str, Any]:
                            line=int(m.group(1)) if m else None)) from None
 
 
+@lru_cache(maxsize=64)
+def _line_index(text: str) -> tuple[dict[str, int], dict[tuple[str, str], int]]:
+    """One pass over ``text``: the line of every table header and of every plain key in it."""
+    header = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
+    keyline = re.compile(r"^\s*([A-Za-z0-9_\-\"]+)\s*=")
+    heads: dict[str, int] = {}
+    keys: dict[tuple[str, str], int] = {}
+    current = ""
+    for n, line in enumerate(text.splitlines(), 1):
+        m = header.match(line)
+        if m:
+            current = m.group(1).replace('"', "")
+            heads.setdefault(current, n)
+            continue
+        k = keyline.match(line)
+        if k:
+            keys.setdefault((current, k.group(1).strip('"')), n)
+    return heads, keys
+
+
 def line_of(text: str, table: str, key: str = "") -> int | None:
     """The line of ``key`` inside ``[table]`` (or of the table header) in ``text``."""
+    heads, keys = _line_index(text)
+    if key and (table, key) in keys:
+        return keys[(table, key)]
+    if not key or "." not in table:
+        return heads.get(table)
+    return _line_of_nested(text, table, key)
+
+
+def _line_of_nested(text: str, table: str, key: str) -> int | None:
+    """A key in an inline table (``load = { r = … }``): scan for the line that holds it."""
     header = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
     current = ""
     head_line = None
