@@ -18,6 +18,8 @@ class Value:
 
     ``dim`` is the dimension name from :mod:`reviewer.units`; ``unit`` the unit to show it in;
     ``text`` what the user wrote. A value without a tolerance has ``lo == nom == hi``.
+    ``is_range`` marks a ``{ min, max }`` table: an adjustable range or a spread, as opposed to
+    a tolerance written after a value.
     """
 
     nom: float
@@ -27,6 +29,7 @@ class Value:
     unit: str = ""
     text: str = ""
     where: Where = field(default_factory=Where, compare=False)
+    is_range: bool = False
 
     @property
     def varies(self) -> bool:

@@ -63,7 +63,7 @@ def is_production(inp: Input) -> bool:
     path = inp.path
     if inp.sweep or path.startswith(("conditions.", "supply.")) or "#" in path:
         return False
-    if path.startswith("stages.") and inp.value.text.lstrip().startswith("{"):
+    if path.startswith("stages.") and inp.value.is_range:
         return False  # an adjustable range (a pot, a firing range, a target)
     return inp.value.varies
 

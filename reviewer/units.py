@@ -288,7 +288,7 @@ def _parse_range(raw: dict[str, Any], dim: str, where: Where) -> Value:
     if not lo <= nom <= hi:
         raise _err(f"`{where.key}.nom` lies outside min … max", where)
     text = "{ " + ", ".join(f"{k} = {raw[k]!r}" for k in raw) + " }"
-    return Value(nom, lo, hi, dim, "", text.replace("'", '"'), where)
+    return Value(nom, lo, hi, dim, "", text.replace("'", '"'), where, is_range=True)
 
 
 def _check_sign(v: Value, dim: str, where: Where, *, allow_zero: bool,

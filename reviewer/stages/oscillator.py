@@ -135,7 +135,7 @@ def _pinned(b: Bound, name: str, path: str, v: Value, x: float) -> None:
 
 def _adjustable(v: Value) -> bool:
     """An R_T written as a range table (a fixed resistor plus a potentiometer)."""
-    return v.varies and v.text.lstrip().startswith("{")
+    return v.varies and v.is_range
 
 
 def _at(r: Reduced, name: str) -> float:

@@ -143,7 +143,7 @@ def try_value(aid: Aid, value: Value) -> float | None:
 def edit_text(value: Value, new_nom: float) -> str:
     """The text of the edit: the tolerance kept (reviewer.aids.suggest_text); a range
     ``{ min, max }`` is scaled as a whole, as the aid scaled it."""
-    if not value.text.lstrip().startswith("{"):
+    if not value.is_range:
         return suggest_text(value, new_nom)
     scale = new_nom / value.nom
     unit = DIM_UNIT.get(value.dim, "")
