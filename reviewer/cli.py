@@ -24,13 +24,9 @@ DEMO = "kiln-230.toml"
 
 
 def _load_run(path: str) -> Any:
-    from reviewer.checklist import load_checklist
-    from reviewer.engine import evaluate
-    from reviewer.project import load_project
+    from reviewer.engine import run_project
 
-    project = load_project(path)
-    checklist = load_checklist(project.checklist, Path(path).parent)
-    return evaluate(project, checklist)
+    return run_project(path)
 
 
 def run_json(run: Any, yields: dict[tuple[str, str], Any] | None = None) -> dict[str, Any]:

@@ -121,13 +121,11 @@ def _is_project_name(name: str) -> bool:
 
 def status_row(path: Path) -> dict[str, Any]:
     """One project's status: counts, failing and stale checks, and the chain's state."""
-    from reviewer.checklist import load_checklist
-    from reviewer.engine import evaluate
-    from reviewer.project import load_project
+    from reviewer.engine import run_project
     from reviewer.review import check_states, counts, load_record
 
-    project = load_project(path)
-    run = evaluate(project, load_checklist(project.checklist, path.parent))
+    run = run_project(path)
+    project = run.project
     rec = load_record(path)
     states = check_states(rec, run)
     c = counts(states)

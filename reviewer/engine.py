@@ -13,13 +13,14 @@ import json
 import math
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Any
 
 import numpy as np
 
 import reviewer.stages  # noqa: F401  (registers the stage kinds and checks)
 from checks.core import FAIL, MARGINAL, STATUS_NAMES, Outcome
-from reviewer.checklist import Checklist, standard
+from reviewer.checklist import Checklist, load_checklist, standard
 from reviewer.errors import LatchbookError, ProjectError
 from reviewer.fmt import show, to_report
 from reviewer.model import Project, Stage
@@ -313,6 +314,14 @@ def evaluate(project: Project, checklist: Checklist | None = None, *,
     return Run(project, checklist, results)
 
 
+def run_project(path: str | Path) -> Run:
+    """Load a project file (variants resolved) with its checklist; compute every check once."""
+    from reviewer.project import load_project
+
+    project = load_project(path)
+    return evaluate(project, load_checklist(project.checklist, Path(path).parent))
+
+
 def status_counts(results: Iterable[Result]) -> dict[str, int]:
     """How many results have each status."""
     counts: dict[str, int] = {}
@@ -321,6 +330,6 @@ def status_counts(results: Iterable[Result]) -> dict[str, int]:
     return counts
 
 
-__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "evaluate",
+__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "evaluate", "run_project",
            "evaluate_check", "build_corners", "inputs_hash", "snapshot", "stage_order",
            "status_counts"]

@@ -25,6 +25,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TextIO
 
+from reviewer.engine import run_project
 from reviewer.errors import LatchbookError
 
 STATES = ("fail", "stale", "marginal", "waived", "unsigned", "n/a", "pass")
@@ -132,17 +133,6 @@ def _worst(states: Iterable[str]) -> str:
     order = {s: i for i, s in enumerate(STATES)}
     found = [s for s in states if s in order]
     return min(found, key=order.__getitem__) if found else "n/a"
-
-
-def run_project(path: str | Path) -> Any:
-    """Load a project (variants resolved), its checklist, and compute every check once."""
-    from reviewer.checklist import load_checklist
-    from reviewer.engine import evaluate
-    from reviewer.project import load_project
-
-    project = load_project(path)
-    checklist = load_checklist(project.checklist, Path(path).parent)
-    return evaluate(project, checklist)
 
 
 def _is_project(path: Path) -> bool:
