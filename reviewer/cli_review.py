@@ -103,20 +103,18 @@ def cmd_verify(args: argparse.Namespace) -> int:
 
 def _projects_in(items: list[str]) -> list[Path]:
     """The project files named, or found in the folders named (review/checklist files skipped)."""
+    from reviewer.project import is_project_file
+
     out: list[Path] = []
     for item in items or ["."]:
         p = Path(item)
         if p.is_dir():
-            out += sorted(f for f in p.glob("*.toml") if _is_project_name(f.name))
+            out += sorted(f for f in p.glob("*.toml") if is_project_file(f))
         elif p.is_file():
             out.append(p)
         else:
             raise ProjectError("no such file or folder", _where(p))
     return out
-
-
-def _is_project_name(name: str) -> bool:
-    return not (name.endswith((".review.toml", ".checklist.toml")) or ".mine-" in name)
 
 
 def status_row(path: Path) -> dict[str, Any]:

@@ -19,7 +19,6 @@ should exit with: 2 when a project does not load, 1 when any stage fails or is s
 from __future__ import annotations
 
 import sys
-import tomllib
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -27,6 +26,7 @@ from typing import Any, TextIO
 
 from reviewer.engine import run_project
 from reviewer.errors import LatchbookError
+from reviewer.project import is_project_file
 
 STATES = ("fail", "stale", "marginal", "waived", "unsigned", "n/a", "pass")
 STYLES = {"pass": "green", "marginal": "yellow", "fail": "bold red", "stale": "bold magenta",
@@ -135,19 +135,6 @@ def _worst(states: Iterable[str]) -> str:
     return min(found, key=order.__getitem__) if found else "n/a"
 
 
-def _is_project(path: Path) -> bool:
-    """A TOML file with a [project] table (an unreadable one counts: its error is shown)."""
-    name = path.name
-    if name.endswith((".review.toml", ".checklist.toml")) or name == "pyproject.toml" \
-            or ".mine-" in name:  # a copy kept aside after a conflicting save
-        return False
-    try:
-        doc = tomllib.loads(path.read_text("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-        return True
-    return isinstance(doc.get("project"), dict)
-
-
 def find_projects(paths: Sequence[str | Path]) -> list[Path]:
     """The project files named, and those under the folders named (recursively, sorted)."""
     out: list[Path] = []
@@ -157,7 +144,7 @@ def find_projects(paths: Sequence[str | Path]) -> list[Path]:
             for f in sorted(p.rglob("*.toml")):
                 if any(part.startswith(".") for part in f.relative_to(p).parts):
                     continue
-                if _is_project(f):
+                if is_project_file(f):
                     out.append(f)
         else:
             out.append(p)

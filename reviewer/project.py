@@ -379,6 +379,19 @@ def _merge(base: dict[str, Any], over: dict[str, Any]) -> dict[str, Any]:
     return out
 
 
+def is_project_file(path: Path) -> bool:
+    """A TOML file with a [project] table (an unreadable one counts: its error is shown)."""
+    name = path.name
+    if name.endswith((".review.toml", ".checklist.toml")) or name == "pyproject.toml" \
+            or ".mine-" in name:  # a copy kept aside after a conflicting save
+        return False
+    try:
+        doc = tomllib.loads(path.read_text("utf-8"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return True
+    return isinstance(doc.get("project"), dict)
+
+
 def load_project(path: str | Path) -> Project:
     """Load, resolve and validate a project file."""
     return _Loader(Path(path)).build()
