@@ -11,6 +11,7 @@ from __future__ import annotations
 import hashlib
 import json
 import math
+import warnings
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -210,7 +211,7 @@ def _label(path: str) -> str:
     return path
 
 
-def reduce(defn: CheckDef, bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
+def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
            out: Outcome, limits: Mapping[str, float]) -> tuple[Reduced, int]:
     """Reduce the rows of one evaluation: overall status, smallest margin, the worst row."""
     status = out.status.astype(int)
@@ -221,12 +222,9 @@ def reduce(defn: CheckDef, bound: Bound, arrays: dict[str, np.ndarray], varying:
     def pick(f: Any) -> dict[str, float]:
         return {k: float(f(v)) for k, v in out.values.items()}
 
-    with np.errstate(all="ignore"):
-        import warnings
-
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", RuntimeWarning)
-            lo, hi = pick(np.nanmin), pick(np.nanmax)
+    with warnings.catch_warnings():  # an all-NaN value (no valid row) reduces to NaN quietly
+        warnings.simplefilter("ignore", RuntimeWarning)
+        lo, hi = pick(np.nanmin), pick(np.nanmax)
     red = Reduced(
         status=STATUS_NAMES[int(status.max())],
         margin=float(out.margin[worst]),
@@ -264,7 +262,7 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
         out = call(defn, bound, arrays, limits)
         if note:
             out.notes.append(note)
-        red, worst = reduce(defn, bound, arrays, varying, out, limits)
+        red, worst = reduce(bound, arrays, varying, out, limits)
         summary = defn.summarise(red)
     except LatchbookError:
         raise
