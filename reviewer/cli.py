@@ -18,6 +18,7 @@ from typing import Any
 from reviewer import TOOL
 from reviewer.errors import LatchbookError
 from reviewer.safety import SHORT
+from reviewer.states import FAILING
 
 SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
@@ -72,7 +73,7 @@ def print_table(run: Any, out: Any = None,
         table.add_column("MC fail", justify="right", no_wrap=True)
     table.add_column("summary", ratio=1, overflow="fold")
     styles = {"pass": "green", "marginal": "yellow", "fail": "bold red", "error": "bold magenta",
-              "not-applicable": "dim"}
+              "blocked": "bold yellow", "incomplete": "bold yellow", "not-applicable": "dim"}
     for r in run.results:
         margin = "" if r.margin is None else f"{r.margin * 100:+.0f} %"
         shown = "n/a" if r.status == "not-applicable" else r.status
@@ -132,7 +133,7 @@ def _yields(run: Any, args: argparse.Namespace) -> dict[tuple[str, str], Any] | 
 
 def _fails(run: Any, path: str) -> bool:
     """A check fails without a current waiver (waivers come from the review record)."""
-    failing = {(r.stage, r.check) for r in run.results if r.status in ("fail", "error")}
+    failing = {(r.stage, r.check) for r in run.results if r.status in FAILING}
     if not failing:
         return False
     try:

@@ -14,8 +14,9 @@ from pathlib import Path
 from typing import Any
 
 from reviewer.errors import LatchbookError, ProjectError
+from reviewer.states import FAILING
 
-COLUMNS = ("pass", "marginal", "fail", "waived", "stale", "unsigned")
+COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale", "unsigned")
 
 
 def _err(exc: LatchbookError) -> int:
@@ -128,7 +129,7 @@ def status_row(path: Path) -> dict[str, Any]:
     states = check_states(rec, run)
     c = counts(states)
     failing = [f"{s.stage}/{s.check}" for s in states.values()
-               if s.status in ("fail", "error") and s.waiver != "waived"]
+               if s.status in FAILING and s.waiver != "waived"]
     stale = [{"check": f"{s.stage}/{s.check}", "changed": [ch.text() for ch in s.changed]}
              for s in states.values() if "stale" in (s.signoff, s.approval, s.waiver)]
     return {"project": project.name, "file": str(path), "revision": project.revision,

@@ -4,6 +4,11 @@ For each stage (in link order) and each check of its kind, the engine binds the 
 builds every combination of their ends (plus sweeps where a value is not monotonic), calls the
 check's pure function once on the whole corner table, and reduces the rows to a result: status,
 margin, the worst corner, and every named value's nominal, minimum and maximum.
+
+Two rules hold for every check, here rather than in each of them: a row with a non-finite value
+or margin is never a pass (the check had no answer there), and a check whose premise failed
+(``Bound.depends``) is ``blocked``, one missing a key it needs (``Bound.missing``) is
+``incomplete``.
 """
 
 from __future__ import annotations
@@ -27,6 +32,7 @@ from reviewer.fmt import show, to_report
 from reviewer.model import Project, Stage
 from reviewer.registry import CHECKS, Bound, CheckDef, Context, Input, Reduced
 from reviewer.schema import CATALOGUE
+from reviewer.states import FAILING
 
 HASH_SCHEME = "latchbook.inputs/1"
 MAX_VARYING = 12
@@ -81,15 +87,22 @@ class Result:
     notes: list[str] = field(default_factory=list)
     snapshot: dict[str, Any] = field(default_factory=dict)
     evaluation: Evaluation | None = None
+    #: What a ``blocked`` result waits for ("stage/check") or the keys an ``incomplete`` one
+    #: lacks (paths); empty otherwise.
+    needs: list[str] = field(default_factory=list)
 
     def as_dict(self) -> dict[str, Any]:
         """The JSON/record form (checks.md value names)."""
-        return {
+        out = {
             "stage": self.stage, "check": self.check, "status": self.status,
             "margin": _finite(self.margin), "summary": self.summary, "worst": self.worst,
             "inputs_sha256": self.inputs_sha256,
             "values": {k: v.as_dict() for k, v in self.values.items()},
+            "notes": list(self.notes),
         }
+        if self.needs:
+            out["needs"] = list(self.needs)
+        return out
 
 
 @dataclass
@@ -106,8 +119,8 @@ class Run:
 
     @property
     def failed(self) -> bool:
-        """True when any check fails or errors."""
-        return any(r.status in ("fail", "error") for r in self.results)
+        """True when any check fails, errors, is blocked or incomplete."""
+        return any(r.status in FAILING for r in self.results)
 
 
 def _finite(x: float | None) -> float | None:
@@ -212,10 +225,29 @@ def _label(path: str) -> str:
 
 
 def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
-           out: Outcome, limits: Mapping[str, float]) -> tuple[Reduced, int]:
-    """Reduce the rows of one evaluation: overall status, smallest margin, the worst row."""
+           out: Outcome, limits: Mapping[str, float],
+           optional: Iterable[str] = ()) -> tuple[Reduced, int]:
+    """Reduce the rows of one evaluation: overall status, smallest margin, the worst row.
+
+    A row where a value not in ``optional`` is NaN or infinite, or whose margin is NaN while
+    other rows have one (a check without a limit has none at any row), fails: the check has no
+    answer there, and no answer is never a pass. Such a result carries a note naming the
+    values ("no finite answer: ...").
+    """
     status = out.status.astype(int)
-    margin = np.where(np.isnan(out.margin), -np.inf, out.margin)
+    opt = set(optional)
+    nan_margin = np.isnan(out.margin)
+    finite = ~nan_margin | bool(nan_margin.all())
+    bad: list[str] = []
+    for k, v in out.values.items():
+        if k in opt:
+            continue
+        ok = np.isfinite(v)
+        if not ok.all():
+            bad.append(k)
+            finite &= ok
+    status = np.where(finite, status, FAIL)
+    margin = np.where(finite, out.margin, -np.inf)
     order = np.lexsort((margin, -status))
     worst = int(order[0])
 
@@ -225,16 +257,42 @@ def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
     with warnings.catch_warnings():  # an all-NaN value (no valid row) reduces to NaN quietly
         warnings.simplefilter("ignore", RuntimeWarning)
         lo, hi = pick(np.nanmin), pick(np.nanmax)
+    notes = list(dict.fromkeys(bound.notes + out.notes))
+    if not finite.all():
+        what = ", ".join(bad) if bad else "the margin"
+        notes.insert(0, f"no finite answer: {what} not finite at {int((~finite).sum())} of "
+                        f"{len(finite)} corners (an input outside the range the method covers?)")
     red = Reduced(
         status=STATUS_NAMES[int(status.max())],
-        margin=float(out.margin[worst]),
+        margin=float(out.margin[worst]) if finite[worst] else float("nan"),
         nom={k: float(v[0]) for k, v in out.values.items()},
         lo=lo, hi=hi,
         worst={k: float(v[worst]) for k, v in out.values.items()},
         worst_inputs={k: float(arrays[k][worst]) for k in varying},
-        limits=limits, bound=bound, notes=list(dict.fromkeys(bound.notes + out.notes)),
+        limits=limits, bound=bound, notes=notes,
     )
     return red, worst
+
+
+#: What a formatted summary shows for a NaN (—) or an infinity (∞).
+_NON_FINITE_TEXT = ("—", "∞", "nan", "inf ")
+
+
+def _finite_summary(status: str, summary: str, notes: list[str]) -> tuple[str, str]:
+    """The last guard of the no-finite-answer rule: a summary showing a non-finite number.
+
+    Returns (status, summary); a pass or marginal whose summary shows one becomes a fail
+    that says so. Notes the summary must carry (sampled corners, no finite answer) are
+    appended, so they reach every view and the JSON.
+    """
+    if status in ("pass", "marginal") and any(t in summary for t in _NON_FINITE_TEXT):
+        status = "fail"
+        summary = ("no finite answer: the summary shows a value that is not a number (an "
+                   "input outside the range the method covers?); " + summary)
+    for n in notes:
+        if (n.startswith("no finite answer") or "sampled corners" in n) and n not in summary:
+            summary += "; " + n
+    return status, summary
 
 
 def call(defn: CheckDef, bound: Bound, arrays: Mapping[str, np.ndarray],
@@ -256,14 +314,21 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     if bound.not_applicable:
         return Result(stage.id, defn.id, stage.kind, "not-applicable", None,
                       bound.not_applicable, inputs_sha256=digest, snapshot=snap)
+    if bound.missing:
+        return Result(stage.id, defn.id, stage.kind, "incomplete", None,
+                      "incomplete: " + ", ".join(f"{p} not given" for p in bound.missing)
+                      + " (give it, or switch the check off in the checklist)",
+                      inputs_sha256=digest, snapshot=snap, needs=list(bound.missing))
     limits = checklist.limits_for(defn.id)
     try:
         arrays, varying, note = build_corners(bound.inputs)
-        out = call(defn, bound, arrays, limits)
+        with np.errstate(all="ignore"):  # non-finite rows are judged in reduce, not warned
+            out = call(defn, bound, arrays, limits)
         if note:
             out.notes.append(note)
-        red, worst = reduce(bound, arrays, varying, out, limits)
+        red, worst = reduce(bound, arrays, varying, out, limits, defn.optional)
         summary = defn.summarise(red)
+        status, summary = _finite_summary(red.status, summary, red.notes)
     except LatchbookError:
         raise
     except Exception as exc:  # a defect in a check: report it as an error result, visibly
@@ -282,8 +347,8 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     for name in varying:
         inp = bound.inputs[name]
         worst_txt[_label(inp.path)] = show(float(arrays[name][worst]), inp.value.dim)
-    return Result(stage.id, defn.id, stage.kind, red.status,
-                  None if not math.isfinite(red.margin) else red.margin, summary, worst_txt,
+    margin = red.margin if math.isfinite(red.margin) and status == red.status else None
+    return Result(stage.id, defn.id, stage.kind, status, margin, summary, worst_txt,
                   digest, values, red.notes, snap,
                   Evaluation(list(arrays), arrays, out, worst, bound, varying, limits))
 
@@ -293,23 +358,56 @@ def evaluate(project: Project, checklist: Checklist | None = None, *,
     """Run every check of every stage of ``project`` (or only the given (stage, check) pairs).
 
     Results come in the project's stage order and the catalogue's check order. A catalogue
-    check that is not built yet is reported as ``not-applicable`` with that reason.
+    check that is not built yet is reported as ``not-applicable`` with that reason. A check
+    whose premise (a check it depends on) fails, errors, is blocked or incomplete is
+    ``blocked``; premises outside ``only`` are computed for that purpose and not returned.
     """
     checklist = checklist or standard()
     wanted = set(only) if only is not None else None
     stage_order(project)  # validates the link graph
+    done: dict[tuple[str, str], Result] = {}
+
+    def one(stage: Stage, cid: str) -> Result:
+        key = (stage.id, cid)
+        if key not in done:
+            defn = CHECKS.get(cid)
+            if defn is None or stage.kind not in defn.kinds:
+                done[key] = Result(stage.id, cid, stage.kind, "not-applicable", None,
+                                   "this check is not available yet in this version")
+            else:
+                done[key] = evaluate_check(defn, project, stage, checklist, strict=strict)
+        return done[key]
+
+    def resolved(stage: Stage, cid: str, seen: frozenset[tuple[str, str]]) -> Result:
+        res = one(stage, cid)
+        ev = res.evaluation
+        if res.status in ("not-applicable", "error") or ev is None or (stage.id, cid) in seen:
+            return res
+        for dep_stage, dep_check in ev.bound.depends:
+            dep_st = project.stages.get(dep_stage)
+            if dep_st is None:
+                continue
+            dep = resolved(dep_st, dep_check, seen | {(stage.id, cid)})
+            if dep.status in FAILING:
+                return blocked(res, dep)
+        return res
+
     results = []
     for stage in project.stages.values():
         for cid, kinds in CATALOGUE:
             if stage.kind not in kinds or (wanted is not None and (stage.id, cid) not in wanted):
                 continue
-            defn = CHECKS.get(cid)
-            if defn is None or stage.kind not in defn.kinds:
-                results.append(Result(stage.id, cid, stage.kind, "not-applicable", None,
-                                      "this check is not available yet in this version"))
-                continue
-            results.append(evaluate_check(defn, project, stage, checklist, strict=strict))
+            results.append(resolved(stage, cid, frozenset()))
     return Run(project, checklist, results)
+
+
+def blocked(res: Result, dep: Result) -> Result:
+    """``res`` as ``blocked`` by the failed premise ``dep``: its own numbers mean nothing."""
+    return Result(res.stage, res.check, res.kind, "blocked", None,
+                  f"blocked: needs {dep.check} of `{dep.stage}`, which is {dep.status}: this "
+                  f"check's numbers assume it passes (fix {dep.check} first)", res.worst,
+                  res.inputs_sha256, res.values, res.notes, res.snapshot, res.evaluation,
+                  needs=[f"{dep.stage}/{dep.check}"])
 
 
 def run_project(path: str | Path) -> Run:
@@ -328,6 +426,7 @@ def status_counts(results: Iterable[Result]) -> dict[str, int]:
     return counts
 
 
-__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "evaluate", "run_project",
+__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "blocked", "evaluate",
+           "run_project",
            "evaluate_check", "build_corners", "inputs_hash", "snapshot", "stage_order",
            "status_counts"]

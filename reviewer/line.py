@@ -27,8 +27,11 @@ from typing import Any, TextIO
 from reviewer.engine import run_project
 from reviewer.errors import LatchbookError
 from reviewer.project import is_project_file
+from reviewer.states import FAILING, WAIVABLE
 
-STATES = ("fail", "stale", "marginal", "waived", "unsigned", "n/a", "pass")
+STATES = ("fail", "blocked", "incomplete", "stale", "marginal", "waived", "unsigned", "n/a",
+          "pass")
+_FLAGGED = STATES[:-2]  # every state a cell can be flagged with
 STYLES = {"pass": "green", "marginal": "yellow", "fail": "bold red", "stale": "bold magenta",
           "waived": "cyan", "unsigned": "dim", "n/a": "dim", "error": "bold red"}
 
@@ -85,7 +88,8 @@ class Matrix:
     @property
     def failing(self) -> list[Row]:
         """Rows with a failing stage."""
-        return [r for r in self.rows if any(c.state == "fail" for c in r.cells.values())]
+        return [r for r in self.rows
+                if any(c.state in ("fail", "blocked", "incomplete") for c in r.cells.values())]
 
     @property
     def stale(self) -> list[Row]:
@@ -103,8 +107,10 @@ def stage_state(states: Iterable[Any]) -> Cell:
     sts = list(states)
     flags: dict[str, list[str]] = {s: [] for s in STATES}
     for st in sts:
-        waived = st.waiver == "waived" and st.status in ("fail", "marginal")
-        if st.status in ("fail", "error") and not waived:
+        waived = st.waiver == "waived" and st.status in WAIVABLE
+        if st.status in ("blocked", "incomplete") and not waived:
+            flags[st.status].append(st.check)
+        elif st.status in FAILING and not waived:
             flags["fail"].append(st.check)
         if "stale" in (st.signoff, st.approval, st.waiver):
             flags["stale"].append(st.check)
@@ -118,10 +124,10 @@ def stage_state(states: Iterable[Any]) -> Cell:
     if not applicable and not flags["stale"]:
         state = "n/a"
     else:
-        state = next((s for s in STATES[:5] if flags[s]), "pass")
+        state = next((s for s in _FLAGGED if flags[s]), "pass")
     counts = {s: len(v) for s, v in flags.items() if v and s != "n/a"}
     detail_parts = []
-    for s in STATES[:5]:
+    for s in _FLAGGED:
         if flags[s]:
             names = ", ".join(flags[s][:3]) + (" …" if len(flags[s]) > 3 else "")
             detail_parts.append(f"{s}: {names}" if s != "unsigned" else
@@ -267,7 +273,8 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
             console.print(Text(f"  {label}: {row.error}", style="red"))
             continue
         notes = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
-                 if c.state in ("fail", "stale", "marginal", "waived") and c.detail]
+                 if c.state in ("fail", "blocked", "incomplete", "stale", "marginal", "waived")
+                 and c.detail]
         if not row.chain_ok:
             notes.insert(0, "the review history is broken (latchbook verify)")
         if notes:

@@ -71,6 +71,10 @@ class Bound:
     options: dict[str, Any] = field(default_factory=dict)
     notes: list[str] = field(default_factory=list)
     not_applicable: str | None = None
+    #: The paths of keys the check needs that the project does not give (result ``incomplete``).
+    missing: list[str] = field(default_factory=list)
+    #: (stage id, check id) whose pass is this check's premise (result ``blocked`` otherwise).
+    depends: list[tuple[str, str]] = field(default_factory=list)
 
     def add(self, name: str, path: str, value: Value, *, sweep: int = 0,
             extra: tuple[float, ...] = ()) -> Value:
@@ -130,6 +134,17 @@ class Context:
             b.notes.append(f"{path.split('.')[-1]} not given: {eng(default, unit)} assumed")
             return b.add(name, path + "#assumed", Value.fixed(default, dim, unit), sweep=sweep)
         return None
+
+    def want(self, b: Bound, name: str, path: str, **kw: Any) -> Value | None:
+        """Add a value the check cannot answer without; a missing one makes it incomplete.
+
+        Use this for data a part or stage has but the file may leave out (a rating, a
+        capacitor's voltage); ``not_applicable`` stays for what the circuit does not have.
+        """
+        v = self.read(b, name, path, **kw)
+        if v is None and path not in b.missing:
+            b.missing.append(path)
+        return v
 
     def need(self, b: Bound, name: str, path: str, *, sweep: int = 0,
              extra: tuple[float, ...] = ()) -> Value:
@@ -206,6 +221,9 @@ class CheckDef:
     summarise: Callable[[Reduced], str]
     cautions: tuple[str, ...] = ()
     fix: str = ""
+    #: Values that may be NaN where they are not defined at a row (the engine otherwise
+    #: refuses a pass with a non-finite value).
+    optional: frozenset[str] = frozenset()
 
 
 STAGE_KINDS: dict[str, StageKind] = {}

@@ -245,7 +245,7 @@ def _stage_plots(results: list[Any], project: Any,
     A phase-control stage shows its load waveform first (``power.output``: both ends of the
     firing range); other stages their most critical check's picture.
     """
-    rank = {"fail": 0, "error": 0, "marginal": 1, "pass": 2}
+    rank = {"fail": 0, "error": 0, "blocked": 0, "incomplete": 0, "marginal": 1, "pass": 2}
     stage = project.stages.get(results[0].stage) if results else None
     first = "power.output" if stage is not None and stage.kind == "phase-control" else ""
     cands = sorted((r for r in results if has_waveform(r.check)),

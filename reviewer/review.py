@@ -45,6 +45,7 @@ from reviewer import TOOL
 from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
 from reviewer.fmt import show
 from reviewer.schema import dim_of_path
+from reviewer.states import FAILING, WAIVABLE
 from reviewer.store import (
     ProjectLock,
     base_name,
@@ -547,7 +548,7 @@ class CheckState:
     @property
     def label(self) -> str:
         """A short human reading: ``fail — waived``, ``pass, signed``, ``marginal, stale``."""
-        if self.waiver == "waived" and self.status in ("fail", "marginal"):
+        if self.waiver == "waived" and self.status in WAIVABLE:
             base = f"{self.status} — waived"
         else:
             base = "n/a" if self.status == "not-applicable" else self.status
@@ -602,8 +603,8 @@ def check_states(record: Record, run: Any) -> dict[tuple[str, str], CheckState]:
                 st.approval, st.approval_seq = ("approved" if current else "stale"), entry.seq
             else:
                 st.waiver, st.waiver_seq = ("waived" if current else "stale"), entry.seq
-        failing = res.status in ("fail", "error")
-        waived = st.waiver == "waived" and res.status in ("fail", "marginal")
+        failing = res.status in FAILING
+        waived = st.waiver == "waived" and res.status in WAIVABLE
         if "stale" in (st.signoff, st.approval, st.waiver):
             st.state = "stale"
         elif failing and not waived:
@@ -642,14 +643,17 @@ def counts(states: Mapping[tuple[str, str], CheckState]) -> dict[str, int]:
     ones without one; ``waived`` those with one; ``stale`` checks covered by a stale entry;
     ``unsigned`` applicable checks with no sign-off in force.
     """
-    c = dict.fromkeys(("pass", "marginal", "fail", "waived", "stale", "unsigned", "n/a"), 0)
+    c = dict.fromkeys(("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale",
+                       "unsigned", "n/a"), 0)
     for st in states.values():
-        waived = st.waiver == "waived" and st.status in ("fail", "marginal")
+        waived = st.waiver == "waived" and st.status in WAIVABLE
         if st.status == "pass":
             c["pass"] += 1
         elif st.status == "marginal" and not waived:
             c["marginal"] += 1
-        elif st.status in ("fail", "error") and not waived:
+        elif st.status in ("blocked", "incomplete") and not waived:
+            c[st.status] += 1
+        elif st.status in FAILING and not waived:
             c["fail"] += 1
         elif st.status == "not-applicable":
             c["n/a"] += 1
@@ -903,10 +907,11 @@ def sign(project_path: str | Path, *, stage: str, checks: Sequence[str] | None =
         chosen = _select(run, stage, checks, project_path)
         states = check_states(rec, run)
         where = Where(str(project_path))
-        failing = [r for r in chosen if r.status in ("fail", "error")
+        failing = [r for r in chosen if r.status in FAILING
                    and states[(r.stage, r.check)].waiver != "waived"]
         if failing:
-            what = "; ".join(f"{r.stage}/{r.check} {r.status}s" +
+            what = "; ".join(f"{r.stage}/{r.check} " + (
+                f"{r.status}s" if r.status in ("fail", "error") else f"is {r.status}") +
                              (" (a computation error cannot be waived: fix it)"
                               if r.status == "error" else "") for r in failing)
             raise RecordError(f"not signed: {what}. Fix the design, or waive the check with a "
@@ -950,7 +955,7 @@ def waive(project_path: str | Path, *, stage: str, check: str, note: str,
         run, files = _fresh(project_path)
         rec = _trusted_for_write(project_path)
         [res] = _select(run, stage, [check], project_path)
-        if res.status not in ("fail", "marginal"):
+        if res.status not in WAIVABLE:
             why = ("a computation error cannot be waived: fix its input or report it"
                    if res.status == "error" else f"it is {res.status}; there is nothing to waive")
             raise RecordError(f"not waived: {stage}/{check}: {why}", Where(str(project_path)))

@@ -22,6 +22,9 @@ FAILING: frozenset[str] = frozenset({"error", "fail", "blocked", "incomplete"})
 #: Results that need a person to look (everything but pass and n/a).
 ATTENTION: frozenset[str] = FAILING | {"marginal"}
 
+#: Results a written waiver may accept (an error is a defect to fix, never waived).
+WAIVABLE: frozenset[str] = ATTENTION - {"error"}
+
 #: Review words, worst first. ``unverified``: the entry that would cover the check does not
 #: verify (chain, signature or approver rule), so it counts for nothing.
 REVIEWS: tuple[str, ...] = ("unverified", "stale", "unsigned", "waived", "signed", "approved")

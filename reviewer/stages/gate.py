@@ -393,6 +393,7 @@ register(CheckDef(
               "Rashid's Ex 10.11).",),
     fix="Lengthen the pulse (larger C_T or base-1/cathode resistor, lower series R), use a "
         "pulse train, or end the firing range before the latch limit.",
+    optional=frozenset({"latch_limit_angle", "firing_angle"}),
 ))
 
 
@@ -470,6 +471,7 @@ register(CheckDef(
               "gate current's required rise time.",),
     fix="Fit or lower the gate–cathode resistor; for DC coupling, a smaller base-1/cathode "
         "resistor or a series diode.",
+    optional=frozenset({"r_gk_max", "igt"}),
 ))
 
 
@@ -531,6 +533,7 @@ register(CheckDef(
     units={"reverse_voltage": "V"},
     summarise=_sum_reverse,
     fix="A diode in series with the gate, or a diode across gate–cathode with R_GK.",
+    optional=frozenset({"n_min"}),
 ))
 
 

@@ -721,6 +721,7 @@ register(CheckDef(
     units={"anode_current_at_fire": "A", "il": "A", "max_firing_angle": "deg"},
     summarise=_sum_latching,
     fix="Limit α_max, lower the load R, or add a bleeder resistor across the load.",
+    optional=frozenset({"max_firing_angle", "time_to_il"}),
 ))
 
 
@@ -774,6 +775,7 @@ register(CheckDef(
     fn=_fn_holding, bind=_bind_holding,
     units={"load_current": "A", "ih": "A", "dropout_angle": "deg"}, summarise=_sum_holding,
     fix="Lower the load R (or add a bleeder) so the current stays above IH.",
+    optional=frozenset({"dropout_angle"}),
 ))
 
 

@@ -355,6 +355,7 @@ register(CheckDef(
               "value at Tj,max",),
     fix="Raise C (or the charge voltage), lower the load current at the current limit, or use "
         "a faster SCR.",
+    optional=frozenset({"full_line_time"}),
 ))
 
 register(CheckDef(

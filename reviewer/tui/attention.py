@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from reviewer.states import FAILING, needs_attention
+
 
 @dataclass(frozen=True)
 class Filter:
@@ -22,10 +24,12 @@ class Filter:
 FILTERS: tuple[Filter, ...] = (
     Filter("all", "all checks", "every stage and every check"),
     Filter("attention", "attention",
-           "checks that fail, error or are marginal, and checks whose sign-off is waived, "
+           "checks that fail, error, are blocked, incomplete or marginal, and checks whose "
+           "sign-off is waived, "
            "stale or missing (unsigned)"),
     Filter("fails", "fails only",
-           "checks that fail or error; waived failures stay in (a waiver does not make a "
+           "checks that fail, error, are blocked or incomplete; waived failures stay in (a "
+           "waiver does not make a "
            "check pass)"),
     Filter("stale", "stale only",
            "checks covered by a sign-off, approval or waiver whose inputs, result or "
@@ -54,9 +58,9 @@ def matches(key: str, status: str, sign: str) -> bool:
     if not status:
         return False
     if key == "attention":
-        return status in ("fail", "error", "marginal") or sign in ("stale", "waived", "unsigned")
+        return needs_attention(status) or sign in ("stale", "waived", "unsigned")
     if key == "fails":
-        return status in ("fail", "error")
+        return status in FAILING
     if key == "stale":
         return sign == "stale"
     raise ValueError(f"unknown filter {key!r}")

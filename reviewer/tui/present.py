@@ -20,6 +20,8 @@ STATUS = {
     "fail": ("✗", "FAIL", "bold red"),
     "fail (waived)": ("w", "fail (waived)", "magenta"),
     "error": ("!", "ERROR", "bold magenta"),
+    "blocked": ("⊘", "BLOCKED", "bold yellow"),
+    "incomplete": ("◌", "INCOMPLETE", "bold yellow"),
     "not-applicable": ("·", "n/a", "dim"),
     "": ("…", "pending", "dim italic"),
 }

@@ -24,6 +24,7 @@ from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
 from reviewer.model import Project
 from reviewer.project import load_project_text
 from reviewer.schema import CATALOGUE
+from reviewer.states import WAIVABLE
 from reviewer.tolerance import Yield
 from reviewer.tui import attention
 
@@ -55,7 +56,7 @@ class StageCounts:
     @property
     def state(self) -> str:
         """The worst result of the stage: fail, error, marginal, pass or not-applicable."""
-        for s in ("error", "fail", "marginal", "pass"):
+        for s in ("error", "fail", "blocked", "incomplete", "marginal", "pass"):
             if self.counts.get(s):
                 return s
         return "not-applicable"
@@ -355,8 +356,8 @@ class Session:
 
     def overall(self) -> str:
         """The project's state: the worst result, a waived failure shown as "fail (waived)"."""
-        rank = {"pass": 0, "not-applicable": 0, "marginal": 1, "fail (waived)": 2, "fail": 3,
-                "error": 4}
+        rank = {"pass": 0, "not-applicable": 0, "marginal": 1, "fail (waived)": 2,
+                "incomplete": 3, "blocked": 3, "fail": 3, "error": 4}
         worst = "pass"
         for r in self.run.results:
             s = r.status
@@ -416,7 +417,7 @@ class Session:
             return ""
         if st.state == "stale":
             return "stale"
-        if st.waiver == "waived" and st.status in ("fail", "marginal"):
+        if st.waiver == "waived" and st.status in WAIVABLE:
             return "waived"
         if st.approval == "approved":
             return "approved"

@@ -20,6 +20,7 @@ from reviewer.edits import shown_text
 from reviewer.errors import LatchbookError
 from reviewer.fmt import DIM_UNIT
 from reviewer.model import Value
+from reviewer.states import WAIVABLE
 from reviewer.tui import attention, present
 from reviewer.tui.dialogs.edit_value import EditValueDialog
 from reviewer.tui.dialogs.pick_value import PickValueDialog
@@ -326,8 +327,8 @@ class WorkbookScreen(Screen[None]):
         """Ask for the justification, then waive a failing check."""
         r = self.session.result(stage, check)
         refusal = self.refusal()
-        if not refusal and (r is None or r.status not in ("fail", "marginal", "error")):
-            refusal = "only a failing or marginal check can be waived"
+        if not refusal and (r is None or r.status not in WAIVABLE | {"error"}):
+            refusal = "only a failing, blocked, incomplete or marginal check can be waived"
 
         def done(note: str | None) -> None:
             if note is None:

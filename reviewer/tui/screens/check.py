@@ -14,6 +14,7 @@ from textual.widgets import ContentSwitcher, Footer, Static
 
 from reviewer.aids import failing
 from reviewer.engine import Result
+from reviewer.states import WAIVABLE
 from reviewer.tui import analysis
 from reviewer.tui.dialogs.pick_value import PickValueDialog
 from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
@@ -127,7 +128,7 @@ class CheckScreen(WorkbookScreen):
         if action == "waive":
             r = self.session.result(self.stage, self.check)
             return super().applies_now(action) and r is not None and \
-                r.status in ("fail", "marginal")
+                r.status in WAIVABLE
         return super().applies_now(action)
 
     def action_yield(self) -> None:

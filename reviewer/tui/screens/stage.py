@@ -12,6 +12,7 @@ from textual.binding import Binding
 from textual.widgets import Footer, Static
 
 from reviewer.schema import CATALOGUE
+from reviewer.states import WAIVABLE
 from reviewer.tui import attention, present
 from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
 from reviewer.tui.widgets.banner import Banner, banner_parts
@@ -108,7 +109,7 @@ class StageScreen(WorkbookScreen):
         if action == "waive":
             r = self.session.result(self.stage, self.check) if self.check else None
             return super().applies_now(action) and r is not None and \
-                r.status in ("fail", "marginal")
+                r.status in WAIVABLE
         if action == "manual":
             return bool(self.session.manual_questions(self.stage))
         return super().applies_now(action)

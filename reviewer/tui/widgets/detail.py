@@ -22,6 +22,7 @@ from reviewer.errors import LatchbookError
 from reviewer.fmt import eng, show
 from reviewer.model import Project
 from reviewer.registry import CHECKS, Context
+from reviewer.states import ATTENTION
 from reviewer.tui import present
 from reviewer.tui.safety import SAFETY_LINE, cautions_for
 
@@ -126,7 +127,7 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
     if defn is not None:
         out.append_text(_head("Published source"))
         out.append(defn.source + "\n")
-    if result.status in ("fail", "marginal", "error"):
+    if result.status in ATTENTION:
         out.append_text(_head("What would fix it"))
         out.append(result.summary + "\n")
         if defn is not None and defn.fix:

@@ -15,6 +15,7 @@ from textual.message import Message
 from textual.widgets import DataTable
 
 from reviewer.engine import Result
+from reviewer.states import FAILING
 from reviewer.tolerance import Yield
 from reviewer.tui import present
 from reviewer.tui.session import StageCounts
@@ -125,7 +126,7 @@ class StageTable(KeyedTable):
              order: list[str] | None = None) -> None:
         """Show the counts of the stages in ``rows`` (``order``: every stage, unfiltered)."""
         def row(c: StageCounts) -> Row:
-            fails = c.counts.get("fail", 0) + c.counts.get("error", 0)
+            fails = sum(c.counts.get(s, 0) for s in FAILING)
             state = present.status_text("" if computing and not c.counts else c.state)
             return Row(c.stage, (
                 Text(c.stage), Text(c.kind, style="dim"), state,
