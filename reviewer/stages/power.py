@@ -324,22 +324,39 @@ def _bind_blocking(ctx: Context) -> Bound:
                              ctx.stage.id)
         if nets:
             b.options["reverse_from"] = nets[0].id
-            ctx.read(b, "v_c0", ctx.stage_path("charge_voltage", nets[0]))
+            if nets[0].get("diode") is True:
+                # An antiparallel diode conducts as soon as the SCR is reverse-biased.
+                b.options["diode_clamp"] = DIODE_DROP
+            else:
+                ctx.read(b, "v_c0", ctx.stage_path("charge_voltage", nets[0]))
     return b
+
+
+#: The reverse voltage an antiparallel diode leaves across the SCR [V] (its forward drop,
+#: common practice for a silicon power diode).
+DIODE_DROP = 1.0
 
 
 def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarray,
                  limits: Mapping[str, float], snubber: str = "", step: str = "",
                  snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
-                 snub_e: Any = None, reverse_from: str = "", v_c0: Any = None) -> Outcome:
+                 snub_e: Any = None, reverse_from: str = "", v_c0: Any = None,
+                 diode_clamp: float | None = None) -> Outcome:
     vs = np.asarray(vs, dtype=float)
     v_line = vs if kind == "dc" else np.sqrt(2.0) * vs
     v_fwd = v_line
     if snubber:
         e = {"line": np.sqrt(2.0) * vs, "dc": vs}.get(step, snub_e)
-        v_fwd, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
+        v_snub, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
+        # The overshoot adds to the picture; a step smaller than the line never lowers it.
+        v_fwd = np.maximum(v_line, v_snub)
     if kind == "dc":
-        v_rev = (v_c0 if v_c0 is not None else vs) if reverse_from else 0.0 * vs
+        if not reverse_from:
+            v_rev = 0.0 * vs
+        elif diode_clamp is not None:
+            v_rev = diode_clamp + 0.0 * vs
+        else:
+            v_rev = v_c0 if v_c0 is not None else vs
     else:
         v_rev = v_fwd
     out = power.blocking_check(vdrm=vdrm, vrrm=vrrm, v_fwd=v_fwd, v_rev=v_rev, limits=limits)
@@ -351,13 +368,16 @@ def _sum_blocking(r: Reduced) -> str:
     vdrm = r.bound.inputs["vdrm"].value.nom
     vrrm = r.bound.inputs["vrrm"].value.nom
     sn = r.bound.options.get("snubber")
-    src = (f"the snubber `{sn}` overshoot peak" if sn else
-           ("V_s" if r.bound.options["kind"] == "dc" else "√2·V_s"))
+    line = "V_s" if r.bound.options["kind"] == "dc" else "√2·V_s"
+    src = f"the larger of {line} and the snubber `{sn}` overshoot peak" if sn else line
     text = (f"VDRM {eng(vdrm, 'V')} / VRRM {eng(vrrm, 'V')} against "
             f"{eng(r.hi['peak_voltage'], 'V')} ({src}, high line): ratio "
             f"{r.worst['blocking_ratio']:.2f}")
     if r.bound.options["kind"] == "dc" and not r.bound.options.get("reverse_from"):
         text += "; no turn-off network reverse-biases it, so VRRM is not stressed"
+    elif r.bound.options.get("diode_clamp") is not None:
+        text += (f"; the antiparallel diode of `{r.bound.options['reverse_from']}` clamps the "
+                 f"reverse voltage to about {eng(r.bound.options['diode_clamp'], 'V')}")
     if r.status != "pass":
         k = r.limits.get("marginal_below", 2.0)
         text += (f"; {r.status}: needs VDRM and VRRM ≥ {eng(k * r.hi['peak_voltage'], 'V')} "
