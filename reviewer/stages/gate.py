@@ -132,11 +132,8 @@ def _gates(ctx: Context, b: Bound) -> None:
 
 
 def _rating(ctx: Context, b: Bound, name: str, part: Part, key: str) -> bool:
-    """Read a part rating; not applicable (with the reason) when the part does not give it."""
-    if ctx.read(b, name, f"parts.{part.ref}.{key}") is None:
-        b.not_applicable = f"the part {part.ref} gives no `{key}`"
-        return False
-    return True
+    """Read a part rating; incomplete (naming the key) when the part does not give it."""
+    return ctx.want(b, name, f"parts.{part.ref}.{key}") is not None
 
 
 def _cold_text(r: Reduced, names: tuple[str, ...]) -> str:
@@ -321,7 +318,7 @@ def _bind_latch_time(ctx: Context) -> Bound:
     osc = _osc(ctx)
     part = _scr(ctx, b, "il")
     if not isinstance(part.params.get("il"), Value):
-        b.not_applicable = f"the part {part.ref} gives no latching current `il`"
+        b.missing.append(f"parts.{part.ref}.il")
         return b
     for key in ("igt", "vgt", "il"):
         ctx.cold(b, key, part, key)
@@ -342,9 +339,8 @@ def _bind_latch_time(ctx: Context) -> Bound:
     elif osc.get("sync") == "line":
         ctx.need(b, "rt", ctx.stage_path("timing_r", osc))
         b.notes.append(f"firing angle from the line-synchronised oscillator `{osc.id}`")
-    else:
-        b.not_applicable = (f"`{power.id}` gives no `firing` range and the oscillator "
-                            f"`{osc.id}` is free-running, so its pulses are not tied to the line")
+    else:  # a free-running oscillator's pulses are not tied to the line
+        b.missing.append(ctx.stage_path("firing", power))
     return b
 
 
@@ -425,8 +421,7 @@ def _bind_noise(ctx: Context) -> Bound:
                             "`coupling_capacitance` is given, so the common-mode current "
                             "cannot be assessed")
         return b
-    if ctx.read(b, "dvdt", f"parts.{part.ref}.dvdt") is None:
-        b.not_applicable = f"no dv/dt to couple: the part {part.ref} gives no `dvdt`"
+    if ctx.want(b, "dvdt", f"parts.{part.ref}.dvdt") is None:
         return b
     ctx.need(b, "igt", f"parts.{part.ref}.igt")
     b.notes.append(f"dv/dt taken at {part.ref}'s rating (the most it is rated to see)")
@@ -548,8 +543,8 @@ def _bind_transformer(ctx: Context) -> Bound:
     iso = ctx.read(b, "isolation", ctx.stage_path("isolation"))
     req = ctx.read(b, "required_isolation", ctx.stage_path("required_isolation"))
     if not have_vs and (iso is None or req is None):
-        b.not_applicable = ("no `volt_seconds` rating, and no `isolation` with "
-                            "`required_isolation`: nothing to check the transformer against")
+        b.missing.append(ctx.stage_path("volt_seconds") + " (or isolation with "
+                         "required_isolation)")
         return b
     if iso is None or req is None:
         b.inputs.pop("isolation", None)

@@ -390,8 +390,7 @@ def _bind_idle(ctx: Context) -> Bound:
     scrs = ctx.parts("scr", gd)
     missing = [p.ref for p in scrs if not isinstance(p.params.get("vgd"), Value)]
     if missing:
-        b.not_applicable = (f"SCR {', '.join(missing)} has no vgd (gate non-trigger voltage at "
-                            "tj_max): the idle gate voltage cannot be judged")
+        b.missing.extend(f"parts.{m}.vgd" for m in missing)
         return b
     scr = min(scrs, key=lambda p: p.params["vgd"].nom)
     ctx.need(b, "vgd", f"parts.{scr.ref}.vgd")
@@ -469,8 +468,7 @@ def _bind_discharge(ctx: Context) -> Bound:
     ratings = ("ie_peak",) if dev == "ujt" else ("itrm", "energy")
     given = [k for k in ratings if isinstance(part.params.get(k), Value)]
     if not given:
-        b.not_applicable = (f"{part.ref} has no {' or '.join(ratings)} rating: the discharge "
-                            "cannot be judged")
+        b.missing.append(" or ".join(pre + k for k in ratings))
         return b
     _bind_v1(ctx, b)
     ctx.need(b, "ct", ctx.stage_path("timing_c"))
@@ -551,7 +549,7 @@ def _bind_dissipation(ctx: Context) -> Bound:
     part = _part(ctx)
     b.options["device"] = dev
     if not isinstance(part.params.get("pd"), Value):
-        b.not_applicable = f"{part.ref} has no pd rating: the dissipation cannot be judged"
+        b.missing.append(f"parts.{part.ref}.pd")
         return b
     _bind_v1(ctx, b)
     pre = f"parts.{part.ref}."

@@ -134,13 +134,9 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
         b.add("alpha_hi", path + "#max", fv.at(fv.hi))
         return True
     osc = _osc_stage(ctx)
-    if osc is None:
-        b.not_applicable = ("no firing range: give `firing`, or a `gate` whose oscillator is "
-                            "line-synchronised")
-        return False
-    if osc.get("sync") != "line":
-        b.not_applicable = (f"the oscillator `{osc.id}` is free-running, so its pulses are not "
-                            "tied to the line: give `firing`")
+    if osc is None or osc.get("sync") != "line":
+        # No line-synchronised oscillator (or a free-running one, not tied to the line).
+        b.missing.append(path)
         return False
     tmp = Bound()
     dev = osc_stage_mod.bind_device(ctx, tmp, stage=osc)
@@ -197,14 +193,11 @@ def _omega(kw: dict[str, Any]) -> np.ndarray:
 
 
 def _hot_or_na(ctx: Context, b: Bound, names: dict[str, str]) -> bool:
-    """Read part ratings ``names`` (input name → part key); not applicable when one is missing."""
+    """Read part ratings ``names`` (input name → part key); incomplete when one is missing."""
     part = _scr(ctx)
     missing = [key for name, key in names.items()
-               if ctx.read(b, name, f"parts.{part.ref}.{key}") is None]
-    if missing:
-        b.not_applicable = f"the part {part.ref} gives no " + ", ".join(f"`{m}`" for m in missing)
-        return False
-    return True
+               if ctx.want(b, name, f"parts.{part.ref}.{key}") is None]
+    return not missing
 
 
 def _deg(x: float) -> str:
@@ -497,7 +490,7 @@ def _bind_junction(ctx: Context) -> Bound:
     b = Bound()
     hs = ctx.stage.get("heatsink")
     if not isinstance(hs, dict):
-        b.not_applicable = "no `heatsink` given: the junction temperature needs Rth(s-a)"
+        b.missing.append(_sp(ctx, "heatsink") + " (its rth_sa)")
         return b
     if not _hot_or_na(ctx, b, {"vt0": "vt0", "rt": "rt", "rth_jc": "rth_jc",
                                "tj_max": "tj_max"}):
@@ -609,7 +602,7 @@ def _bind_fuse(ctx: Context) -> Bound:
     if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is None:
         itsm = ctx.read(b, "itsm", f"parts.{part.ref}.itsm")
         if itsm is None:
-            b.not_applicable = f"the part {part.ref} gives neither `i2t` nor `itsm`"
+            b.missing.append(f"parts.{part.ref}.i2t (or itsm)")
             return b
         b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
     if ctx.read(b, "t_base", _sp(ctx, "fuse.clearing_time")) is not None:
@@ -664,7 +657,7 @@ register(CheckDef(
 def _bind_cold(ctx: Context, b: Bound, key: str) -> bool:
     part = _scr(ctx)
     if part.params.get(key) is None:
-        b.not_applicable = f"the part {part.ref} gives no `{key}`"
+        b.missing.append(f"parts.{part.ref}.{key}")
         return False
     ctx.cold(b, key, part, key)
     ctx.ambient_min(b)
@@ -810,9 +803,8 @@ def _bind_didt(ctx: Context) -> Bound:
     ctx.need(b, "vs", "supply.voltage")
     ls = ctx.read(b, "l_s", "supply.inductance")
     ll = ctx.read(b, "l", _sp(ctx, "load.l"))
-    if ls is None and ll is None:
-        b.not_applicable = ("no inductance in the load loop is given (supply.inductance, "
-                            "load.l): di/dt is bounded only by the wiring")
+    if ls is None and ll is None:  # di/dt is then bounded only by the wiring
+        b.missing.append("supply.inductance (or " + _sp(ctx, "load.l") + ")")
         return b
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:

@@ -88,22 +88,19 @@ def _bind_step(ctx: Context, b: Bound, *, supply_too: bool = False) -> None:
     lv = ctx.read(b, "l", ctx.stage_path("inductance"))
     if lv is None:
         lv = ctx.read(b, "l", "supply.inductance")
-    if lv is None:
-        b.not_applicable = ("no loop inductance: give the snubber's `inductance` or the supply's "
-                            "(the R–L–C step needs the wiring inductance, a few µH at least)")
+    if lv is None:  # the R–L–C step needs the wiring inductance, a few µH at least
+        b.missing.append(ctx.stage_path("inductance") + " (or supply.inductance)")
     elif lv.lo <= 0.0:
         b.not_applicable = ("the loop inductance is 0, where the step would appear at once "
                             "across R_sn: give the wiring inductance (a few µH at least)")
 
 
 def _scr_value(ctx: Context, b: Bound, name: str, key: str, what: str) -> bool:
-    """Add the SCR's ``key`` as input ``name``; False (and not applicable) when not given."""
+    """Add the SCR's ``key`` (its ``what``) as input ``name``; False (and incomplete) when not
+    given."""
     part = ctx.part("scr", _power(ctx))
     assert part is not None
-    if ctx.read(b, name, f"parts.{part.ref}.{key}") is None:
-        b.not_applicable = f"the SCR {part.ref} has no {what} (`{key}`) to compare with"
-        return False
-    return True
+    return ctx.want(b, name, f"parts.{part.ref}.{key}") is not None
 
 
 def _bind_alpha(ctx: Context, b: Bound, power: Stage) -> None:
@@ -371,8 +368,7 @@ def _bind_rpower(ctx: Context) -> Bound:
     power = _power(ctx)
     _bind_rc(ctx, b)
     ctx.need(b, "v", "supply.voltage")
-    if ctx.read(b, "rating", ctx.stage_path("r_power")) is None:
-        b.not_applicable = "no resistor rating (`r_power`) given for the snubber resistor"
+    if ctx.want(b, "rating", ctx.stage_path("r_power")) is None:
         return b
     dc = power.kind == "dc-switch"
     b.options["dc"] = dc
@@ -381,8 +377,9 @@ def _bind_rpower(ctx: Context) -> Bound:
         gate = ctx.linked_stage("gate", power)
         osc = ctx.linked_stage("source", gate) if gate is not None else None
         if osc is None or osc.get("sync") == "line":
-            b.not_applicable = ("the switching rate is not known: link the DC switch's `gate` "
-                                "to a gate drive fed by a free-running oscillator")
+            # The switching rate comes from a free-running oscillator behind the gate drive.
+            b.missing.append(ctx.stage_path("gate", power) + " (a gate drive fed by a "
+                             "free-running oscillator, for the switching rate)")
             return b
         bind_device(ctx, b, osc)
         del b.inputs["ip"]  # the rate needs only the peak point and the valley
@@ -391,8 +388,7 @@ def _bind_rpower(ctx: Context) -> Bound:
         b.notes.append("switching rate from the oscillator's charge time (discharge time "
                        "neglected, so the rate errs high)")
         return b
-    if ctx.read(b, "f", "supply.frequency") is None:
-        b.not_applicable = "the supply frequency is not given"
+    if ctx.want(b, "f", "supply.frequency") is None:
         return b
     _bind_alpha(ctx, b, power)
     b.options["topology"] = str(power.get("topology", "half-wave"))
@@ -451,8 +447,8 @@ register(CheckDef(
 def _bind_cap(ctx: Context) -> Bound:
     b = Bound()
     _bind_step(ctx, b, supply_too=True)
-    if b.not_applicable is None and ctx.read(b, "rating", ctx.stage_path("c_voltage")) is None:
-        b.not_applicable = "no capacitor voltage rating (`c_voltage`) given"
+    if b.not_applicable is None and not b.missing:
+        ctx.want(b, "rating", ctx.stage_path("c_voltage"))
     return b
 
 
@@ -491,8 +487,7 @@ def _bind_leak(ctx: Context) -> Bound:
     power = _power(ctx)
     ctx.need(b, "v", "supply.voltage")
     ctx.need(b, "c", ctx.stage_path("c"))
-    if ctx.read(b, "f", "supply.frequency") is None:
-        b.not_applicable = "the supply frequency is not given"
+    if ctx.want(b, "f", "supply.frequency") is None:
         return b
     ctx.read(b, "hold", _load(ctx, power, "hold_current"))
     return b

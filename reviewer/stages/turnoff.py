@@ -88,9 +88,8 @@ def _bind_firing(ctx: Context, b: Bound, pw: Stage) -> None:
         return
     gate = ctx.linked_stage("gate", pw)
     osc = ctx.linked_stage("source", gate) if gate is not None else None
-    if osc is None or osc.get("sync") != "line":
-        b.not_applicable = (f"no firing range: give `firing` in [stages.{pw.id}] (the trigger "
-                            "is not a line-synchronised oscillator)")
+    if osc is None or osc.get("sync") != "line":  # no line-synchronised trigger to take it from
+        b.missing.append(f"stages.{pw.id}.firing")
         return
     dev = "ujt" if osc.kind == "ujt-oscillator" else "put"
     part = ctx.part(dev, osc)
@@ -121,8 +120,7 @@ def _bind_line(ctx: Context, b: Bound, pw: Stage, *, for_dvdt: bool) -> None:
     if ctx.project.supply.get("kind") != "ac":
         b.not_applicable = "line commutation needs an AC supply"
         return
-    if ctx.read(b, "f", "supply.frequency") is None:
-        b.not_applicable = "the supply frequency is not given"
+    if ctx.want(b, "f", "supply.frequency") is None:
         return
     topology = pw.get("topology", "half-wave")
     freewheel = bool(pw.get("freewheel", False))
@@ -168,8 +166,7 @@ def _bind_network(ctx: Context, b: Bound, pw: Stage) -> None:
 
 def _bind_time(ctx: Context) -> Bound:
     b, pw, scr = _start(ctx)
-    if ctx.read(b, "tq", f"parts.{scr.ref}.tq") is None:
-        b.not_applicable = f"the SCR {scr.ref} has no tq: give its turn-off time at Tj,max"
+    if ctx.want(b, "tq", f"parts.{scr.ref}.tq") is None:  # its turn-off time at Tj,max
         return b
     if b.options["network"] == "line":
         _bind_line(ctx, b, pw, for_dvdt=False)
@@ -183,8 +180,7 @@ def _bind_time(ctx: Context) -> Bound:
 
 def _bind_capacitor(ctx: Context) -> Bound:
     b, pw, _ = _start(ctx)
-    if ctx.read(b, "c_voltage", ctx.stage_path("c_voltage")) is None:
-        b.not_applicable = "no capacitor voltage rating: give c_voltage"
+    if ctx.want(b, "c_voltage", ctx.stage_path("c_voltage")) is None:
         return b
     _bind_network(ctx, b, pw)
     return b
@@ -199,14 +195,13 @@ def _bind_peak(ctx: Context) -> Bound:
 
 def _bind_dvdt(ctx: Context) -> Bound:
     b, pw, scr = _start(ctx)
-    if ctx.read(b, "dvdt", f"parts.{scr.ref}.dvdt") is None:
-        b.not_applicable = f"the SCR {scr.ref} has no dv/dt rating: give dvdt at Tj,max"
+    if ctx.want(b, "dvdt", f"parts.{scr.ref}.dvdt") is None:  # the rating at Tj,max
         return b
     if b.options["network"] != "line":
         _bind_network(ctx, b, pw)
         return b
     _bind_line(ctx, b, pw, for_dvdt=True)
-    if b.not_applicable or "l" not in b.inputs:
+    if b.not_applicable or b.missing or "l" not in b.inputs:
         return b
     snubbers = ctx.stages_of(("rc-snubber",), "across", pw.id)
     if not snubbers:
@@ -218,8 +213,7 @@ def _bind_dvdt(ctx: Context) -> Bound:
     ctx.need(b, "snubber_c", ctx.stage_path("c", sn))
     if ctx.read(b, "snubber_l", ctx.stage_path("inductance", sn)) is None \
             and ctx.read(b, "snubber_l", "supply.inductance") is None:
-        b.not_applicable = (f"no loop inductance for snubber `{sn.id}`: give its inductance or "
-                            "supply.inductance")
+        b.missing.append(ctx.stage_path("inductance", sn) + " (or supply.inductance)")
     return b
 
 

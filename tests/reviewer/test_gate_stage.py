@@ -304,7 +304,7 @@ def test_latch_time_from_the_line_synchronised_oscillator():
 def test_latch_time_not_applicable_without_a_power_stage_or_range():
     assert run("gate.latch-time", power="").status == "not-applicable"
     res = run("gate.latch-time", firing="")  # free-running oscillator, no `firing`
-    assert res.status == "not-applicable" and "free-running" in res.summary
+    assert res.status == "incomplete" and "stages.power.firing not given" in res.summary
 
 
 # ------------------------------------------------------------------ gate.noise

@@ -54,3 +54,54 @@ def test_antiparallel_diode_clamps_the_reverse_stress():
     assert clamped.values["blocking_ratio"].min == pytest.approx(100 / 26.4, rel=1e-9)
     assert clamped.status == "pass" and "diode" in clamped.summary
     assert run_dc("power.blocking").status == "pass"
+
+
+def _kiln_without(tmp_path, *lines: str):
+    """kiln-230 with the given lines left out (a key the review needs, not given)."""
+    from pathlib import Path
+
+    src = (Path(__file__).parents[2] / "projects" / "kiln-230.toml").read_text("utf-8")
+    kept = [ln for ln in src.splitlines() if ln.strip() not in lines]
+    assert len(kept) == len(src.splitlines()) - len(lines)
+    p = tmp_path / "kiln.toml"
+    p.write_text("\n".join(kept) + "\n", "utf-8")
+    return p
+
+
+def test_missing_data_is_incomplete_everywhere(tmp_path, capsys):
+    """No c_voltage, no tq: `incomplete`, naming the key, counted and exiting 1 like a fail."""
+    import json
+
+    from reviewer.cli import main
+    from reviewer.line import status_matrix
+    from reviewer.review import check_states, counts, load_record
+    from reviewer.tui.attention import matches
+
+    p = _kiln_without(tmp_path, 'c_voltage = "630 V"', 'tq = "80 us"')
+    assert main(["check", str(p), "--json"]) == 1
+    doc = json.loads(capsys.readouterr().out)
+    got = {(r["stage"], r["check"]): r for r in doc["results"]}
+    cap = got[("snubber", "snubber.capacitor")]
+    assert cap["status"] == "incomplete"
+    assert cap["needs"] == ["stages.snubber.c_voltage"]
+    assert "stages.snubber.c_voltage not given" in cap["summary"]
+    tq = got[("commutation", "turnoff.time")]
+    assert tq["status"] == "incomplete" and tq["needs"] == ["parts.Q1.tq"]
+    # The status counts, the matrix cell and the workbook's filters all see them.
+    from reviewer.engine import run_project
+
+    run = run_project(p)
+    c = counts(check_states(load_record(p), run))
+    assert c["incomplete"] == 2 and c["fail"] == 0
+    m = status_matrix([str(tmp_path)])
+    assert m.rows[0].cells["snubber"].state == "incomplete"
+    assert m.failing == m.rows
+    assert matches("attention", "incomplete", "signed") and matches("fails", "incomplete", "")
+    assert matches("fails", "blocked", "") and not matches("fails", "pass", "")
+    # A checklist can still switch the check off explicitly: then it is n/a, not incomplete.
+    from reviewer.checklist import standard
+
+    cl = standard()
+    cl.disabled["snubber.capacitor"] = "capacitor rating checked on the purchase spec"
+    res = evaluate(run.project, cl, only=[("snubber", "snubber.capacitor")]).results[0]
+    assert res.status == "not-applicable"
