@@ -62,6 +62,7 @@ def _bind_source(ctx: Context, b: Bound, *, pulse: bool) -> str:
     t = 0 Thevenin source is read. Returns the device (``ujt`` or ``put``).
     """
     osc = _osc(ctx)
+    b.depends.append((osc.id, "osc.window"))  # no pulse at all unless it oscillates
     dev = bind_device(ctx, b, stage=osc)
     b.inputs.pop("ip", None)  # the peak-point current plays no part in the pulse
     if not pulse:

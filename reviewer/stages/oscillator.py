@@ -209,6 +209,7 @@ register(CheckDef(
 
 def _bind_timing(ctx: Context) -> Bound:
     b = Bound()
+    b.depends.append((ctx.stage.id, "osc.window"))  # it never fires or latches on
     st = ctx.stage
     dev = device_of(st.kind)
     part = _part(ctx)
@@ -461,6 +462,7 @@ register(CheckDef(
 
 def _bind_discharge(ctx: Context) -> Bound:
     b = Bound()
+    b.depends.append((ctx.stage.id, "osc.window"))  # it never fires or latches on
     dev = device_of(ctx.stage.kind)
     part = _part(ctx)
     b.options["device"] = dev

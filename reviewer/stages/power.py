@@ -138,6 +138,7 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
         # No line-synchronised oscillator (or a free-running one, not tied to the line).
         b.missing.append(path)
         return False
+    b.depends.append((osc.id, "osc.window"))  # no firing angle unless it oscillates
     tmp = Bound()
     dev = osc_stage_mod.bind_device(ctx, tmp, stage=osc)
     keys = ("eta", "rbb", "vd", "r1", "r2") if dev == "ujt" else ("offset", "r_upper", "r_lower")

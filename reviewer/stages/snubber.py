@@ -118,6 +118,7 @@ def _bind_alpha(ctx: Context, b: Bound, power: Stage) -> None:
     osc = ctx.linked_stage("source", gate) if gate is not None else None
     freq = ctx.project.lookup("supply.frequency")
     if osc is not None and osc.get("sync") == "line" and isinstance(freq, Value):
+        b.depends.append((osc.id, "osc.window"))  # no firing angle unless it oscillates
         bind_device(ctx, b, osc)
         for unused in ("vv", "ip"):
             b.inputs.pop(unused, None)

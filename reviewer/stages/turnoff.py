@@ -98,6 +98,7 @@ def _bind_firing(ctx: Context, b: Bound, pw: Stage) -> None:
     if "v_s" not in b.inputs:  # the oscillator runs from the rectified line
         ctx.need(b, "v_s", "supply.voltage")
     b.notes.append(f"firing angle from the line-synchronised oscillator `{osc.id}`")
+    b.depends.append((osc.id, "osc.window"))  # no firing angle unless it oscillates
     ctx.need(b, "osc_vz", ctx.stage_path("zener", osc))
     ctx.need(b, "osc_rt", ctx.stage_path("timing_r", osc))
     ctx.need(b, "osc_ct", ctx.stage_path("timing_c", osc))

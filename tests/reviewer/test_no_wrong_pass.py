@@ -7,9 +7,7 @@ from __future__ import annotations
 
 import math
 
-import numpy as np
 import pytest
-from scipy.integrate import solve_ivp
 
 from reviewer.engine import evaluate
 from reviewer.project import load_project_text
@@ -105,3 +103,23 @@ def test_missing_data_is_incomplete_everywhere(tmp_path, capsys):
     cl.disabled["snubber.capacitor"] = "capacitor rating checked on the purchase spec"
     res = evaluate(run.project, cl, only=[("snubber", "snubber.capacitor")]).results[0]
     assert res.status == "not-applicable"
+
+
+@pytest.mark.parametrize("rt", ["3 Mohm", "500 ohm"])
+def test_checks_behind_a_failed_window_are_blocked(rt):
+    """Above the window the UJT never fires; below it, it latches on (common practice: the
+    window (V − VV)/IV < R_T < (V − VP)/IP). Nothing downstream may pass on such a trigger."""
+    from .test_oscillator_stage import project
+
+    p = project(stage={"timing_r": rt, "target": {"min": "1 Hz", "max": "5 kHz"}},
+                gate={}, scr={"pgm": "5 W", "pg_av": "0.5 W", "vrgm": "5 V"})
+    got = {r.check: r for r in evaluate(p).results}
+    assert got["osc.window"].status == "fail"
+    for cid in ("osc.timing", "osc.discharge", "gate.trigger", "gate.peak-power",
+                "gate.average-power"):
+        assert got[cid].status == "blocked", (cid, got[cid].summary)
+        assert got[cid].needs == ["osc/osc.window"]
+        assert got[cid].margin is None
+        assert got[cid].as_dict()["needs"] == ["osc/osc.window"]
+    # What does not rest on the oscillation still gets its own answer.
+    assert got["osc.dissipation"].status == "pass"
