@@ -112,6 +112,12 @@ def _segment_peak(a: np.ndarray, b: np.ndarray, phi: np.ndarray, c: np.ndarray) 
 def _segment_peak_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np.ndarray,
                      tau: np.ndarray) -> np.ndarray:
     """:func:`_segment_peak` for 1-D R–L rows (tan φ > 0): grid bracket, golden section."""
+    return _segment_argmax_rl(a, length, phi, c, tau)[0]
+
+
+def _segment_argmax_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np.ndarray,
+                       tau: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The largest value of an R–L segment and the angle where it is, (i_max, θ_max)."""
     frac = np.linspace(0.0, 1.0, 257)
     grid = a[..., None] + length[..., None] * frac
     b = a + length
@@ -141,7 +147,10 @@ def _segment_peak_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np.n
         f1n = np.where(left, f(x1n), f2)
         f2n = np.where(left, f1, f(x2n))
         x1, x2, f1, f2 = x1n, x2n, f1n, f2n
-    return np.maximum(best, np.maximum(f1, f2))
+    fx = np.maximum(f1, f2)
+    th_best = a + k * step
+    th = np.where(fx >= best, np.where(f1 >= f2, x1, x2), th_best)
+    return np.maximum(best, fx), th
 
 
 def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
@@ -722,18 +731,22 @@ def dropout_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
     162.1
     """
     vm, z, phi = _vm_z_phi(vs, r, l, omega)
-    a = np.broadcast_to(_a(alpha), vm.shape)
-    phi = np.broadcast_to(phi, vm.shape)
-    target = _a(ih) * z / vm
+    vm, z, phi, a, ih = np.broadcast_arrays(vm, z, phi, _a(alpha), _a(ih))
+    target = ih * z / vm
     beta = extinction_angle(alpha=a, phi=phi)
-    # The R–L current falls monotonically after the peak; bracket from the R-load peak angle
-    # max(α, π/2 + φ), a point on or after the maximum of the forced term.
+    # Resistive rows: the current is largest at max(α, π/2) and falls after it.
     lo = np.minimum(np.maximum(a, np.pi / 2 + phi), beta)
     lo, hi, a, phi, target = np.broadcast_arrays(lo, beta, a, phi, target)
+    lo = np.array(lo, dtype=float)
+    rl = np.tan(phi) > 1e-12
+    if rl.any():
+        # R–L rows: the current rises from zero at α to one peak, then falls to zero at β;
+        # the drop-out lies after the peak (fired late, the peak is well past π/2 + φ).
+        _, lo[rl] = _segment_argmax_rl(a[rl], (beta - a)[rl], phi[rl], -np.sin(a - phi)[rl],
+                                       np.tan(phi[rl]))
     cur = rl_current(theta=lo, alpha=a, phi=phi, vm=1.0, z=1.0)
     # Resistive rows (no exponential in rl_current): sin(θ − φ) = IH·Z/Vm past the crest.
     out = np.clip(phi + np.pi - np.arcsin(np.clip(target, -1.0, 1.0)), lo, hi)
-    rl = np.tan(phi) > 1e-12
     if rl.any():
         lo_r, hi_r, a_r, p_r, t_r = lo[rl], hi[rl], a[rl], phi[rl], target[rl]
         for _ in range(50):  # vectorised bisection: i(θ) − IH changes sign once on [lo, hi]

@@ -219,11 +219,14 @@ def _bind_output(ctx: Context) -> Bound:
     if not _bind_firing(ctx, b, sweep=7):
         return b
     req = ctx.stage.get("required")
-    if not isinstance(req, Value):
-        b.not_applicable = ("no `required` range to compare the output with (the output over "
-                            "the firing range is shown in the waveform view)")
-        return b
     path = _sp(ctx, "required")
+    if not isinstance(req, Value):
+        # The values are always reported; only the pass/fail needs a `required` range.
+        b.options["quantity"] = "power"
+        nan = Value.fixed(float("nan"), "power", "W")
+        b.add("req_hi", path + "#none", nan)
+        b.add("req_lo", path + "#none-min", nan)
+        return b
     b.options["quantity"] = "power" if req.dim == "power" else "voltage"
     b.add("req_hi", path + "#max", req.at(req.hi))
     b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
@@ -260,6 +263,8 @@ def _sum_output(r: Reduced) -> str:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
                          f"{eng(req_lo, unit)}: needs a later α_max")
         text += "; fails: " + "; ".join(fixes)
+    if req_hi != req_hi and req_lo != req_lo:
+        text += "; no `required` range given: reported, not judged"
     err_hi = r.hi.get("shortcut_error", float("nan"))
     inductive = r.hi.get("load_angle", 0.0) > 0 and not r.bound.options.get("freewheel")
     alpha_hi = r.hi.get("conduction_angle", 0.0)
@@ -286,6 +291,7 @@ register(CheckDef(
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
+    optional=frozenset({"shortcut_error"}),
 ))
 
 

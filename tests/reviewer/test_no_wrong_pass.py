@@ -7,7 +7,9 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 import pytest
+from scipy.integrate import solve_ivp
 
 from reviewer.engine import evaluate
 from reviewer.project import load_project_text
@@ -123,3 +125,55 @@ def test_checks_behind_a_failed_window_are_blocked(rt):
         assert got[cid].as_dict()["needs"] == ["osc/osc.window"]
     # What does not rest on the oscillation still gets its own answer.
     assert got["osc.dissipation"].status == "pass"
+
+
+def _grid_rms(vm: float, alpha: float, n: int = 2_000_001) -> float:
+    """RMS of an ac-switch load voltage by fine-grid integration over one half-cycle."""
+    th = np.linspace(0.0, np.pi, n)
+    v = np.where(th >= alpha, vm * np.sin(th), 0.0)
+    return float(np.sqrt(np.trapezoid(v * v, th) / np.pi))
+
+
+def test_output_values_are_reported_without_required():
+    """`required` only adds the pass/fail; the values are always there."""
+    r = run("power.output", required="")
+    assert r.status == "pass" and "reported, not judged" in r.summary
+    assert set(r.values) >= {"vdc", "vrms", "load_power", "extinction_angle",
+                             "conduction_angle", "shortcut_error"}
+    vm = math.sqrt(2) * 230  # nominal line, nominal α = 80° (the middle of 10–150°)
+    assert r.values["vrms"].nominal == pytest.approx(_grid_rms(vm, math.radians(80)), rel=1e-6)
+    assert r.values["vrms"].max == pytest.approx(
+        _grid_rms(vm * 1.1, math.radians(10)), rel=1e-6)
+    assert r.values["load_power"].nominal == pytest.approx(
+        _grid_rms(vm, math.radians(80)) ** 2 / 26.45, rel=1e-6)
+
+
+def _ivp_dropout(vm: float, r: float, l: float, w: float, alpha: float, ih: float) -> float:
+    """The angle [rad] where the R–L current fired at α falls back to IH: solve_ivp of
+    L·di/dt = Vm·sin ωt − R·i from i = 0 (the SCR as an ideal switch)."""
+    def f(t, i):
+        return [(vm * math.sin(w * t) - r * i[0]) / l]
+
+    def falls(t, i):
+        return i[0] - ih
+    falls.direction = -1
+    falls.terminal = True
+    t0 = alpha / w
+    sol = solve_ivp(f, (t0, t0 + 2 * math.pi / w), [0.0], events=falls, rtol=1e-11,
+                    atol=1e-12, max_step=1e-5)
+    return float(sol.t_events[0][0] * w)
+
+
+def test_holding_of_an_inductive_load_fired_late():
+    """Fired at 140–150° into φ = 44.5°, the current still peaks well above IH and drops out
+    past 180°: a pass with the drop-out angle, not "never reaches IH"."""
+    w, r = 2 * math.pi * 50, 26.45
+    l = r * math.tan(math.radians(44.5)) / w  # 82.8 mH
+    res = run("power.holding", l=f', l = "{l * 1e3:.6f} mH"', amin="140 deg", amax="150 deg")
+    assert res.status == "pass", res.summary
+    ih = 0.020 * (1 + 35 / 65)  # IH cold at −10 °C (common-practice factor 2 at −40 °C)
+    ref = [_ivp_dropout(math.sqrt(2) * v, r, l, w, math.radians(a), ih)
+           for v in (207.0, 253.0) for a in (140.0, 150.0)]
+    assert res.values["dropout_angle"].min == pytest.approx(math.degrees(min(ref)), abs=1e-3)
+    assert res.values["dropout_angle"].max == pytest.approx(math.degrees(max(ref)), abs=1e-3)
+    assert res.values["dropout_angle"].min > 180
