@@ -658,7 +658,9 @@ def max_firing_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E
                      omega: np.ndarray, il: np.ndarray) -> np.ndarray:
     """Latest α at which the anode current still reaches IL [rad]: π − asin(IL·R/Vm) for an
     R load  [1, §10]; for R–L, vectorised bisection on :func:`peak_after_firing` over
-    [π/2, π] (the peak falls as α grows there). NaN when even full output never reaches IL.
+    [0, π] (the peak after firing falls as α grows: below φ the offset adds to it), so a
+    strongly inductive light load can have its limit below 90°. NaN when even firing at
+    α = 0 never reaches IL.
 
     >>> round(float(np.degrees(max_firing_angle(vs=230.0, r=2e3, l=0.0, omega=314.16,
     ...                                         il=0.1))), 2)
@@ -666,12 +668,12 @@ def max_firing_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E
     """
     vs, r, l, il = np.broadcast_arrays(_a(vs), _a(r), _a(l), _a(il))  # noqa: E741
     omega = np.broadcast_to(_a(omega), vs.shape)
-    ok = peak_after_firing(vs=vs, r=r, l=l, omega=omega, alpha=np.full(vs.shape, np.pi / 2)) >= il
+    ok = peak_after_firing(vs=vs, r=r, l=l, omega=omega, alpha=np.zeros(vs.shape)) >= il
     out = np.array(np.pi - np.arcsin(np.clip(il * r / (np.sqrt(2) * vs), 0.0, 1.0)), dtype=float)
     m = l > 0
     if np.any(m):  # vectorised bisection over the inductive rows only
         s = {k: v[m] for k, v in (("vs", vs), ("r", r), ("l", l), ("omega", omega))}
-        lo = np.full(int(m.sum()), np.pi / 2)
+        lo = np.zeros(int(m.sum()))
         hi = np.full(lo.shape, np.pi)
         for _ in range(40):
             mid = 0.5 * (lo + hi)
@@ -680,7 +682,6 @@ def max_firing_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E
             hi = np.where(reach, hi, mid)
         out = out.copy()
         out[m] = 0.5 * (lo + hi)
-    # An R–L peak can exceed the R-load one below 90°: check α ≤ π/2 is even possible.
     return np.where(ok, out, np.nan)
 
 

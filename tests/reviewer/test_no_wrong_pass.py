@@ -177,3 +177,34 @@ def test_holding_of_an_inductive_load_fired_late():
     assert res.values["dropout_angle"].min == pytest.approx(math.degrees(min(ref)), abs=1e-3)
     assert res.values["dropout_angle"].max == pytest.approx(math.degrees(max(ref)), abs=1e-3)
     assert res.values["dropout_angle"].min > 180
+
+
+def _ivp_peak(vm: float, r: float, l: float, w: float, alpha: float) -> float:
+    """The largest R–L current after firing at α from zero, by solve_ivp up to extinction."""
+    def f(t, i):
+        return [(vm * math.sin(w * t) - r * i[0]) / l]
+
+    def ends(t, i):
+        return i[0] + 1e-9 if t > alpha / w + 1e-6 else 1.0
+    ends.terminal = True
+    ends.direction = -1
+    t0 = alpha / w
+    sol = solve_ivp(f, (t0, t0 + 2 * math.pi / w), [0.0], events=ends, rtol=1e-10,
+                    atol=1e-12, max_step=2e-5)
+    return float(sol.y[0].max())
+
+
+def test_latest_latching_angle_below_90_degrees():
+    """R = 1 kΩ, L = 10 H, IL = 50 mA (76.9 mA cold): the limit lies below 90°; it must be
+    a number, and the summary must ask for it."""
+    from scipy.optimize import brentq
+
+    res = run("power.latching", r="1 kohm", l=', l = "10 H"', il="50 mA",
+              amin="30 deg", amax="150 deg")
+    assert res.status == "fail"
+    w, il = 2 * math.pi * 50, 0.050 * (1 + 35 / 65)
+    vm = math.sqrt(2) * 207.0  # low line
+    ref = brentq(lambda a: _ivp_peak(vm, 1e3, 10.0, w, a) - il, 0.0, math.pi / 2, xtol=1e-9)
+    got = res.values["max_firing_angle"].min
+    assert got == pytest.approx(math.degrees(ref), abs=0.02)
+    assert got < 90 and f"needs α_max ≤ {got:.3g}°" in res.summary
