@@ -25,6 +25,7 @@ from reviewer.registry import (
 )
 from reviewer.schema import POWER
 from reviewer.stages import oscillator as osc_stage_mod
+from reviewer.stages.firing import rt_at_angles
 
 V = "value"
 
@@ -158,7 +159,19 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
         ctx.need(b, "freq", "supply.frequency")
         b.options["firing_freq_only"] = True
     b.notes.append(f"firing range from the line-synchronised oscillator `{osc.id}`")
+    if sweep and extra and rt.varies:
+        pkeys = [k for k in keys if "osc_" + k in b.inputs]
+
+        def angle_of(g: Mapping[str, np.ndarray], r_t: np.ndarray) -> np.ndarray:
+            return oscillator.line_sync_firing_angle(
+                device=dev, vm=np.sqrt(2.0) * g["vs"], omega=2 * np.pi * g["freq"],
+                vz=g["osc_vz"], rt=r_t, ct=g["osc_ct"], **{k: g["osc_" + k] for k in pkeys})
+
+        b.inputs["osc_rt"].extra = rt_at_angles(
+            b, "osc_rt", ["osc_" + k for k in pkeys] + ["osc_vz", "osc_ct", "vs", "freq"],
+            angle_of, extra)
     return True
+
 
 
 def _firing(kw: dict[str, Any], vs: Any = None,

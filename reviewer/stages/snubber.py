@@ -10,6 +10,7 @@ firing range with α = 90° added as an interior point, since the voltage at fir
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from typing import Any
 
 import numpy as np
@@ -29,6 +30,7 @@ from reviewer.registry import (
     register_kind,
 )
 from reviewer.schema import POWER
+from reviewer.stages.firing import rt_at_angles
 from reviewer.stages.oscillator import bind_device
 
 V = "value"
@@ -122,10 +124,20 @@ def _bind_alpha(ctx: Context, b: Bound, power: Stage) -> None:
         bind_device(ctx, b, osc)
         for unused in ("vv", "ip"):
             b.inputs.pop(unused, None)
-        ctx.need(b, "osc_rt", ctx.stage_path("timing_r", osc), sweep=OSC_SWEEP)
+        rt = ctx.need(b, "osc_rt", ctx.stage_path("timing_r", osc), sweep=OSC_SWEEP)
         ctx.need(b, "osc_ct", ctx.stage_path("timing_c", osc))
         ctx.need(b, "v", "supply.voltage")
         ctx.need(b, "f", "supply.frequency")
+        if rt.varies:
+            dev = "ujt" if osc.kind == "ujt-oscillator" else "put"
+            peak = [k for k in _OSC_KEYS if k in b.inputs]
+
+            def angle_of(g: Mapping[str, np.ndarray], r_t: np.ndarray) -> np.ndarray:
+                return snubber.osc_firing_angle(device=dev, v=g["v"], f=g["f"], rt=r_t,
+                                                ct=g["osc_ct"], **{k: g[k] for k in peak})
+
+            b.inputs["osc_rt"].extra = rt_at_angles(b, "osc_rt", peak + ["osc_ct", "v", "f"],
+                                                    angle_of, (HALF_PI,))
         b.options["alpha_from"] = "osc"
         b.notes.append(f"firing angle from the line-synchronised oscillator `{osc.id}` "
                        f"(timing R swept at {OSC_SWEEP} points)")

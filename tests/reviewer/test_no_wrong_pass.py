@@ -208,3 +208,19 @@ def test_latest_latching_angle_below_90_degrees():
     got = res.values["max_firing_angle"].min
     assert got == pytest.approx(math.degrees(ref), abs=0.02)
     assert got < 90 and f"needs α_max ≤ {got:.3g}°" in res.summary
+
+
+def test_didt_worst_case_reaches_90_degrees_with_an_oscillator_firing_range(projects_dir):
+    """kiln-230 takes its firing range from a line-synchronised UJT that spans 90°: the worst
+    di/dt is at α = 90° exactly, √2·V_max·(1/L_s + 1/(R_sn,min·t_gt)) (sin α ≤ 1)."""
+    from reviewer.engine import run_project
+
+    run = run_project(projects_dir / "kiln-230.toml")
+    r = run.by_key()[("power", "power.didt")]
+    vm = math.sqrt(2) * 230 * 1.1
+    expected = vm / 50e-6 + vm / (33 * 0.95) / 2e-6
+    assert r.values["didt"].max == pytest.approx(expected, rel=1e-9)
+    d = run.by_key()[("snubber", "snubber.discharge")]
+    assert d.evaluation is not None
+    alpha = d.evaluation.outcome.values["alpha"][d.evaluation.worst_row]
+    assert alpha == pytest.approx(math.pi / 2, abs=1e-9)
