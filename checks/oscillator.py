@@ -804,15 +804,18 @@ def idle_gate_check(*, device: str, vgd: np.ndarray, series_r: np.ndarray,
 
 def discharge_check(*, device: str, v1: np.ndarray, ct: np.ndarray,
                     limits: Mapping[str, float], r_pulse: np.ndarray,
-                    series_r: np.ndarray | float = np.inf, rb1_on: np.ndarray | float = 0.0,
+                    series_r: np.ndarray | float = np.inf, turns: np.ndarray | float = 1.0,
+                    rb1_on: np.ndarray | float = 0.0,
                     vf: np.ndarray | float = np.nan, current_rating: np.ndarray | float = np.nan,
                     energy_rating: np.ndarray | float = np.nan, **p: np.ndarray) -> Outcome:
     """``osc.discharge``: the capacitor's discharge against the device's ratings.
 
     UJT: i_pk = (VP − VD)/(r_on + R1′) against ``current_rating`` (ie_peak); PUT:
     i_pk = (VP − VF)/R_K′ against ``current_rating`` (itrm) and ½·C_T·VP² against
-    ``energy_rating``  [1, §9]. R′ = R or R∥R_S when a gate is DC-coupled (``series_r``; inf
-    when not), the gate treated as a short (conservative). Metric = the smaller rating/stress
+    ``energy_rating``  [1, §9]. R′ = R, or R∥n²·R_S when a gate loads the pulse resistor
+    (``series_r``, inf when none; ``turns`` n the pulse transformer's ratio, 1 when
+    DC-coupled: an ideal transformer reflects R_S as n²·R_S), the gate treated as a short
+    (conservative). Metric = the smaller rating/stress
     ratio over the ratings given (NaN rating: not judged). pulse_energy is reported for both.
 
     v1, vf [V]; ct [F]; r_pulse [Ω] R1 or R_K; series_r, rb1_on [Ω]; current_rating [A];
@@ -825,7 +828,7 @@ def discharge_check(*, device: str, v1: np.ndarray, ct: np.ndarray,
     (129.1, 0)
     """
     vp = peak_voltage(device=device, v1=v1, **p)
-    s = _arr(series_r)
+    s = _arr(series_r) * _arr(turns) ** 2
     r_eff = np.where(np.isfinite(s), r_pulse * s / (r_pulse + np.where(np.isfinite(s), s, 0.0)),
                      r_pulse)
     i_pk = (vp - p["vd"]) / (rb1_on + r_eff) if device == "ujt" else (vp - vf) / r_eff

@@ -487,11 +487,18 @@ def _bind_discharge(ctx: Context) -> Bound:
                 ctx.need(b, name, pre + k)
             else:
                 b.notes.append(f"no {k} rating given: not judged")
-    gates = _direct_gates(ctx)
+    gates = ctx.stages_of(("gate-drive",), "source", ctx.stage.id)
     if gates:
-        ctx.need(b, "series_r", ctx.stage_path("series_r", gates[0]))
-        b.notes.append(f"the gate of stage {gates[0].id} is DC-coupled: taken as a short "
-                       "through series_r across the pulse resistor (conservative)")
+        gd = gates[0]
+        ctx.need(b, "series_r", ctx.stage_path("series_r", gd))
+        if gd.get("coupling") == "transformer":
+            ctx.read(b, "turns", ctx.stage_path("turns_ratio", gd), default=1.0,
+                     dim="dimensionless", unit="1")
+            b.notes.append(f"the gate of stage {gd.id} loads the pulse resistor through its "
+                           "transformer: taken as a short through n²·series_r (conservative)")
+        else:
+            b.notes.append(f"the gate of stage {gd.id} is DC-coupled: taken as a short "
+                           "through series_r across the pulse resistor (conservative)")
     return b
 
 
@@ -532,7 +539,8 @@ register(CheckDef(
     question="Is the capacitor discharge within the device's peak current (UJT) or pulse "
              "energy (PUT) rating?",
     method="UJT i_pk = (VP − VD)/(r_on + R1′) ≤ ie_peak; PUT i_pk = (VP − VF)/R_K′ ≤ itrm and "
-           "½·C_T·VP² ≤ energy; R′ includes a DC-coupled gate through series_r as a short.",
+           "½·C_T·VP² ≤ energy; R′ includes the gate as a short through series_r (n²·series_r "
+           "through a pulse transformer of ratio n).",
     source="Rashid, Power Electronics 4th ed. §9",
     fn=_discharge_fn, bind=_bind_discharge,
     units={"peak_current": "A", "pulse_energy": "J"},

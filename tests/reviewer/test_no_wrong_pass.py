@@ -224,3 +224,17 @@ def test_didt_worst_case_reaches_90_degrees_with_an_oscillator_firing_range(proj
     assert d.evaluation is not None
     alpha = d.evaluation.outcome.values["alpha"][d.evaluation.worst_row]
     assert alpha == pytest.approx(math.pi / 2, abs=1e-9)
+
+
+def test_discharge_sees_the_gate_through_a_pulse_transformer():
+    """The gate reflected through an ideal transformer of ratio n loads R1 as n²·R_S (common
+    practice), and the discharge peak is (VP − VD)/(r_on + R1 ∥ n²·R_S), not (VP − VD)/(r_on +
+    R1)."""
+    from .test_oscillator_stage import project
+
+    p = project(gate={"coupling": "transformer", "turns_ratio": 2.0})
+    r = evaluate(p, only=[("osc", "osc.discharge")]).results[0]
+    vp = 0.7 + 12 * (0.6 * 5e3 + 100) / (5e3 + 100 + 1e3)  # VP with R1, R2 in the divider
+    r_p = 1 / (1 / 100 + 1 / (2.0**2 * 100))  # R1 ∥ n²·R_S = 80 Ω
+    assert r.values["peak_current"].nominal == pytest.approx((vp - 0.7) / (100 + r_p), rel=1e-9)
+    assert "transformer" in " ".join(r.notes)
