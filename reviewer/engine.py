@@ -281,11 +281,11 @@ _NON_FINITE_TEXT = ("—", "∞", "nan", "inf ")
 def _finite_summary(status: str, summary: str, notes: list[str]) -> tuple[str, str]:
     """The last guard of the no-finite-answer rule: a summary showing a non-finite number.
 
-    Returns (status, summary); a pass or marginal whose summary shows one becomes a fail
-    that says so. Notes the summary must carry (sampled corners, no finite answer) are
-    appended, so they reach every view and the JSON.
+    Returns (status, summary); a pass whose summary shows one becomes a fail that says so
+    (a marginal one already asks for a look). Notes the summary must carry (sampled corners,
+    no finite answer) are appended, so they reach every view and the JSON.
     """
-    if status in ("pass", "marginal") and any(t in summary for t in _NON_FINITE_TEXT):
+    if status == "pass" and any(t in summary for t in _NON_FINITE_TEXT):
         status = "fail"
         summary = ("no finite answer: the summary shows a value that is not a number (an "
                    "input outside the range the method covers?); " + summary)
@@ -327,7 +327,8 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
         if note:
             out.notes.append(note)
         red, worst = reduce(bound, arrays, varying, out, limits, defn.optional)
-        summary = defn.summarise(red)
+        with np.errstate(all="ignore"):
+            summary = defn.summarise(red)
         status, summary = _finite_summary(red.status, summary, red.notes)
     except LatchbookError:
         raise

@@ -265,7 +265,9 @@ def _sum_peak(r: Reduced) -> str:
         else:
             zeta = float(snubber.damping_for_overshoot(ratio=np.array(ratio)))
             lv, rv, cv = (r.bound.inputs[n].value for n in ("l", "r", "c"))
-            c_new = 4 * zeta**2 * lv.hi / rv.lo**2 * _tol(cv, "lo")
+            with np.errstate(all="ignore"):  # a vanishing R gives ∞, not a division error
+                c_new = float(np.float64(4 * zeta**2 * lv.hi) / np.float64(rv.lo) ** 2
+                              * _tol(cv, "lo"))
             r_new = 2 * zeta * math.sqrt(lv.hi / cv.lo) * _tol(rv, "lo")
             text += (f"; {r.status}: needs ζ ≥ {zeta:.2f}: C ≥ {eng(c_new, 'F')} or "
                      f"R ≥ {eng(r_new, 'ohm')}, or {need_v}")

@@ -238,3 +238,34 @@ def test_discharge_sees_the_gate_through_a_pulse_transformer():
     r_p = 1 / (1 / 100 + 1 / (2.0**2 * 100))  # R1 ∥ n²·R_S = 80 Ω
     assert r.values["peak_current"].nominal == pytest.approx((vp - 0.7) / (100 + r_p), rel=1e-9)
     assert "transformer" in " ".join(r.notes)
+
+
+@pytest.mark.parametrize(("old", "new", "checks"), [
+    ('timing_c = "100 nF ±10%"', 'timing_c = "1e308 F"',
+     ("power.average-current", "power.junction", "osc.timing")),
+    ("eta = { min = 0.56, max = 0.75 }", "eta = 1e308", ("gate.trigger", "osc.window")),
+    ('r = "33 ohm ±5%"', 'r = "1e-300 ohm"', ("snubber.peak-voltage", "snubber.discharge")),
+])
+def test_absurd_inputs_never_pass_and_never_raise(projects_dir, old, new, checks):
+    """Values far outside any sensible range: no pass on a non-finite number, no exception
+    inside a check, and no numpy warning escaping (they would flood stderr)."""
+    import warnings
+
+    from reviewer.engine import evaluate as run_all
+    from reviewer.project import load_project_text
+
+    text = (projects_dir / "kiln-230.toml").read_text("utf-8")
+    assert old in text
+    p = load_project_text(text.replace(old, new), "absurd.toml")
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        results = run_all(p, strict=True).results
+    got = {r.check: r for r in results}
+    for cid in checks:
+        assert got[cid].status != "pass", (cid, got[cid].summary)
+    for r in results:
+        assert r.status != "error"
+        if r.status == "pass":
+            vals = [x for s in r.values.values() for x in (s.nominal, s.min, s.max)]
+            assert all(math.isfinite(x) for x in vals), (r.check, r.values)
+            assert not any(t in r.summary for t in ("—", "∞", "nan")), (r.check, r.summary)
