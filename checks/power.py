@@ -169,8 +169,11 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
     * ``bridge``: one SCR per half-cycle; discontinuous (α ≥ φ) as half-wave with period π,
       V_dc = (Vm/π)(cos α − cos β); continuous (α < φ) the steady current with
       i(α) = (Vm/Z)·(−sin(α − φ))·(1 + k)/(1 − k), k = e^(−π/tan φ), V_dc = (2Vm/π)·cos α.
-    * ``ac-switch``: each SCR from α to β ≤ α + π; for α < φ (wide gate pulses assumed) the
-      current is the steady sine, which is the same as firing at φ.
+    * ``ac-switch``: each SCR from α to β ≤ α + π. For α < φ control is lost: the first SCR
+      still conducts when the second one's pulse comes, and the worst case a gate drive
+      allows is taken, narrow pulses: that pulse is missed, one SCR conducts from α to the
+      half-wave β > α + π and the load carries DC (IT(RMS), IT(AV) of that SCR are higher
+      than with wide pulses, which would give the steady sine from φ).
     * ``freewheel`` (half-wave, bridge): the SCR carries α..π, the diode the decay over the rest
       of the period; steady state i(α) = k2·(sin φ − sin(α − φ)·k1)/(1 − k1·k2) with
       k1 = e^(−(π − α)/tan φ), k2 = e^(−Δ/tan φ), Δ = π + α (half-wave) or α (bridge).
@@ -190,12 +193,13 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
     zero = np.zeros_like(alpha)
     cont = zero.copy()
     if topology == "ac-switch" or not freewheel:
-        a = np.maximum(alpha, phi) if topology == "ac-switch" else alpha
+        a = alpha
         beta = extinction_angle(alpha=a, phi=phi)
         c = -np.sin(a - phi)
         period = two_pi if topology == "half-wave" else np.pi
+        lost = (alpha < phi - 1e-12) if topology == "ac-switch" else np.zeros(alpha.shape, bool)
         if topology == "ac-switch":
-            beta = np.minimum(beta, a + np.pi)
+            beta = np.where(lost, beta, np.minimum(beta, a + np.pi))
         if topology == "bridge":
             cont = (alpha < phi).astype(float)
             k_c = _one_minus_decay(np.pi, tau)
@@ -206,9 +210,11 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray,
         s1, s2 = segment_integrals(a=a, b=beta, phi=phi, c=c)
         cond = beta - a
         if topology == "ac-switch":
-            vdc = zero
-            vrms2 = (cond + 0.5 * np.sin(2 * a) - 0.5 * np.sin(2 * beta)) / (2 * np.pi)
-            idc, irms2 = zero, s2 / np.pi
+            # Both SCRs conduct (α ≥ φ), or one alone as a half-wave (α < φ, narrow pulses).
+            k = np.where(lost, 2.0, 1.0)
+            vdc = np.where(lost, (np.cos(a) - np.cos(beta)) / two_pi, zero)
+            vrms2 = (cond + 0.5 * np.sin(2 * a) - 0.5 * np.sin(2 * beta)) / (2 * np.pi * k)
+            idc, irms2 = np.where(lost, s1 / two_pi, zero), s2 / (np.pi * k)
         else:
             vdc = (np.cos(a) - np.cos(beta)) / period
             vrms2 = (cond - 0.5 * (np.sin(2 * beta) - np.sin(2 * a))) / (2 * period)
@@ -347,6 +353,8 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
         return theta, v_load, i_load * ib
     on1, i1 = seg(theta, a)
     on2, i2 = seg(theta, a + np.pi)
+    if a < phi - 1e-12:  # control lost, narrow pulses: the second SCR misses its pulse
+        on2, i2 = np.zeros_like(on1), np.zeros_like(i1)
     v_load = np.where(on1 | on2, src, 0.0)
     return theta, v_load, (i1 - i2) * ib
 

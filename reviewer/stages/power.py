@@ -250,7 +250,9 @@ def _bind_output(ctx: Context) -> Bound:
 def _fn_output(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
-    return power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=_omega(kw), **kw)
+    w = _omega(kw)
+    return _lost_control(power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw),
+                         kw, a, w)
 
 
 def _sum_output(r: Reduced) -> str:
@@ -286,7 +288,7 @@ def _sum_output(r: Reduced) -> str:
     if inductive:
         beta = span(r.lo["extinction_angle"], r.hi["extinction_angle"], "deg")
         text += f"; current runs on to β = {beta}"
-    return text
+    return text + _lost_text(r)
 
 
 register(CheckDef(
@@ -429,12 +431,31 @@ def _bind_currents(ctx: Context, b: Bound, *, sweep: int = 0,
     return _bind_firing(ctx, b, sweep=sweep, extra=extra)
 
 
+#: Said wherever an ac-switch is fired before its load angle at some corner.
+LOST_NOTE = ("α < φ at some corners: control is lost, taken with narrow gate pulses (the worst "
+             "case: one SCR conducts a half-wave and DC flows in the load), as turnoff.time does")
+
+
+def _lost_control(out: Outcome, kw: Mapping[str, Any], alpha: Any, omega: Any) -> Outcome:
+    """Note when an ac-switch row is fired before the load angle (see LOST_NOTE)."""
+    if kw.get("topology") == "ac-switch" and "l" in kw:
+        phi = np.arctan2(np.asarray(omega) * np.asarray(kw["l"]), np.asarray(kw["r"]))
+        if np.any(np.asarray(alpha) < phi - 1e-12):
+            out.notes.append(LOST_NOTE)
+    return out
+
+
+def _lost_text(r: Reduced) -> str:
+    return "; " + LOST_NOTE if LOST_NOTE in r.notes else ""
+
+
 def _fn_currents(core: Any) -> Any:
     def fn(**kw: Any) -> Outcome:
         if kw.get("kind") == "ac":
             a, _, _ = _firing(kw)
             kw["alpha"] = a
             kw["omega"] = _omega(kw)
+            return _lost_control(core(**kw), kw, a, kw["omega"])
         return core(**kw)
     return fn
 
@@ -452,7 +473,7 @@ def _sum_rms(r: Reduced) -> str:
             f"{eng(rating, 'A')}")
     if r.status != "pass":
         text += f"; fails: needs IT(RMS) rating ≥ {eng(r.hi['it_rms'], 'A')}"
-    return text
+    return text + _lost_text(r)
 
 
 register(CheckDef(
@@ -490,7 +511,7 @@ def _sum_avg(r: Reduced) -> str:
     if r.status != "pass":
         need = rating * r.worst["it_av"] / r.worst["it_av_allowed"]
         text += f"; fails: needs an IT(AV) rating of about {eng(need, 'A')}"
-    return text
+    return text + _lost_text(r)
 
 
 register(CheckDef(
@@ -539,7 +560,7 @@ def _sum_junction(r: Reduced) -> str:
         text += f"; {r.status} ({h:g} K headroom wanted): {fix}"
     else:
         text += f"; Rth(s-a) up to {eng(r.lo['rth_sa_required'], 'K/W')} would do"
-    return text + "; steady state only"
+    return text + "; steady state only" + _lost_text(r)
 
 
 register(CheckDef(

@@ -269,3 +269,43 @@ def test_absurd_inputs_never_pass_and_never_raise(projects_dir, old, new, checks
             vals = [x for s in r.values.values() for x in (s.nominal, s.min, s.max)]
             assert all(math.isfinite(x) for x in vals), (r.check, r.values)
             assert not any(t in r.summary for t in ("—", "∞", "nan")), (r.check, r.summary)
+
+
+def _ivp_scr_currents(vm: float, r: float, l: float, w: float, alpha: float):
+    """IT(RMS), IT(AV) of the one SCR that conducts when an ac-switch is fired before φ with
+    narrow pulses: solve_ivp of L·di/dt = Vm·sin ωt − R·i from 0 at α to extinction, averaged
+    over the line period (each cycle starts from zero: the current ends before α + 2π)."""
+    def f(t, i):
+        return [(vm * math.sin(w * t) - r * i[0]) / l]
+
+    def ends(t, i):
+        return i[0]
+    ends.terminal = True
+    ends.direction = -1
+    t0 = alpha / w
+    t = np.linspace(t0 + 1e-9, t0 + 2 * math.pi / w, 200_001)
+    sol = solve_ivp(f, (t0, t[-1]), [0.0], t_eval=t, events=ends, rtol=1e-11, atol=1e-13)
+    i = np.clip(sol.y[0], 0.0, None)
+    period = 2 * math.pi / w
+    tt = sol.t
+    return (math.sqrt(np.trapezoid(i * i, tt) / period), np.trapezoid(i, tt) / period)
+
+
+def test_ac_switch_fired_before_the_load_angle_takes_narrow_pulses():
+    """α_min = 30° < φ = 49.9°: the current checks take the worst case (narrow pulses: one SCR
+    conducts a half-wave, DC in the load), say so, and agree with the circuit integrated."""
+    w, r, l = 2 * math.pi * 50, 26.45, 0.1
+    phi = math.atan2(w * l, r)
+    over = dict(l=', l = "100 mH"', amin="30 deg", amax="150 deg")
+    rms = run("power.rms-current", **over)
+    avg = run("power.average-current", **over)
+    ref_rms, ref_av = _ivp_scr_currents(math.sqrt(2) * 253, r, l, w, math.radians(30))
+    assert rms.values["it_rms"].max == pytest.approx(ref_rms, rel=1e-5)
+    assert avg.values["it_av"].max == pytest.approx(ref_av, rel=1e-5)
+    # Wide pulses (the steady sine from φ, per SCR Im/2 RMS and Im/π average) are lower.
+    im = math.sqrt(2) * 253 / math.hypot(r, w * l)
+    assert ref_rms > 1.05 * im / 2 and ref_av > 1.05 * im / math.pi
+    assert math.radians(30) < phi
+    for res in (rms, avg, run("power.output", **over)):
+        assert "narrow gate pulses" in res.summary
+    assert run("power.output", **over).values["vdc"].max > 0  # DC in the load
