@@ -342,6 +342,8 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     for name, unit in defn.units.items():
         if name not in red.nom:
             continue
+        if name in defn.optional and math.isnan(red.lo[name]):
+            continue  # NaN at every row: not defined for this circuit, so not reported
         a, b, c = (to_report(d[name], unit) for d in (red.nom, red.lo, red.hi))
         values[name] = Stat(a, b, c, unit)
     worst_txt = {}
