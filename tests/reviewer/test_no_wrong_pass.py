@@ -309,3 +309,31 @@ def test_ac_switch_fired_before_the_load_angle_takes_narrow_pulses():
     for res in (rms, avg, run("power.output", **over)):
         assert "narrow gate pulses" in res.summary
     assert run("power.output", **over).values["vdc"].max > 0  # DC in the load
+
+
+def test_sampled_corners_are_said_in_the_summary_and_the_json(projects_dir):
+    """More than 12 varying inputs: the engine samples, and the summary and JSON say so."""
+    from checks.core import Outcome, grade
+    from reviewer.checklist import standard
+    from reviewer.engine import evaluate_check
+    from reviewer.model import Value
+    from reviewer.project import load_project
+    from reviewer.registry import Bound, CheckDef
+
+    def bind(ctx):
+        b = Bound()
+        for k in range(13):
+            b.add(f"x{k}", f"stages.power.x{k}", Value(1.0, 0.9, 1.1, "dimensionless", "1"))
+        return b
+
+    def fn(limits, **x):
+        total = sum(x.values())
+        return Outcome({"total": total}, *grade(total / 10.0, limits))
+
+    defn = CheckDef("test.sampled", ("phase-control",), "q", "m", "s", fn, bind,
+                    {"total": "1"}, lambda r: f"total {r.hi['total']:.3g}")
+    p = load_project(projects_dir / "kiln-230.toml")
+    r = evaluate_check(defn, p, p.stages["power"], standard())
+    assert "4096 sampled corners instead of all 8192" in r.summary
+    assert any("sampled corners" in n for n in r.as_dict()["notes"])
+    assert r.values["total"].max == pytest.approx(13 * 1.1)  # the all-high corner is kept

@@ -35,7 +35,7 @@ KILN = tomllib.loads((PROJECTS / "kiln-230.toml").read_text("utf-8"))
 FLASHER = tomllib.loads((PROJECTS / "flasher-dc.toml").read_text("utf-8"))
 RANK = {"pass": 0, "marginal": 1, "fail": 2}
 JUDGED = set(RANK)
-SETTINGS = settings(max_examples=60, deadline=None, derandomize=True, database=None,
+SETTINGS = settings(max_examples=50, deadline=None, derandomize=True, database=None,
                     suppress_health_check=[HealthCheck.too_slow])
 
 
