@@ -433,6 +433,7 @@ th, td { border: 1px solid #bbb; padding: .2em .4em; vertical-align: top; text-a
 th { background: #eee; } td.num { text-align: right; white-space: nowrap; }
 .st { font-weight: bold; white-space: nowrap; }
 .pass { color: #1a6b1a; } .marginal { color: #8a6100; } .fail, .error { color: #b00000; }
+.blocked, .incomplete { color: #8a4b00; }
 .stale { color: #8b008b; } .waived { color: #005f8a; } .unsigned, .na { color: #666; }
 .caution { border-left: 4px solid #b00000; padding-left: .6em; margin: .3em 0; }
 .meta td:first-child { width: 12em; font-weight: bold; }

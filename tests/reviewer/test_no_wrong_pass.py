@@ -337,3 +337,19 @@ def test_sampled_corners_are_said_in_the_summary_and_the_json(projects_dir):
     assert "4096 sampled corners instead of all 8192" in r.summary
     assert any("sampled corners" in n for n in r.as_dict()["notes"])
     assert r.values["total"].max == pytest.approx(13 * 1.1)  # the all-high corner is kept
+
+
+def test_reports_show_and_count_incomplete_and_blocked(tmp_path):
+    """The report names the state and counts it."""
+    from reviewer.cli import main
+
+    p = _kiln_without(tmp_path, 'tq = "80 us"')
+    text = p.read_text("utf-8").replace('timing_r = { min = "5.6 kohm", max = "155.6 kohm" }',
+                                        'timing_r = "10 Mohm"')
+    p.write_text(text, "utf-8")
+    for fmt in ("md",):
+        out = tmp_path / f"r.{fmt}"
+        main(["report", str(p), "--format", fmt, "-o", str(out)])
+        doc = out.read_text("utf-8")
+        assert "incomplete, unsigned" in doc and "blocked, unsigned" in doc
+        assert "incomplete 1" in doc and "blocked " in doc
