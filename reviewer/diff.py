@@ -496,7 +496,8 @@ def render_diff(d: Diff, out: TextIO | None = None, *, width: int | None = None)
             line = Text(f"  {r.stage}/{r.check}: ")
             line.append(f"{r.old_status or '(absent)'} {_margin(r.old_margin)}")
             line.append(" → ")
-            style = {"fail": "bold red", "marginal": "yellow", "pass": "green"}.get(
+            style = {"fail": "bold red", "blocked": "bold yellow", "incomplete": "bold yellow",
+                     "marginal": "yellow", "pass": "green"}.get(
                 r.new_status or "", "")
             line.append(f"{r.new_status or '(absent)'} {_margin(r.new_margin)}", style=style)
             if r.inputs_changed:

@@ -98,6 +98,13 @@ def test_missing_data_is_incomplete_everywhere(tmp_path, capsys):
     assert m.failing == m.rows
     assert matches("attention", "incomplete", "signed") and matches("fails", "incomplete", "")
     assert matches("fails", "blocked", "") and not matches("fails", "pass", "")
+    # Signing is refused like on a fail; a written waiver is accepted.
+    assert main(["sign", str(p), "--stage", "commutation"]) == 1
+    assert "commutation/turnoff.time is incomplete" in capsys.readouterr().err
+    assert main(["waive", str(p), "--stage", "commutation", "--check", "turnoff.time", "--note",
+                 "tq measured on the bench at 125 °C: 62 µs, report TR-17 filed"]) == 0
+    c = counts(check_states(load_record(p), run_project(p)))
+    assert c["incomplete"] == 1 and c["waived"] == 1
     # A checklist can still switch the check off explicitly: then it is n/a, not incomplete.
     from reviewer.checklist import standard
 
