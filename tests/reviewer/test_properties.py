@@ -11,7 +11,7 @@ from a wide, physically possible range. The properties:
 * widening a tolerance never narrows a value's min–max;
 * a check's worst corner is at least as bad as every corner evaluated.
 
-Fixed seed (derandomised) so the run is repeatable.
+A fixed seed makes the run repeatable.
 """
 
 from __future__ import annotations
@@ -24,7 +24,7 @@ from typing import Any
 
 import numpy as np
 import tomli_w
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, given, seed, settings
 from hypothesis import strategies as st
 
 from reviewer.engine import Result, evaluate
@@ -35,7 +35,7 @@ KILN = tomllib.loads((PROJECTS / "kiln-230.toml").read_text("utf-8"))
 FLASHER = tomllib.loads((PROJECTS / "flasher-dc.toml").read_text("utf-8"))
 RANK = {"pass": 0, "marginal": 1, "fail": 2}
 JUDGED = set(RANK)
-SETTINGS = settings(max_examples=50, deadline=None, derandomize=True, database=None,
+SETTINGS = settings(max_examples=50, deadline=None, database=None,
                     suppress_health_check=[HealthCheck.too_slow])
 
 
@@ -81,8 +81,8 @@ def ac_circuit(draw: Any) -> dict[str, Any]:
         a2 = draw(st.floats(a1 + 5, 178))
         pw["firing"] = {"min": q(a1, "deg"), "max": q(a2, "deg")}
     trig = d["stages"]["trigger"]
-    r1 = draw(log_uniform(3e3, 60e3))
-    trig["timing_r"] = {"min": q(r1 / 1e3, "kohm"), "max": q(r1 * draw(st.floats(1.5, 40)) / 1e3,
+    r1 = draw(log_uniform(6e3, 40e3))
+    trig["timing_r"] = {"min": q(r1 / 1e3, "kohm"), "max": q(r1 * draw(st.floats(1.5, 15)) / 1e3,
                                                                "kohm")}
     trig["timing_c"] = q(draw(log_uniform(22, 470)), "nF", draw(TOL))
     g = d["stages"]["gate"]
@@ -114,7 +114,7 @@ def dc_circuit(draw: Any) -> dict[str, Any]:
     lamp["duty"] = draw(st.floats(0.1, 1.0))
     blink = d["stages"]["blink"]
     blink["supply"] = q(min(vs, 30.0), "V", 10.0)
-    blink["timing_r"] = q(draw(log_uniform(1e5, 2e6)) / 1e3, "kohm", 5.0)
+    blink["timing_r"] = q(draw(log_uniform(5e5, 3e6)) / 1e3, "kohm", 5.0)
     kind = draw(st.sampled_from(["capacitor-commutation", "resonant-commutation"]))
     off: dict[str, Any] = {"kind": kind, "for": "lamp",
                            "c": q(draw(log_uniform(1, 50)), "uF", draw(TOL)),
@@ -131,7 +131,20 @@ def dc_circuit(draw: Any) -> dict[str, Any]:
     return d
 
 
-CIRCUITS = st.one_of(ac_circuit(), dc_circuit())
+#: Part keys a file may leave out (the checks that need them become incomplete).
+DROPPABLE = ("tq", "dvdt", "didt", "itsm", "pgm", "vgd", "il", "ih", "vt0")
+
+
+@st.composite
+def some_missing(draw: Any, base: st.SearchStrategy[dict[str, Any]]) -> dict[str, Any]:
+    d = draw(base)
+    for key in draw(st.lists(st.sampled_from(DROPPABLE), max_size=3, unique=True)):
+        d["parts"]["Q1"].pop(key, None)
+    return d
+
+
+CIRCUITS = st.one_of(ac_circuit(), ac_circuit(), dc_circuit(), some_missing(ac_circuit()),
+                     some_missing(dc_circuit()))
 
 
 def load(doc: dict[str, Any]) -> Any:
@@ -254,6 +267,7 @@ def explicit_firing(doc: dict[str, Any]) -> bool:
     return pw is None or "firing" in pw
 
 
+@seed(20261203)
 @SETTINGS
 @given(CIRCUITS)
 def test_properties_hold_on_random_circuits(doc: dict[str, Any]) -> None:
@@ -261,6 +275,9 @@ def test_properties_hold_on_random_circuits(doc: dict[str, Any]) -> None:
     assert all(r.status != "error" for r in results), [r.summary for r in results
                                                        if r.status == "error"]
     no_wrong_pass(results)
+    for r in results:
+        if r.status == "incomplete":
+            assert r.needs and all(n in r.summary for n in r.needs), r.summary
     blocking_above_line(results)
     worst_is_worst(results)
     raising_a_rating_never_worsens(doc, results)
