@@ -16,6 +16,7 @@ from __future__ import annotations
 import hashlib
 import json
 import math
+import re
 import warnings
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
@@ -274,8 +275,8 @@ def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
     return red, worst
 
 
-#: What a formatted summary shows for a NaN (—) or an infinity (∞).
-_NON_FINITE_TEXT = ("—", "∞", "nan", "inf ")
+#: What a formatted summary shows for a NaN (—) or an infinity (∞), or Python's own words.
+_NON_FINITE_TEXT = re.compile(r"[—∞]|\b(nan|inf)\b", re.IGNORECASE)
 
 
 def _finite_summary(status: str, summary: str, notes: list[str]) -> tuple[str, str]:
@@ -285,7 +286,7 @@ def _finite_summary(status: str, summary: str, notes: list[str]) -> tuple[str, s
     (a marginal one already asks for a look). Notes the summary must carry (sampled corners,
     no finite answer) are appended, so they reach every view and the JSON.
     """
-    if status == "pass" and any(t in summary for t in _NON_FINITE_TEXT):
+    if status == "pass" and _NON_FINITE_TEXT.search(summary):
         status = "fail"
         summary = ("no finite answer: the summary shows a value that is not a number (an "
                    "input outside the range the method covers?); " + summary)
