@@ -89,6 +89,7 @@ class Project:
     chain: list[str] = field(default_factory=list)
     origin: dict[str, str] = field(default_factory=dict)
     raw: dict[str, Any] = field(default_factory=dict)
+    warnings: list[str] = field(default_factory=list)  # values outside their plausible band
 
     def lookup(self, path: str) -> Any:
         """The model object at a dotted path such as ``parts.Q1.igt`` or ``supply.voltage``.

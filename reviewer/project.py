@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 import reviewer.stages  # noqa: F401  (registers the stage kinds)
-from reviewer import schema
+from reviewer import bounds, rules, schema
 from reviewer.errors import LatchbookError, ProjectError, Where
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.registry import STAGE_KINDS, Param
@@ -129,6 +129,7 @@ class _Loader:
         self.texts: dict[str, str] = {}
         self.origin: dict[str, str] = {}
         self.chain: list[str] = []
+        self.warnings: list[str] = []
 
     def where(self, table: str, key: str = "") -> Where:
         f = self.origin.get(f"{table}.{key}" if key else table, str(self.path))
@@ -210,31 +211,40 @@ class _Loader:
                           head.get("checklist", "standard"), conditions, supply, parts, stages,
                           head.get("variant_of", ""), list(self.chain), dict(self.origin), doc)
         self.links(project)
+        rules.check(project, self.where)
+        project.warnings = list(dict.fromkeys(self.warnings))
         return project
 
-    def table(self, raw: dict[str, Any], params: Any, table: str) -> dict[str, Any]:
+    def table(self, raw: dict[str, Any], params: Any, table: str,
+              scope: str = "") -> dict[str, Any]:
         out: dict[str, Any] = {}
         for key, val in raw.items():
             if key not in params:
                 raise ProjectError(f"unknown key `{key}` in [{table}]"
                                    f"{_did_you_mean(key, params)}", self.where(table, key))
-            out[key] = self.param(val, params[key], table, key)
+            out[key] = self.param(val, params[key], table, key, scope or table)
         for key, p in params.items():
             if p.required and key not in raw:
                 hint = f": {p.help}" if p.help else ""
                 raise ProjectError(f"[{table}] needs `{key}`{hint}", self.where(table))
         return out
 
-    def param(self, val: Any, p: Param, table: str, key: str) -> Any:
+    def param(self, val: Any, p: Param, table: str, key: str, scope: str) -> Any:
         where = self.where(table, key)
         try:
-            return self._param(val, p, table, key, where)
+            out = self._param(val, p, table, key, where, scope)
+            if isinstance(out, Value):
+                warning = bounds.check(out, scope, key, where, allow_zero=p.allow_zero)
+                if warning:
+                    self.warnings.append(f"{where.text()}: {warning}")
+            return out
         except LatchbookError as exc:
             if exc.where is None or not exc.where.line:
                 raise type(exc)(exc.bare, where) from None
             raise
 
-    def _param(self, val: Any, p: Param, table: str, key: str, where: Where) -> Any:
+    def _param(self, val: Any, p: Param, table: str, key: str, where: Where,
+               scope: str) -> Any:
         if p.kind == "value":
             return parse_value(val, p.dim, where, allow_zero=p.allow_zero,
                                allow_negative=p.allow_negative)
@@ -263,7 +273,7 @@ class _Loader:
         if p.kind == "table":
             if not isinstance(val, dict):
                 raise ProjectError(f"`{key}` must be a table, e.g. {key} = {{ … }}", where)
-            return self.table(val, p.fields, f"{table}.{key}")
+            return self.table(val, p.fields, f"{table}.{key}", f"{scope}.{key}")
         if p.kind == "step":
             if isinstance(val, str) and val in p.choices:
                 return val
@@ -298,13 +308,13 @@ class _Loader:
         body = {k: v for k, v in raw.items() if k != "cold"}
         if cold_raw is not None and ptype != "scr":
             raise ProjectError("only an SCR part has a cold table", self.where(table, "cold"))
-        values = self.table(body, params, table)
+        values = self.table(body, params, table, f"parts.{ptype}")
         cold = {}
         if cold_raw is not None:
             if not isinstance(cold_raw, dict):
                 raise ProjectError('cold must be a table, e.g. cold = { at = "-40 degC", '
                                    'igt = "30 mA" }', self.where(table, "cold"))
-            cold = self.table(cold_raw, schema.COLD_KEYS, f"{table}.cold")
+            cold = self.table(cold_raw, schema.COLD_KEYS, f"{table}.cold", f"parts.{ptype}.cold")
         return Part(ref, ptype, {k: v for k, v in values.items() if k not in ("type",
                     "description")}, values.get("description", ""), cold, self.where(table))
 
@@ -319,7 +329,7 @@ class _Loader:
                                + (_did_you_mean(str(kind), STAGE_KINDS) if kind else ""),
                                self.where(table, "kind"))
         params = {"kind": Param("text"), **STAGE_KINDS[kind].params}
-        values = self.table(raw, params, table)
+        values = self.table(raw, params, table, f"stages.{kind}")
         values.pop("kind")
         if values.get("sync") == "line" and "zener" not in values:
             raise ProjectError('sync = "line" needs zener = "…" (the clamp voltage)',

@@ -89,6 +89,8 @@ def _unit_factor(unit: str, dim: str) -> tuple[float, float] | None:
     try:
         u = ureg.parse_units(unit.replace("%", "percent").replace("^", "**"))
         if dim == "temperature":
+            if str(u).startswith("delta_"):
+                return None  # a difference, never an absolute temperature
             q0 = ureg.Quantity(0.0, u).to("kelvin").magnitude
             q1 = ureg.Quantity(1.0, u).to("kelvin").magnitude
             return (q1 - q0, q0)
@@ -158,9 +160,16 @@ def _single(text: str, dim: str, where: Where) -> tuple[float, str]:
         hint = f' ("{unit}" is {what})' if what else f' ("{unit}" is not a unit for this key)'
         if dim == "temperature_difference" and unit in ("degC", "degF"):
             hint = " (degC is an absolute temperature; a rise or difference is K or delta_degC)"
+        if dim == "temperature" and unit.startswith("delta_"):
+            hint = (f" ({unit} is a temperature difference; an absolute temperature is "
+                    f'"{m.group("num")} degC" or kelvin, e.g. "308 K")')
         raise _err(f'"{text}" does not fit{hint}; {_needs(dim, where)}', where)
     scale, offset = factor
-    return number * scale + offset, unit
+    si = number * scale + offset
+    if not math.isfinite(si):
+        raise _err(f'"{text}" is too large to compute with; check the exponent and the unit '
+                   "prefix", where)
+    return si, unit
 
 
 def _describe(unit: str) -> str:

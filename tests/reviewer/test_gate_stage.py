@@ -222,7 +222,7 @@ def test_average_power_pass_marginal_fail():
 
 
 def test_average_power_line_sync_uses_the_clamp_plateau():
-    res = run("gate.average-power", sync='sync = "line"\nzener = "20 V"')
+    res = run("gate.average-power", sync='sync = "line"\nzener = "20 V"', firing="")
     assert res.status == "pass" and "clamp window" in res.summary
 
 
@@ -324,7 +324,7 @@ def test_noise_direct_pass_marginal_fail():
 
 def test_noise_transformer_pass_marginal_fail():
     tr = dict(coupling="transformer", rs="10 ohm")
-    cc = 'coupling_capacitance = "20 pF"\n'
+    cc = 'turns_ratio = 1\ncoupling_capacitance = "20 pF"\n'
     assert run("gate.noise", drive=cc + 'gate_cathode_r = "33 ohm"', vgd="0.2 V",
                **tr).status == "pass"
     assert run("gate.noise", drive=cc + 'gate_cathode_r = "47 ohm"', vgd="0.2 V",
@@ -334,7 +334,7 @@ def test_noise_transformer_pass_marginal_fail():
     assert "R_GK ≤ 40 Ω" in bad.summary and "exceeds IGT" not in bad.summary
     bare = run("gate.noise", drive=cc, vgd="0.2 V", **tr)
     assert bare.status == "fail" and "no gate–cathode resistor" in bare.summary
-    none = run("gate.noise", drive='gate_cathode_r = "1 kohm"', **tr)
+    none = run("gate.noise", drive='turns_ratio = 1\ngate_cathode_r = "1 kohm"', **tr)
     assert none.status == "not-applicable"
 
 

@@ -37,7 +37,8 @@ def rashid_rl(demo_copy: Path) -> Path:
         ('frequency = "50 Hz"', 'frequency = "60 Hz"'),
         ('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }',
          'load = { r = "2.5 ohm", l = "6.5 mH" }'),
-        ('topology = "ac-switch"\n', 'topology = "ac-switch"\nfiring = "90 deg"\n')])
+        ('topology = "ac-switch"\ngate = "gate"\n',
+         'topology = "ac-switch"\nfiring = "90 deg"\n')])
 
 
 def _pic(path: Path, stage: str, check: str):
@@ -58,7 +59,7 @@ def test_power_check_draws_both_firing_range_ends(demo_copy):
     """With firing 30°–150° the load voltage is the line after each end's firing and zero
     before it, one curve per end (α_min solid, α_max dotted)."""
     path = _variant(demo_copy, "kiln-firing.toml", [
-        ('topology = "ac-switch"\n',
+        ('topology = "ac-switch"\ngate = "gate"\n',
          'topology = "ac-switch"\nfiring = { min = "30 deg", max = "150 deg" }\n')])
     result, pic = _pic(path, "power", "power.junction")
     assert pic.plots, pic.reason

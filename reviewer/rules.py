@@ -1,0 +1,101 @@
+"""Configuration rules: keys that mean nothing in a stage's configuration, keys it needs, and
+choices that contradict the supply kind.
+
+Each rule raises a :class:`~reviewer.errors.ProjectError` that says why the key does not fit and
+what to write instead. Ratings that are merely absent (a snubber's ``c_voltage``, an SCR's
+``tq``) are not input errors: the check that needs one reports it as incomplete.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from reviewer.errors import ProjectError, Where
+from reviewer.model import Project, Stage, Value
+
+WhereFn = Callable[[str, str], Where]
+
+TRANSFORMER_ONLY = ("turns_ratio", "volt_seconds", "isolation", "required_isolation",
+                    "coupling_capacitance")
+
+
+def check(project: Project, where: WhereFn) -> None:
+    """Apply every configuration rule to a loaded project (links already checked)."""
+    ac = project.supply.get("kind") == "ac"
+    for st in project.stages.values():
+        table = f"stages.{st.id}"
+        if st.kind in ("ujt-oscillator", "put-oscillator"):
+            _oscillator(st, ac, table, where)
+        elif st.kind == "gate-drive":
+            _gate_drive(st, table, where)
+        elif st.kind == "phase-control":
+            _phase_control(project, st, table, where)
+        elif st.kind == "dc-switch" and ac:
+            raise ProjectError('a dc-switch stage needs a DC supply (supply kind = "dc"); an SCR '
+                               "on an AC supply is a phase-control stage "
+                               '(kind = "phase-control", topology = …)', where(table, "kind"))
+        elif st.kind == "rc-snubber":
+            _snubber(st, ac, table, where)
+
+
+def _oscillator(st: Stage, ac: bool, table: str, where: WhereFn) -> None:
+    line = st.get("sync") == "line"
+    if not line and "zener" in st.params:
+        raise ProjectError('`zener` is the clamp of a line-synchronised oscillator; this one is '
+                           'free-running (sync = "free" or not given), so nothing would use it: '
+                           'remove zener, or set sync = "line"', where(table, "zener"))
+    if line and not ac:
+        raise ProjectError('sync = "line" needs an AC supply (the capacitor restarts at every '
+                           'zero crossing of the line); on a DC supply write sync = "free"',
+                           where(table, "sync"))
+    target = st.get("target")
+    if isinstance(target, Value):
+        want = "angle" if line else "frequency"
+        if target.dim != want:
+            example = ('{ min = "30 deg", max = "150 deg" }' if line
+                       else '{ min = "40 Hz", max = "120 Hz" }')
+            mode, what, sets = (("line", "firing-angle", "line-synchronised oscillator sets an "
+                                 "angle") if line else
+                                ("free", "frequency", "free-running oscillator sets a rate"))
+            raise ProjectError(f'`target` must be a {what} range with sync = "{mode}" (a '
+                               f"{sets}), e.g. target = {example}", where(table, "target"))
+
+
+def _gate_drive(st: Stage, table: str, where: WhereFn) -> None:
+    if st.get("coupling") == "direct":
+        for key in TRANSFORMER_ONLY:
+            if key in st.params:
+                raise ProjectError(f"`{key}` belongs to a pulse transformer, but this gate drive "
+                                   'has coupling = "direct": remove it, or set '
+                                   'coupling = "transformer"', where(table, key))
+    elif "turns_ratio" not in st.params:
+        raise ProjectError('transformer coupling needs the turns ratio: add turns_ratio = 1 '
+                           "(primary turns per secondary turn, e.g. 1.5 for 1.5:1)",
+                           where(table, "coupling"))
+
+
+def _phase_control(project: Project, st: Stage, table: str, where: WhereFn) -> None:
+    gate = project.stages.get(st.get("gate", ""))
+    osc = project.stages.get(gate.get("source", "")) if gate is not None else None
+    if "firing" in st.params and osc is not None and osc.get("sync") == "line":
+        raise ProjectError(f"both `firing` and `gate` give the firing range: the gate's "
+                           f"oscillator `{osc.id}` is line-synchronised, so its timing sets the "
+                           "angle. Remove `firing` (the range then comes from the oscillator), "
+                           "or remove `gate` to review a fixed range", where(table, "firing"))
+    if st.get("freewheel") and st.get("topology") == "ac-switch":
+        raise ProjectError("`freewheel` has no meaning on an ac-switch: the load sees AC, and a "
+                           "diode across it would short every other half-cycle. Remove it "
+                           '(a freewheeling diode belongs to "half-wave" or "bridge")',
+                           where(table, "freewheel"))
+
+
+def _snubber(st: Stage, ac: bool, table: str, where: WhereFn) -> None:
+    step = st.get("step")
+    if step == "dc" and ac:
+        raise ProjectError('step = "dc" is for a DC bus, but the supply is AC: write '
+                           'step = "line" (the peak line voltage at the worst instant) or the '
+                           'step as a voltage, e.g. step = "400 V"', where(table, "step"))
+    if step == "line" and not ac:
+        raise ProjectError('step = "line" is for an AC supply, but the supply is DC: write '
+                           'step = "dc" (the bus voltage) or the step as a voltage, e.g. '
+                           'step = "40 V"', where(table, "step"))
