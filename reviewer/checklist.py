@@ -23,6 +23,7 @@ import difflib
 import hashlib
 import json
 import math
+import os
 import re
 import tomllib
 from dataclasses import dataclass, field
@@ -32,6 +33,7 @@ from pathlib import Path
 from typing import Any
 
 from reviewer.errors import ProjectError, Where
+from reviewer.safeio import read_regular
 
 TOP_KEYS = ("checklist", "limits", "off", "manual")
 HEAD_KEYS = ("name", "version", "extends", "approvers", "description", "sign_with_ssh",
@@ -189,7 +191,8 @@ def _number(val: Any) -> bool:
 def _read(path: Path) -> str:
     where = Where(str(path), "checklist")
     try:
-        return path.read_text("utf-8")
+        data = read_regular(path, 1 << 20)
+        return data.decode("utf-8").removeprefix("\ufeff")
     except FileNotFoundError:
         raise ProjectError(f"checklist file not found: {path}; give a path relative to the "
                            'project, or checklist = "standard"', where) from None
@@ -226,6 +229,8 @@ def _load_file(path: Path, seen: tuple[str, ...]) -> Checklist:
         m = re.search(r"line (\d+)", str(exc))
         raise ProjectError(f"not a readable TOML checklist: {exc}",
                            Where(key, line=int(m.group(1)) if m else None)) from None
+    except RecursionError:
+        raise ProjectError("tables or arrays are nested too deep to read", Where(key)) from None
     for k in doc:
         if k not in TOP_KEYS:
             raise ProjectError(f"unknown table `{k}`{_near(k, TOP_KEYS)} (a checklist has "
@@ -262,7 +267,7 @@ def _load_file(path: Path, seen: tuple[str, ...]) -> Checklist:
     if extends in ("", "standard"):
         base = standard()
     else:
-        base_path = (path.parent / extends).resolve()
+        base_path = Path(os.path.realpath(path.parent / extends))
         if not base_path.is_file():
             raise ProjectError(f'the checklist "{extends}" it extends does not exist (looked for '
                                f'{base_path}); use extends = "standard" or a path relative to '
@@ -401,7 +406,7 @@ def load_checklist(ref: str, base_dir: Path) -> Checklist:
     """Load the checklist a project names: ``standard`` or a path relative to the project."""
     if ref in ("", "standard"):
         return standard()
-    return _load_file((Path(base_dir) / ref).resolve(), ())
+    return _load_file(Path(os.path.realpath(Path(base_dir) / ref)), ())
 
 
 __all__ = ["Checklist", "load_checklist", "lower_is_stricter", "standard", "standard_limits"]

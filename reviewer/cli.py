@@ -258,6 +258,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     except LatchbookError as exc:
         print(f"latchbook: {exc}", file=sys.stderr)
         return 2
+    except RecursionError:
+        print("latchbook: a file nests tables or arrays too deep to read", file=sys.stderr)
+        return 2
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:

@@ -7,7 +7,9 @@ and, where it can be found, the line — never a traceback. Values are parsed on
 
 from __future__ import annotations
 
+import codecs
 import difflib
+import os
 import re
 import tomllib
 from functools import lru_cache
@@ -19,26 +21,29 @@ from reviewer import bounds, rules, schema
 from reviewer.errors import LatchbookError, ProjectError, Where
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.registry import STAGE_KINDS, Param
+from reviewer.safeio import read_regular
 from reviewer.units import parse_value
 
 MAX_BYTES = 1 << 20
+MAX_DEPTH = 16
 TOP = ("project", "conditions", "supply", "parts", "stages")
 
 
 def read_text(path: Path) -> str:
-    """Read a user's TOML file as UTF-8 text, with clear errors for the usual accidents."""
+    """Read a user's TOML file as UTF-8 text, with clear errors for the usual accidents.
+
+    Only a regular file is opened (never a pipe or a device), and at most :data:`MAX_BYTES`
+    are read; a UTF-8 byte-order mark at the start is accepted and dropped.
+    """
     where = Where(str(path))
     try:
-        data = path.read_bytes()
+        data = read_regular(path, MAX_BYTES, what="project")
     except FileNotFoundError:
         raise ProjectError("no such file; check the path (projects are NAME.toml)", where) from None
     except IsADirectoryError:
         raise ProjectError("this is a folder; give a project file NAME.toml", where) from None
-    except OSError as exc:
-        raise ProjectError(f"cannot read the file: {exc.strerror}", where) from None
-    if len(data) > MAX_BYTES:
-        raise ProjectError(f"the file is {len(data) // 1024} KiB; a project is at most "
-                           f"{MAX_BYTES // 1024} KiB (is this the right file?)", where)
+    if data.startswith(codecs.BOM_UTF8):
+        data = data[len(codecs.BOM_UTF8):]
     if not data.strip():
         raise ProjectError("the file is empty; a project needs at least [project], "
                            "[conditions], [supply], [parts.*] and [stages.*]", where)
@@ -51,13 +56,39 @@ def read_text(path: Path) -> str:
 
 
 def parse_toml(text: str, path: Path) -> dict[str, Any]:
-    """Parse TOML text, turning syntax errors into a message with the line."""
+    """Parse TOML text, turning syntax errors into a message with the line.
+
+    Tables and arrays nested deeper than :data:`MAX_DEPTH` are refused (a project needs four
+    levels; a parser recursing through thousands would exhaust the stack).
+    """
+    if text.startswith("\ufeff"):
+        text = text[1:]
     try:
-        return tomllib.loads(text)
+        doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"line (\d+)", str(exc))
         raise ProjectError(f"not valid TOML: {exc}", Where(str(path),
                            line=int(m.group(1)) if m else None)) from None
+    except RecursionError:
+        raise ProjectError(f"tables or arrays are nested too deep to read (a project needs at "
+                           f"most {MAX_DEPTH} levels)", Where(str(path))) from None
+    if _depth(doc) > MAX_DEPTH:
+        raise ProjectError(f"tables or arrays are nested more than {MAX_DEPTH} levels deep; a "
+                           "project needs four at most", Where(str(path)))
+    return doc
+
+
+def _depth(doc: Any) -> int:
+    """How deep tables and arrays nest in ``doc`` (iterative: no recursion limit)."""
+    deepest, stack = 0, [(doc, 1)]
+    while stack:
+        node, d = stack.pop()
+        deepest = max(deepest, d)
+        if d > MAX_DEPTH:
+            break
+        items = node.values() if isinstance(node, dict) else node
+        stack.extend((v, d + 1) for v in items if isinstance(v, (dict, list)))
+    return deepest
 
 
 @lru_cache(maxsize=64)
@@ -137,7 +168,7 @@ class _Loader:
 
     # -- variants -----------------------------------------------------------------------
     def resolve(self, path: Path, seen: tuple[str, ...] = ()) -> dict[str, Any]:
-        key = str(path.resolve())
+        key = os.path.realpath(path)
         if key in seen:
             names = " → ".join(Path(s).name for s in (*seen, key))
             raise ProjectError(f"variant_of makes a circle: {names}", Where(str(path), "project",
@@ -157,6 +188,8 @@ class _Loader:
             raise ProjectError('variant_of must be a file name, e.g. variant_of = "base.toml"',
                                Where(str(path), "project", "variant_of"))
         base_path = (path.parent / base_ref)
+        _confine(base_path, base_ref, path, Where(str(path), "project", "variant_of",
+                                                  line_of(text, "project", "variant_of")))
         if not base_path.is_file():
             raise ProjectError(f'the base project "{base_ref}" does not exist (looked for '
                                f"{base_path}); variant_of is relative to this file",
@@ -374,6 +407,21 @@ class _Loader:
                                        "(a gate-drive stage)", self.where(f"stages.{st.id}"))
 
 
+def _confine(base: Path, ref: str, naming: Path, where: Where) -> None:
+    """A base project lies in the folder tree of the project that names it, as a .toml file."""
+    home = Path(os.path.realpath(naming.parent))
+    try:
+        real = Path(os.path.realpath(base))
+    except (OSError, RuntimeError):
+        real = base
+    if Path(ref).is_absolute() or not real.is_relative_to(home):
+        raise ProjectError(f'the base project "{ref}" is outside the folder of the project '
+                           f"that names it: variant_of may only name a file in {home} or a "
+                           "folder below it", where)
+    if not ref.endswith(".toml"):
+        raise ProjectError(f'variant_of = "{ref}" must name a project file NAME.toml', where)
+
+
 def _is_range(v: dict[str, Any]) -> bool:
     return bool(v) and set(v) <= {"min", "max", "nom"}
 
@@ -396,8 +444,8 @@ def is_project_file(path: Path) -> bool:
             or ".mine-" in name:  # a copy kept aside after a conflicting save
         return False
     try:
-        doc = tomllib.loads(path.read_text("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+        doc = parse_toml(read_text(path), path)
+    except LatchbookError:
         return True
     return isinstance(doc.get("project"), dict)
 

@@ -37,9 +37,11 @@ from types import FrameType
 from typing import Any
 
 from reviewer.errors import RecordError, Where
+from reviewer.safeio import read_regular
 
 JOURNAL_FORMAT = "latchbook.journal/1"
 LOCK_FORMAT = "latchbook.lock/1"
+RECORD_MAX_BYTES = 64 << 20  # a record of thousands of entries stays far below this
 
 
 # --------------------------------------------------------------------------------------------
@@ -94,7 +96,7 @@ def sha256_bytes(data: bytes) -> str:
 def file_sha256(path: str | Path) -> str | None:
     """Hex SHA-256 of the file's bytes, or None when there is no such file."""
     try:
-        return sha256_bytes(Path(path).read_bytes())
+        return sha256_bytes(read_regular(path, RECORD_MAX_BYTES, RecordError))
     except FileNotFoundError:
         return None
 
@@ -107,7 +109,7 @@ def read_with_hash(path: str | Path) -> tuple[str | None, str | None]:
     """
     p = Path(path)
     try:
-        data = p.read_bytes()
+        data = read_regular(p, RECORD_MAX_BYTES, RecordError)
     except FileNotFoundError:
         return None, None
     except OSError as exc:
