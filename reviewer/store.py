@@ -152,12 +152,14 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
 
     Temp file in the same folder → write → fsync → the old file's permissions (a temp file is
     created owner-only; a new file gets the usual ``0666 & ~umask``) → ``os.replace`` → fsync the
-    folder. A symlink is followed, so the link survives. With ``check=True`` the file on disk
-    must still hash to ``expected_sha256`` (None: must not exist yet), else
+    folder. A symlink is never written through (it could point at another project's file, or
+    create one elsewhere), and a file without write permission is not replaced (see
+    :func:`_refuse_unsafe_target`): both are a :class:`RecordError`. With ``check=True`` the
+    file on disk must still hash to ``expected_sha256`` (None: must not exist yet), else
     :class:`RecordError` and nothing is written (see :func:`save_checked` to keep the text).
     Returns the real path written.
     """
-    target = Path(os.path.realpath(path))
+    target = _refuse_unsafe_target(Path(path))
     folder = target.parent
     if check:
         on_disk = file_sha256(target)
@@ -182,9 +184,10 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
             os.fsync(fh.fileno())
         if old is not None:
             os.chmod(tmp, stat.S_IMODE(old.st_mode))
-            with contextlib.suppress(OSError):  # keep the group where we are allowed to
-                if old.st_gid != os.stat(tmp).st_gid:
-                    os.chown(tmp, -1, old.st_gid)
+            with contextlib.suppress(OSError):  # keep owner and group where we are allowed to
+                now = os.stat(tmp)
+                if (old.st_uid, old.st_gid) != (now.st_uid, now.st_gid):
+                    os.chown(tmp, old.st_uid if os.geteuid() == 0 else -1, old.st_gid)
         else:
             os.chmod(tmp, 0o666 & ~_umask())
         os.replace(tmp, target)
@@ -197,6 +200,37 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
         raise
     _fsync_dir(folder)
     _clean_orphans(target)
+    return target
+
+
+def _refuse_unsafe_target(path: Path) -> Path:
+    """The file to replace, after refusing a symlink and a file we may not write.
+
+    The folder is resolved (a linked folder is an ordinary place to work), the file itself is
+    not. Write permission is the file's own: ``os.access`` for a normal account; for root,
+    who may write anything, a file with no write bit at all is taken as the owner's "read-only".
+    """
+    target = Path(os.path.realpath(path.parent)) / path.name
+    if os.path.islink(target):
+        try:
+            dest = os.readlink(target)
+        except OSError:
+            dest = "?"
+        raise RecordError(f"this is a symbolic link to {dest}; Latchbook does not write through "
+                          "a link (it could replace another file or create one elsewhere). "
+                          "Nothing was written: replace the link by a copy of the file, or "
+                          "open the file it points to", Where(str(path)))
+    try:
+        st = target.stat()
+    except FileNotFoundError:
+        return target
+    except OSError as exc:
+        raise RecordError(f"cannot write the file: {exc.strerror}", Where(str(path))) from None
+    no_bits = not st.st_mode & (stat.S_IWUSR | stat.S_IWGRP | stat.S_IWOTH)
+    if not os.access(target, os.W_OK) or (os.geteuid() == 0 and no_bits):
+        raise RecordError(f"the file is read-only (mode {stat.S_IMODE(st.st_mode):03o}); "
+                          "nothing was written. Ask its owner, or make it writable "
+                          "(chmod u+w) if it is yours and the change is meant", Where(str(path)))
     return target
 
 
@@ -235,7 +269,7 @@ def save_checked(path: str | Path, text: str, read_sha256: str | None) -> Path:
     When it is not, nothing is overwritten: ``text`` is saved beside it as
     ``NAME.mine-<timestamp>.toml`` and a :class:`RecordError` says so and what to do.
     """
-    target = Path(os.path.realpath(path))
+    target = _refuse_unsafe_target(Path(path))
     on_disk = file_sha256(target)
     if on_disk != read_sha256:
         mine = mine_path(target)

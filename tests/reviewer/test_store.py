@@ -141,14 +141,30 @@ def test_new_file_gets_umask_mode_not_owner_only(tmp_path):
     assert stat.S_IMODE(p.stat().st_mode) == 0o644
 
 
-def test_write_through_symlink_keeps_the_link(tmp_path):
-    """Saving a symlinked file replaces its target and leaves the link in place."""
+def test_a_symlink_is_never_written_through(tmp_path):
+    """Saving to a symlink is refused, naming the link's target; neither file changes."""
     real = tmp_path / "real.toml"
     real.write_text("a = 1\n")
     link = tmp_path / "link.toml"
     link.symlink_to(real)
-    atomic_write(link, "a = 2\n")
-    assert link.is_symlink() and real.read_text() == "a = 2\n"
+    with pytest.raises(RecordError, match=r"symbolic link to .*real\.toml.*Nothing was written"):
+        atomic_write(link, "a = 2\n")
+    assert link.is_symlink() and real.read_text() == "a = 1\n"
+    dangling = tmp_path / "dangling.toml"
+    dangling.symlink_to(tmp_path / "elsewhere" / "made.toml")
+    with pytest.raises(RecordError, match="symbolic link"):
+        atomic_write(dangling, "a = 3\n")
+    assert not (tmp_path / "elsewhere").exists()
+
+
+def test_a_read_only_file_is_not_replaced(tmp_path):
+    """A file without write permission (0444) keeps its content and its mode."""
+    p = tmp_path / "kept.review.toml"
+    p.write_text("a = 1\n")
+    os.chmod(p, 0o444)
+    with pytest.raises(RecordError, match=r"read-only \(mode 444\)"):
+        atomic_write(p, "a = 2\n")
+    assert p.read_text() == "a = 1\n" and stat.S_IMODE(p.stat().st_mode) == 0o444
 
 
 def test_file_changed_between_read_and_write_is_not_overwritten(tmp_path):
