@@ -6,7 +6,6 @@ Exit codes: 0 nothing fails, 1 a check fails (or a record is broken or stale), 2
 from __future__ import annotations
 
 import argparse
-import json
 import shutil
 import sys
 import time
@@ -19,6 +18,7 @@ from reviewer import TOOL
 from reviewer.errors import LatchbookError
 from reviewer.safety import SHORT
 from reviewer.states import FAILING
+from reviewer.textsafe import dump_json, safe_console, visible
 
 SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
@@ -45,6 +45,7 @@ def run_json(run: Any, yields: dict[tuple[str, str], Any] | None = None) -> dict
                     "variant_of": p.variant_of or None, "line": p.line or None},
         "tool": TOOL,
         "checklist": run.checklist.identity(),
+        "warnings": list(getattr(p, "warnings", [])),
         "results": results,
     }
 
@@ -53,16 +54,15 @@ def print_table(run: Any, out: Any = None,
                 yields: dict[tuple[str, str], Any] | None = None) -> None:
     """A readable table of one run on the terminal."""
     from rich import box
-    from rich.console import Console
     from rich.table import Table
     from rich.text import Text
 
     stream = out or sys.stdout
     width = None if stream.isatty() else 110
-    console = Console(file=stream, highlight=False, soft_wrap=False, width=width)
+    console = safe_console(stream, width)
     p = run.project
-    title = f"{p.name} — revision {p.revision}" + (f" (variant of {p.variant_of})"
-                                                    if p.variant_of else "")
+    title = visible(f"{p.name} — revision {p.revision}" + (f" (variant of {p.variant_of})"
+                                                            if p.variant_of else ""))
     table = Table(title=title, title_justify="left", expand=True, box=box.SIMPLE_HEAD,
                   pad_edge=False)
     table.add_column("stage", no_wrap=True)
@@ -77,13 +77,16 @@ def print_table(run: Any, out: Any = None,
     for r in run.results:
         margin = "" if r.margin is None else f"{r.margin * 100:+.0f} %"
         shown = "n/a" if r.status == "not-applicable" else r.status
-        cells = [Text(r.stage), Text(r.check), Text(shown, style=styles.get(r.status, "")),
+        cells = [Text(visible(r.stage)), Text(visible(r.check)),
+                 Text(shown, style=styles.get(r.status, "")),
                  Text(margin)]
         if yields:
             y = yields.get((r.stage, r.check))
             cells.append(Text("" if y is None else f"{y.fail_fraction * 100:.2f} %"))
-        table.add_row(*cells, Text(r.summary))
+        table.add_row(*cells, Text(visible(r.summary)))
     console.print(table)
+    for w in getattr(p, "warnings", []):
+        console.print(Text(f"warning: {visible(w)}", style="yellow"))
     from reviewer.engine import status_counts
 
     counts = status_counts(run.results)
@@ -104,8 +107,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     all_yields = [_yields(run, args) for run in runs]
     if args.json:
         docs = [run_json(r, y) for r, y in zip(runs, all_yields, strict=True)]
-        json.dump(docs[0] if len(docs) == 1 else docs, sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        dump_json(docs[0] if len(docs) == 1 else docs, sys.stdout)
     else:
         for run, y in zip(runs, all_yields, strict=True):
             print_table(run, yields=y)
@@ -165,8 +167,8 @@ def cmd_demo(args: argparse.Namespace) -> int:
         run_app = None
     if run_app is None or not sys.stdout.isatty():
         print_table(_load_run(str(project)))
-        print(f"\nThe demo project is at {project}.\nOpen it in the workbook with: "
-              f"latchbook open {project}\n{SAFETY_LINE}")
+        print(visible(f"\nThe demo project is at {project}.\nOpen it in the workbook with: "
+                      f"latchbook open {project}\n{SAFETY_LINE}", lines=True))
         return 0
     return run_app(str(project), read_only=False, mouse=True)
 
@@ -256,7 +258,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             return cmd_demo(args)
         return int(args.func(args))
     except LatchbookError as exc:
-        print(f"latchbook: {exc}", file=sys.stderr)
+        print(f"latchbook: {visible(exc)}", file=sys.stderr)
         return 2
     except RecursionError:
         print("latchbook: a file nests tables or arrays too deep to read", file=sys.stderr)

@@ -8,9 +8,10 @@ review records and exits 0 when nothing differs, 1 when something does, 2 on bad
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from typing import Any
+
+from reviewer.textsafe import dump_json, visible
 
 
 def cmd_report(args: argparse.Namespace) -> int:
@@ -19,7 +20,7 @@ def cmd_report(args: argparse.Namespace) -> int:
 
     if args.output:
         written = write_report(args.project, args.format, args.output)
-        print(f"report written to {written}", file=sys.stderr)
+        print(f"report written to {visible(written)}", file=sys.stderr)
     else:
         sys.stdout.write(render(args.project, args.format))
     return 0
@@ -31,8 +32,7 @@ def cmd_diff(args: argparse.Namespace) -> int:
 
     d = diff_paths(args.old, args.new)
     if args.json:
-        json.dump(d.as_dict(), sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        dump_json(d.as_dict(), sys.stdout)
     else:
         render_diff(d)
     return 1 if d.has_differences else 0

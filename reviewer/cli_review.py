@@ -8,19 +8,19 @@ sign-off, a broken history, a locked project), 2 bad input (no such file, an unk
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from pathlib import Path
 from typing import Any
 
 from reviewer.errors import LatchbookError, ProjectError
 from reviewer.states import FAILING
+from reviewer.textsafe import dump_json, visible
 
 COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale", "unsigned")
 
 
 def _err(exc: LatchbookError) -> int:
-    print(f"latchbook: {exc}", file=sys.stderr)
+    print(f"latchbook: {visible(exc)}", file=sys.stderr)
     return 2 if isinstance(exc, ProjectError) else 1
 
 
@@ -46,7 +46,7 @@ def cmd_sign(args: argparse.Namespace) -> int:
                  meaning=args.meaning, note=args.note or "", ssh_key=args.ssh_key)
     except LatchbookError as exc:
         return _err(exc)
-    print(f"signed: {e.title()}, {len(e.items)} check(s), entry {e.entry_sha256[:16]}")
+    print(visible(f"signed: {e.title()}, {len(e.items)} check(s), entry {e.entry_sha256[:16]}"))
     return 0
 
 
@@ -59,7 +59,7 @@ def cmd_waive(args: argparse.Namespace) -> int:
                   ssh_key=args.ssh_key)
     except LatchbookError as exc:
         return _err(exc)
-    print(f"waived: {e.title()} ({args.stage}/{args.check} now reads fail — waived)")
+    print(visible(f"waived: {e.title()} ({args.stage}/{args.check} now reads fail — waived)"))
     return 0
 
 
@@ -71,7 +71,7 @@ def cmd_revoke(args: argparse.Namespace) -> int:
         e = revoke(_project(args.project), seq=args.entry, note=args.note, ssh_key=args.ssh_key)
     except LatchbookError as exc:
         return _err(exc)
-    print(f"revoked: {e.title()}")
+    print(visible(f"revoked: {e.title()}"))
     return 0
 
 
@@ -84,11 +84,9 @@ def cmd_verify(args: argparse.Namespace) -> int:
     except LatchbookError as exc:
         return _err(exc)
     if args.json:
-        json.dump({"ok": rep.ok, "first_bad": rep.first_bad, "entries": rep.entries,
+        dump_json({"ok": rep.ok, "first_bad": rep.first_bad, "entries": rep.entries,
                    "ssh_signatures_good": rep.signed, "head_sha256": rep.head,
-                   "messages": rep.messages, "stale": rep.stale}, sys.stdout, indent=2,
-                  ensure_ascii=False)
-        sys.stdout.write("\n")
+                   "messages": rep.messages, "stale": rep.stale}, sys.stdout)
     else:
         if rep.ok:
             print(f"history intact: {rep.entries} entries, head {rep.head[:16] or '(none)'}")
@@ -96,9 +94,9 @@ def cmd_verify(args: argparse.Namespace) -> int:
             where = f" at entry {rep.first_bad}" if rep.first_bad else ""
             print(f"history BROKEN{where}")
         for m in rep.messages:
-            print(f"  {m}")
+            print(f"  {visible(m)}")
         for s in rep.stale:
-            print(f"  stale: {s}")
+            print(f"  stale: {visible(s)}")
     return 0 if rep.ok else 1
 
 
@@ -154,8 +152,7 @@ def cmd_status(args: argparse.Namespace) -> int:
         except LatchbookError as exc:
             return _err(exc)
         if args.json:
-            json.dump(matrix_json(m), sys.stdout, indent=2, ensure_ascii=False)
-            sys.stdout.write("\n")
+            dump_json(matrix_json(m), sys.stdout)
         else:
             render_matrix(m)
         return matrix_exit_code(m)
@@ -168,8 +165,7 @@ def cmd_status(args: argparse.Namespace) -> int:
             bad_input = True
             rows.append({"project": None, "file": str(p), "error": str(exc)})
     if args.json:
-        json.dump(rows, sys.stdout, indent=2, ensure_ascii=False)
-        sys.stdout.write("\n")
+        dump_json(rows, sys.stdout)
     else:
         _print_status(rows)
     if bad_input:
@@ -179,22 +175,22 @@ def cmd_status(args: argparse.Namespace) -> int:
 
 
 def _print_status(rows: list[dict[str, Any]]) -> None:
-    names = [Path(r["file"]).name for r in rows]
+    names = [visible(Path(r["file"]).name) for r in rows]
     w = max([len(n) for n in names] + [7])
     print(f"{'project':<{w}}  " + "  ".join(f"{c:>8}" for c in COLUMNS))
     for name, r in zip(names, rows, strict=True):
         if "error" in r:
-            print(f"{name:<{w}}  cannot load: {r['error']}")
+            print(f"{name:<{w}}  cannot load: {visible(r['error'])}")
             continue
         cells = "  ".join(f"{r['counts'][c]:>8}" for c in COLUMNS)
         extra = "" if r["chain_ok"] else f"  history broken at entry {r['first_bad']}"
         print(f"{name:<{w}}  {cells}{extra}")
     for name, r in zip(names, rows, strict=True):
         for f in r.get("failing", []):
-            print(f"  {name}: {f} fails without a current waiver")
+            print(f"  {name}: {visible(f)} fails without a current waiver")
         for s in r.get("stale", []):
             why = "; ".join(s["changed"][:3])
-            print(f"  {name}: {s['check']} stale ({why})")
+            print(visible(f"  {name}: {s['check']} stale ({why})"))
 
 
 def register(sub: Any) -> None:

@@ -25,6 +25,7 @@ from typing import Any, TextIO
 from reviewer.errors import ProjectError, Where
 from reviewer.fmt import eng, pct, show
 from reviewer.model import Part, Project, Stage, Value
+from reviewer.textsafe import safe_console
 
 MARGIN_ABS = 1e-9
 MARGIN_REL = 1e-6
@@ -463,13 +464,12 @@ def _margin(x: float | None) -> str:
 
 def render_diff(d: Diff, out: TextIO | None = None, *, width: int | None = None) -> None:
     """Print the diff for a terminal (rich; every piece of user text is plain, never markup)."""
-    from rich.console import Console
     from rich.text import Text
 
     stream = out or sys.stdout
     if width is None and not (hasattr(stream, "isatty") and stream.isatty()):
         width = 110
-    c = Console(file=stream, highlight=False, soft_wrap=False, width=width)
+    c = safe_console(stream, width)
     c.print(Text(f"{d.what}: {d.old} → {d.new}", style="bold"))
     if not d.has_differences:
         c.print(Text("no differences"))

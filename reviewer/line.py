@@ -28,6 +28,7 @@ from reviewer.engine import run_project
 from reviewer.errors import LatchbookError
 from reviewer.project import is_project_file
 from reviewer.states import FAILING, WAIVABLE
+from reviewer.textsafe import safe_console, visible
 
 STATES = ("fail", "blocked", "incomplete", "stale", "marginal", "waived", "unsigned", "n/a",
           "pass")
@@ -235,14 +236,13 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
                   width: int | None = None) -> None:
     """Print the matrix as a table (rich; every cell is plain text, never markup)."""
     from rich import box
-    from rich.console import Console
     from rich.table import Table
     from rich.text import Text
 
     stream = out or sys.stdout
     if width is None and not (hasattr(stream, "isatty") and stream.isatty()):
         width = 140
-    console = Console(file=stream, highlight=False, soft_wrap=False, width=width)
+    console = safe_console(stream, width)
     bd = Path(base_dir) if base_dir is not None else None
     table = Table(title="Review status by project and stage", title_justify="left",
                   box=box.SIMPLE_HEAD, pad_edge=False)
@@ -250,27 +250,27 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
     table.add_column("rev", no_wrap=True)
     table.add_column("variant of", overflow="fold", ratio=1)
     for sid in m.stages:  # the state words must never be cut: they are the table
-        table.add_column(sid, no_wrap=True, min_width=8, overflow="fold")
+        table.add_column(visible(sid), no_wrap=True, min_width=8, overflow="fold")
     table.add_column("overall", no_wrap=True, min_width=8)
     for row in m.rows:
-        name = Text(_display_name(row, bd))
+        name = Text(visible(_display_name(row, bd)))
         if row.error:
             table.add_row(name, Text(""), Text(""),
                           *[Text("") for _ in m.stages], Text("error", style=STYLES["error"]))
             continue
-        base = Text(Path(row.variant_of).name if row.variant_of else "")
+        base = Text(visible(Path(row.variant_of).name if row.variant_of else ""))
         cells = []
         for sid in m.stages:
             c = row.cells.get(sid)
             cells.append(Text("—", style="dim") if c is None
                          else Text(c.state, style=STYLES.get(c.state, "")))
-        table.add_row(name, Text(row.revision), base, *cells,
+        table.add_row(name, Text(visible(row.revision)), base, *cells,
                       Text(row.state, style=STYLES.get(row.state, "")))
     console.print(table)
     for row in m.rows:
-        label = _display_name(row, bd)
+        label = visible(_display_name(row, bd))
         if row.error:
-            console.print(Text(f"  {label}: {row.error}", style="red"))
+            console.print(Text(f"  {label}: {visible(row.error)}", style="red"))
             continue
         notes = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
                  if c.state in ("fail", "blocked", "incomplete", "stale", "marginal", "waived")
@@ -278,7 +278,7 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
         if not row.chain_ok:
             notes.insert(0, "the review history is broken (latchbook verify)")
         if notes:
-            console.print(Text(f"  {label}: " + " | ".join(notes)))
+            console.print(Text(f"  {label}: " + visible(" | ".join(notes))))
     code = matrix_exit_code(m)
     verdict = {0: "nothing fails and no sign-off is stale",
                1: f"{len(m.failing)} project(s) fail, {len(m.stale)} with stale sign-offs",

@@ -27,6 +27,7 @@ import numpy as np
 from reviewer import TOOL
 from reviewer.fmt import eng, pct
 from reviewer.safety import CAUTIONS, FOOTER
+from reviewer.textsafe import markdown, visible
 from reviewer.waveforms import has_waveform, picture
 
 MAX_POINTS = 800
@@ -339,9 +340,9 @@ class _svg_settings:
 # -------------------------------------------------------------------------------- markdown
 
 def _md(text: Any) -> str:
-    """Plain text for a Markdown table cell or line: no HTML, no table breaks."""
-    s = str(text).replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ")
-    return s.replace("<", "&lt;").replace(">", "&gt;")
+    """Plain text for a Markdown table cell or line: no HTML, no links or images, no table
+    breaks, control and bidi characters shown (:func:`reviewer.textsafe.markdown`)."""
+    return markdown(str(text).replace("\n", " "))
 
 
 def _margin(x: float | None) -> str:
@@ -450,7 +451,7 @@ footer { border-top: 1px solid #999; margin-top: 2em; padding-top: .6em; font-si
 
 
 def _e(x: Any) -> str:
-    return html.escape(str(x), quote=True)
+    return html.escape(visible(x, lines=True), quote=True)
 
 
 def _cls(state: str) -> str:

@@ -25,7 +25,8 @@ def test_check_json_shape(capsys):
     """--json gives project, tool, checklist and results with the documented keys."""
     code = main(["check", str(PROJECTS / "flasher-dc.toml"), "--json"])
     doc = json.loads(capsys.readouterr().out)
-    assert set(doc) == {"project", "tool", "checklist", "results"}
+    assert set(doc) == {"project", "tool", "checklist", "warnings", "results"}
+    assert doc["warnings"] == []
     assert doc["tool"].startswith("latchbook ")
     assert set(doc["checklist"]) == {"name", "version", "sha256"}
     assert doc["results"]
