@@ -7,18 +7,20 @@ The app owns the :class:`~reviewer.tui.session.Session` (the open project) and t
 from __future__ import annotations
 
 import sys
-from collections.abc import Iterable
+from collections.abc import Iterable, Sequence
 from pathlib import Path
 
 from rich.text import Text
 from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.events import Resize
+from textual.filter import LineFilter
 from textual.screen import Screen
 from textual.worker import Worker, WorkerState
 
 from reviewer import store
 from reviewer.errors import LatchbookError
+from reviewer.textsafe import visible
 from reviewer.tui import attention
 from reviewer.tui.compute import Analyst, Computer
 from reviewer.tui.dialogs.choice import ChoiceDialog
@@ -29,6 +31,7 @@ from reviewer.tui.screens.overview import OverviewScreen
 from reviewer.tui.screens.stage import StageScreen
 from reviewer.tui.screens.too_small import MIN_HEIGHT, MIN_WIDTH, TooSmallScreen
 from reviewer.tui.session import Session
+from reviewer.tui.visible import VisibleFilter
 
 
 class Workbook(App[int]):
@@ -52,16 +55,31 @@ class Workbook(App[int]):
         self.filter_key = "all"  # the attention filter, shared by the overview and the stages
         self._small: TooSmallScreen | None = None
         self._size_judged = False  # the size is judged once the first screen is up
+        self._visible = VisibleFilter()
+
+    def get_line_filters(self) -> Sequence[LineFilter]:
+        """Textual's filters, then the one that shows control and bidi characters."""
+        return [*super().get_line_filters(), self._visible]
 
     # -- routing ------------------------------------------------------------------------
     def on_mount(self) -> None:
-        self.title = f"Latchbook · {self.session.project.name}"
+        self.title = visible(f"Latchbook · {self.session.project.name}")
         self.push_screen(OverviewScreen())
+        self.notify_warnings()
         if self.recompute and not self.session.computed:
             self.computer.start(None)
         self._offer_recovery()
         self._size_judged = True
         self.call_after_refresh(lambda: self._check_size(self.size.width, self.size.height))
+
+    def notify_warnings(self) -> None:
+        """A small notice when values of the project lie outside their usual band."""
+        warnings = self.session.project.warnings
+        if warnings:
+            more = f" (and {len(warnings) - 3} more)" if len(warnings) > 3 else ""
+            self.notify("\n".join(visible(w) for w in warnings[:3]) + more,
+                        title=f"{len(warnings)} value(s) outside the usual band",
+                        severity="warning", timeout=20, markup=False)
 
     def open_stage(self, stage: str) -> None:
         """Show one stage's checklist."""
@@ -239,7 +257,7 @@ def run_app(project_path: str, *, read_only: bool = False, mouse: bool = True,
     try:
         session = Session(Path(project_path), read_only=read_only, record=record)
     except LatchbookError as exc:
-        print(f"latchbook: {exc}", file=sys.stderr)
+        print(f"latchbook: {visible(exc)}", file=sys.stderr)
         return 2
     restore = store.install_hangup_handler(session.write_journal)
     try:

@@ -13,6 +13,7 @@ from textual.widgets import Footer, Static
 
 from reviewer.schema import CATALOGUE
 from reviewer.states import WAIVABLE
+from reviewer.textsafe import visible
 from reviewer.tui import attention, present
 from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
 from reviewer.tui.widgets.banner import Banner, banner_parts
@@ -84,7 +85,7 @@ class StageScreen(WorkbookScreen):
         out = Text()
         if self.filter_key != "all" and shown is not None and not shown:
             f = attention.BY_KEY[self.filter_key]
-            out.append(f"filter {f.label}: none of the {every} checks of {self.stage} has "
+            out.append(f"filter {f.label}: none of the {every} checks of {visible(self.stage)} has "
                        f"{f.rule}" if self.session.computed else
                        f"filter {f.label}: waiting for the results", style="magenta")
             out.append("\nf shows the next filter; f again until all checks shows them all",
@@ -95,7 +96,7 @@ class StageScreen(WorkbookScreen):
             y = self.session.yield_of(self.stage, r.check)
             if y is not None:
                 out.append(f"  Monte Carlo {y.fail_fraction * 100:.2f} % fail", style="bold")
-            out.append(f"  {r.summary}")
+            out.append(f"  {visible(r.summary)}")
         elif self.check:
             out.append(f"{self.check}: computing…", style="italic")
         self.query_one("#stage-summary", Static).update(out)

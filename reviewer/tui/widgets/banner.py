@@ -11,6 +11,7 @@ from __future__ import annotations
 from rich.text import Text
 from textual.widget import Widget
 
+from reviewer.textsafe import visible
 from reviewer.tui import present
 from reviewer.tui.session import Session
 
@@ -23,10 +24,10 @@ def banner_parts(session: Session, where: str = "", filter_label: str = "",
     """The banner's parts, in display order, each with how much it is needed; ``where_note``
     (e.g. a stage's kind) follows ``where`` and goes early when room is short."""
     p = session.project
-    parts: list[Part] = [(10, Text(f" {p.name} ", style="bold reverse")),
-                         (4, Text(f" rev {p.revision}"))]
+    parts: list[Part] = [(10, Text(f" {visible(p.name)} ", style="bold reverse")),
+                         (4, Text(f" rev {visible(p.revision)}"))]
     if p.variant_of:
-        parts.append((2, Text(f" · variant of {p.variant_of}", style="dim")))
+        parts.append((2, Text(f" · variant of {visible(p.variant_of)}", style="dim")))
     state = Text("  ")
     state.append_text(present.status_text(session.overall() if session.computed else ""))
     parts.append((9, state))

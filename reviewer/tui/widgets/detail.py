@@ -23,6 +23,7 @@ from reviewer.fmt import eng, show
 from reviewer.model import Project
 from reviewer.registry import CHECKS, Context
 from reviewer.states import ATTENTION
+from reviewer.textsafe import visible
 from reviewer.tui import present
 from reviewer.tui.safety import SAFETY_LINE, cautions_for
 
@@ -75,14 +76,14 @@ def _head(text: str) -> Text:
 def detail_head(result: Result, limits: dict[str, float]) -> Text:
     """The first lines of the detail: the check, its status, margin, worst vs limit, summary."""
     out = Text()
-    out.append(f"{result.stage} · {result.check}   ", style="bold")
+    out.append(visible(f"{result.stage} · {result.check}   "), style="bold")
     out.append_text(present.status_text(result.status))
     out.append("   margin ")
     out.append_text(present.margin_text(result.margin))
     out.append("   worst vs limit ")
     out.append_text(present.worst_vs_limit(result, limits))
     out.append("\n")
-    out.append(result.summary + "\n")
+    out.append(visible(result.summary) + "\n")
     return out
 
 
@@ -129,7 +130,7 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
         out.append(defn.source + "\n")
     if result.status in ATTENTION:
         out.append_text(_head("What would fix it"))
-        out.append(result.summary + "\n")
+        out.append(visible(result.summary) + "\n")
         if defn is not None and defn.fix:
             out.append(defn.fix + "\n")
     if result.notes:
