@@ -187,6 +187,8 @@ def _show(x: float, dim: str) -> str:
         return f"{x:g}"
     if dim == "tempco":
         return f"{x * 100:g} %/K"
+    if dim in ("i2t", "thermal_resistance"):
+        return f"{x:g} " + ("A²s" if dim == "i2t" else "K/W")
     return show(x, dim)
 
 

@@ -2,7 +2,8 @@
 
 ``register(sub)`` adds them to the ``latchbook`` parser. Each command returns its exit code:
 0 done (or nothing wrong), 1 refused or wrong (a failing check without a current waiver, a stale
-sign-off, a broken history, a locked project), 2 bad input (no such file, an unknown stage).
+sign-off, a broken history, a locked project), 2 bad input (no such file, an unknown stage, a
+record that is not a regular file, is a symbolic link or is read-only).
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from reviewer.errors import LatchbookError, ProjectError
+from reviewer.errors import LatchbookError, ProjectError, UnsafeFileError
 from reviewer.states import FAILING
 from reviewer.textsafe import dump_json, visible
 
@@ -21,7 +22,7 @@ COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale
 
 def _err(exc: LatchbookError) -> int:
     print(f"latchbook: {visible(exc)}", file=sys.stderr)
-    return 2 if isinstance(exc, ProjectError) else 1
+    return 2 if isinstance(exc, (ProjectError, UnsafeFileError)) else 1
 
 
 def _project(path: str) -> Path:

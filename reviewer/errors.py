@@ -50,3 +50,8 @@ class ValueGrammarError(ProjectError):
 
 class RecordError(LatchbookError):
     """A review record that is broken, locked or changed underneath us."""
+
+
+class UnsafeFileError(RecordError):
+    """A file Latchbook will not read or write as it is: not a regular file, a symbolic link to
+    write through, read-only, too large. Bad input (exit 2), unlike a refusal such as a lock."""

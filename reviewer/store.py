@@ -36,7 +36,7 @@ from pathlib import Path
 from types import FrameType
 from typing import Any
 
-from reviewer.errors import RecordError, Where
+from reviewer.errors import RecordError, UnsafeFileError, Where
 from reviewer.safeio import read_regular
 
 JOURNAL_FORMAT = "latchbook.journal/1"
@@ -96,7 +96,7 @@ def sha256_bytes(data: bytes) -> str:
 def file_sha256(path: str | Path) -> str | None:
     """Hex SHA-256 of the file's bytes, or None when there is no such file."""
     try:
-        return sha256_bytes(read_regular(path, RECORD_MAX_BYTES, RecordError))
+        return sha256_bytes(read_regular(path, RECORD_MAX_BYTES, UnsafeFileError))
     except FileNotFoundError:
         return None
 
@@ -109,7 +109,7 @@ def read_with_hash(path: str | Path) -> tuple[str | None, str | None]:
     """
     p = Path(path)
     try:
-        data = read_regular(p, RECORD_MAX_BYTES, RecordError)
+        data = read_regular(p, RECORD_MAX_BYTES, UnsafeFileError)
     except FileNotFoundError:
         return None, None
     except OSError as exc:
@@ -216,10 +216,10 @@ def _refuse_unsafe_target(path: Path) -> Path:
             dest = os.readlink(target)
         except OSError:
             dest = "?"
-        raise RecordError(f"this is a symbolic link to {dest}; Latchbook does not write through "
-                          "a link (it could replace another file or create one elsewhere). "
-                          "Nothing was written: replace the link by a copy of the file, or "
-                          "open the file it points to", Where(str(path)))
+        raise UnsafeFileError(f"this is a symbolic link to {dest}; Latchbook does not write "
+                              "through a link (it could replace another file or create one "
+                              "elsewhere). Nothing was written: replace the link by a copy of the file, "
+                              "or open the file it points to", Where(str(path)))
     try:
         st = target.stat()
     except FileNotFoundError:
@@ -228,9 +228,10 @@ def _refuse_unsafe_target(path: Path) -> Path:
         raise RecordError(f"cannot write the file: {exc.strerror}", Where(str(path))) from None
     no_bits = not st.st_mode & (stat.S_IWUSR | stat.S_IWGRP | stat.S_IWOTH)
     if not os.access(target, os.W_OK) or (os.geteuid() == 0 and no_bits):
-        raise RecordError(f"the file is read-only (mode {stat.S_IMODE(st.st_mode):03o}); "
-                          "nothing was written. Ask its owner, or make it writable "
-                          "(chmod u+w) if it is yours and the change is meant", Where(str(path)))
+        raise UnsafeFileError(f"the file is read-only (mode {stat.S_IMODE(st.st_mode):03o}); "
+                              "nothing was written. Ask its owner, or make it writable "
+                              "(chmod u+w) if it is yours and the change is meant",
+                              Where(str(path)))
     return target
 
 
