@@ -218,8 +218,8 @@ def _refuse_unsafe_target(path: Path) -> Path:
             dest = "?"
         raise UnsafeFileError(f"this is a symbolic link to {dest}; Latchbook does not write "
                               "through a link (it could replace another file or create one "
-                              "elsewhere). Nothing was written: replace the link by a copy of the file, "
-                              "or open the file it points to", Where(str(path)))
+                              "elsewhere). Nothing was written: replace the link by a copy "
+                              "of the file, or open the file it points to", Where(str(path)))
     try:
         st = target.stat()
     except FileNotFoundError:
