@@ -26,9 +26,12 @@ def _err(exc: LatchbookError) -> int:
 
 
 def _project(path: str) -> Path:
+    from reviewer.safeio import refusal
+
     p = Path(path)
-    if not p.is_file():
-        raise ProjectError("no such project file; give the path to NAME.toml", _where(p))
+    why = refusal(p)
+    if why is not None:
+        raise ProjectError(f"{why} (give the path to a project file NAME.toml)", _where(p))
     return p
 
 
@@ -113,7 +116,10 @@ def _projects_in(items: list[str]) -> list[Path]:
         elif p.is_file():
             out.append(p)
         else:
-            raise ProjectError("no such file or folder", _where(p))
+            from reviewer.safeio import refusal
+
+            why = refusal(p) or "no such file or folder"
+            raise ProjectError(why.replace("no such file", "no such file or folder"), _where(p))
     return out
 
 

@@ -21,7 +21,7 @@ from reviewer import bounds, rules, schema
 from reviewer.errors import LatchbookError, ProjectError, Where
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.registry import STAGE_KINDS, Param
-from reviewer.safeio import read_regular
+from reviewer.safeio import read_regular, refusal
 from reviewer.units import parse_value
 
 MAX_BYTES = 1 << 20
@@ -190,7 +190,12 @@ class _Loader:
         base_path = (path.parent / base_ref)
         _confine(base_path, base_ref, path, Where(str(path), "project", "variant_of",
                                                   line_of(text, "project", "variant_of")))
-        if not base_path.is_file():
+        why = refusal(base_path)
+        if why is not None and os.path.lexists(base_path):
+            raise ProjectError(f'the base project "{base_ref}": {why}',
+                               Where(str(path), "project", "variant_of",
+                                     line_of(text, "project", "variant_of")))
+        if why is not None:
             raise ProjectError(f'the base project "{base_ref}" does not exist (looked for '
                                f"{base_path}); variant_of is relative to this file",
                                Where(str(path), "project", "variant_of",
@@ -358,7 +363,9 @@ class _Loader:
                                self.where("stages", sid))
         kind = raw.get("kind")
         if kind not in STAGE_KINDS:
-            raise ProjectError("needs kind = one of " + ", ".join(f'"{k}"' for k in STAGE_KINDS)
+            said = f'kind = "{kind}" is not a stage kind; ' if isinstance(kind, str) else ""
+            raise ProjectError(said + "needs kind = one of "
+                               + ", ".join(f'"{k}"' for k in STAGE_KINDS)
                                + (_did_you_mean(str(kind), STAGE_KINDS) if kind else ""),
                                self.where(table, "kind"))
         params = {"kind": Param("text"), **STAGE_KINDS[kind].params}

@@ -72,3 +72,21 @@ def read_regular(path: str | Path, limit: int,
         raise error(f"the file is larger than {limit // 1024} KiB; a {what} is at most "
                     f"{limit // 1024} KiB (is this the right file?)", where)
     return data
+
+
+def refusal(path: str | Path) -> str | None:
+    """Why ``path`` is not a readable regular file, in words; None when it is one."""
+    try:
+        st = os.stat(path)
+    except FileNotFoundError:
+        return "no such file; check the path" if not os.path.islink(path) else \
+            "a symbolic link to a file that does not exist"
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            return "the path is a symbolic link that loops; point it at a real file"
+        return f"cannot read the file: {exc.strerror}"
+    if stat.S_ISDIR(st.st_mode):
+        return "this is a folder, not a file"
+    if not stat.S_ISREG(st.st_mode):
+        return f"this is {_kind(st.st_mode)}, not a file; give a regular file"
+    return None
