@@ -65,7 +65,7 @@ class Workbook(App[int]):
     def on_mount(self) -> None:
         self.title = visible(f"Latchbook · {self.session.project.name}")
         self.push_screen(OverviewScreen())
-        self.notify_warnings()
+        self.call_after_refresh(self.notify_warnings)
         if self.recompute and not self.session.computed:
             self.computer.start(None)
         self._offer_recovery()

@@ -16,6 +16,7 @@ from textual.widgets import DataTable
 
 from reviewer.engine import Result
 from reviewer.states import FAILING
+from reviewer.textsafe import visible
 from reviewer.tolerance import Yield
 from reviewer.tui import present
 from reviewer.tui.session import StageCounts
@@ -129,7 +130,7 @@ class StageTable(KeyedTable):
             fails = sum(c.counts.get(s, 0) for s in FAILING)
             state = present.status_text("" if computing and not c.counts else c.state)
             return Row(c.stage, (
-                Text(c.stage), Text(c.kind, style="dim"), state,
+                Text(visible(c.stage)), Text(c.kind, style="dim"), state,
                 present.count_text(c.counts.get("pass", 0), "green"),
                 present.count_text(c.counts.get("marginal", 0), "yellow"),
                 present.count_text(fails, "bold red"),
@@ -180,7 +181,7 @@ class ChecklistTable(KeyedTable):
             status = "" if r is None else r.status
             if status == "fail" and st == "waived":
                 status = "fail (waived)"
-            name = Text(cid)
+            name = Text(visible(cid))
             if cid in changed:
                 name.append("Δ", style="bold yellow")
             rows.append(Row(cid, (
