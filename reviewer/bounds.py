@@ -143,7 +143,7 @@ KEY: dict[str, Bounds] = {
     # gate drive
     "stages.gate-drive.turns_ratio": _b(1e-3, 1e3, 0.1, 10.0, "a turns ratio between 1:1000 "
                                         "and 1000:1"),
-    "stages.gate-drive.series_r": _b(1e-6, 1e9, 0.0, 100e3),
+    "stages.gate-drive.series_r": _b(1e-6, 1e9, 1.0, 100e3),
     # power stages
     "stages.phase-control.firing": _b(0.0, math.pi, 0.0, math.pi, _ANGLE_HALF),
     "stages.dc-switch.duty": _b(0.0, 1.0, 1e-3, 1.0, "a fraction of the time on, 0 < duty ≤ 1",
