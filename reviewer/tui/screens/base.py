@@ -21,6 +21,7 @@ from reviewer.errors import LatchbookError
 from reviewer.fmt import DIM_UNIT
 from reviewer.model import Value
 from reviewer.states import WAIVABLE
+from reviewer.textsafe import visible
 from reviewer.tui import attention, present
 from reviewer.tui.dialogs.edit_value import EditValueDialog
 from reviewer.tui.dialogs.pick_value import PickValueDialog
@@ -216,9 +217,13 @@ class WorkbookScreen(Screen[None]):
         if state is None:
             return
         paths = [state.edits[-1].path] if state.edits else None
+        before = set(self.session.project.warnings)
         self.session.push(state)
         self.workbook.computer.start(paths)
-        self.notify(f"changed {state.label}; recomputing what depends on it", markup=False)
+        self.notify(visible(f"changed {state.label}; recomputing what depends on it"),
+                    markup=False)
+        if set(self.session.project.warnings) - before:
+            self.workbook.notify_warnings()
         self.refresh_all()
 
     def action_undo(self) -> None:
