@@ -9,6 +9,7 @@ record that is not a regular file, is a symbolic link or is read-only).
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 from typing import Any
@@ -30,6 +31,8 @@ def _project(path: str) -> Path:
 
     p = Path(path)
     why = refusal(p)
+    if why is not None and not os.path.lexists(p):
+        raise ProjectError("no such project file; give the path to NAME.toml", _where(p))
     if why is not None:
         raise ProjectError(f"{why} (give the path to a project file NAME.toml)", _where(p))
     return p

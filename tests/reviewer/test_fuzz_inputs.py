@@ -44,7 +44,7 @@ RAWS = st.one_of(TEXTS, st.floats(), st.integers(), st.booleans(), st.none(),
                  st.lists(TEXTS, max_size=2))
 
 
-@settings(FAST, max_examples=1500)
+@settings(FAST, max_examples=800)
 @given(raw=RAWS, dim=st.sampled_from(sorted(DIMS)), zero=st.booleans(), neg=st.booleans())
 def test_value_grammar_gives_a_value_or_a_grammar_error(raw, dim, zero, neg):
     try:
@@ -101,7 +101,7 @@ OPS = st.lists(st.tuples(st.integers(0, 5), st.integers(0, 10**6), st.integers(0
                min_size=1, max_size=4)
 
 
-@settings(FAST, max_examples=200)
+@settings(FAST, max_examples=150)
 @given(demo=st.sampled_from(sorted(DEMOS)), ops=OPS)
 def test_mutated_demo_never_gives_a_traceback(demo, ops):
     text = _mutate(DEMOS[demo], ops)
