@@ -6,6 +6,7 @@ Exit codes: 0 nothing fails, 1 a check fails (or a record is broken or stale), 2
 from __future__ import annotations
 
 import argparse
+import os
 import shutil
 import sys
 import time
@@ -152,7 +153,7 @@ def demo_copy(dest: Path) -> Path:
     src = resources.files("reviewer").joinpath("data/projects")
     for item in src.iterdir():
         target = dest / item.name
-        if item.name.endswith(".toml") and not target.exists():
+        if item.name.endswith(".toml") and not os.path.lexists(target):  # never via a link
             with resources.as_file(item) as f:
                 shutil.copyfile(f, target)
     return dest / DEMO
@@ -267,8 +268,6 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         # The reader (e.g. `head`) went away: stop quietly, as shell tools do.
-        import os
-
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
 
