@@ -345,6 +345,13 @@ def _md(text: Any) -> str:
     return markdown(str(text).replace("\n", " "))
 
 
+def _code(text: Any) -> str:
+    """User text as a Markdown code span: visible, no backtick to close it early, no table
+    break (inside a code span a backslash escape would show, so nothing else is escaped)."""
+    s = visible(str(text)).replace("`", "ˋ").replace("|", "\\|")
+    return f"`{s}`"
+
+
 def _margin(x: float | None) -> str:
     return "—" if x is None else pct(x)
 
@@ -356,7 +363,7 @@ def _limits(lim: dict[str, float]) -> str:
 def to_markdown(d: ReportData) -> str:
     """The report as Markdown (waveform plots are in the HTML form)."""
     out: list[str] = [f"# Design review: {_md(d.name)}", ""]
-    out += [f"- Revision: **{_md(d.revision)}**", f"- Project file: `{_md(d.file)}`",
+    out += [f"- Revision: **{_md(d.revision)}**", f"- Project file: {_code(d.file)}",
             f"- Resolved from: {_md(d.chain)}"]
     if d.line:
         out.append(f"- Product line: {_md(d.line)}")
@@ -373,9 +380,9 @@ def to_markdown(d: ReportData) -> str:
             for s, k, st, det in d.summary]
     out += ["", "Counts: " + ", ".join(f"{k} {v}" for k, v in d.counts.items()), ""]
     out += ["## Inputs", "", "| input | value | from |", "|---|---|---|"]
-    out += [f"| `{_md(p)}` | {_md(v)} | {_md(f)} |" for p, v, f in d.inputs]
+    out += [f"| {_code(p)} | {_md(v)} | {_md(f)} |" for p, v, f in d.inputs]
     for s in d.stages:
-        out += ["", f"## Stage `{_md(s.id)}` ({_md(s.kind)}): {_md(s.state)}", ""]
+        out += ["", f"## Stage {_code(s.id)} ({_md(s.kind)}): {_md(s.state)}", ""]
         out += ["| check | status | margin | limits | summary |", "|---|---|---|---|---|"]
         for r in s.checks:
             out.append(f"| {_md(r.check)} | {_md(r.label)} | {_margin(r.margin)} | "
@@ -403,7 +410,7 @@ def to_markdown(d: ReportData) -> str:
             out += ["", f"Waveforms: {_md(s.no_plot or 'no waveform')}."]
         if s.manual:
             out += ["", "| manual question | answer | note |", "|---|---|---|"]
-            out += [f"| {_md(q)} (`{_md(i)}`) | {_md(a)} | {_md(n)} |"
+            out += [f"| {_md(q)} ({_code(i)}) | {_md(a)} | {_md(n)} |"
                     for i, q, a, n in s.manual]
     out += ["", "## Sign-off history", ""]
     if d.history:
