@@ -25,6 +25,8 @@ from reviewer.project import load_project_text
 
 _MISSING = object()
 
+BOM = "\ufeff"  # a UTF-8 byte-order mark, as decoded text
+
 
 def split_path(path: str) -> list[str]:
     """The keys of a dotted path; every key must be non-empty."""
@@ -95,7 +97,7 @@ def _item(raw: Any) -> Any:
 
 def get_raw(text: str, path: str) -> Any:
     """The raw TOML value at ``path`` in ``text``, or None when the file does not give it."""
-    node: Any = tomllib.loads(text)
+    node: Any = tomllib.loads(text.removeprefix(BOM))
     for k in split_path(path):
         if not isinstance(node, dict) or k not in node:
             return None
@@ -169,7 +171,7 @@ def check_intent(before: str, after: str, path: str, raw: Any) -> None:
     This is the guard against an edit library moving or retyping something else.
     """
     keys = split_path(path)
-    old, new = tomllib.loads(before), tomllib.loads(after)
+    old, new = tomllib.loads(before.removeprefix(BOM)), tomllib.loads(after.removeprefix(BOM))
     got = get_raw(after, path)
     if got != raw or type(got) is not type(raw):
         raise ProjectError(f"the edit of `{path}` did not come out as typed (read back "
@@ -187,8 +189,10 @@ def apply_edit(text: str, path: str, typed: str, file_path: str | Path) -> tuple
     does not follow the grammar (the same parser the files use); ``text`` is then untouched.
     """
     raw = parse_typed(typed, split_path(path)[-1])
-    new_text = set_value(text, path, raw)
-    check_intent(text, new_text, path, raw)
+    bom = BOM if text.startswith(BOM) else ""  # kept as the file has it; tomlkit refuses it
+    body = text[len(bom):]
+    new_text = bom + set_value(body, path, raw)
+    check_intent(body, new_text[len(bom):], path, raw)
     project = load_project_text(new_text, file_path)
     return new_text, project
 

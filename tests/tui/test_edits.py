@@ -84,3 +84,14 @@ def test_intent_check_notices_a_second_change(kiln):
     new = set_value(set_value(text, "supply.inductance", "1 uH"), "stages.snubber.r", "1 ohm")
     with pytest.raises(ProjectError, match="changed other values"):
         check_intent(text, new, "supply.inductance", "1 uH")
+
+
+def test_an_edit_keeps_a_byte_order_mark(workdir):
+    """A project saved with a UTF-8 byte-order mark loads, and an edit keeps the mark and
+    changes exactly the value typed."""
+    path = workdir / "flasher-dc.toml"
+    text = "\ufeff" + path.read_text(encoding="utf-8")
+    new, project = apply_edit(text, "stages.lamp.duty", "0.4", path)
+    assert new.startswith("\ufeff# Beacon flasher") and project.stages["lamp"].params[
+        "duty"].nom == 0.4
+    assert new.replace("duty = 0.4", "duty = 0.5") == text
