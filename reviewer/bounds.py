@@ -68,9 +68,8 @@ DIM: dict[str, Bounds] = {
     "current": _b(1e-12, 1e6, 1e-9, 1e4),
     "time": _b(1e-12, 1e4, 1e-9, 10.0),
     "frequency": _b(1e-6, 1e9, 1e-3, 1e6),
-    "angle": _b(0.0, 2 * math.pi, 0.0, 2 * math.pi, "an angle within one cycle, 0–360°"),
-    "temperature": _b(C0 - 100, C0 + 300, C0 - 55, C0 + 150,
-                      "an absolute temperature between −100 °C and 300 °C"),
+    "angle": _b(0.0, 2 * math.pi, 0.0, 2 * math.pi, "an angle within one cycle"),
+    "temperature": _b(C0 - 100, C0 + 300, C0 - 55, C0 + 150),
     "temperature_difference": _b(0.0, 300.0, 0.0, 80.0),
     "thermal_resistance": _b(1e-4, 1e4, 1e-2, 100.0),
     "power": _b(1e-9, 1e9, 1e-6, 1e6),
@@ -79,22 +78,20 @@ DIM: dict[str, Bounds] = {
     "voltage_rate": _b(1e-3, 1e13, 1e6, 1e10),
     "current_rate": _b(1e-3, 1e13, 1e5, 1e10),
     "volt_seconds": _b(1e-12, 10.0, 1e-7, 0.1),
-    "tempco": _b(-1.0, 1.0, -0.02, 0.02, "a temperature coefficient within ±100 %/K"),
+    "tempco": _b(-1.0, 1.0, -0.02, 0.02),
     "dimensionless": _b(1e-9, 1e9, 1e-6, 1e6),
 }
 
-_ANGLE_HALF = "an angle in the half-cycle, 0–180° (the SCR is reverse-biased after 180°)"
-_AMBIENT_WHY = ("operating air temperature between −100 °C and 200 °C; an absolute temperature "
-                'is written "-10 degC" or "263 K" (K is absolute: "35 K" is −238 °C)')
+_ANGLE_HALF = "the SCR is reverse-biased after 180°"
+_AMBIENT_WHY = ('the air around the parts in operation; K is absolute, so "35 K" is −238 °C: '
+                'write "-10 degC" or "263 K"')
 
 KEY: dict[str, Bounds] = {
     # tables every project has
     "conditions.ambient": _b(C0 - 100, C0 + 200, C0 - 55, C0 + 85, _AMBIENT_WHY),
     "conditions.enclosure_rise": _b(0.0, 300.0, 0.0, 60.0),
-    "supply.voltage": _b(1e-3, 1e5, 1.0, 1200.0,
-                         "a supply between 1 mV and 100 kV (check the prefix)"),
-    "supply.frequency": _b(0.1, 1e5, 16.0, 440.0,
-                           "a line between 0.1 Hz and 100 kHz (mains is 50 or 60 Hz)"),
+    "supply.voltage": _b(1e-3, 1e5, 1.0, 1200.0),
+    "supply.frequency": _b(0.1, 1e5, 16.0, 440.0, "mains is 50 or 60 Hz"),
     "supply.inductance": _b(0.0, 1.0, 0.0, 10e-3),
     # SCR
     "parts.scr.vdrm": _b(1e-3, 1e5, 10.0, 1e4, "no single thyristor is rated above 100 kV"),
@@ -106,8 +103,7 @@ KEY: dict[str, Bounds] = {
     "parts.scr.vt0": _b(0.0, 100.0, 0.0, 3.0),
     "parts.scr.rt": _b(0.0, 1e3, 0.0, 1.0),
     "parts.scr.tj_max": _b(C0 + 25, C0 + 250, C0 + 90, C0 + 175,
-                           "above 25 °C (the datasheet's reference) and at most 250 °C",
-                           lo_open=True),
+                           "it is above the datasheet's 25 °C reference", lo_open=True),
     "parts.scr.igt": _b(1e-9, 100.0, 1e-6, 1.0),
     "parts.scr.vgt": _b(1e-3, 100.0, 0.1, 5.0),
     "parts.scr.vgd": _b(1e-3, 100.0, 0.05, 2.0),
@@ -117,10 +113,10 @@ KEY: dict[str, Bounds] = {
     "parts.scr.tgt": _b(1e-10, 1e-2, 1e-7, 1e-4),
     "parts.scr.vrgm": _b(1e-3, 1e3, 0.5, 30.0),
     "parts.scr.cold.at": _b(C0 - 100, C0 + 25, C0 - 65, C0 + 0,
-                            "the cold table is for the lowest rated temperature, below 25 °C "
-                            '(e.g. at = "-40 degC")', hi_open=True),
+                            "the cold table gives the values at the lowest rated temperature, "
+                            'below 25 °C, e.g. at = "-40 degC"', hi_open=True),
     # UJT and PUT
-    "parts.ujt.eta": _b(0.0, 1.0, 0.4, 0.9, "η is a ratio of resistances, 0 < η < 1",
+    "parts.ujt.eta": _b(0.0, 1.0, 0.4, 0.9, "η is a ratio of resistances, below 1",
                         lo_open=True, hi_open=True),
     "parts.ujt.rbb": _b(1.0, 1e7, 1e3, 30e3),
     "parts.ujt.ip": _b(1e-12, 1.0, 1e-9, 1e-3),
@@ -141,12 +137,11 @@ KEY: dict[str, Bounds] = {
     "stages.*.target#angle": _b(0.0, math.pi, 0.0, math.pi, _ANGLE_HALF),
     "stages.*.target#frequency": _b(1e-6, 1e9, 1e-2, 1e5),
     # gate drive
-    "stages.gate-drive.turns_ratio": _b(1e-3, 1e3, 0.1, 10.0, "a turns ratio between 1:1000 "
-                                        "and 1000:1"),
+    "stages.gate-drive.turns_ratio": _b(1e-3, 1e3, 0.1, 10.0),
     "stages.gate-drive.series_r": _b(1e-6, 1e9, 1.0, 100e3),
     # power stages
     "stages.phase-control.firing": _b(0.0, math.pi, 0.0, math.pi, _ANGLE_HALF),
-    "stages.dc-switch.duty": _b(0.0, 1.0, 1e-3, 1.0, "a fraction of the time on, 0 < duty ≤ 1",
+    "stages.dc-switch.duty": _b(0.0, 1.0, 1e-3, 1.0, "the fraction of the time on",
                                 lo_open=True),
     "stages.*.load.r": _b(1e-6, 1e9, 1e-2, 1e5),
     "stages.*.load.cold_r": _b(1e-6, 1e9, 1e-3, 1e5),
@@ -158,6 +153,9 @@ KEY: dict[str, Bounds] = {
     "stages.rc-snubber.step": _b(1e-3, 1e6, 1.0, 1e4),
     "stages.*.charge_voltage": _b(1e-3, 1e6, 1.0, 1e4),
 }
+
+
+_NO_PREFIX = ("dimensionless", "angle", "temperature", "temperature_difference", "tempco")
 
 
 def bounds_for(scope: str, key: str, dim: str) -> Bounds:
@@ -192,11 +190,11 @@ def _show(x: float, dim: str) -> str:
     return show(x, dim)
 
 
-def domain_text(d: Domain, dim: str) -> str:
-    """The domain as a reader would write it: ``0 < x < 1``, ``≤ 180°``."""
+def domain_text(d: Domain, dim: str, name: str = "x") -> str:
+    """The domain as a reader would write it: ``0 < eta < 1``, ``0° ≤ firing ≤ 180°``."""
     lo = "" if d.lo == -INF else f"{_show(d.lo, dim)} {'<' if d.lo_open else '≤'} "
     hi = "" if d.hi == INF else f" {'<' if d.hi_open else '≤'} {_show(d.hi, dim)}"
-    return f"{lo}x{hi}"
+    return f"{lo}{name}{hi}"
 
 
 def band_text(band: tuple[float, float], dim: str) -> str:
@@ -216,9 +214,10 @@ def check(v: Value, scope: str, key: str, where: Where, *, allow_zero: bool = Fa
     bad = [x for x in ends if not d.inside(x)]
     if bad:
         why = f" ({d.why})" if d.why else ""
-        raise ProjectError(f"`{key}` = {v.text} is outside what is physically possible: "
-                           f"it needs {domain_text(d, v.dim)}{why}; write a value in that "
-                           f"range (check the unit prefix)", where)
+        prefix = "" if v.dim in _NO_PREFIX else " (check the unit prefix)"
+        raise ProjectError(f"`{key}` = {v.text} is not physically possible: it needs "
+                           f"{domain_text(d, v.dim, key)}{why}; write a value in that "
+                           f"range{prefix}", where)
     lo, hi = b.band
     out = [x for x in ends if x < lo or x > hi]
     if out:

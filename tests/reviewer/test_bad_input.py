@@ -160,18 +160,19 @@ case("stage-not-table", "syntax", "must be a table", kiln(("[stages.commutation]
 
 # --------------------------------------------------------------------------------- values
 
-case("eta-above-1", "values", ("`eta`", "0 < η < 1"), kiln(kv("eta", "{ min = 0.56, max = 0.75 }",
-                                                             "1.2")))
-case("eta-spread-max-1.05", "values", ("`eta`", "0 < x < 1"),
+case("eta-above-1", "values", ("`eta`", "0 < eta < 1", "ratio of resistances"),
+     kiln(kv("eta", "{ min = 0.56, max = 0.75 }", "1.2")))
+case("eta-spread-max-1.05", "values", ("`eta`", "0 < eta < 1"),
      kiln(kv("eta", "{ min = 0.56, max = 0.75 }", "{ min = 0.56, max = 1.05 }")))
-case("eta-one", "values", "0 < η < 1", kiln(kv("eta", "{ min = 0.56, max = 0.75 }", "1")))
+case("eta-one", "values", "0 < eta < 1", kiln(kv("eta", "{ min = 0.56, max = 0.75 }", "1")))
 case("eta-zero", "values", "`eta`", kiln(kv("eta", "{ min = 0.56, max = 0.75 }", "0")))
-case("eta-percent-over", "values", "0 < η < 1", kiln(kv("eta", "{ min = 0.56, max = 0.75 }",
+case("eta-percent-over", "values", "0 < eta < 1", kiln(kv("eta", "{ min = 0.56, max = 0.75 }",
                                                        '"120%"')))
-case("duty-1.5", "values", ("`duty`", "0 < duty ≤ 1"), flash(kv("duty", "0.5", "1.5")))
+case("duty-1.5", "values", ("`duty`", "0 < duty ≤ 1", "fraction of the time on"),
+     flash(kv("duty", "0.5", "1.5")))
 case("duty-zero", "values", ("`duty`", "greater than zero"), flash(kv("duty", "0.5", "0")))
 case("duty-150-percent", "values", "0 < duty ≤ 1", flash(kv("duty", "0.5", '"150%"')))
-case("firing-190", "values", ("`firing`", "180°"),
+case("firing-190", "values", ("`firing`", "0° ≤ firing ≤ 180°", "reverse-biased"),
      kiln(('topology = "ac-switch"\ngate = "gate"',
            'topology = "ac-switch"\nfiring = { min = "15 deg", max = "190 deg" }')))
 case("firing-negative", "values", "`firing`",
@@ -179,7 +180,7 @@ case("firing-negative", "values", "`firing`",
            'topology = "ac-switch"\nfiring = { min = "-5 deg", max = "150 deg" }')))
 case("firing-rad-too-big", "values", "180°",
      kiln(('topology = "ac-switch"\ngate = "gate"', 'topology = "ac-switch"\nfiring = "4 rad"')))
-case("target-200deg", "values", ("`target`", "180°"),
+case("target-200deg", "values", ("`target`", "target ≤ 180°"),
      kiln(kv("target", '{ min = "30 deg", max = "150 deg" }',
              '{ min = "30 deg", max = "200 deg" }')))
 case("ambient-delta", "values", ("temperature difference", "degC"),
@@ -194,17 +195,18 @@ case("ambient-below-absolute-zero", "values", "absolute zero",
              '{ min = "-300 degC", max = "45 degC" }')))
 case("ambient-percent", "values", "percentage tolerance",
      kiln(kv("ambient", '{ min = "-10 degC", max = "45 degC" }', '"25 degC ±10%"')))
-case("cold-at-40", "values", ("`at`", "below 25 °C"),
+case("cold-at-40", "values", ("`at`", "at < 25 °C", "lowest rated temperature"),
      kiln(('cold = { at = "-40 degC"', 'cold = { at = "40 degC"')))
 case("cold-at-25", "values", "below 25 °C", kiln(('cold = { at = "-40 degC"',
                                                   'cold = { at = "25 degC"')))
 case("cold-at-delta", "values", "temperature difference",
      kiln(('cold = { at = "-40 degC"', 'cold = { at = "-40 delta_degC"')))
-case("tj-max-20", "values", ("`tj_max`", "above 25 °C"), kiln(kv("tj_max", '"125 degC"',
+case("tj-max-20", "values", ("`tj_max`", "25 °C < tj_max"), kiln(kv("tj_max", '"125 degC"',
                                                                 '"20 degC"')))
 case("tj-max-400", "values", "`tj_max`", kiln(kv("tj_max", '"125 degC"', '"400 degC"')))
-case("vdrm-80MV", "values", ("`vdrm`", "100 kV"), kiln(kv("vdrm", '"800 V"', '"80 MV"')))
-case("freq-1e-300", "values", ("`frequency`", "0.1 Hz"),
+case("vdrm-80MV", "values", ("`vdrm`", "≤ 100 kV", "check the unit prefix"),
+     kiln(kv("vdrm", '"800 V"', '"80 MV"')))
+case("freq-1e-300", "values", ("`frequency`", "100 mHz ≤ frequency ≤ 100 kHz"),
      kiln(kv("frequency", '"50 Hz"', '"1e-300 Hz"')))
 case("freq-1MHz", "values", "`frequency`", kiln(kv("frequency", '"50 Hz"', '"1 MHz"')))
 case("voltage-1e308", "values", "`voltage`",
