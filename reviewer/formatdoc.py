@@ -23,7 +23,8 @@ RULES = (
     '`isolation`, `required_isolation`, `coupling_capacitance`; `coupling = "transformer"` '
     "needs `turns_ratio`.",
     "A phase-control stage needs an AC supply and `firing` or `gate`; not both when the gate's "
-    "oscillator is line-synchronised (its timing sets the angle).",
+    "oscillator is line-synchronised (its timing sets the angle), and `firing` when it is "
+    "free-running (its pulses are not tied to the line).",
     "`freewheel` is not for an `ac-switch` (the load sees AC).",
     "A dc-switch stage needs a DC supply.",
     'A snubber\'s `step = "dc"` only on a DC supply, `step = "line"` only on an AC supply.',

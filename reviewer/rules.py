@@ -82,6 +82,12 @@ def _phase_control(project: Project, st: Stage, table: str, where: WhereFn) -> N
                            f"oscillator `{osc.id}` is line-synchronised, so its timing sets the "
                            "angle. Remove `firing` (the range then comes from the oscillator), "
                            "or remove `gate` to review a fixed range", where(table, "firing"))
+    if "firing" not in st.params and osc is not None and osc.get("sync") != "line":
+        raise ProjectError(f"the firing range is not known: the gate's oscillator `{osc.id}` is "
+                           "free-running, so its pulses are not tied to the line. Add "
+                           'firing = { min = "…", max = "…" } (the angles the control covers), '
+                           f'or make `{osc.id}` line-synchronised (sync = "line", zener = "…")',
+                           where(table, "gate"))
     if st.get("freewheel") and st.get("topology") == "ac-switch":
         raise ProjectError("`freewheel` has no meaning on an ac-switch: the load sees AC, and a "
                            "diode across it would short every other half-cycle. Remove it "

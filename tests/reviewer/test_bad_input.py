@@ -328,6 +328,9 @@ case("angle-target-free", "configuration", ("frequency range", 'sync = "free"'),
             'target = { min = "30 deg", max = "150 deg" }')))
 case("freq-target-line", "configuration", ("firing-angle range", 'sync = "line"'),
      kiln(kv("target", '{ min = "30 deg", max = "150 deg" }', '{ min = "40 Hz", max = "60 Hz" }')))
+case("free-oscillator-no-firing", "configuration", ("free-running", "Add firing ="),
+     kiln(('sync = "line"\n', 'sync = "free"\n'), ('zener = "20 V ±5%"\n', ""),
+          kv("target", '{ min = "30 deg", max = "150 deg" }', '{ min = "40 Hz", max = "60 Hz" }')))
 case("freewheel-ac-switch", "configuration", ("`freewheel`", "ac-switch"),
      kiln(('topology = "ac-switch"', 'topology = "ac-switch"\nfreewheel = true')))
 case("dc-switch-on-ac", "configuration", ("dc-switch stage needs a DC supply", "phase-control"),

@@ -14,6 +14,7 @@ import pytest
 
 from reviewer.checklist import Checklist, standard
 from reviewer.engine import evaluate
+from reviewer.errors import ProjectError
 from reviewer.project import load_project_text
 
 GATE_CHECKS = ("gate.trigger", "gate.peak-power", "gate.average-power", "gate.latch-time",
@@ -303,8 +304,9 @@ def test_latch_time_from_the_line_synchronised_oscillator():
 
 def test_latch_time_not_applicable_without_a_power_stage_or_range():
     assert run("gate.latch-time", power="").status == "not-applicable"
-    res = run("gate.latch-time", firing="")  # free-running oscillator, no `firing`
-    assert res.status == "incomplete" and "stages.power.firing not given" in res.summary
+    # a free-running oscillator without `firing` leaves the range unknown: an input error
+    with pytest.raises(ProjectError, match=r"free-running.*Add firing ="):
+        run("gate.latch-time", firing="")
 
 
 # ------------------------------------------------------------------ gate.noise
