@@ -69,8 +69,9 @@ def read_regular(path: str | Path, limit: int,
         os.close(fd)
     data = b"".join(chunks)
     if len(data) > limit:
-        raise error(f"the file is larger than {limit // 1024} KiB; a {what} is at most "
-                    f"{limit // 1024} KiB (is this the right file?)", where)
+        most = f"{limit // 1024} KiB" if limit >= 1024 else f"{limit} bytes"
+        raise error(f"the file is larger than {most}; a {what} is at most {most} (is this the "
+                    "right file?)", where)
     return data
 
 
