@@ -591,7 +591,7 @@ def pending_journal(project_path: str | Path) -> Journal | None:
     """
     jp = journal_path(project_path)
     try:
-        raw = jp.read_text("utf-8")
+        raw = read_regular(jp, RECORD_MAX_BYTES, UnsafeFileError).decode("utf-8")
     except FileNotFoundError:
         return None
     except (OSError, UnicodeDecodeError) as exc:
