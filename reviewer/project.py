@@ -58,7 +58,7 @@ def read_text(path: Path) -> str:
 def parse_toml(text: str, path: Path) -> dict[str, Any]:
     """Parse TOML text, turning syntax errors into a message with the line.
 
-    Tables and arrays nested deeper than :data:`MAX_DEPTH` are refused (a project needs four
+    Tables and arrays nested deeper than :data:`MAX_DEPTH` are refused (a project needs five
     levels; a parser recursing through thousands would exhaust the stack).
     """
     if text.startswith("\ufeff"):
@@ -74,7 +74,7 @@ def parse_toml(text: str, path: Path) -> dict[str, Any]:
                            f"most {MAX_DEPTH} levels)", Where(str(path))) from None
     if _depth(doc) > MAX_DEPTH:
         raise ProjectError(f"tables or arrays are nested more than {MAX_DEPTH} levels deep; a "
-                           "project needs four at most", Where(str(path)))
+                           "project needs five at most", Where(str(path)))
     return doc
 
 
