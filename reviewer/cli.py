@@ -19,7 +19,7 @@ from reviewer import TOOL
 from reviewer.errors import LatchbookError
 from reviewer.safety import SHORT
 from reviewer.states import FAILING
-from reviewer.textsafe import dump_json, safe_console, visible
+from reviewer.textsafe import dump_json, message, safe_console, visible
 
 SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
@@ -259,7 +259,7 @@ def main(argv: Sequence[str] | None = None) -> int:
             return cmd_demo(args)
         return int(args.func(args))
     except LatchbookError as exc:
-        print(f"latchbook: {visible(exc)}", file=sys.stderr)
+        print(f"latchbook: {message(exc)}", file=sys.stderr)
         return 2
     except RecursionError:
         print("latchbook: a file nests tables or arrays too deep to read", file=sys.stderr)

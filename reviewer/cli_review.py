@@ -16,13 +16,13 @@ from typing import Any
 
 from reviewer.errors import LatchbookError, ProjectError, UnsafeFileError
 from reviewer.states import FAILING
-from reviewer.textsafe import dump_json, visible
+from reviewer.textsafe import dump_json, message, visible
 
 COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale", "unsigned")
 
 
 def _err(exc: LatchbookError) -> int:
-    print(f"latchbook: {visible(exc)}", file=sys.stderr)
+    print(f"latchbook: {message(exc)}", file=sys.stderr)
     return 2 if isinstance(exc, (ProjectError, UnsafeFileError)) else 1
 
 
@@ -190,7 +190,7 @@ def _print_status(rows: list[dict[str, Any]]) -> None:
     print(f"{'project':<{w}}  " + "  ".join(f"{c:>8}" for c in COLUMNS))
     for name, r in zip(names, rows, strict=True):
         if "error" in r:
-            print(f"{name:<{w}}  cannot load: {visible(r['error'])}")
+            print(f"{name:<{w}}  cannot load: {message(r['error'])}")
             continue
         cells = "  ".join(f"{r['counts'][c]:>8}" for c in COLUMNS)
         extra = "" if r["chain_ok"] else f"  history broken at entry {r['first_bad']}"

@@ -21,6 +21,7 @@ _FORMAT = "\u061c\u200e\u200f\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2
 _CONTROL = "".join(chr(c) for c in (*range(0x00, 0x20), *range(0x7F, 0xA0)))
 _UNSAFE = re.compile(f"[{re.escape(_CONTROL + _FORMAT)}]")
 _UNSAFE_KEEP_LINES = re.compile(f"[{re.escape(_CONTROL.replace(chr(10), '') + _FORMAT)}]")
+_LONG_WORD = re.compile(r"[^\s/`'\"\[\]:;]{120,}")  # no key, value or file name part is this long
 _MD_SPECIAL = re.compile(r"([\\`*_\[\]|~])")
 _MD_LEADING = re.compile(r"^(\s*)([#>+=-]|\d+[.)])")
 
@@ -44,6 +45,14 @@ def visible(text: Any, *, lines: bool = False) -> str:
     """
     s = str(text)
     return (_UNSAFE_KEEP_LINES if lines else _UNSAFE).sub(_show, s)
+
+
+def message(exc: Any, limit: int = 800) -> str:
+    """An error message for the terminal: visible, and cut short (a file can put a megabyte
+    of text into a key name)."""
+    s = _LONG_WORD.sub(lambda m: f"{m.group(0)[:40]}…({len(m.group(0))} characters)",
+                       visible(exc))
+    return s if len(s) <= limit else s[: limit - 1] + "…"
 
 
 def is_clean(text: str) -> bool:

@@ -56,6 +56,7 @@ _CAP_RKM = re.compile(r"^(?:(\d+)([pnuµmF])(\d*)|([pnuµm])(\d+))$")
 _RES_MULT = {"L": 1e-3, "R": 1.0, "K": 1e3, "k": 1e3, "M": 1e6, "G": 1e9, "T": 1e12}
 _CAP_MULT = {"p": 1e-12, "n": 1e-9, "u": 1e-6, "µ": 1e-6, "m": 1e-3, "F": 1.0}
 _RANGE_KEYS = ("min", "max", "nom")
+MAX_VALUE_CHARS = 200  # "1.23e-4 kohm +10% -15%" is 22; anything this long is not a value
 
 
 @lru_cache(maxsize=1)
@@ -244,6 +245,9 @@ def parse_value(raw: Any, dim: str, where: Where, *, allow_zero: bool = False,
 
 
 def _parse_string(raw: str, dim: str, where: Where) -> Value:
+    if len(raw) > MAX_VALUE_CHARS:
+        raise _err(f"the value is {len(raw)} characters long; a value is a number, a unit and "
+                   f"perhaps a tolerance: {_needs(dim, where)}", where)
     text = _normalise(raw)
     lo = hi = None
     m = _TOL_ASYM.match(text)

@@ -265,6 +265,10 @@ case("enclosure-rise-1000", "values", "`enclosure_rise`", kiln(('enclosure_rise 
                                                                 'enclosure_rise = "1000 K"')))
 case("rbb-tempco-huge", "values", "`rbb_tempco`", kiln(('pd = "300 mW"\n',
                                                         'pd = "300 mW"\nrbb_tempco = "500 %/K"\n')))
+case("value-200k-chars", "values", ("200002 characters long", "needs a voltage"),
+     kiln(kv("vdrm", '"800 V"', '"' + "8" * 200_000 + ' V"')))
+case("key-200k-chars", "syntax", ("unknown key", "kkkk…(200000 characters)"),
+     kiln(('vdrm = "800 V"', 'vdrm = "800 V"\n' + "k" * 200_000 + ' = "1 V"')))
 case("name-number", "values", "must be a string", kiln(('name = "Bench kiln element '
                                                         'controller"', "name = 5")))
 
