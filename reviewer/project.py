@@ -272,7 +272,8 @@ class _Loader:
         try:
             out = self._param(val, p, table, key, where, scope)
             if isinstance(out, Value):
-                warning = bounds.check(out, scope, key, where, allow_zero=p.allow_zero)
+                zero = p.allow_zero or p.kind in ("target", "required")  # as parsed
+                warning = bounds.check(out, scope, key, where, allow_zero=zero)
                 if warning:
                     self.warnings.append(f"{where.text()}: {warning}")
             return out
