@@ -256,16 +256,23 @@ def test_discharge_sees_the_gate_through_a_pulse_transformer():
     ("eta = { min = 0.56, max = 0.75 }", "eta = 1e308", ("gate.trigger", "osc.window")),
     ('r = "33 ohm ±5%"', 'r = "1e-300 ohm"', ("snubber.peak-voltage", "snubber.discharge")),
 ])
-def test_absurd_inputs_never_pass_and_never_raise(projects_dir, old, new, checks):
-    """Values far outside any sensible range: no pass on a non-finite number, no exception
-    inside a check, and no numpy warning escaping (they would flood stderr)."""
+def test_absurd_inputs_never_pass_and_never_raise(projects_dir, monkeypatch, old, new, checks):
+    """Values far outside any sensible range: the loader refuses them, naming the key; and
+    should one get past the loader, the engine still gives no pass on a non-finite number, no
+    exception inside a check, and no numpy warning escaping (they would flood stderr)."""
     import warnings
 
+    from reviewer import bounds
     from reviewer.engine import evaluate as run_all
+    from reviewer.errors import ProjectError
     from reviewer.project import load_project_text
 
     text = (projects_dir / "kiln-230.toml").read_text("utf-8")
     assert old in text
+    key = new.split(" = ")[0]
+    with pytest.raises(ProjectError, match=f"`{key}`"):
+        load_project_text(text.replace(old, new), "absurd.toml")
+    monkeypatch.setattr(bounds, "check", lambda *a, **k: None)  # the engine's own defence
     p = load_project_text(text.replace(old, new), "absurd.toml")
     with warnings.catch_warnings():
         warnings.simplefilter("error")
