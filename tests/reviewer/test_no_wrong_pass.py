@@ -370,3 +370,27 @@ def test_reports_show_and_count_incomplete_and_blocked(tmp_path):
         doc = out.read_text("utf-8")
         assert "incomplete, unsigned" in doc and "blocked, unsigned" in doc
         assert "incomplete 1" in doc and "blocked " in doc
+
+
+@pytest.mark.parametrize(("timing_c", "wide"), [("100 nF ±10%", False), ("220 uF", True)])
+def test_the_gate_pulse_decides_narrow_or_wide_before_the_load_angle(projects_dir, timing_c,
+                                                                     wide):
+    """kiln-230 on a 100 mH load fired from 30° (φ = 49.9°): its 2–5 µs pulses are missed
+    (narrow: the half-wave, worse); a 5 ms pulse outlasts the first SCR's current, so the
+    second fires at φ and each SCR carries half of the steady sine, Im/2 RMS."""
+    text = (projects_dir / "kiln-230.toml").read_text("utf-8")
+    text = text.replace('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }',
+                        'load = { r = "26.5 ohm", l = "100 mH" }\n'
+                        'firing = { min = "30 deg", max = "150 deg" }')
+    text = text.replace('timing_c = "100 nF ±10%"', f'timing_c = "{timing_c}"')
+    p = load_project_text(text, "kiln.toml")
+    r = evaluate(p, only=[("power", "power.rms-current")]).results[0]
+    w = 2 * math.pi * 50
+    im = math.sqrt(2) * 253 / math.hypot(26.5, w * 0.1)
+    if wide:
+        assert r.values["it_rms"].max == pytest.approx(im / 2, rel=1e-9)
+        assert "fires at φ" in r.summary
+    else:
+        ref, _ = _ivp_scr_currents(math.sqrt(2) * 253, 26.5, 0.1, w, math.radians(30))
+        assert r.values["it_rms"].max == pytest.approx(ref, rel=1e-5)
+        assert "narrow gate pulses" in r.summary
