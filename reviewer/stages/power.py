@@ -111,12 +111,12 @@ def _bind_stage_options(ctx: Context, b: Bound) -> None:
         b.notes.append("freewheel ignored: an ac-switch load sees AC")
         fw = False
     b.options["freewheel"] = fw
-    pulse = _gate_pulse(ctx)
+    pulse = gate_pulse(ctx, ctx.stage)
     if pulse is not None:
         b.options["gate_pulse"] = pulse
 
 
-def _gate_pulse(ctx: Context) -> float | None:
+def gate_pulse(ctx: Context, stage: Stage) -> float | None:
     """The shortest gate pulse of an inductive ac-switch's gate drive [s] (None: not known).
 
     It decides what happens when the switch is fired before the load angle: a pulse that
@@ -124,10 +124,10 @@ def _gate_pulse(ctx: Context) -> float | None:
     one is missed (one SCR conducts a half-wave). Taken from gate.latch-time's pulse width
     above IGT at the coldest corner.
     """
-    load = ctx.stage.get("load")
+    load = stage.get("load")
     lv = load.get("l") if isinstance(load, dict) else None
-    gate = ctx.linked_stage("gate")
-    if ctx.stage.get("topology") != "ac-switch" or not isinstance(lv, Value) or lv.hi <= 0 \
+    gate = ctx.linked_stage("gate", stage)
+    if stage.get("topology") != "ac-switch" or not isinstance(lv, Value) or lv.hi <= 0 \
             or gate is None:
         return None
     from reviewer.checklist import standard

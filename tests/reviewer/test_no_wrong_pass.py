@@ -394,3 +394,27 @@ def test_the_gate_pulse_decides_narrow_or_wide_before_the_load_angle(projects_di
         ref, _ = _ivp_scr_currents(math.sqrt(2) * 253, 26.5, 0.1, w, math.radians(30))
         assert r.values["it_rms"].max == pytest.approx(ref, rel=1e-5)
         assert "narrow gate pulses" in r.summary
+    # turnoff.time takes the same pulses: π/ω with control kept, the half-wave (2π − β)/ω
+    # (β from firing at 30°, solve_ivp) when the pulse is missed.
+    t = evaluate(p, only=[("commutation", "turnoff.time")]).results[0]
+    if wide:
+        assert t.values["turnoff_time"].min == pytest.approx(math.pi / w, rel=1e-9)
+    else:
+        beta = _ivp_extinction(26.5, 0.1, w, math.radians(30))
+        assert t.values["turnoff_time"].min == pytest.approx((2 * math.pi - beta) / w,
+                                                             rel=1e-6)
+
+
+def _ivp_extinction(r: float, l: float, w: float, alpha: float) -> float:
+    """Where the R–L current fired at α from zero returns to zero [rad], by solve_ivp."""
+    def f(t, i):
+        return [(math.sin(w * t) - r * i[0]) / l]
+
+    def ends(t, i):
+        return i[0] if t > alpha / w + 1e-6 else 1.0
+    ends.terminal = True
+    ends.direction = -1
+    t0 = alpha / w
+    sol = solve_ivp(f, (t0, t0 + 2 * math.pi / w), [0.0], events=ends, rtol=1e-12,
+                    atol=1e-15, max_step=2e-5)
+    return float(sol.t_events[0][0] * w)
