@@ -264,7 +264,8 @@ class LineTurnoff(NamedTuple):
 
 def line_turnoff(*, topology: str, freewheel: bool, alpha: np.ndarray, omega: np.ndarray,
                  r: np.ndarray, l: np.ndarray, vm: np.ndarray,  # noqa: E741
-                 l_s: np.ndarray | float = 0.0) -> LineTurnoff:
+                 l_s: np.ndarray | float = 0.0,
+                 gate_pulse: float | None = None) -> LineTurnoff:
     """Circuit turn-off time of natural commutation on an AC line [s].
 
     From the SCR's current zero until forward voltage returns  [2, §10–11]; [3, ch. 6]:
@@ -274,7 +275,9 @@ def line_turnoff(*, topology: str, freewheel: bool, alpha: np.ndarray, omega: np
     - ac-switch: π/ω while α ≥ φ (after its current zero the line and then the antiparallel
       SCR's on-state drop reverse-bias it); the part with the full line across it is
       (π + α − β)/ω. Fired before φ the partner's pulse comes while this SCR still conducts;
-      with narrow pulses it behaves as a half-wave: (2π − β)/ω;
+      with narrow pulses it behaves as a half-wave: (2π − β)/ω; a ``gate_pulse`` [s] that
+      lasts past this SCR's current (ω·t ≥ β − π − α) fires the partner as soon as it stops,
+      which is firing at φ: π/ω;
     - bridge, discontinuous (α > φ): (2π − β)/ω; continuous (α ≤ φ):
       (π − α − μ)/ω with μ from :func:`overlap_angle` for the current at firing.
 
@@ -300,6 +303,8 @@ def line_turnoff(*, topology: str, freewheel: bool, alpha: np.ndarray, omega: np
         t_c = half
     elif topology == "ac-switch":
         lost = alpha < phi - 1e-12
+        if gate_pulse is not None:  # wide pulses: control kept, the partner fires at φ
+            lost &= omega * gate_pulse < beta - np.pi - alpha
         t_c = np.where(lost, half, np.pi / omega)
         full_line = np.where(lost, np.nan, full_line)
     else:
@@ -470,7 +475,8 @@ def capacitor_time(*, model: str, c: np.ndarray, r: np.ndarray, v_s: np.ndarray,
 
 def _line(*, topology: str, freewheel: bool, alpha: np.ndarray | None, f: np.ndarray,
           r: np.ndarray | None, l: np.ndarray | None, v_s: np.ndarray | None,  # noqa: E741
-          l_s: np.ndarray | None, osc: Mapping[str, Any]) -> LineTurnoff:
+          l_s: np.ndarray | None, osc: Mapping[str, Any],
+          gate_pulse: float | None = None) -> LineTurnoff:
     """:func:`line_turnoff` with the inputs a check read; the rest cannot change the answer
     (a resistive load or a freewheeling diode makes t_c = π/ω whatever α, R and V are)."""
     vs = _a(1.0 if v_s is None else v_s)
@@ -478,7 +484,7 @@ def _line(*, topology: str, freewheel: bool, alpha: np.ndarray | None, f: np.nda
     return line_turnoff(topology=topology, freewheel=freewheel, alpha=a,
                         omega=_TWO_PI * _a(f), r=1.0 if r is None else r,
                         l=0.0 if l is None else l, vm=_vm(vs, True),
-                        l_s=0.0 if l_s is None else l_s)
+                        l_s=0.0 if l_s is None else l_s, gate_pulse=gate_pulse)
 
 
 def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
@@ -487,7 +493,8 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
                l: np.ndarray | None = None, f: np.ndarray | None = None,  # noqa: E741
                alpha: np.ndarray | None = None, l_s: np.ndarray | None = None,
                model: str = "resistive", diode: str = "unknown", topology: str = "half-wave",
-               freewheel: bool = False, ac: bool = False, **osc: Any) -> Outcome:
+               freewheel: bool = False, ac: bool = False, gate_pulse: float | None = None,
+               **osc: Any) -> Outcome:
     """``turnoff.time``: circuit turn-off time t_c against tq; metric t_c/tq.
 
     network ``line``: :func:`line_turnoff` (alpha [rad] or the oscillator's ``osc_*`` inputs,
@@ -511,7 +518,7 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
     if network == "line":
         assert f is not None
         lt = _line(topology=topology, freewheel=freewheel, alpha=alpha, f=f, r=r, l=l,
-                   v_s=v_s, l_s=l_s, osc=osc)
+                   v_s=v_s, l_s=l_s, osc=osc, gate_pulse=gate_pulse)
         t_c = lt.turnoff_time
         values.update(full_line_time=lt.full_line_time, beta=lt.beta,
                       continuous=lt.continuous.astype(float),

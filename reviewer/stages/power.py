@@ -11,6 +11,7 @@ import numpy as np
 from checks import oscillator, power
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
+from checks.rl import extinction_angle
 from reviewer.fmt import eng, pct, span
 from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
@@ -110,6 +111,34 @@ def _bind_stage_options(ctx: Context, b: Bound) -> None:
         b.notes.append("freewheel ignored: an ac-switch load sees AC")
         fw = False
     b.options["freewheel"] = fw
+    pulse = gate_pulse(ctx, ctx.stage)
+    if pulse is not None:
+        b.options["gate_pulse"] = pulse
+
+
+def gate_pulse(ctx: Context, stage: Stage) -> float | None:
+    """The shortest gate pulse of an inductive ac-switch's gate drive [s] (None: not known).
+
+    It decides what happens when the switch is fired before the load angle: a pulse that
+    outlasts the other SCR's current fires it at φ (control kept, the steady sine); a shorter
+    one is missed (one SCR conducts a half-wave). Taken from gate.latch-time's pulse width
+    above IGT at the coldest corner.
+    """
+    load = stage.get("load")
+    lv = load.get("l") if isinstance(load, dict) else None
+    gate = ctx.linked_stage("gate", stage)
+    if stage.get("topology") != "ac-switch" or not isinstance(lv, Value) or lv.hi <= 0 \
+            or gate is None:
+        return None
+    from reviewer.checklist import standard
+    from reviewer.engine import evaluate_check  # the engine imports the stages: late import
+    from reviewer.registry import CHECKS
+
+    res = evaluate_check(CHECKS["gate.latch-time"], ctx.project, gate, standard())
+    width = res.values.get("pulse_width")
+    if res.status not in ("pass", "marginal", "fail") or width is None:
+        return None
+    return width.min if width.min is not None and math.isfinite(width.min) else None
 
 
 def _osc_stage(ctx: Context) -> Stage | None:
@@ -251,8 +280,13 @@ def _fn_output(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
     w = _omega(kw)
-    return _lost_control(power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw),
-                         kw, a, w)
+    pulse = kw.get("gate_pulse")
+    a, note = _pulses(kw, a, w)
+    lo, _ = _pulses(kw | {"gate_pulse": pulse}, lo, w)
+    out = power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw)
+    if note:
+        out.notes.append(note)
+    return out
 
 
 def _sum_output(r: Reduced) -> str:
@@ -436,26 +470,50 @@ LOST_NOTE = ("α < φ at some corners: control is lost, taken with narrow gate p
              "case: one SCR conducts a half-wave and DC flows in the load), as turnoff.time does")
 
 
-def _lost_control(out: Outcome, kw: Mapping[str, Any], alpha: Any, omega: Any) -> Outcome:
-    """Note when an ac-switch row is fired before the load angle (see LOST_NOTE)."""
-    if kw.get("topology") == "ac-switch" and "l" in kw:
-        phi = np.arctan2(np.asarray(omega) * np.asarray(kw["l"]), np.asarray(kw["r"]))
-        if np.any(np.asarray(alpha) < phi - 1e-12):
-            out.notes.append(LOST_NOTE)
-    return out
+WIDE_NOTE = ("α < φ at some corners: the gate pulse outlasts the other SCR's current, so it "
+             "fires at φ (control kept: the steady sine)")
+
+
+def _pulses(kw: dict[str, Any], alpha: Any, omega: Any) -> tuple[np.ndarray, str]:
+    """The angle each SCR conducts from on an ac-switch fired before φ, and what was taken.
+
+    Narrow pulses (the worst case) keep α: the second SCR misses its pulse and the first one
+    conducts a half-wave. A gate pulse known to last past the first SCR's current
+    (ω·t_pulse ≥ β(α) − π − α, β the half-wave extinction angle) fires the second one as
+    soon as the first stops, which is firing at φ.
+    """
+    pulse = kw.pop("gate_pulse", None)
+    alpha = np.asarray(alpha, dtype=float)
+    if kw.get("topology") != "ac-switch" or "l" not in kw:
+        return alpha, ""
+    phi = np.arctan2(np.asarray(omega) * np.asarray(kw["l"]), np.asarray(kw["r"]))
+    lost = alpha < phi - 1e-12
+    if not np.any(lost):
+        return alpha, ""
+    if pulse is None:
+        return alpha, LOST_NOTE
+    beta = extinction_angle(alpha=np.minimum(alpha, phi), phi=phi)
+    wide = lost & (np.asarray(omega) * pulse >= beta - np.pi - alpha)
+    if np.all(wide[lost]):
+        return np.where(wide, phi, alpha), WIDE_NOTE
+    return np.where(wide, phi, alpha), LOST_NOTE
 
 
 def _lost_text(r: Reduced) -> str:
-    return "; " + LOST_NOTE if LOST_NOTE in r.notes else ""
+    said = [n for n in (LOST_NOTE, WIDE_NOTE) if n in r.notes]
+    return "; " + said[0] if said else ""
 
 
 def _fn_currents(core: Any) -> Any:
     def fn(**kw: Any) -> Outcome:
         if kw.get("kind") == "ac":
             a, _, _ = _firing(kw)
-            kw["alpha"] = a
             kw["omega"] = _omega(kw)
-            return _lost_control(core(**kw), kw, a, kw["omega"])
+            kw["alpha"], note = _pulses(kw, a, kw["omega"])
+            out = core(**kw)
+            if note:
+                out.notes.append(note)
+            return out
         return core(**kw)
     return fn
 

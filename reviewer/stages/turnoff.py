@@ -18,6 +18,7 @@ from reviewer.registry import (
     register_kind,
 )
 from reviewer.schema import POWER, TURNOFF
+from reviewer.stages.power import gate_pulse
 
 V = "value"
 
@@ -136,6 +137,9 @@ def _bind_line(ctx: Context, b: Bound, pw: Stage, *, for_dvdt: bool) -> None:
     ctx.need(b, "r", ctx.stage_path("load.r", pw))
     ctx.need(b, "l", ctx.stage_path("load.l", pw))
     _bind_firing(ctx, b, pw)
+    pulse = None if for_dvdt else gate_pulse(ctx, pw)
+    if pulse is not None:  # what happens when fired before φ (as the current checks take it)
+        b.options["gate_pulse"] = pulse
     if topology == "bridge" and not for_dvdt:
         ctx.need(b, "v_s", "supply.voltage")
         ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")

@@ -370,3 +370,51 @@ def test_reports_show_and_count_incomplete_and_blocked(tmp_path):
         doc = out.read_text("utf-8")
         assert "incomplete, unsigned" in doc and "blocked, unsigned" in doc
         assert "incomplete 1" in doc and "blocked " in doc
+
+
+@pytest.mark.parametrize(("timing_c", "wide"), [("100 nF ±10%", False), ("220 uF", True)])
+def test_the_gate_pulse_decides_narrow_or_wide_before_the_load_angle(projects_dir, timing_c,
+                                                                     wide):
+    """kiln-230 on a 100 mH load fired from 30° (φ = 49.9°): its 2–5 µs pulses are missed
+    (narrow: the half-wave, worse); a 5 ms pulse outlasts the first SCR's current, so the
+    second fires at φ and each SCR carries half of the steady sine, Im/2 RMS."""
+    text = (projects_dir / "kiln-230.toml").read_text("utf-8")
+    text = text.replace('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }',
+                        'load = { r = "26.5 ohm", l = "100 mH" }\n'
+                        'firing = { min = "30 deg", max = "150 deg" }')
+    text = text.replace('timing_c = "100 nF ±10%"', f'timing_c = "{timing_c}"')
+    p = load_project_text(text, "kiln.toml")
+    r = evaluate(p, only=[("power", "power.rms-current")]).results[0]
+    w = 2 * math.pi * 50
+    im = math.sqrt(2) * 253 / math.hypot(26.5, w * 0.1)
+    if wide:
+        assert r.values["it_rms"].max == pytest.approx(im / 2, rel=1e-9)
+        assert "fires at φ" in r.summary
+    else:
+        ref, _ = _ivp_scr_currents(math.sqrt(2) * 253, 26.5, 0.1, w, math.radians(30))
+        assert r.values["it_rms"].max == pytest.approx(ref, rel=1e-5)
+        assert "narrow gate pulses" in r.summary
+    # turnoff.time takes the same pulses: π/ω with control kept, the half-wave (2π − β)/ω
+    # (β from firing at 30°, solve_ivp) when the pulse is missed.
+    t = evaluate(p, only=[("commutation", "turnoff.time")]).results[0]
+    if wide:
+        assert t.values["turnoff_time"].min == pytest.approx(math.pi / w, rel=1e-9)
+    else:
+        beta = _ivp_extinction(26.5, 0.1, w, math.radians(30))
+        assert t.values["turnoff_time"].min == pytest.approx((2 * math.pi - beta) / w,
+                                                             rel=1e-6)
+
+
+def _ivp_extinction(r: float, l: float, w: float, alpha: float) -> float:
+    """Where the R–L current fired at α from zero returns to zero [rad], by solve_ivp."""
+    def f(t, i):
+        return [(math.sin(w * t) - r * i[0]) / l]
+
+    def ends(t, i):
+        return i[0] if t > alpha / w + 1e-6 else 1.0
+    ends.terminal = True
+    ends.direction = -1
+    t0 = alpha / w
+    sol = solve_ivp(f, (t0, t0 + 2 * math.pi / w), [0.0], events=ends, rtol=1e-12,
+                    atol=1e-15, max_step=2e-5)
+    return float(sol.t_events[0][0] * w)
