@@ -292,4 +292,4 @@ def summary_counts(rows: Iterable[Row]) -> Mapping[str, int]:
 
 
 __all__ = ["Cell", "Matrix", "MatrixBuilder", "Row", "find_projects", "matrix_exit_code",
-           "render_matrix", "row_of", "stage_state", "status_matrix"]
+           "render_matrix", "row_of", "run_project", "stage_state", "status_matrix"]
