@@ -146,8 +146,8 @@ def bash(parser: argparse.ArgumentParser) -> str:
 # --------------------------------------------------------------------------------------------
 
 def _zq(text: str) -> str:
-    """Text safe inside a single-quoted zsh ``_arguments`` spec."""
-    return re.sub(r"[\[\]:\\]", "", text).replace("'", "'\\''")
+    """Text safe inside a single-quoted zsh ``_arguments`` or ``_describe`` item."""
+    return re.sub(r"([\[\]:\\])", r"\\\1", text).replace("'", "'\\''")
 
 
 def _zsh_spec(o: Opt) -> list[str]:
