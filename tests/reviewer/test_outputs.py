@@ -260,3 +260,27 @@ def test_unreachable_scheduler_exits_2(capsys, monkeypatch):
                  "--scheduler", "tcp://127.0.0.1:9", "--json"])
     out, err = capsys.readouterr()
     assert code == 2 and "cannot reach the scheduler" in err and out == ""
+
+
+def test_sampled_corners_and_warnings_are_carried(tmp_path):
+    """A check whose corners were sampled says so (from the engine's own note), and the
+    loader's warnings appear per project in the JSON and the JUnit properties."""
+    from reviewer.engine import build_corners
+    from reviewer.model import Value
+    from reviewer.registry import Input
+
+    inputs = {f"x{i}": Input(f"stages.s.x{i}", Value(1.0, 0.9, 1.1, "resistance"))
+              for i in range(13)}
+    _, _, note = build_corners(inputs)
+    assert note  # 13 varying inputs: sampled
+    pr = compute(ROOT / "projects" / "flasher-dc.toml")
+    pr.run.results[0].notes.append(note)
+    pr.warnings = ["parts.Q1.igt: given at 25 °C only (test warning)"]
+    entry = document.project_entry(pr)
+    assert entry["checks"][0]["sampled_corners"] is True
+    assert not any(c["sampled_corners"] for c in entry["checks"][1:])
+    assert entry["warnings"] == pr.warnings
+    validate({**document.head("check", []), "projects": [entry],
+              **document.tail([entry["verdict"]], 0)})
+    text, _ = suite(pr)
+    assert "test warning" in text
