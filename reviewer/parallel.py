@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import multiprocessing
 import os
+import threading
 from collections import deque
 from collections.abc import Callable, Iterable, Iterator
 from concurrent.futures import Future, ProcessPoolExecutor
@@ -51,8 +52,17 @@ def _cached_call(fn: Callable[[Any], Any], item: Any) -> Any:
 
 
 def _context() -> Any:
+    """Fork (workers start at once, modules imported) while this process has one thread;
+    with other threads running (a lock one of them holds would stay held in the child)
+    a fork server, which forks from a clean process; else the platform's default."""
     methods = multiprocessing.get_all_start_methods()
-    return multiprocessing.get_context("fork" if "fork" in methods else None)
+    if "fork" in methods and threading.active_count() == 1:
+        return multiprocessing.get_context("fork")
+    if "forkserver" in methods:
+        ctx = multiprocessing.get_context("forkserver")
+        ctx.set_forkserver_preload(["reviewer.batch", "reviewer.engine"])
+        return ctx
+    return multiprocessing.get_context()
 
 
 def _windowed(submit: Callable[[T], Any], items: list[T], width: int,
