@@ -312,8 +312,9 @@ class LineCache:
     """Each (check, inputs hash, limits) computed once across a product line.
 
     The inputs hash covers the stage, the check, every value it reads (nominal and both ends)
-    and its options, so two variants with the same key get the same corners, rows, reduction
-    and summary. The entries are shared read-only between results; the least recently used
+    and its options; the key adds the limits, the inputs' names, order, sweeps and interior
+    points, and the binding's notes, so two variants with the same key get the same corners,
+    rows, reduction and summary. The entries are shared read-only between results; the least recently used
     go first once ``size`` are held, so memory stays bounded over any number of projects.
     """
 
@@ -366,7 +367,11 @@ def _computed(defn: CheckDef, bound: Bound, limits: Mapping[str, float],
               digest: str) -> Computed:
     """Corners, one array call, the reduction and the summary (once per key in a line)."""
     cache = _LINE_CACHE
-    key = (defn.id, digest, json.dumps(dict(limits), sort_keys=True))
+    # Beyond the inputs hash: the order, names, sweeps and interior points of the inputs (they
+    # shape the corner table and so the worst row) and the binding's notes (in the summary).
+    shape = [[n, i.path, i.sweep, list(i.extra)] for n, i in bound.inputs.items()]
+    key = (defn.id, digest, json.dumps([dict(limits), shape, bound.notes], sort_keys=True,
+                                       default=repr))
     if cache is not None:
         hit = cache.get(key)
         if hit is not None:
