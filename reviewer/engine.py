@@ -314,8 +314,9 @@ class LineCache:
     The inputs hash covers the stage, the check, every value it reads (nominal and both ends)
     and its options; the key adds the limits, the inputs' names, order, sweeps and interior
     points, and the binding's notes, so two variants with the same key get the same corners,
-    rows, reduction and summary. The entries are shared read-only between results; the least recently used
-    go first once ``size`` are held, so memory stays bounded over any number of projects.
+    rows, reduction and summary. The entries are shared read-only between results; the least
+    recently used go first once ``size`` are held, so memory stays bounded over any number of
+    projects.
     """
 
     def __init__(self, size: int = 256) -> None:
