@@ -166,7 +166,13 @@ def compute(path: str | Path, opts: Options = Options()) -> ProjectResult:
 
     pr = ProjectResult(str(path))
     try:
-        run = run_project(path)
+        if opts.monte_carlo:  # sampling needs this project's own, whole corner tables
+            from reviewer.engine import no_line_cache
+
+            with no_line_cache():
+                run = run_project(path)
+        else:
+            run = run_project(path)
         if opts.record:
             record_results(run, Path(path))
         record = load_record(path)
@@ -201,7 +207,8 @@ def results(paths: Sequence[str | Path], opts: Options = Options(), *, jobs: int
     from reviewer.parallel import ordered_map
 
     fn = functools.partial(compute, opts=opts)
-    yield from ordered_map(fn, [str(p) for p in paths], jobs=jobs, scheduler=scheduler)
+    yield from ordered_map(fn, [str(p) for p in paths], jobs=jobs, scheduler=scheduler,
+                           compact=True)
 
 
 def no_projects(paths: Sequence[str | Path]) -> ProjectError:

@@ -319,8 +319,9 @@ class LineCache:
     projects.
     """
 
-    def __init__(self, size: int = 256) -> None:
+    def __init__(self, size: int = 256, *, compact: bool = False) -> None:
         self.size = size
+        self.compact = compact
         self.entries: OrderedDict[tuple[str, str, str], Computed] = OrderedDict()
         self.hits = 0
         self.misses = 0
@@ -344,24 +345,54 @@ class LineCache:
 
 _LINE_CACHE: LineCache | None = None
 
+#: Entries kept: full entries hold whole corner tables (for plots and the workbook); compact
+#: ones only the nominal and worst rows, so many more fit in the same memory.
+FULL_SIZE, COMPACT_SIZE = 256, 8192
+
 
 @contextmanager
-def line_cache(size: int = 256) -> Iterator[LineCache]:
-    """Within the block, identical (check, inputs hash, limits) are computed once."""
+def line_cache(size: int | None = None, *, compact: bool = False) -> Iterator[LineCache]:
+    """Within the block, identical (check, inputs hash, limits) are computed once.
+
+    ``compact``: results keep only the nominal and the worst row of their corner table (their
+    ``evaluation``), enough for every summary, value and worst corner, not for plots, Monte
+    Carlo or the workbook's corner views.
+    """
     global _LINE_CACHE
-    previous, _LINE_CACHE = _LINE_CACHE, LineCache(size)
+    size = size or (COMPACT_SIZE if compact else FULL_SIZE)
+    previous, _LINE_CACHE = _LINE_CACHE, LineCache(size, compact=compact)
     try:
         yield _LINE_CACHE
     finally:
         _LINE_CACHE = previous
 
 
-def enable_line_cache(size: int = 256) -> LineCache:
+@contextmanager
+def no_line_cache() -> Iterator[None]:
+    """Within the block, every check is computed afresh with its whole corner table."""
+    global _LINE_CACHE
+    previous, _LINE_CACHE = _LINE_CACHE, None
+    try:
+        yield
+    finally:
+        _LINE_CACHE = previous
+
+
+def enable_line_cache(*, compact: bool = False) -> LineCache:
     """Turn the line-wide cache on for the rest of this process (a worker process)."""
     global _LINE_CACHE
     if _LINE_CACHE is None:
-        _LINE_CACHE = LineCache(size)
+        _LINE_CACHE = LineCache(COMPACT_SIZE if compact else FULL_SIZE, compact=compact)
     return _LINE_CACHE
+
+
+def _compact(done: Computed) -> Computed:
+    """Only the nominal row and the worst row of a computation (the worst is then row 1)."""
+    arrays, varying, out, red, worst, summary = done
+    rows = np.array([0, worst])
+    small = Outcome({k: np.asarray(v)[rows] for k, v in out.values.items()},
+                    np.asarray(out.margin)[rows], np.asarray(out.status)[rows], list(out.notes))
+    return {k: a[rows] for k, a in arrays.items()}, varying, small, red, 1, summary
 
 
 def _computed(defn: CheckDef, bound: Bound, limits: Mapping[str, float],
@@ -387,6 +418,8 @@ def _computed(defn: CheckDef, bound: Bound, limits: Mapping[str, float],
         summary = defn.summarise(red)
     done = (arrays, varying, out, red, worst, summary)
     if cache is not None:
+        if cache.compact:
+            done = _compact(done)
         cache.put(key, done)
     return done
 
@@ -512,6 +545,6 @@ def status_counts(results: Iterable[Result]) -> dict[str, int]:
 
 
 __all__ = ["FAIL", "MARGINAL", "Evaluation", "LineCache", "Result", "Run", "Stat", "blocked",
-           "enable_line_cache", "evaluate", "line_cache", "run_project",
+           "enable_line_cache", "evaluate", "line_cache", "no_line_cache", "run_project",
            "evaluate_check", "build_corners", "inputs_hash", "snapshot", "stage_order",
            "status_counts"]

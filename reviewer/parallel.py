@@ -39,15 +39,15 @@ def default_jobs() -> int:
         return max(1, os.cpu_count() or 1)
 
 
-def _worker_init() -> None:
+def _worker_init(compact: bool = False) -> None:
     from reviewer.engine import enable_line_cache
 
-    enable_line_cache()
+    enable_line_cache(compact=compact)
 
 
-def _cached_call(fn: Callable[[Any], Any], item: Any) -> Any:
+def _cached_call(fn: Callable[[Any], Any], item: Any, compact: bool) -> Any:
     """Run ``fn(item)`` in a cluster worker, with the line cache on for that worker."""
-    _worker_init()
+    _worker_init(compact)
     return fn(item)
 
 
@@ -85,33 +85,36 @@ _END: Any = object()
 
 
 def ordered_map(fn: Callable[[T], R], items: Iterable[T], *, jobs: int = 1,
-                scheduler: str | None = None) -> Iterator[R]:
+                scheduler: str | None = None, compact: bool = False) -> Iterator[R]:
     """``fn(item)`` for every item, yielded in the items' order.
 
     ``fn`` and the items must pickle (a module-level function, or a ``functools.partial`` of
-    one). In one process the line cache is on for the duration of the call.
+    one). The line cache is on for the duration of the call (in this process, or in each
+    worker); ``compact`` when ``fn`` needs no whole corner tables
+    (:func:`reviewer.engine.line_cache`).
     """
     items = list(items)
     if scheduler:
-        yield from _on_cluster(fn, items, scheduler)
+        yield from _on_cluster(fn, items, scheduler, compact)
         return
     if jobs <= 1 or len(items) <= 1:
         from reviewer.engine import line_cache
 
-        with line_cache():
+        with line_cache(compact=compact):
             for item in items:
                 yield fn(item)
         return
     workers = min(jobs, len(items))
     with ProcessPoolExecutor(max_workers=workers, mp_context=_context(),
-                             initializer=_worker_init) as pool:
+                             initializer=_worker_init, initargs=(compact,)) as pool:
         def submit(item: T) -> Future[R]:
             return pool.submit(fn, item)
 
         yield from _windowed(submit, items, workers * AHEAD, lambda f: f.result())
 
 
-def _on_cluster(fn: Callable[[T], R], items: list[T], address: str) -> Iterator[R]:
+def _on_cluster(fn: Callable[[T], R], items: list[T], address: str,
+                compact: bool) -> Iterator[R]:
     try:
         from distributed import Client
     except ImportError:
@@ -126,7 +129,7 @@ def _on_cluster(fn: Callable[[T], R], items: list[T], address: str) -> Iterator[
         nworkers = max(1, len(client.scheduler_info().get("workers", {})))
 
         def submit(item: T) -> Any:
-            return client.submit(_cached_call, fn, item, pure=False)
+            return client.submit(_cached_call, fn, item, compact, pure=False)
 
         yield from _windowed(submit, items, nworkers * AHEAD, lambda f: f.result())
     finally:

@@ -220,10 +220,27 @@ def test_line_cache_computes_once_with_identical_results(line):
 
     files = sorted(line.glob("gen-*.toml")) + [line / "kiln-base.toml"]
     fresh = [document.project_entry(compute(f)) for f in files]
-    with line_cache() as cache:
-        cached = [document.project_entry(compute(f)) for f in files]
-    assert cached == fresh
-    assert cache.hits > cache.misses  # most of a line repeats
+    for compact in (False, True):
+        with line_cache(compact=compact) as cache:
+            cached = [document.project_entry(compute(f)) for f in files]
+        assert cached == fresh
+        assert cache.hits > cache.misses  # most of a line repeats
+
+
+def test_monte_carlo_does_not_use_the_line_cache(line):
+    """Sampling needs each project's own corner tables: with --monte-carlo nothing is taken
+    from the cache, and the yields are those of a run without it."""
+    from reviewer.batch import Options
+    from reviewer.engine import line_cache
+
+    opts = Options(monte_carlo=300, seed=3)
+    fresh = document.project_entry(compute(line / "gen-1.toml", opts))
+    with line_cache(compact=True) as cache:
+        compute(line / "gen-0.toml")
+        before = cache.hits + cache.misses
+        cached = document.project_entry(compute(line / "gen-1.toml", opts))
+    assert cache.hits + cache.misses == before
+    assert cached == fresh and any("yield" in c for c in cached["checks"])
 
 
 def test_results_hold_no_corner_tables(line):
