@@ -3,6 +3,7 @@ schema, the ``python -m latchbook`` entry, the licence, and the declared depende
 
 from __future__ import annotations
 
+import shutil
 import subprocess
 import sys
 import zipfile
@@ -17,7 +18,10 @@ ROOT = Path(__file__).resolve().parents[1]
 @pytest.fixture(scope="module")
 def wheel(tmp_path_factory) -> zipfile.ZipFile:
     out = tmp_path_factory.mktemp("wheel")
-    res = subprocess.run([sys.executable, "-m", "pip", "wheel", str(ROOT), "--no-deps", "-q",
+    src = out / "src"  # build from a copy: setuptools writes build/ and egg-info in the tree
+    shutil.copytree(ROOT, src, symlinks=True, ignore=shutil.ignore_patterns(
+        ".venv", ".git", "build", "dist", "*.egg-info", "__pycache__", ".*_cache"))
+    res = subprocess.run([sys.executable, "-m", "pip", "wheel", str(src), "--no-deps", "-q",
                           "-w", str(out)], capture_output=True, text=True)
     if res.returncode != 0:
         pytest.fail(f"pip wheel failed:\n{res.stderr[-3000:]}")
