@@ -6,10 +6,10 @@ serial one. At most a few items per worker are in flight at once, so the caller'
 not grow with the number of items: results are written out as they come and then dropped.
 
 Backends: one process (``jobs=1``), a local process pool (``jobs=N``; worker processes are
-forked where the system allows, so they start with the modules already imported), or the
-scheduler of a ``distributed`` cluster (``scheduler="tcp://host:port"``, the ``cluster``
-extra). Each worker process computes identical (check, inputs hash, limits) once
-(:func:`reviewer.engine.enable_line_cache`).
+forked from a single-threaded caller, so they start with the modules already imported, else
+started by a fork server), or the scheduler of a ``distributed`` cluster
+(``scheduler="tcp://host:port"``, the ``cluster`` extra). Each process computes identical
+(check, inputs hash, limits) once (:func:`reviewer.engine.line_cache`).
 """
 
 from __future__ import annotations

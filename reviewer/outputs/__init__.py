@@ -3,6 +3,7 @@
 - :mod:`.document`: the ``latchbook.results/1`` JSON shape, verdicts and the JSON Schema;
 - :mod:`.json_out`: that document streamed project by project;
 - :mod:`.junit`: JUnit XML, one test case per project × stage × check;
-- :mod:`.csv_out`: one CSV row per check for spreadsheets;
-- :mod:`.sinks`: the set of outputs a command was asked for, fed one project at a time.
+- :mod:`.csv_out`: one CSV row per check for spreadsheets.
+
+:mod:`reviewer.cli_run` feeds each project to the outputs a command was asked for.
 """
