@@ -22,7 +22,8 @@ from reviewer.states import ATTENTION, FAILING, WAIVABLE, review_word
 FORMAT = "latchbook.results/1"
 
 #: A project's (and a run's) verdict, worst first. ``error``: it could not be read;
-#: ``fail``: a failing, blocked, incomplete or erroring check without a current waiver;
+#: ``fail``: a failing, blocked, incomplete or erroring check without a current waiver (an
+#: error is never waived);
 #: ``unverified``: its review history is broken or an entry in force does not verify;
 #: ``stale``: a sign-off, approval or waiver in force no longer matches; ``marginal``: a
 #: marginal check without a current waiver; ``pass``: none of these.
