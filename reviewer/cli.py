@@ -18,8 +18,7 @@ from typing import Any
 from reviewer import TOOL
 from reviewer.errors import LatchbookError
 from reviewer.safety import SHORT
-from reviewer.states import FAILING
-from reviewer.textsafe import dump_json, message, safe_console, visible
+from reviewer.textsafe import message, safe_console, visible
 
 SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
@@ -29,26 +28,6 @@ def _load_run(path: str) -> Any:
     from reviewer.engine import run_project
 
     return run_project(path)
-
-
-def run_json(run: Any, yields: dict[tuple[str, str], Any] | None = None) -> dict[str, Any]:
-    """The ``--json`` document of one project's run (with Monte Carlo yields when given)."""
-    p = run.project
-    results = []
-    for r in run.results:
-        d = r.as_dict()
-        y = (yields or {}).get((r.stage, r.check))
-        if y is not None:
-            d.update(y.as_dict())
-        results.append(d)
-    return {
-        "project": {"name": p.name, "revision": p.revision, "file": p.path,
-                    "variant_of": p.variant_of or None, "line": p.line or None},
-        "tool": TOOL,
-        "checklist": run.checklist.identity(),
-        "warnings": list(getattr(p, "warnings", [])),
-        "results": results,
-    }
 
 
 def print_table(run: Any, out: Any = None,
@@ -95,67 +74,62 @@ def print_table(run: Any, out: Any = None,
 
 
 def cmd_check(args: argparse.Namespace) -> int:
-    """Compute every check of each project; print a table or JSON."""
-    runs = []
-    started = time.perf_counter()
-    for path in args.projects:
-        runs.append(_load_run(path))
-    if args.record:
-        from reviewer.review import record_results
+    """Compute every check of each project; print a table or JSON (and JUnit/CSV files)."""
+    from reviewer.batch import Options
+    from reviewer.cli_run import drive
 
-        for path, run in zip(args.projects, runs, strict=True):
-            record_results(run, Path(path))
-    all_yields = [_yields(run, args) for run in runs]
-    if args.json:
-        docs = [run_json(r, y) for r, y in zip(runs, all_yields, strict=True)]
-        dump_json(docs[0] if len(docs) == 1 else docs, sys.stdout)
-    else:
-        for run, y in zip(runs, all_yields, strict=True):
-            print_table(run, yields=y)
-            if y:
-                n = next(iter(y.values())).samples
+    started = time.perf_counter()
+    opts = Options(record=args.record, monte_carlo=args.monte_carlo, seed=args.seed,
+                   distribution=args.distribution)
+    shown = [0]
+
+    def each(pr: Any) -> None:
+        shown[0] += 1
+        if pr.error:
+            print(f"latchbook: {message(pr.error)}", file=sys.stderr)
+        elif not args.json:
+            print_table(pr.run, yields=pr.yields)
+            if pr.yields:
+                n = next(iter(pr.yields.values())).samples
                 print(f"Monte Carlo: {n} samples per check, {args.distribution} "
                       f"(tolerance = 3σ for normal), seed {args.seed}; operating conditions held "
                       "at each check's worst corner.")
-        print(f"{SAFETY_LINE}\n({len(runs)} project(s) in {time.perf_counter() - started:.2f} s)")
-    return 1 if any(_fails(run, path) for run, path in zip(runs, args.projects, strict=True)) else 0
+
+    mc = ({"samples": args.monte_carlo, "seed": args.seed, "distribution": args.distribution}
+          if args.monte_carlo else None)
+    code = drive(args, "check", args.projects, exit_code=check_exit_code, each=each, opts=opts,
+                 folders=False, monte_carlo=mc, want_json=args.json)
+    if not args.json:
+        print(f"{SAFETY_LINE}\n({shown[0]} project(s) in {time.perf_counter() - started:.2f} s)")
+    return code
 
 
-def _yields(run: Any, args: argparse.Namespace) -> dict[tuple[str, str], Any] | None:
-    if not args.monte_carlo:
-        return None
-    from reviewer.tolerance import monte_carlo
-
-    out = {}
-    for r in run.results:
-        y = monte_carlo(r, args.monte_carlo, seed=args.seed, distribution=args.distribution)
-        if y is not None:
-            out[(r.stage, r.check)] = y
-    return out
-
-
-def _fails(run: Any, path: str) -> bool:
-    """A check fails without a current waiver (waivers come from the review record)."""
-    failing = {(r.stage, r.check) for r in run.results if r.status in FAILING}
-    if not failing:
-        return False
-    try:
-        from reviewer.review import check_states, load_record
-    except ImportError:
-        return True
-    states = check_states(load_record(Path(path)), run)
-    return any(getattr(states.get(k), "state", "") != "waived" for k in failing)
+def check_exit_code(outcome: Any) -> int:
+    """2 when a project cannot be read; 1 when a check fails without a current waiver."""
+    if outcome.errors:
+        return 2
+    return 1 if "fail" in outcome.verdicts else 0
 
 
 def demo_copy(dest: Path) -> Path:
-    """Copy the bundled demo projects into ``dest`` (never writing into the package)."""
-    dest.mkdir(parents=True, exist_ok=True)
-    src = resources.files("reviewer").joinpath("data/projects")
-    for item in src.iterdir():
-        target = dest / item.name
-        if item.name.endswith(".toml") and not os.path.lexists(target):  # never via a link
-            with resources.as_file(item) as f:
-                shutil.copyfile(f, target)
+    """Copy the bundled demo tree into ``dest``, folders too (never writing into the package).
+
+    Files already there are kept: a second run does not undo the user's edits.
+    """
+    def copy(src: Any, target: Path) -> None:
+        if os.path.islink(target):
+            return  # never write through a link
+        target.mkdir(parents=True, exist_ok=True)
+        for item in src.iterdir():
+            if item.is_dir():
+                if not item.name.startswith((".", "__")):
+                    copy(item, target / item.name)
+            elif item.name.endswith((".toml", ".md")) \
+                    and not os.path.lexists(target / item.name):  # never via a link
+                with resources.as_file(item) as f:
+                    shutil.copyfile(f, target / item.name)
+
+    copy(resources.files("reviewer").joinpath("data/projects"), dest)
     return dest / DEMO
 
 
@@ -223,6 +197,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=0, help="seed for --monte-carlo (default 0)")
     p.add_argument("--distribution", choices=("normal", "uniform"), default="normal",
                    help="normal with the tolerance as 3σ (default), or uniform")
+    from reviewer.cli_run import add_output_args
+
+    add_output_args(p)
     p.set_defaults(func=cmd_check)
 
     p = sub.add_parser("open", help="the workbook on a project (or on a review record's "
@@ -247,6 +224,9 @@ def build_parser() -> argparse.ArgumentParser:
         cli_line = None  # type: ignore[assignment]
     if cli_line is not None:
         cli_line.register(sub)
+    from reviewer import completion
+
+    completion.register(sub)
     return parser
 
 

@@ -107,81 +107,82 @@ def cmd_verify(args: argparse.Namespace) -> int:
     return 0 if rep.ok else 1
 
 
-def _projects_in(items: list[str]) -> list[Path]:
-    """The project files named, or found in the folders named (review/checklist files skipped)."""
-    from reviewer.project import is_project_file
+def status_row_of(pr: Any) -> dict[str, Any]:
+    """One project's status row from its :class:`reviewer.batch.ProjectResult`."""
+    from reviewer.review import counts
 
-    out: list[Path] = []
-    for item in items or ["."]:
-        p = Path(item)
-        if p.is_dir():
-            out += sorted(f for f in p.glob("*.toml") if is_project_file(f))
-        elif p.is_file():
-            out.append(p)
-        else:
-            from reviewer.safeio import refusal
-
-            why = refusal(p) or "no such file or folder"
-            raise ProjectError(why.replace("no such file", "no such file or folder"), _where(p))
-    return out
-
-
-def status_row(path: Path) -> dict[str, Any]:
-    """One project's status: counts, failing and stale checks, and the chain's state."""
-    from reviewer.engine import run_project
-    from reviewer.review import check_states, counts, load_record
-
-    run = run_project(path)
-    project = run.project
-    rec = load_record(path)
-    states = check_states(rec, run)
-    c = counts(states)
+    if pr.error:
+        return {"project": None, "file": pr.file, "error": pr.error}
+    project, states = pr.run.project, pr.states
     failing = [f"{s.stage}/{s.check}" for s in states.values()
                if s.status in FAILING and s.waiver != "waived"]
     stale = [{"check": f"{s.stage}/{s.check}", "changed": [ch.text() for ch in s.changed]}
              for s in states.values() if "stale" in (s.signoff, s.approval, s.waiver)]
-    return {"project": project.name, "file": str(path), "revision": project.revision,
-            "variant_of": project.variant_of or None, "counts": c, "failing": failing,
-            "stale": stale, "chain_ok": rec.chain.ok, "first_bad": rec.chain.first_bad}
+    return {"project": project.name, "file": pr.file, "revision": project.revision,
+            "variant_of": project.variant_of or None, "counts": counts(states),
+            "failing": failing, "stale": stale, "chain_ok": pr.history_ok,
+            "first_bad": pr.first_bad}
+
+
+def status_row(path: Path) -> dict[str, Any]:
+    """One project's status: counts, failing and stale checks, and the chain's state."""
+    from reviewer.batch import compute
+
+    row = status_row_of(compute(path))
+    if "error" in row:
+        raise ProjectError(row["error"], _where(path))
+    return row
+
+
+def status_exit_code(outcome: Any) -> int:
+    """2 when a project cannot be read; 1 when a check fails unwaived, a sign-off is stale or
+    a history is broken; else 0."""
+    if outcome.errors:
+        return 2
+    return 1 if {"fail", "stale", "unverified"} & set(outcome.verdicts) else 0
+
+
+def _missing(paths: list[str]) -> None:
+    """Refuse a path that is neither a folder nor a regular file (missing, a pipe, a device)."""
+    for item in paths:
+        p = Path(item)
+        if not p.is_dir() and not p.is_file():
+            from reviewer.safeio import refusal
+
+            why = refusal(p) or "no such file or folder"
+            raise ProjectError(why.replace("no such file", "no such file or folder"), _where(p))
 
 
 def cmd_status(args: argparse.Namespace) -> int:
     """One row per project or variant: pass, marginal, fail, waived, stale, unsigned."""
+    from reviewer.cli_run import drive
+
+    paths = args.paths or ["."]
     try:
-        paths = _projects_in(args.paths)
+        _missing(paths)
+        if args.matrix:
+            return _matrix(args, paths)
+        rows: list[dict[str, Any]] = []
+        code = drive(args, "status", paths, exit_code=status_exit_code,
+                     each=lambda pr: rows.append(status_row_of(pr)), recursive=False,
+                     want_json=args.json)
     except LatchbookError as exc:
         return _err(exc)
-    if not paths:
-        print("latchbook: no project files (NAME.toml) found", file=sys.stderr)
-        return 2
-    if args.matrix:
-        from reviewer.line import matrix_exit_code, matrix_json, render_matrix, status_matrix
-
-        try:
-            m = status_matrix(args.paths or ["."])
-        except LatchbookError as exc:
-            return _err(exc)
-        if args.json:
-            dump_json(matrix_json(m), sys.stdout)
-        else:
-            render_matrix(m)
-        return matrix_exit_code(m)
-    rows: list[dict[str, Any]] = []
-    bad_input = False
-    for p in paths:
-        try:
-            rows.append(status_row(p))
-        except LatchbookError as exc:
-            bad_input = True
-            rows.append({"project": None, "file": str(p), "error": str(exc)})
-    if args.json:
-        dump_json(rows, sys.stdout)
-    else:
+    if not args.json:
         _print_status(rows)
-    if bad_input:
-        return 2
-    wrong = any(r["failing"] or r["stale"] or not r["chain_ok"] for r in rows)
-    return 1 if wrong else 0
+    return code
+
+
+def _matrix(args: argparse.Namespace, paths: list[str]) -> int:
+    from reviewer.cli_run import drive
+    from reviewer.line import MatrixBuilder, matrix_exit_code, render_matrix
+
+    b = MatrixBuilder()
+    code = drive(args, "status --matrix", paths, exit_code=lambda _: matrix_exit_code(b.matrix()),
+                 each=b.add, want_json=args.json)
+    if not args.json:
+        render_matrix(b.matrix())
+    return code
 
 
 def _print_status(rows: list[dict[str, Any]]) -> None:
@@ -242,7 +243,10 @@ def register(sub: Any) -> None:
     p.add_argument("--json", action="store_true")
     p.add_argument("--matrix", action="store_true",
                    help="projects × stages, searching folders recursively (a product line)")
+    from reviewer.cli_run import add_output_args
+
+    add_output_args(p)
     p.set_defaults(func=cmd_status)
 
 
-__all__ = ["register", "status_row"]
+__all__ = ["register", "status_exit_code", "status_row", "status_row_of"]

@@ -18,7 +18,9 @@ import json
 import math
 import re
 import warnings
-from collections.abc import Iterable, Mapping
+from collections import OrderedDict
+from collections.abc import Iterable, Iterator, Mapping
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -303,6 +305,125 @@ def call(defn: CheckDef, bound: Bound, arrays: Mapping[str, np.ndarray],
     return defn.fn(**arrays, **bound.options, limits=limits).broadcast(n)
 
 
+Computed = tuple[dict[str, np.ndarray], list[str], Outcome, Reduced, int, str]
+
+
+class LineCache:
+    """Each (check, inputs hash, limits) computed once across a product line.
+
+    The inputs hash covers the stage, the check, every value it reads (nominal and both ends)
+    and its options; the key adds the limits, the inputs' names, order, sweeps and interior
+    points, and the binding's notes, so two variants with the same key get the same corners,
+    rows, reduction and summary. The entries are shared read-only between results; the least
+    recently used go first once ``size`` are held, so memory stays bounded over any number of
+    projects.
+    """
+
+    def __init__(self, size: int = 256, *, compact: bool = False) -> None:
+        self.size = size
+        self.compact = compact
+        self.entries: OrderedDict[tuple[str, str, str], Computed] = OrderedDict()
+        self.hits = 0
+        self.misses = 0
+
+    def get(self, key: tuple[str, str, str]) -> Computed | None:
+        """The computation stored under ``key`` (marked recently used), or None."""
+        hit = self.entries.get(key)
+        if hit is None:
+            self.misses += 1
+            return None
+        self.hits += 1
+        self.entries.move_to_end(key)
+        return hit
+
+    def put(self, key: tuple[str, str, str], value: Computed) -> None:
+        """Store a computation, dropping the least recently used beyond ``size``."""
+        self.entries[key] = value
+        while len(self.entries) > self.size:
+            self.entries.popitem(last=False)
+
+
+_LINE_CACHE: LineCache | None = None
+
+#: Entries kept: full entries hold whole corner tables (for plots and the workbook); compact
+#: ones only the nominal and worst rows, so many more fit in the same memory.
+FULL_SIZE, COMPACT_SIZE = 256, 8192
+
+
+@contextmanager
+def line_cache(size: int | None = None, *, compact: bool = False) -> Iterator[LineCache]:
+    """Within the block, identical (check, inputs hash, limits) are computed once.
+
+    ``compact``: results keep only the nominal and the worst row of their corner table (their
+    ``evaluation``), enough for every summary, value and worst corner, not for plots, Monte
+    Carlo or the workbook's corner views.
+    """
+    global _LINE_CACHE
+    size = size or (COMPACT_SIZE if compact else FULL_SIZE)
+    previous, _LINE_CACHE = _LINE_CACHE, LineCache(size, compact=compact)
+    try:
+        yield _LINE_CACHE
+    finally:
+        _LINE_CACHE = previous
+
+
+@contextmanager
+def no_line_cache() -> Iterator[None]:
+    """Within the block, every check is computed afresh with its whole corner table."""
+    global _LINE_CACHE
+    previous, _LINE_CACHE = _LINE_CACHE, None
+    try:
+        yield
+    finally:
+        _LINE_CACHE = previous
+
+
+def enable_line_cache(*, compact: bool = False) -> LineCache:
+    """Turn the line-wide cache on for the rest of this process (a worker process)."""
+    global _LINE_CACHE
+    if _LINE_CACHE is None:
+        _LINE_CACHE = LineCache(COMPACT_SIZE if compact else FULL_SIZE, compact=compact)
+    return _LINE_CACHE
+
+
+def _compact(done: Computed) -> Computed:
+    """Only the nominal row and the worst row of a computation (the worst is then row 1)."""
+    arrays, varying, out, red, worst, summary = done
+    rows = np.array([0, worst])
+    small = Outcome({k: np.asarray(v)[rows] for k, v in out.values.items()},
+                    np.asarray(out.margin)[rows], np.asarray(out.status)[rows], list(out.notes))
+    return {k: a[rows] for k, a in arrays.items()}, varying, small, red, 1, summary
+
+
+def _computed(defn: CheckDef, bound: Bound, limits: Mapping[str, float],
+              digest: str) -> Computed:
+    """Corners, one array call, the reduction and the summary (once per key in a line)."""
+    cache = _LINE_CACHE
+    # Beyond the inputs hash: the order, names, sweeps and interior points of the inputs (they
+    # shape the corner table and so the worst row) and the binding's notes (in the summary).
+    shape = [[n, i.path, i.sweep, list(i.extra)] for n, i in bound.inputs.items()]
+    key = (defn.id, digest, json.dumps([dict(limits), shape, bound.notes], sort_keys=True,
+                                       default=repr))
+    if cache is not None:
+        hit = cache.get(key)
+        if hit is not None:
+            return hit
+    arrays, varying, note = build_corners(bound.inputs)
+    with np.errstate(all="ignore"):  # non-finite rows are judged in reduce, not warned
+        out = call(defn, bound, arrays, limits)
+    if note:
+        out.notes.append(note)
+    red, worst = reduce(bound, arrays, varying, out, limits, defn.optional)
+    with np.errstate(all="ignore"):
+        summary = defn.summarise(red)
+    done = (arrays, varying, out, red, worst, summary)
+    if cache is not None:
+        if cache.compact:
+            done = _compact(done)
+        cache.put(key, done)
+    return done
+
+
 def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Checklist,
                    *, strict: bool = False) -> Result:
     """Bind, build corners, compute once on arrays, reduce and summarise one check."""
@@ -322,14 +443,7 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
                       inputs_sha256=digest, snapshot=snap, needs=list(bound.missing))
     limits = checklist.limits_for(defn.id)
     try:
-        arrays, varying, note = build_corners(bound.inputs)
-        with np.errstate(all="ignore"):  # non-finite rows are judged in reduce, not warned
-            out = call(defn, bound, arrays, limits)
-        if note:
-            out.notes.append(note)
-        red, worst = reduce(bound, arrays, varying, out, limits, defn.optional)
-        with np.errstate(all="ignore"):
-            summary = defn.summarise(red)
+        arrays, varying, out, red, worst, summary = _computed(defn, bound, limits, digest)
         status, summary = _finite_summary(red.status, summary, red.notes)
     except LatchbookError:
         raise
@@ -353,7 +467,7 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
         worst_txt[_label(inp.path)] = show(float(arrays[name][worst]), inp.value.dim)
     margin = red.margin if math.isfinite(red.margin) and status == red.status else None
     return Result(stage.id, defn.id, stage.kind, status, margin, summary, worst_txt,
-                  digest, values, red.notes, snap,
+                  digest, values, list(red.notes), snap,
                   Evaluation(list(arrays), arrays, out, worst, bound, varying, limits))
 
 
@@ -430,7 +544,7 @@ def status_counts(results: Iterable[Result]) -> dict[str, int]:
     return counts
 
 
-__all__ = ["FAIL", "MARGINAL", "Evaluation", "Result", "Run", "Stat", "blocked", "evaluate",
-           "run_project",
+__all__ = ["FAIL", "MARGINAL", "Evaluation", "LineCache", "Result", "Run", "Stat", "blocked",
+           "enable_line_cache", "evaluate", "line_cache", "no_line_cache", "run_project",
            "evaluate_check", "build_corners", "inputs_hash", "snapshot", "stage_order",
            "status_counts"]

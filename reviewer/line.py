@@ -24,9 +24,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TextIO
 
-from reviewer.engine import run_project
-from reviewer.errors import LatchbookError
-from reviewer.project import is_project_file
+from reviewer.engine import run_project  # noqa: F401  (re-exported: reports import it from here)
 from reviewer.states import FAILING, WAIVABLE
 from reviewer.textsafe import safe_console, visible
 
@@ -144,37 +142,26 @@ def _worst(states: Iterable[str]) -> str:
 
 def find_projects(paths: Sequence[str | Path]) -> list[Path]:
     """The project files named, and those under the folders named (recursively, sorted)."""
-    out: list[Path] = []
-    for p in paths:
-        p = Path(p)
-        if p.is_dir():
-            for f in sorted(p.rglob("*.toml")):
-                if any(part.startswith(".") for part in f.relative_to(p).parts):
-                    continue
-                if is_project_file(f):
-                    out.append(f)
-        else:
-            out.append(p)
-    return list(dict.fromkeys(out))
+    from reviewer.batch import select
+
+    return select(paths)[0]
 
 
-def _row(path: Path) -> tuple[Row, list[str]]:
-    from reviewer.review import check_states, counts, load_record
-
-    row = Row(str(path))
-    try:
-        run = run_project(path)
-        record = load_record(path)
-    except LatchbookError as exc:
-        row.error, row.state = str(exc), "error"
+def row_of(pr: Any) -> tuple[Row, list[str]]:
+    """A project's row from its :class:`reviewer.batch.ProjectResult`, and its stage order."""
+    row = Row(pr.file)
+    if pr.error:
+        row.error, row.state = pr.error, "error"
         return row, []
-    p = run.project
+    from reviewer.review import counts
+
+    run, p = pr.run, pr.run.project
     row.name, row.revision, row.variant_of = p.name, p.revision, p.variant_of
     row.chain = [str(c) for c in p.chain]
     row.checklist = run.checklist.identity()
-    row.record = str(record.path) if record.exists else ""
-    row.chain_ok = record.chain.ok
-    states = check_states(record, run)
+    row.record = pr.record_file
+    row.chain_ok = pr.history_ok
+    states = pr.states
     row.counts = counts(states)
     order = list(dict.fromkeys(r.stage for r in run.results))
     for sid in order:
@@ -188,22 +175,40 @@ def _sort_key(row: Row) -> tuple[str, int, str]:
     return (str(Path(root).resolve()), len(row.chain), row.path)
 
 
-def status_matrix(paths: Sequence[str | Path]) -> Matrix:
+class MatrixBuilder:
+    """Rows added one project at a time; :meth:`matrix` sorts them into the matrix."""
+
+    def __init__(self) -> None:
+        self.rows: list[Row] = []
+        self.stages: list[str] = []
+
+    def add(self, pr: Any) -> None:
+        """Add one project's row (from a :class:`reviewer.batch.ProjectResult`)."""
+        row, order = row_of(pr)
+        self.rows.append(row)
+        for sid in order:
+            if sid not in self.stages:
+                self.stages.append(sid)
+
+    def matrix(self) -> Matrix:
+        """Rows grouped by base project (the base, then its variants by depth)."""
+        return Matrix(list(self.stages), sorted(self.rows, key=_sort_key))
+
+
+def status_matrix(paths: Sequence[str | Path], *, jobs: int = 1,
+                  scheduler: str | None = None) -> Matrix:
     """Projects × stages for the folders or project files in ``paths``.
 
-    Each project is loaded and computed once; rows come grouped by base project (the base, then
-    its variants by depth); columns are stage ids in order of first appearance.
+    Each project is loaded and computed once (on ``jobs`` cores, or a cluster); rows come
+    grouped by base project (the base, then its variants by depth); columns are stage ids in
+    order of first appearance.
     """
-    rows: list[Row] = []
-    stages: list[str] = []
-    for f in find_projects(paths):
-        row, order = _row(f)
-        rows.append(row)
-        for sid in order:
-            if sid not in stages:
-                stages.append(sid)
-    rows.sort(key=_sort_key)
-    return Matrix(stages, rows)
+    from reviewer.batch import results
+
+    b = MatrixBuilder()
+    for pr in results(find_projects(paths), jobs=jobs, scheduler=scheduler):
+        b.add(pr)
+    return b.matrix()
 
 
 def matrix_exit_code(m: Matrix) -> int:
@@ -212,14 +217,6 @@ def matrix_exit_code(m: Matrix) -> int:
     if m.broken or not m.rows:
         return 2
     return 1 if m.failing or m.stale or any(not r.chain_ok for r in m.rows) else 0
-
-
-def matrix_json(m: Matrix) -> dict[str, Any]:
-    """The ``--json`` document of a matrix."""
-    from reviewer import TOOL
-
-    return {"tool": TOOL, "stages": list(m.stages), "rows": [r.as_dict() for r in m.rows],
-            "exit_code": matrix_exit_code(m)}
 
 
 def _display_name(row: Row, base_dir: Path | None) -> str:
@@ -294,5 +291,5 @@ def summary_counts(rows: Iterable[Row]) -> Mapping[str, int]:
     return out
 
 
-__all__ = ["Cell", "Matrix", "Row", "find_projects", "matrix_exit_code", "matrix_json",
-           "render_matrix", "run_project", "stage_state", "status_matrix"]
+__all__ = ["Cell", "Matrix", "MatrixBuilder", "Row", "find_projects", "matrix_exit_code",
+           "render_matrix", "row_of", "run_project", "stage_state", "status_matrix"]

@@ -235,6 +235,47 @@ def _refuse_unsafe_target(path: Path) -> Path:
     return target
 
 
+@contextlib.contextmanager
+def atomic_stream(path: str | Path) -> Iterator[Any]:
+    """A text file to write piece by piece that appears at ``path`` whole, or not at all.
+
+    The same steps and refusals as :func:`atomic_write` (temp file in the same folder, fsync,
+    permissions, ``os.replace``, fsync the folder; no symlink, no read-only file) for output
+    too large to hold as one string; if the block raises, the temp file is removed and any
+    old file at ``path`` is left as it was.
+    """
+    target = Path(path)
+    folder = Path(os.path.realpath(target.parent))
+    if not folder.is_dir():
+        raise RecordError(f"the folder {folder} does not exist; create it or give another path",
+                          Where(str(target)))
+    target = _refuse_unsafe_target(target)  # never through a link, never over a read-only file
+    try:
+        old: os.stat_result | None = target.stat()
+    except FileNotFoundError:
+        old = None
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
+                          "permissions", Where(str(target))) from None
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
+            yield fh
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, stat.S_IMODE(old.st_mode) if old is not None else 0o666 & ~_umask())
+        os.replace(tmp, target)
+    except BaseException as exc:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        if isinstance(exc, OSError):
+            raise RecordError(f"cannot write the file: {exc.strerror}",
+                              Where(str(target))) from None
+        raise
+    _fsync_dir(folder)
+
+
 ORPHAN_AGE = 600.0  # s: no save takes this long, so an older temp file is a killed writer's
 
 
@@ -670,7 +711,8 @@ def hangup_saves(callback: Callable[[], object]) -> Iterator[None]:
 
 
 __all__ = ["Edit", "Journal", "LockInfo", "LockedError", "Person", "ProjectLock",
-           "atomic_write", "base_name", "clear_journal", "current_person", "file_sha256",
+           "atomic_stream", "atomic_write", "base_name", "clear_journal", "current_person",
+           "file_sha256",
            "hangup_saves", "install_hangup_handler", "journal_path", "lock_path", "lock_project",
            "mine_path", "pending_journal", "read_lock", "read_with_hash", "save_checked",
            "sha256_bytes", "stamp", "utc_now", "write_journal"]

@@ -643,7 +643,8 @@ def test_unusual_value_warns(name: str, text: str, words: tuple[str, ...], tmp_p
     code = main(["check", str(p), "--json"])
     out, err = capsys.readouterr()
     assert code in (0, 1) and "Traceback" not in out + err
-    warnings = json.loads(out)["warnings"]
+    [project] = json.loads(out)["projects"]
+    warnings = project["warnings"]
     assert len(warnings) == 1, warnings
     for word in words:
         assert word in warnings[0]
@@ -661,7 +662,7 @@ def test_demos_load_without_warnings(capsys: pytest.CaptureFixture[str]):
     assert len(demos) >= 7
     for d in demos:
         assert main(["check", str(d), "--json"]) in (0, 1)
-        assert json.loads(capsys.readouterr().out)["warnings"] == [], d.name
+        assert json.loads(capsys.readouterr().out)["projects"][0]["warnings"] == [], d.name
 
 
 def test_a_byte_order_mark_is_accepted(tmp_path: Path, capsys: pytest.CaptureFixture[str]):
@@ -669,4 +670,4 @@ def test_a_byte_order_mark_is_accepted(tmp_path: Path, capsys: pytest.CaptureFix
     p.write_bytes(b"\xef\xbb\xbf" + (Path(__file__).resolve().parents[2] / "projects" /
                                      "flasher-dc.toml").read_bytes())
     assert main(["check", str(p), "--json"]) == 0
-    assert json.loads(capsys.readouterr().out)["project"]["name"] == "Beacon flasher, 24 V"
+    assert json.loads(capsys.readouterr().out)["projects"][0]["name"] == "Beacon flasher, 24 V"

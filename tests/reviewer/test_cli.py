@@ -22,31 +22,31 @@ def run(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]
 
 
 def test_check_json_shape(capsys):
-    """--json gives project, tool, checklist and results with the documented keys."""
+    """--json gives the versioned document: format, tool, a list of projects, checks."""
     code = main(["check", str(PROJECTS / "flasher-dc.toml"), "--json"])
     doc = json.loads(capsys.readouterr().out)
-    assert set(doc) == {"project", "tool", "checklist", "warnings", "results"}
-    assert doc["warnings"] == []
+    assert doc["format"] == "latchbook.results/1" and doc["command"] == "check"
     assert doc["tool"].startswith("latchbook ")
-    assert set(doc["checklist"]) == {"name", "version", "sha256"}
-    assert doc["results"]
-    for r in doc["results"]:
-        assert set(r) - {"needs"} == {"stage", "check", "status", "margin", "summary", "worst",
-                                      "inputs_sha256", "values", "notes"}
-        assert r["status"] in RESULTS
+    [project] = doc["projects"]  # a list even for one project
+    assert set(project["checklist"]) == {"name", "version", "sha256"}
+    assert project["warnings"] == []
+    assert project["record"] is None and project["checks"]
+    for r in project["checks"]:
+        assert "review" not in r  # no review record: no review word
+        assert r["result"] in RESULTS
         for v in r["values"].values():
             assert set(v) == {"nominal", "min", "max", "unit"}
-    window = next(r for r in doc["results"] if r["check"] == "osc.window")
+    window = next(r for r in project["checks"] if r["check"] == "osc.window")
     assert window["values"]["r_max"]["unit"] == "ohm" and len(window["inputs_sha256"]) == 64
-    assert code in (0, 1)
+    assert code == doc["exit_code"] and code in (0, 1)
 
 
 def test_several_projects_give_a_list(capsys):
-    """With several projects, --json prints a list of the per-project documents."""
+    """With several projects, --json lists them in the order given."""
     main(["check", str(PROJECTS / "flasher-dc.toml"), str(PROJECTS / "kiln-230.toml"), "--json"])
-    docs = json.loads(capsys.readouterr().out)
-    assert [d["project"]["name"] for d in docs] == ["Beacon flasher, 24 V",
-                                                    "Bench kiln element controller"]
+    docs = json.loads(capsys.readouterr().out)["projects"]
+    assert [d["name"] for d in docs] == ["Beacon flasher, 24 V",
+                                         "Bench kiln element controller"]
 
 
 def test_failing_check_exits_1(tmp_path, capsys):

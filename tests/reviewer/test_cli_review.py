@@ -11,6 +11,7 @@ import pytest
 
 from reviewer import cli_review
 from reviewer.review import record_path
+from reviewer.states import FAILING
 
 from .test_review import make
 
@@ -93,14 +94,18 @@ def test_status_counts_and_exit_codes(tmp_path, capsys):
     assert run(["status", str(good)]) == 0
     assert "good.toml" in capsys.readouterr().out
     assert run(["status", str(tmp_path), "--json"]) == 1  # bad.toml fails, unwaived
-    rows = {Path(r["file"]).name: r for r in json.loads(capsys.readouterr().out)}
+    rows = {Path(r["file"]).name: r for r in json.loads(capsys.readouterr().out)["projects"]}
     assert set(rows) == {"good.toml", "bad.toml"}
-    assert "trigger/osc.window" in rows["bad.toml"]["failing"]
-    failing = rows["bad.toml"]["failing"]
-    assert rows["bad.toml"]["counts"]["fail"] >= 1
+    failing = [f"{c['stage']}/{c['check']}" for c in rows["bad.toml"]["checks"]
+               if c["result"] in FAILING]
+    assert "trigger/osc.window" in failing and rows["bad.toml"]["verdict"] == "fail"
     g = rows["good.toml"]["counts"]
-    assert g["fail"] == 0 and g["stale"] == 0 and g["pass"] >= 1
-    assert g["unsigned"] == g["pass"] + g["marginal"] - 1  # all but the signed osc.window
+    assert "fail" not in g["results"] and "stale" not in g["reviews"]
+    assert g["reviews"]["signed"] == 1 and rows["good.toml"]["verdict"] in ("pass", "marginal")
+    # without an n/a check, unsigned = every applicable check but the signed osc.window
+    applicable = sum(v for k, v in g["results"].items() if k != "not-applicable")
+    assert g["reviews"]["unsigned"] + g["reviews"]["signed"] == sum(g["results"].values())
+    assert applicable >= g["reviews"]["signed"]
     # Make the sign-off stale: exit 1, and the row says which input changed.
     good.write_text(good.read_text("utf-8").replace('"100 kohm"', '"120 kohm"'), "utf-8")
     assert run(["status", str(good)]) == 1
@@ -113,8 +118,11 @@ def test_status_counts_and_exit_codes(tmp_path, capsys):
                     "knob end-stop limits the pot to 90 kohm, checked on the bench"]) == 0
     capsys.readouterr()
     assert run(["status", str(bad), "--json"]) == 0
-    [row] = json.loads(capsys.readouterr().out)
-    assert row["counts"]["waived"] == len(failing) and row["failing"] == []
+    [row] = json.loads(capsys.readouterr().out)["projects"]
+    assert row["counts"]["reviews"]["waived"] == len(failing) and row["verdict"] != "fail"
+    waived = [c for c in row["checks"] if c.get("review") == "waived"]
+    assert {c["waiver"] for c in waived} == {"knob end-stop limits the pot to 90 kohm, "
+                                            "checked on the bench"}
 
 
 def test_status_skips_record_and_checklist_files(tmp_path, capsys):
@@ -124,7 +132,8 @@ def test_status_skips_record_and_checklist_files(tmp_path, capsys):
     assert run(["sign", str(p), "--stage", "trigger", "--check", "osc.window"]) == 0
     capsys.readouterr()
     run(["status", str(tmp_path), "--json"])
-    assert [Path(r["file"]).name for r in json.loads(capsys.readouterr().out)] == ["only.toml"]
+    doc = json.loads(capsys.readouterr().out)
+    assert [Path(r["file"]).name for r in doc["projects"]] == ["only.toml"]
 
 
 @pytest.mark.parametrize("name", ["kiln-230.toml", "kiln-120.toml", "flasher-dc.toml"])
@@ -134,6 +143,6 @@ def test_status_on_demo_projects_reports_without_traceback(name, capsys):
     if not demo.exists():
         pytest.skip(f"demo project {name} not present")
     code = run(["status", str(demo), "--json"])
-    [row] = json.loads(capsys.readouterr().out)
-    assert code in (0, 1) and "error" not in row
-    assert sum(row["counts"].values()) >= 1
+    [row] = json.loads(capsys.readouterr().out)["projects"]
+    assert code in (0, 1) and row["error"] is None
+    assert sum(row["counts"]["results"].values()) == len(row["checks"]) >= 1

@@ -13,7 +13,6 @@ import pytest
 from reviewer.diff import origin_of
 from reviewer.line import (
     matrix_exit_code,
-    matrix_json,
     render_matrix,
     stage_state,
     status_matrix,
@@ -90,15 +89,20 @@ def test_waived_and_unsigned(matrix):
     assert unsigned.cells["commutation"].state == "unsigned"
 
 
-def test_exit_code_and_json(matrix):
-    """A failing or stale variant makes the build fail (1); the JSON carries every cell."""
+def test_exit_code_and_json(matrix, capsys):
+    """A failing or stale variant makes the build fail (1); the JSON carries every stage."""
+    from reviewer.cli import main
+
     assert matrix_exit_code(matrix) == 1
-    doc = json.loads(json.dumps(matrix_json(matrix)))
-    assert doc["exit_code"] == 1 and doc["stages"] == matrix.stages
-    rows = {Path(r["file"]).name: r for r in doc["rows"]}
-    assert rows["kiln-120-2k.toml"]["stages"]["power"]["state"] == "fail"
-    assert rows["kiln-120-1k.toml"]["stages"]["snubber"]["state"] == "stale"
+    assert main(["status", "--matrix", str(LINE), "--json"]) == 1
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["exit_code"] == 1 and doc["command"] == "status --matrix"
+    rows = {Path(r["file"]).name: r for r in doc["projects"]}
+    stages = {n: {s["id"]: s["state"] for s in r["stages"]} for n, r in rows.items()}
+    assert stages["kiln-120-2k.toml"]["power"] == "fail"
+    assert stages["kiln-120-1k.toml"]["snubber"] == "stale"
     assert rows["kiln-120-2k.toml"]["chain"][-1].endswith("kiln-base.toml")
+    assert sorted({s for r in stages.values() for s in r}) == sorted(matrix.stages)
 
 
 def test_render_is_plain_text(tmp_path):

@@ -83,13 +83,13 @@ def test_missing_data_is_incomplete_everywhere(tmp_path, capsys):
     p = _kiln_without(tmp_path, 'c_voltage = "630 V"', 'tq = "80 us"')
     assert main(["check", str(p), "--json"]) == 1
     doc = json.loads(capsys.readouterr().out)
-    got = {(r["stage"], r["check"]): r for r in doc["results"]}
+    got = {(r["stage"], r["check"]): r for r in doc["projects"][0]["checks"]}
     cap = got[("snubber", "snubber.capacitor")]
-    assert cap["status"] == "incomplete"
+    assert cap["result"] == "incomplete"
     assert cap["needs"] == ["stages.snubber.c_voltage"]
     assert "stages.snubber.c_voltage not given" in cap["summary"]
     tq = got[("commutation", "turnoff.time")]
-    assert tq["status"] == "incomplete" and tq["needs"] == ["parts.Q1.tq"]
+    assert tq["result"] == "incomplete" and tq["needs"] == ["parts.Q1.tq"]
     # The status counts, the matrix cell and the workbook's filters all see them.
     from reviewer.engine import run_project
 

@@ -110,9 +110,9 @@ def test_every_command_output_is_terminal_safe(tmp_path: Path,
     md = outputs["report-md"][1]
     assert "javascript" in md and "[x](javascript" not in md and "![i](" not in md
     # JSON keeps the exact text (escaped), so scripts still see what the file says
-    doc = json.loads(outputs["check-json"][1])
-    assert doc["project"]["name"] == NAME
-    assert STAGE in {r["stage"] for r in doc["results"]}
+    [project] = json.loads(outputs["check-json"][1])["projects"]
+    assert project["name"] == NAME
+    assert STAGE in {r["stage"] for r in project["checks"]}
 
 
 def test_an_error_message_is_terminal_safe(tmp_path: Path):
