@@ -83,7 +83,12 @@ def ac_circuit(draw: Any) -> dict[str, Any]:
         a1 = draw(st.floats(0, 120))
         a2 = draw(st.floats(a1 + 5, 178))
         pw["firing"] = {"min": q(a1, "deg"), "max": q(a2, "deg")}
-        pw.pop("gate", None)  # a fixed range is reviewed without the oscillator setting it
+        # With `firing` the gate's oscillator runs free: a line-synchronised one would set the
+        # range too, which the loader refuses (which one counts?).
+        tr = d["stages"]["trigger"]
+        tr["sync"] = "free"
+        tr.pop("zener", None)
+        tr.pop("target", None)
     trig = d["stages"]["trigger"]
     r1 = draw(log_uniform(6e3, 40e3))
     trig["timing_r"] = {"min": q(r1 / 1e3, "kohm"), "max": q(r1 * draw(st.floats(1.5, 15)) / 1e3,
