@@ -18,7 +18,7 @@ from typing import Any
 from reviewer import TOOL
 from reviewer.errors import LatchbookError
 from reviewer.safety import SHORT
-from reviewer.textsafe import message, safe_console, visible
+from reviewer.textsafe import message, visible
 
 SAFETY_LINE = SHORT
 DEMO = "kiln-230.toml"
@@ -30,53 +30,58 @@ def _load_run(path: str) -> Any:
     return run_project(path)
 
 
+STYLES = {"pass": "green", "marginal": "yellow", "fail": "bold red", "error": "bold magenta",
+          "blocked": "bold yellow", "incomplete": "bold yellow", "not-applicable": "dim"}
+
+
 def print_table(run: Any, out: Any = None,
                 yields: dict[tuple[str, str], Any] | None = None) -> None:
-    """A readable table of one run on the terminal."""
-    from rich import box
-    from rich.table import Table
-    from rich.text import Text
+    """A readable table of one run, fitted to the terminal's width (or ``COLUMNS``).
+
+    The summary stands beside the row when there is room for it, else under the row; it wraps
+    between words only. Plain text without colour when piped.
+    """
+    from reviewer.fmt import margin, share
+    from reviewer.states import result_word
+    from reviewer.textout import Col, colour_for, paint, width_for, with_prose, wrap
 
     stream = out or sys.stdout
-    width = None if stream.isatty() else 110
-    console = safe_console(stream, width)
+    width, colour = width_for(stream), colour_for(stream)
     p = run.project
     title = visible(f"{p.name} — revision {p.revision}" + (f" (variant of {p.variant_of})"
                                                             if p.variant_of else ""))
-    table = Table(title=title, title_justify="left", expand=True, box=box.SIMPLE_HEAD,
-                  pad_edge=False)
-    table.add_column("stage", no_wrap=True)
-    table.add_column("check", no_wrap=True)
-    table.add_column("status", no_wrap=True)
-    table.add_column("margin", justify="right", no_wrap=True)
+    cols = [Col("stage"), Col("check"), Col("result"), Col("margin", right=True)]
     if yields:
-        table.add_column("MC fail", justify="right", no_wrap=True)
-    table.add_column("summary", ratio=1, overflow="fold")
-    styles = {"pass": "green", "marginal": "yellow", "fail": "bold red", "error": "bold magenta",
-              "blocked": "bold yellow", "incomplete": "bold yellow", "not-applicable": "dim"}
+        cols.append(Col("MC fail", right=True))
+    rows, styles, prose = [], [], []
     for r in run.results:
-        margin = "" if r.margin is None else f"{r.margin * 100:+.0f} %"
-        shown = "n/a" if r.status == "not-applicable" else r.status
-        cells = [Text(visible(r.stage)), Text(visible(r.check)),
-                 Text(shown, style=styles.get(r.status, "")),
-                 Text(margin)]
+        cells = [visible(r.stage), visible(r.check), result_word(r.status),
+                 margin(r.margin, r.status)]
+        row_styles = ["", "", STYLES.get(r.status, ""), ""]
         if yields:
             y = yields.get((r.stage, r.check))
-            cells.append(Text("" if y is None else f"{y.fail_fraction * 100:.2f} %"))
-        table.add_row(*cells, Text(visible(r.summary)))
-    console.print(table)
+            cells.append("" if y is None else share(y.fail_fraction, y.fail_interval))
+            row_styles.append("")
+        rows.append(cells)
+        styles.append(row_styles)
+        prose.append(visible(r.summary))
+    lines = wrap(title, width) + [""]
+    lines += with_prose(cols, rows, prose, "summary", width, styles=styles, colour=colour)
     for w in getattr(p, "warnings", []):
-        console.print(Text(f"warning: {visible(w)}", style="yellow"))
+        lines += wrap(paint(f"warning: {visible(w)}", "yellow", colour), width)
     from reviewer.engine import status_counts
 
     counts = status_counts(run.results)
-    console.print(Text("  ".join(f"{k}: {v}" for k, v in sorted(counts.items()))))
+    lines += [""] + wrap("  ".join(f"{result_word(k)}: {v}" for k, v in sorted(counts.items())),
+                         width)
+    stream.write("\n".join(lines) + "\n")
 
 
 def cmd_check(args: argparse.Namespace) -> int:
     """Compute every check of each project; print a table or JSON (and JUnit/CSV files)."""
     from reviewer.batch import Options
     from reviewer.cli_run import drive
+    from reviewer.textout import width_for, wrap
 
     started = time.perf_counter()
     opts = Options(record=args.record, monte_carlo=args.monte_carlo, seed=args.seed,
@@ -91,16 +96,20 @@ def cmd_check(args: argparse.Namespace) -> int:
             print_table(pr.run, yields=pr.yields)
             if pr.yields:
                 n = next(iter(pr.yields.values())).samples
-                print(f"Monte Carlo: {n} samples per check, {args.distribution} "
-                      f"(tolerance = 3σ for normal), seed {args.seed}; operating conditions held "
-                      "at each check's worst corner.")
+                print("\n".join(wrap(
+                    f"Monte Carlo: {n} samples per check, {args.distribution} (tolerance = 3σ "
+                    f"for normal), seed {args.seed}; MC fail is the share of failing samples "
+                    "(with none, the 95 % interval's top). Operating conditions (supply, "
+                    "ambient, settings) are held at each check's worst corner, so a yield "
+                    "says how units fare there, not in everyday use.", width_for(sys.stdout))))
 
     mc = ({"samples": args.monte_carlo, "seed": args.seed, "distribution": args.distribution}
           if args.monte_carlo else None)
     code = drive(args, "check", args.projects, exit_code=check_exit_code, each=each, opts=opts,
                  folders=False, monte_carlo=mc, want_json=args.json)
     if not args.json:
-        print(f"{SAFETY_LINE}\n({shown[0]} project(s) in {time.perf_counter() - started:.2f} s)")
+        print("\n".join(wrap(SAFETY_LINE, width_for(sys.stdout))))
+        print(f"({shown[0]} project(s) in {time.perf_counter() - started:.2f} s)")
     return code
 
 

@@ -26,7 +26,7 @@ from typing import Any, TextIO
 
 from reviewer.engine import run_project  # noqa: F401  (re-exported: reports import it from here)
 from reviewer.states import FAILING, WAIVABLE
-from reviewer.textsafe import safe_console, visible
+from reviewer.textsafe import visible
 
 STATES = ("fail", "blocked", "incomplete", "stale", "marginal", "waived", "unsigned", "n/a",
           "pass")
@@ -231,56 +231,60 @@ def _display_name(row: Row, base_dir: Path | None) -> str:
 
 def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path | None = None,
                   width: int | None = None) -> None:
-    """Print the matrix as a table (rich; every cell is plain text, never markup)."""
-    from rich import box
-    from rich.table import Table
-    from rich.text import Text
+    """Print the matrix as plain-text tables fitted to ``width`` (default: the terminal's or
+    ``COLUMNS``). The project column is in every block: when the stages do not fit beside
+    it, they continue in further blocks under the first, each again named by project. State
+    words are never cut, whatever words the cells hold."""
+    from reviewer.textout import Col, blocks, colour_for, width_for, wrap
 
     stream = out or sys.stdout
-    if width is None and not (hasattr(stream, "isatty") and stream.isatty()):
-        width = 140
-    console = safe_console(stream, width)
+    width = width or width_for(stream)
+    colour = colour_for(stream)
     bd = Path(base_dir) if base_dir is not None else None
-    table = Table(title="Review status by project and stage", title_justify="left",
-                  box=box.SIMPLE_HEAD, pad_edge=False)
-    table.add_column("project", overflow="fold", ratio=1)
-    table.add_column("rev", no_wrap=True)
-    table.add_column("variant of", overflow="fold", ratio=1)
-    for sid in m.stages:  # the state words must never be cut: they are the table
-        table.add_column(visible(sid), no_wrap=True, min_width=8, overflow="fold")
-    table.add_column("overall", no_wrap=True, min_width=8)
+    lead_rows, lead_styles, body_rows, body_styles = [], [], [], []
     for row in m.rows:
-        name = Text(visible(_display_name(row, bd)))
+        lead_rows.append([visible(_display_name(row, bd)), row.state])
+        lead_styles.append(["", STYLES.get(row.state, "")])
         if row.error:
-            table.add_row(name, Text(""), Text(""),
-                          *[Text("") for _ in m.stages], Text("error", style=STYLES["error"]))
+            body_rows.append(["", ""] + ["" for _ in m.stages])
+            body_styles.append(["", ""] + ["" for _ in m.stages])
             continue
-        base = Text(visible(Path(row.variant_of).name if row.variant_of else ""))
-        cells = []
+        cells, styles = [], []
         for sid in m.stages:
             c = row.cells.get(sid)
-            cells.append(Text("—", style="dim") if c is None
-                         else Text(c.state, style=STYLES.get(c.state, "")))
-        table.add_row(name, Text(visible(row.revision)), base, *cells,
-                      Text(row.state, style=STYLES.get(row.state, "")))
-    console.print(table)
+            cells.append("—" if c is None else c.state)
+            styles.append("dim" if c is None else STYLES.get(c.state, ""))
+        body_rows.append([visible(row.revision),
+                          visible(Path(row.variant_of).name if row.variant_of else ""), *cells])
+        body_styles.append(["", "", *styles])
+    body = [Col("rev"), Col("variant of"), *(Col(visible(sid)) for sid in m.stages)]
+    lines = ["Review status by project and stage", ""]
+    lines += blocks([Col("project"), Col("overall")], lead_rows, body, body_rows, width,
+                    lead_styles=lead_styles, body_styles=body_styles, colour=colour)
+    notes: list[str] = []
     for row in m.rows:
         label = visible(_display_name(row, bd))
         if row.error:
-            console.print(Text(f"  {label}: {visible(row.error)}", style="red"))
+            notes.append(f"{label}: {visible(row.error)}")
             continue
-        notes = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
+        parts = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
                  if c.state in ("fail", "blocked", "incomplete", "stale", "marginal", "waived")
                  and c.detail]
         if not row.chain_ok:
-            notes.insert(0, "the review history is broken (latchbook verify)")
-        if notes:
-            console.print(Text(f"  {label}: " + visible(" | ".join(notes))))
+            parts.insert(0, "the review history is broken (latchbook verify)")
+        if parts:
+            notes.append(f"{label}: " + visible(" | ".join(parts)))
+    if notes:
+        lines.append("")
+    for note in notes:  # each note hangs under its project name
+        first, *rest = wrap(note, width - 4)
+        lines += ["  " + first] + ["    " + r for r in wrap(" ".join(rest), width - 4) if r]
     code = matrix_exit_code(m)
     verdict = {0: "nothing fails and no sign-off is stale",
                1: f"{len(m.failing)} project(s) fail, {len(m.stale)} with stale sign-offs",
                2: "some projects do not load" if m.rows else "no projects found"}[code]
-    console.print(Text(f"{len(m.rows)} project(s): {verdict}"))
+    lines += wrap(f"{len(m.rows)} project(s): {verdict}", width)
+    stream.write("\n".join(lines) + "\n")
 
 
 def summary_counts(rows: Iterable[Row]) -> Mapping[str, int]:

@@ -20,6 +20,7 @@ from typing import Any
 
 from reviewer.errors import ValueGrammarError, Where
 from reviewer.model import Value
+from reviewer.unitdata import UNITS
 
 # dimension name -> (SI unit pint converts to, how to say it, an example to type)
 DIMS: dict[str, tuple[str, str, str]] = {
@@ -59,12 +60,11 @@ _RANGE_KEYS = ("min", "max", "nom")
 MAX_VALUE_CHARS = 200  # "1.23e-4 kohm +10% -15%" is 22; anything this long is not a value
 
 
-@lru_cache(maxsize=1)
 def registry() -> Any:
     """The one pint registry (created on first use; offset auto-conversion stays off)."""
-    import pint
+    from reviewer.unitgen import registry as pint_registry
 
-    return pint.UnitRegistry(autoconvert_offset_to_baseunit=False)
+    return pint_registry()
 
 
 def _normalise(text: str) -> str:
@@ -84,22 +84,18 @@ def _needs(dim: str, where: Where) -> str:
 
 @lru_cache(maxsize=512)
 def _unit_factor(unit: str, dim: str) -> tuple[float, float] | None:
-    """(scale, offset) converting ``unit`` to the SI unit of ``dim``; None if it does not fit."""
-    ureg = registry()
-    si = DIMS[dim][0]
-    try:
-        u = ureg.parse_units(unit.replace("%", "percent").replace("^", "**"))
-        if dim == "temperature":
-            if str(u).startswith("delta_"):
-                return None  # a difference, never an absolute temperature
-            q0 = ureg.Quantity(0.0, u).to("kelvin").magnitude
-            q1 = ureg.Quantity(1.0, u).to("kelvin").magnitude
-            return (q1 - q0, q0)
-        if dim == "temperature_difference" and str(u) in ("degree_Celsius", "degree_Fahrenheit"):
-            return None
-        return (float(ureg.Quantity(1.0, u).to(si or "dimensionless").magnitude), 0.0)
-    except Exception:  # pint raises many types (including AssertionError) for bad units
-        return None
+    """(scale, offset) converting ``unit`` to the SI unit of ``dim``; None if it does not fit.
+
+    The common units come from a table pint derived (:mod:`reviewer.unitdata`, checked against
+    pint in the tests), so a project in them loads without importing pint; pint itself
+    converts anything else.
+    """
+    known = UNITS.get(unit)
+    if known is not None:
+        return known.get(dim)
+    from reviewer.unitgen import pint_factor
+
+    return pint_factor(unit, dim, DIMS[dim][0])
 
 
 def _rkm(text: str, dim: str) -> float | None:
