@@ -24,6 +24,7 @@ from collections.abc import Mapping
 import numpy as np
 
 from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, grade
+from checks.memo import memoised
 
 # The first-crossing search (see _first_crossing): grid points where no monotonicity bound
 # applies, and the safeguarded Newton iteration's cap and stopping step (relative).
@@ -458,6 +459,7 @@ def _line_rows(vm: object, omega: object, vz: object, rt: object, ct: object,
     return vm, omega, vz, rt * ct, shape
 
 
+@memoised
 def line_sync_firing_angle(*, device: str, vm: np.ndarray, omega: np.ndarray, vz: np.ndarray,
                            rt: np.ndarray, ct: np.ndarray,
                            **peak_params: np.ndarray) -> np.ndarray:

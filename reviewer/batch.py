@@ -180,14 +180,11 @@ def compute(path: str | Path, opts: Options = Options()) -> ProjectResult:
         pr.error = str(exc)
         return pr
     if opts.monte_carlo:
-        from reviewer.tolerance import monte_carlo
+        from reviewer.tolerance import monte_carlo_all
 
-        pr.yields = {}
-        for r in run.results:
-            y = monte_carlo(r, opts.monte_carlo, seed=opts.seed, distribution=opts.distribution)
-            if y is not None:
-                y.values = None  # the samples are for plots; the outputs need the fractions
-                pr.yields[(r.stage, r.check)] = y
+        # every check advances chunk by chunk together, sharing draws and firing angles
+        pr.yields = monte_carlo_all(run.results, opts.monte_carlo, seed=opts.seed,
+                                    distribution=opts.distribution)
     pr.at_worst = {(r.stage, r.check): _at_worst(r) for r in run.results}
     pr.warnings = [str(w) for w in getattr(run.project, "warnings", ()) or ()]
     pr.states = check_states(record, run)  # all unsigned without a record (the matrix)

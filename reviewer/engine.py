@@ -28,6 +28,7 @@ from typing import Any
 import numpy as np
 
 import reviewer.stages  # noqa: F401  (registers the stage kinds and checks)
+from checks import memo
 from checks.core import FAIL, MARGINAL, STATUS_NAMES, Outcome
 from reviewer.checklist import Checklist, load_checklist, standard
 from reviewer.errors import LatchbookError, ProjectError
@@ -511,11 +512,13 @@ def evaluate(project: Project, checklist: Checklist | None = None, *,
         return res
 
     results = []
-    for stage in project.stages.values():
-        for cid, kinds in CATALOGUE:
-            if stage.kind not in kinds or (wanted is not None and (stage.id, cid) not in wanted):
-                continue
-            results.append(resolved(stage, cid, frozenset()))
+    with memo.shared():  # checks that solve the same firing angle from the same rows share it
+        for stage in project.stages.values():
+            for cid, kinds in CATALOGUE:
+                if stage.kind not in kinds or (wanted is not None
+                                               and (stage.id, cid) not in wanted):
+                    continue
+                results.append(resolved(stage, cid, frozenset()))
     return Run(project, checklist, results)
 
 

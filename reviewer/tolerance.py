@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from checks import memo
 from checks.core import FAIL, MARGINAL
 from reviewer.engine import Result
 from reviewer.registry import CHECKS, Input
@@ -80,35 +81,85 @@ def _draw(rng: np.random.Generator, inp: Input, n: int, distribution: str) -> np
     return z
 
 
+class _Sampler:
+    """The Monte Carlo state of one check: its input streams and its running counts."""
+
+    def __init__(self, result: Result, n: int, seed: int, distribution: str,
+                 keep_values: bool) -> None:
+        ev = result.evaluation
+        assert ev is not None
+        self.ev, self.n, self.distribution = ev, n, distribution
+        self.defn = CHECKS[result.check]
+        self.prod = [k for k, inp in ev.bound.inputs.items() if is_production(inp)]
+        self.gens = {k: np.random.default_rng([seed, zlib.crc32(ev.bound.inputs[k].path.encode())])
+                     for k in self.prod}
+        self.fixed = {k: ev.inputs[k][ev.worst_row] for k in ev.names if k not in self.prod}
+        self.fails = self.marg = self.done = 0
+        self.kept: list[np.ndarray] = []
+        self.first_value = next(iter(self.defn.units), None) if keep_values else None
+
+    def step(self, m: int, drawn: dict[tuple[object, ...], np.ndarray] | None = None) -> None:
+        """Draw and evaluate the next ``m`` samples. ``drawn`` holds this chunk's samples by
+        input path: every check reading a path draws the same stream (same seed), so the
+        samples one check drew serve the others."""
+        arrays = {k: np.full(m, x) for k, x in self.fixed.items()}
+        for k in self.prod:
+            inp = self.ev.bound.inputs[k]
+            key = (inp.path, inp.value.lo, inp.value.nom, inp.value.hi)
+            if drawn is None:
+                arrays[k] = _draw(self.gens[k], inp, m, self.distribution)
+            elif key in drawn:
+                arrays[k] = drawn[key].copy()
+            else:
+                drawn[key] = _draw(self.gens[k], inp, m, self.distribution)
+                arrays[k] = drawn[key].copy()
+        out = self.ev.call(self.defn, arrays)
+        self.fails += int(np.count_nonzero(out.status == FAIL))
+        self.marg += int(np.count_nonzero(out.status == MARGINAL))
+        if self.first_value in out.values:
+            self.kept.append(np.asarray(out.values[self.first_value], dtype=float).copy())
+        self.done += m
+
+    def result(self) -> Yield:
+        n, ev = self.n, self.ev
+        return Yield(n, self.fails / n, self.marg / n, wilson(self.fails, n),
+                     wilson(self.marg, n), [ev.bound.inputs[k].path for k in self.prod],
+                     np.concatenate(self.kept) if self.kept else None)
+
+
 def monte_carlo(result: Result, n: int, *, seed: int = 0, distribution: str = "normal",
                 chunk: int = CHUNK, keep_values: bool = False) -> Yield | None:
     """Draw ``n`` samples of the check's production spreads and count failing samples."""
-    ev = result.evaluation
-    if ev is None:
+    if result.evaluation is None:
         return None
-    defn = CHECKS[result.check]
-    prod = [k for k, inp in ev.bound.inputs.items() if is_production(inp)]
-    gens = {k: np.random.default_rng([seed, zlib.crc32(ev.bound.inputs[k].path.encode())])
-            for k in prod}
-    fixed = {k: ev.inputs[k][ev.worst_row] for k in ev.names if k not in prod}
-    fails = marg = 0
-    kept: list[np.ndarray] = []
-    first_value = next(iter(defn.units), None)
+    s = _Sampler(result, n, seed, distribution, keep_values)
+    while s.done < n:
+        s.step(min(chunk, n - s.done))
+    return s.result()
+
+
+def monte_carlo_all(results: list[Result], n: int, *, seed: int = 0,
+                    distribution: str = "normal", chunk: int = CHUNK,
+                    keep_values: bool = False) -> dict[tuple[str, str], Yield]:
+    """:func:`monte_carlo` for every result that has an evaluation, giving the same yields.
+
+    The checks advance chunk by chunk together, so a part value's samples are drawn once per
+    chunk for every check that reads it, a solution several checks need from the same samples
+    (the line-synchronised firing angle) is solved once per chunk (:mod:`checks.memo`), and
+    only one chunk's draws and solutions are held at a time.
+    """
+    samplers = {(r.stage, r.check): _Sampler(r, n, seed, distribution, keep_values)
+                for r in results if r.evaluation is not None}
     done = 0
-    while done < n:
-        m = min(chunk, n - done)
-        arrays = {k: np.full(m, x) for k, x in fixed.items()}
-        for k in prod:
-            arrays[k] = _draw(gens[k], ev.bound.inputs[k], m, distribution)
-        out = ev.call(defn, arrays)
-        fails += int(np.count_nonzero(out.status == FAIL))
-        marg += int(np.count_nonzero(out.status == MARGINAL))
-        if keep_values and first_value in out.values:
-            kept.append(np.asarray(out.values[first_value], dtype=float).copy())
-        done += m
-    return Yield(n, fails / n, marg / n, wilson(fails, n), wilson(marg, n),
-                 [ev.bound.inputs[k].path for k in prod],
-                 np.concatenate(kept) if kept else None)
+    with memo.shared():
+        while done < n:
+            m = min(chunk, n - done)
+            drawn: dict[tuple[object, ...], np.ndarray] = {}
+            for s in samplers.values():
+                s.step(m, drawn)
+            memo.clear()
+            done += m
+    return {k: s.result() for k, s in samplers.items()}
 
 
 @dataclass
