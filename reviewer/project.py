@@ -91,59 +91,57 @@ def _depth(doc: Any) -> int:
     return deepest
 
 
+_HEADER = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
+_KEYLINE = re.compile(r"^\s*([A-Za-z0-9_\-\"]+)\s*=")
+
+
 @lru_cache(maxsize=64)
-def _line_index(text: str) -> tuple[dict[str, int], dict[tuple[str, str], int]]:
-    """One pass over ``text``: the line of every table header and of every plain key in it."""
-    header = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
-    keyline = re.compile(r"^\s*([A-Za-z0-9_\-\"]+)\s*=")
+def _line_index(text: str) -> tuple[dict[str, int], dict[tuple[str, str], int],
+                                     dict[str, list[tuple[int, str]]]]:
+    """One pass over ``text``: the line of every table header, of every plain key in it, and
+    every key line under each header (for keys inside inline tables)."""
     heads: dict[str, int] = {}
     keys: dict[tuple[str, str], int] = {}
+    under: dict[str, list[tuple[int, str]]] = {}
     current = ""
     for n, line in enumerate(text.splitlines(), 1):
-        m = header.match(line)
+        m = _HEADER.match(line)
         if m:
             current = m.group(1).replace('"', "")
             heads.setdefault(current, n)
             continue
-        k = keyline.match(line)
+        k = _KEYLINE.match(line)
         if k:
             keys.setdefault((current, k.group(1).strip('"')), n)
-    return heads, keys
+            under.setdefault(current, []).append((n, line))
+    return heads, keys, under
 
 
 def line_of(text: str, table: str, key: str = "") -> int | None:
     """The line of ``key`` inside ``[table]`` (or of the table header) in ``text``."""
-    heads, keys = _line_index(text)
+    heads, keys, under = _line_index(text)
     if key and (table, key) in keys:
         return keys[(table, key)]
     if not key or "." not in table:
         return heads.get(table)
-    return _line_of_nested(text, table, key)
+    return _line_of_nested(under, heads, table, key)
 
 
-def _line_of_nested(text: str, table: str, key: str) -> int | None:
-    """A key in an inline table (``load = { r = … }``): scan for the line that holds it."""
-    header = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
-    current = ""
-    head_line = None
+def _line_of_nested(under: dict[str, list[tuple[int, str]]], heads: dict[str, int],
+                    table: str, key: str) -> int | None:
+    """A key in an inline table (``load = { r = … }`` under ``[stages.power]``, or
+    ``trigger = { … }`` under ``[stages]``): the first key line under one of the table's
+    ancestors that names both the key and the table's last part; else the table's header.
+    Only the lines under those ancestors are read, so a lookup does not rescan the file."""
     parts = table.split(".")
-    for n, line in enumerate(text.splitlines(), 1):
-        m = header.match(line)
-        if m:
-            current = m.group(1).replace('"', "")
-            if current == table:
-                head_line = n
-            continue
-        if not key:
-            continue
-        k = re.match(r"^\s*([A-Za-z0-9_\-\"]+)\s*=", line)
-        if k and current == table and k.group(1).strip('"') == key:
-            return n
-        # a dotted or inline form: [stages] trigger = { ... } or key inside an inline table
-        if k and current and table.startswith(current + ".") and key in line and \
-                parts[-1] in line:
-            return n
-    return head_line
+    last = parts[-1]
+    found: list[int] = []
+    for i in range(1, len(parts)):
+        for n, line in under.get(".".join(parts[:i]), ()):
+            if key in line and last in line:
+                found.append(n)
+                break
+    return min(found) if found else heads.get(table)
 
 
 def _did_you_mean(key: str, known: Any) -> str:
