@@ -196,8 +196,13 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("--version", action="version", version=TOOL)
     sub = parser.add_subparsers(dest="command")
 
-    p = sub.add_parser("check", help="compute every check of one or more projects")
-    p.add_argument("projects", nargs="+", metavar="PROJECT")
+    p = sub.add_parser("check", help="compute every check of one or more projects",
+                       description="Compute every check of each project, worst case over its "
+                       "tolerances, temperatures and supply range. Exit 0 when nothing fails, "
+                       "1 when a check fails without a current waiver, 2 on bad input. The "
+                       "table fits the terminal, or COLUMNS when set.")
+    p.add_argument("projects", nargs="+", metavar="PROJECT",
+                   help="project files, NAME.toml (variants resolve their variant_of)")
     p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.add_argument("--record", action="store_true",
                    help="store the results in NAME.review.toml beside each project")
@@ -216,7 +221,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("project", metavar="PROJECT",
                    help="NAME.toml; or NAME.review.toml to open its project read-only, where "
                    "an approver may still approve")
-    p.add_argument("--read-only", action="store_true", help="look, export, change nothing")
+    p.add_argument("--read-only", action="store_true",
+                   help="look only: no edits, no sign-offs, no approvals; nothing is written")
     p.add_argument("--no-mouse", action="store_true",
                    help="leave the terminal's own mouse selection alone")
     p.set_defaults(func=cmd_open)

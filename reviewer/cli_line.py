@@ -136,7 +136,8 @@ def register(sub: Any) -> None:
     p.set_defaults(func=cmd_report)
 
     p = sub.add_parser("diff", help="what changed between two projects or two review records")
-    p.add_argument("old", metavar="OLD")
-    p.add_argument("new", metavar="NEW")
+    p.add_argument("old", metavar="OLD",
+                   help="the earlier project (NAME.toml) or review record (NAME.review.toml)")
+    p.add_argument("new", metavar="NEW", help="the later one, of the same kind as OLD")
     p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.set_defaults(func=cmd_diff)

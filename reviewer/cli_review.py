@@ -71,10 +71,17 @@ def cmd_waive(args: argparse.Namespace) -> int:
 
 
 def cmd_revoke(args: argparse.Namespace) -> int:
-    """Revoke an earlier entry by its seq."""
-    from reviewer.review import revoke
+    """Revoke an earlier entry by its seq (an entry that does not exist is named first, before
+    anything is said about the note)."""
+    from reviewer.review import load_record, revoke
 
     try:
+        rec = load_record(_project(args.project))
+        if not any(e.seq == args.entry for e in rec.entries):
+            have = (f"the history has entries #1 to #{len(rec.entries)}" if rec.entries
+                    else "there is no review history yet")
+            raise ProjectError(f"there is no entry #{args.entry}: {have} (each [[entry]] in "
+                               f"{rec.path.name} has its number as seq)", _where(rec.path))
         e = revoke(_project(args.project), seq=args.entry, note=args.note, ssh_key=args.ssh_key)
     except LatchbookError as exc:
         return _err(exc)
@@ -204,43 +211,73 @@ def _print_status(rows: list[dict[str, Any]]) -> None:
             print(visible(f"  {name}: {s['check']} stale ({why})"))
 
 
+PROJECT_HELP = "the project file, NAME.toml (its record is NAME.review.toml beside it)"
+KEY_HELP = ("the SSH private key to sign the entry with, when the checklist asks for "
+            "SSH-signed entries (default ~/.ssh/id_ed25519)")
+
+
 def register(sub: Any) -> None:
     """Add the review-record subcommands to ``sub`` (an ``add_subparsers()`` object)."""
-    p = sub.add_parser("sign", help="sign a stage as reviewed or approved")
-    p.add_argument("project", metavar="PROJECT")
-    p.add_argument("--stage", required=True, metavar="ID", help="a stage id, or * for all")
+    p = sub.add_parser("sign", help="sign a stage as reviewed or approved",
+                       description="Record a sign-off of a stage's checks in NAME.review.toml, "
+                       "bound to a hash of exactly the inputs those checks read.")
+    p.add_argument("project", metavar="PROJECT", help=PROJECT_HELP)
+    p.add_argument("--stage", required=True, metavar="ID",
+                   help="the stage id as in [stages.ID], or * for every stage")
     p.add_argument("--check", action="append", metavar="ID",
-                   help="only this check of the stage (repeat for more)")
-    p.add_argument("--meaning", choices=("reviewed", "approved"), default="reviewed")
-    p.add_argument("--note", default="", metavar="TEXT")
-    p.add_argument("--ssh-key", metavar="PATH",
-                   help="key for SSH-signed entries (default ~/.ssh/id_ed25519)")
+                   help="sign only this check of the stage, e.g. gate.trigger (repeat for "
+                   "more; default: every check of the stage)")
+    p.add_argument("--meaning", choices=("reviewed", "approved"), default="reviewed",
+                   help="reviewed: you checked the results (default); approved: the lead's "
+                   "approval, which the checklist may restrict to named approvers")
+    p.add_argument("--note", default="", metavar="TEXT",
+                   help="what you looked at or why you sign (kept in the history)")
+    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
     p.set_defaults(func=cmd_sign)
 
-    p = sub.add_parser("waive", help="accept a failing or marginal check, with a reason")
-    p.add_argument("project", metavar="PROJECT")
-    p.add_argument("--stage", required=True, metavar="ID")
-    p.add_argument("--check", required=True, metavar="ID")
+    p = sub.add_parser("waive", help="accept a failing or marginal check, with a reason",
+                       description="Record that a failing or marginal result is accepted, and "
+                       "why. The check keeps its result word and reads 'waived' beside it.")
+    p.add_argument("project", metavar="PROJECT", help=PROJECT_HELP)
+    p.add_argument("--stage", required=True, metavar="ID",
+                   help="the stage id as in [stages.ID]")
+    p.add_argument("--check", required=True, metavar="ID",
+                   help="the check to waive, e.g. snubber.leakage (see `latchbook check`)")
     p.add_argument("--note", required=True, metavar="TEXT",
-                   help="why the result is acceptable (at least 20 characters)")
-    p.add_argument("--ssh-key", metavar="PATH")
+                   help="why the result is acceptable (at least 20 characters, three "
+                   "different words)")
+    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
     p.set_defaults(func=cmd_waive)
 
-    p = sub.add_parser("revoke", help="withdraw an earlier sign-off, approval or waiver")
-    p.add_argument("project", metavar="PROJECT")
-    p.add_argument("--entry", required=True, type=int, metavar="SEQ")
-    p.add_argument("--note", required=True, metavar="TEXT", help="why it no longer holds")
-    p.add_argument("--ssh-key", metavar="PATH")
+    p = sub.add_parser("revoke", help="withdraw an earlier sign-off, approval or waiver",
+                       description="Append a revocation of an earlier entry; the entry stays "
+                       "in the history, marked as revoked.")
+    p.add_argument("project", metavar="PROJECT", help=PROJECT_HELP)
+    p.add_argument("--entry", required=True, type=int, metavar="SEQ",
+                   help="the entry's number in the history: the seq of its [[entry]] in "
+                   "NAME.review.toml")
+    p.add_argument("--note", required=True, metavar="TEXT",
+                   help="why it no longer holds (at least 20 characters, three different "
+                   "words)")
+    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
     p.set_defaults(func=cmd_revoke)
 
-    p = sub.add_parser("verify", help="check the review history and the sign-offs' staleness")
-    p.add_argument("project", metavar="PROJECT")
-    p.add_argument("--json", action="store_true")
+    p = sub.add_parser("verify", help="check the review history and the sign-offs' staleness",
+                       description="Check the history's hash chain, its SSH signatures and "
+                       "approver rules, and which sign-offs the project's inputs have made "
+                       "stale. Exit 1 when something is wrong.")
+    p.add_argument("project", metavar="PROJECT", help=PROJECT_HELP)
+    p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.set_defaults(func=cmd_verify)
 
-    p = sub.add_parser("status", help="one row per project: pass, fail, waived, stale ...")
-    p.add_argument("paths", nargs="*", metavar="DIR|PROJECT")
-    p.add_argument("--json", action="store_true")
+    p = sub.add_parser("status", help="one row per project: pass, fail, waived, stale ...",
+                       description="Each project's counts of results and review states. "
+                       "Exit 1 when a check fails without a current waiver, a sign-off is "
+                       "stale or a history is broken; 2 when a project does not load.")
+    p.add_argument("paths", nargs="*", metavar="DIR|PROJECT",
+                   help="project files, or folders to look in for NAME.toml files "
+                   "(default: the current folder)")
+    p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.add_argument("--matrix", action="store_true",
                    help="projects × stages, searching folders recursively (a product line)")
     from reviewer.cli_run import add_output_args
