@@ -1,8 +1,9 @@
 """Monte Carlo throughput: samples per second for a demo's whole checklist, and its memory.
 
 Each N runs in a fresh interpreter so the peak resident memory is that run's own (the time
-is one pass over every check, after the corner evaluation; samples are drawn and checked in
-chunks of ``reviewer.tolerance.CHUNK`` rows, so memory does not grow with N).
+is the sampling of every check, after the corner evaluation; samples are drawn and checked in
+chunks of ``reviewer.tolerance.CHUNK`` rows, so memory does not grow with N). The whole
+``latchbook check --monte-carlo`` process is timed by ``python -m benchmarks.cli``.
 
     python -m benchmarks.monte_carlo [PROJECT ...]   (default: the kiln and flasher demos)
 """
@@ -24,15 +25,12 @@ def one(path: str, n: int) -> dict[str, float]:
     """Time Monte Carlo over every check of ``path`` at ``n`` samples, in this process."""
     from reviewer.engine import evaluate
     from reviewer.project import load_project
-    from reviewer.tolerance import monte_carlo
+    from reviewer.tolerance import monte_carlo_all
 
     run = evaluate(load_project(path))
     base = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     t0 = time.perf_counter()
-    checks = 0
-    for r in run.results:
-        if monte_carlo(r, n, seed=1) is not None:
-            checks += 1
+    checks = len(monte_carlo_all(run.results, n, seed=1))  # as `check --monte-carlo` does
     dt = time.perf_counter() - t0
     peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
     return {"n": n, "checks": checks, "seconds": dt, "rss_mib": peak / 1024,

@@ -28,7 +28,6 @@ import re
 import tomllib
 from dataclasses import dataclass, field
 from functools import lru_cache
-from importlib import resources
 from pathlib import Path
 from typing import Any
 
@@ -106,7 +105,9 @@ class Checklist:
 
 @lru_cache(maxsize=1)
 def _standard_doc() -> dict[str, Any]:
-    text = resources.files("reviewer").joinpath("data/standard.checklist.toml").read_text("utf-8")
+    # The package's own data file (installed beside this module; importlib.resources would
+    # cost every `latchbook check` a few milliseconds of imports for the same path).
+    text = (Path(__file__).parent / "data" / "standard.checklist.toml").read_text("utf-8")
     return tomllib.loads(text)
 
 

@@ -7,11 +7,9 @@ from __future__ import annotations
 
 import argparse
 import os
-import shutil
 import sys
 import time
 from collections.abc import Sequence
-from importlib import resources
 from pathlib import Path
 from typing import Any
 
@@ -125,6 +123,9 @@ def demo_copy(dest: Path) -> Path:
 
     Files already there are kept: a second run does not undo the user's edits.
     """
+    import shutil
+    from importlib import resources
+
     def copy(src: Any, target: Path) -> None:
         if os.path.islink(target):
             return  # never write through a link

@@ -19,13 +19,13 @@ def to_report(x: float, unit: str) -> float:
     return x * scale + offset
 
 
-#: Below a femto-unit (or a millionth of a unit that takes no prefix) a value reads "≈ 0":
-#: 2.59e-33 W is zero for anyone reading a summary, and a prefix cannot show it.
+#: Below a femto-unit a value reads "≈ 0": 2.59e-33 W is zero for anyone reading a summary,
+#: and no prefix can show it. From HUGE up, and for a unit that takes no prefix outside
+#: SMALL_PLAIN … HUGE_PLAIN, a value is written as a mantissa times a power of ten.
 TINY_PREFIXED = 1e-15
-TINY_PLAIN = 1e-6
-#: From here up a value is written as a mantissa times a power of ten.
 HUGE_PREFIXED = 1e15
-HUGE_PLAIN = 1e9
+SMALL_PLAIN = 1e-3
+HUGE_PLAIN = 1e6
 
 
 def eng(x: float | None, unit: str = "", digits: int = 3, *, si: bool = True,
@@ -65,12 +65,14 @@ def eng(x: float | None, unit: str = "", digits: int = 3, *, si: bool = True,
     if unit == "deg":
         return f"{_num(x, digits)}°"
     plain = unit in _NO_PREFIX
-    tiny, huge = (TINY_PLAIN, HUGE_PLAIN) if plain else (TINY_PREFIXED, HUGE_PREFIXED)
-    if x != 0 and math.isfinite(x) and abs(x) < tiny and rounding == "near":
+    finite = x != 0 and math.isfinite(x)
+    if finite and not plain and abs(x) < TINY_PREFIXED and rounding == "near":
         return f"≈ 0 {sym}".rstrip()
-    if math.isfinite(x) and abs(x) >= huge:
+    if finite and (abs(x) >= (HUGE_PLAIN if plain else HUGE_PREFIXED)
+                   or (plain and abs(x) < SMALL_PLAIN)):
         p = int(math.floor(math.log10(abs(x)) / 3) * 3)
-        return f"{_num(x / 10**p, digits, rounding)}×10{_sup(p)} {sym}".rstrip()
+        mant = x / 10.0**p if p > -300 else x * 1e300 / 10.0**(p + 300)
+        return f"{_num(mant, digits, rounding)}×10{_sup(p)} {sym}".rstrip()
     if plain or x == 0 or math.isinf(x):
         return f"{_num(x, digits, rounding)} {sym}".rstrip()
     exp = int(math.floor(math.log10(abs(x)) / 3) * 3)

@@ -8,7 +8,7 @@ import numpy as np
 
 from checks import gate
 from checks.core import cold_value
-from reviewer.fmt import eng, span
+from reviewer.fmt import at_least, at_most, eng, span
 from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
     Bound,
@@ -195,10 +195,11 @@ def _sum_trigger(r: Reduced) -> str:
         k = _k(r)
         rs_max = r.worst["series_r_max"]
         if rs_max > 0:
-            text += f"; {r.status}: for {k:g} × IGT needs series R ≤ {eng(rs_max, 'ohm')}"
+            text += f"; {r.status}: for {k:g} × IGT needs series R ≤ {at_most(rs_max, 'ohm')}"
         else:
             text += (f"; {r.status}: even with no series R the source is too weak: needs "
-                     f"E_G ≥ {eng(r.worst['e_g_needed'], 'V')} (now {eng(r.worst['e_g'], 'V')})")
+                     f"E_G ≥ {at_least(r.worst['e_g_needed'], 'V')} "
+                     f"(now {eng(r.worst['e_g'], 'V')})")
     text += "; " + _cold_text(r, ("igt", "vgt"))
     return text + _notes(r)
 
@@ -237,7 +238,7 @@ def _sum_peak_power(r: Reduced) -> str:
     text = (f"peak gate power ≤ {eng(r.hi['peak_power'], 'W')} (E_th²/4R_th, the most any gate "
             f"can draw) against PGM {eng(r.worst['pgm'], 'W')}")
     if r.status in ("fail", "marginal"):
-        text += f"; {r.status}: needs series R ≥ {eng(r.hi['series_r_min'], 'ohm')}"
+        text += f"; {r.status}: needs series R ≥ {at_least(r.hi['series_r_min'], 'ohm')}"
     return text + _notes(r)
 
 
@@ -279,8 +280,8 @@ def _sum_average_power(r: Reduced) -> str:
             f"{eng(r.worst['pulse_rate'], 'Hz')}) against PG(AV) "
             f"{eng(r.bound.inputs['pg_av'].value.lo, 'W')}")
     if r.status in ("fail", "marginal"):
-        text += (f"; {r.status}: needs pulse rate ≤ {eng(r.lo['rate_max'], 'Hz')} at this pulse "
-                 "energy, or a larger series R")
+        text += (f"; {r.status}: needs pulse rate ≤ {at_most(r.lo['rate_max'], 'Hz')} at "
+                 "this pulse energy, or a larger series R")
     return text + _notes(r, "line sync")
 
 
@@ -354,7 +355,7 @@ def _sum_latch_time(r: Reduced) -> str:
             f"{eng(r.worst['il_cold'], 'A')} (cold, low line)")
     if not math.isnan(r.nom["firing_angle"]):
         text += (f" over α {span(r.lo['firing_angle'], r.hi['firing_angle'], 'deg')}; "
-                 f"latch limit {eng(r.lo['latch_limit_angle'], 'deg', 4)}")
+                 f"latch limit {at_most(r.lo['latch_limit_angle'], 'deg')}")
     if r.status in ("fail", "marginal"):
         worst_req = r.worst["required_width"]
         fa, lim = r.worst["firing_angle"], r.worst["latch_limit_angle"]
@@ -365,11 +366,11 @@ def _sum_latch_time(r: Reduced) -> str:
                      "(load too light for this SCR)")
         elif math.isinf(worst_req):
             text += (f"; {r.status}: no pulse can latch at α = {eng(fa, 'deg', 4)}: end the "
-                     f"firing range before {eng(lim, 'deg', 4)}")
+                     f"firing range before {at_most(lim, 'deg')}")
         else:
             k = _k(r)
-            text += (f"; {r.status}: needs ≥ {eng(k * worst_req, 's')} above IGT: C_T ≥ "
-                     f"{eng(k * r.worst['c_needed'], 'F')}, or a pulse train")
+            text += (f"; {r.status}: needs ≥ {at_least(k * worst_req, 's')} above IGT: C_T ≥ "
+                     f"{at_least(k * r.worst['c_needed'], 'F')}, or a pulse train")
     return text + _notes(r, "firing angle from")
 
 
@@ -442,7 +443,7 @@ def _sum_noise(r: Reduced) -> str:
     text = (f"noise at the gate ≤ {eng(r.hi['noise_voltage'], 'V')} ({what}) against VGD "
             f"{eng(vgd, 'V')} at Tj,max")
     if r.status in ("fail", "marginal"):
-        text += f"; {r.status}: needs R_GK ≤ {eng(r.lo['r_gk_max'], 'ohm')}"
+        text += f"; {r.status}: needs R_GK ≤ {at_most(r.lo['r_gk_max'], 'ohm')}"
         if r.bound.options.get("coupling") == "direct":
             text += ", or a smaller base-1/cathode R, a series diode or transformer coupling"
     if r.bound.options.get("coupling") == "transformer":
@@ -570,12 +571,12 @@ def _sum_transformer(r: Reduced) -> str:
                     f"exponential pulse; E·t shortcut {eng(r.hi['vs_shortcut'], 'V*s')}) "
                     f"against {eng(rating, 'V*s')}")
         if not r.hi["vs_ratio"] >= _k(r):
-            bits.append(f"needs a core rated ≥ {eng(_k(r) * r.hi['volt_seconds'], 'V*s')}")
+            bits.append(f"needs a core rated ≥ {at_least(_k(r) * r.hi['volt_seconds'], 'V*s')}")
     if "isolation" in r.bound.inputs:
         iso, req = r.worst["isolation"], r.worst["required_isolation"]
         bits.append(f"isolation {eng(iso, 'V')} against {eng(req, 'V')} required")
         if iso < _k(r) * req:
-            bits.append(f"needs isolation ≥ {eng(_k(r) * req, 'V')}")
+            bits.append(f"needs isolation ≥ {at_least(_k(r) * req, 'V')}")
     text = "; ".join(bits)
     if r.status in ("fail", "marginal"):
         text = f"{r.status}: " + text

@@ -8,7 +8,7 @@ from typing import Any
 from checks import oscillator
 from checks.core import Outcome
 from reviewer.errors import ProjectError
-from reviewer.fmt import eng, pct, span
+from reviewer.fmt import at_least, at_most, eng, pct, span
 from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
     Bound,
@@ -179,14 +179,14 @@ def _sum_window(r: Reduced) -> str:
             f"(VP {span(r.lo['peak_voltage'], r.hi['peak_voltage'], 'V')})")
     if r.status == "fail":
         if r.worst["timing_r"] <= r.worst["r_min"]:
-            text += (f"; fails: R_T must exceed {eng(r.hi['r_min'], 'ohm')} (device stays on "
+            text += (f"; fails: R_T must exceed {at_least(r.hi['r_min'], 'ohm')} (device stays on "
                      "past the valley)")
         else:
             k = r.limits.get("fail_below", 1.2)
-            text += f"; fails: needs R_T ≤ {eng(r.lo['r_max'] / k, 'ohm')} (device never fires)"
+            text += f"; fails: needs R_T ≤ {at_most(r.lo['r_max'] / k, 'ohm')} (device never fires)"
     elif r.status == "marginal":
         k = r.limits.get("marginal_below", 2.0)
-        text += f"; marginal: R_T ≤ {eng(r.lo['r_max'] / k, 'ohm')} would pass"
+        text += f"; marginal: R_T ≤ {at_most(r.lo['r_max'] / k, 'ohm')} would pass"
     return text + "; IP and IV are 25 °C limits"
 
 
@@ -291,9 +291,9 @@ def _sum_timing(r: Reduced) -> str:
         if r.status != "pass":
             fixes = []
             if not fast >= t_hi:
-                fixes.append(f"R_T,min ≤ about {eng(rt.lo * fast / t_hi, 'ohm')}")
+                fixes.append(f"R_T,min ≤ about {at_most(rt.lo * fast / t_hi, 'ohm')}")
             if not slow <= t_lo:
-                fixes.append(f"R_T,max ≥ about {eng(rt.hi * slow / t_lo, 'ohm')}")
+                fixes.append(f"R_T,max ≥ about {at_least(rt.hi * slow / t_lo, 'ohm')}")
             text += "; fails: needs " + " and ".join(fixes or ["a wider R_T span"])
     else:
         text += f"; target {tgt}"
@@ -340,10 +340,10 @@ def _sum_line(r: Reduced, adjustable: bool, has_target: bool) -> str:
         if r.status != "pass":
             fixes = []
             if not early <= t_lo:
-                fixes.append(f"R_T,min ≤ about {eng(scale(rt.lo, early, t_lo), 'ohm')}"
+                fixes.append(f"R_T,min ≤ about {at_most(scale(rt.lo, early, t_lo), 'ohm')}"
                              if math.isfinite(early) else "a smaller R_T,min (no pulse now)")
             if not late >= t_hi:
-                fixes.append(f"R_T,max ≥ about {eng(scale(rt.hi, late, t_hi), 'ohm')}")
+                fixes.append(f"R_T,max ≥ about {at_least(scale(rt.hi, late, t_hi), 'ohm')}")
             text += "; fails: needs " + " and ".join(fixes or ["a wider R_T span"])
     else:
         text += f"; target {tgt}"
@@ -434,13 +434,13 @@ def _sum_idle(r: Reduced) -> str:
         div = r.worst["idle_voltage"] / r.worst["open_voltage"]
         want = goal / div
         r1 = want * (rbb + r2) / (v1 - want) if v1 > want else float("nan")
-        fix = (f"needs R1 ≤ {eng(r1, 'ohm')}, or a pulse transformer, a series capacitor or a "
+        fix = (f"needs R1 ≤ {at_most(r1, 'ohm')}, or a pulse transformer, a series capacitor or a "
                "series diode with a gate–cathode resistor")
     else:
-        fix = (f"needs R_K ≤ {eng(_at(r, 'cathode_r') * goal / r.worst['idle_voltage'], 'ohm')} "
-               "or a gate–cathode resistor")
+        rk = _at(r, "cathode_r") * goal / r.worst["idle_voltage"]
+        fix = f"needs R_K ≤ {at_most(rk, 'ohm')} or a gate–cathode resistor"
     verdict = "fails" if r.status == "fail" else "marginal"
-    return f"{text}; {verdict}: {fix} (idle ≤ {eng(goal, 'V')})"
+    return f"{text}; {verdict}: {fix} (idle ≤ {at_most(goal, 'V')})"
 
 
 register(CheckDef(
@@ -604,8 +604,8 @@ def _sum_dissipation(r: Reduced) -> str:
     if dev == "ujt" and pa > 0:
         rbb, r1, v1 = _at(r, "rbb"), _at(r, "r1"), _at(r, "v1")
         r2 = v1 * math.sqrt(rbb / pa) - rbb - r1
-        return f"{text}; fails: needs R2 ≥ {eng(r2, 'ohm')} or V1 ≤ " \
-               f"{eng(v1 * math.sqrt(pa / r.hi['dissipation']), 'V')}"
+        return f"{text}; fails: needs R2 ≥ {at_least(r2, 'ohm')} or V1 ≤ " \
+               f"{at_most(v1 * math.sqrt(pa / r.hi['dissipation']), 'V')}"
     if pa <= 0:
         return f"{text}; fails: the ambient is above the 125 °C derating end"
     return f"{text}; fails: needs f·C_T reduced by {r.hi['dissipation'] / pa:.2g}×"
@@ -656,8 +656,8 @@ def _sum_leakage(r: Reduced) -> str:
     k = r.limits.get("marginal_below", 2.0)
     i_need = k * (r.worst["ip"] + r.worst["leakage"])
     rt_need = (r.worst["charge_current"] * _at(r, "rt")) / i_need
-    text += (f"; {r.status}: needs R_T,max ≤ {eng(rt_need, 'ohm')} (a charging current ≥ "
-             f"{eng(i_need, 'A')}), with a larger C_T to keep the timing")
+    text += (f"; {r.status}: needs R_T,max ≤ {at_most(rt_need, 'ohm')} (a charging current ≥ "
+             f"{at_least(i_need, 'A')}), with a larger C_T to keep the timing")
     return text
 
 

@@ -12,7 +12,7 @@ from checks import oscillator, power
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
 from checks.rl import extinction_angle
-from reviewer.fmt import eng, pct, span
+from reviewer.fmt import at_least, at_most, eng, pct, span
 from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
     Bound,
@@ -306,7 +306,7 @@ def _sum_output(r: Reduced) -> str:
             if q == "power":
                 # P ∝ 1/R at a given α and line: the load R that would just reach it.
                 r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
-                short += f", or load R ≤ {eng(r_need, 'ohm')}"
+                short += f", or load R ≤ {at_most(r_need, 'ohm')}"
             fixes.append(short)
         if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
@@ -429,7 +429,7 @@ def _sum_blocking(r: Reduced) -> str:
                  f"reverse voltage to about {eng(r.bound.options['diode_clamp'], 'V')}")
     if r.status != "pass":
         k = r.limits.get("marginal_below", 2.0)
-        text += (f"; {r.status}: needs VDRM and VRRM ≥ {eng(k * r.hi['peak_voltage'], 'V')} "
+        text += (f"; {r.status}: needs VDRM and VRRM ≥ {at_least(k * r.hi['peak_voltage'], 'V')} "
                  f"for {k:g}×")
     return text
 
@@ -530,7 +530,7 @@ def _sum_rms(r: Reduced) -> str:
     text = (f"IT(RMS) {span(r.lo['it_rms'], r.hi['it_rms'], 'A')} per SCR against "
             f"{eng(rating, 'A')}")
     if r.status != "pass":
-        text += f"; fails: needs IT(RMS) rating ≥ {eng(r.hi['it_rms'], 'A')}"
+        text += f"; fails: needs IT(RMS) rating ≥ {at_least(r.hi['it_rms'], 'A')}"
     return text + _lost_text(r)
 
 
@@ -568,7 +568,7 @@ def _sum_avg(r: Reduced) -> str:
             f"{r.worst['form_factor']:.3g}")
     if r.status != "pass":
         need = rating * r.worst["it_av"] / r.worst["it_av_allowed"]
-        text += f"; fails: needs an IT(AV) rating of about {eng(need, 'A')}"
+        text += f"; fails: needs an IT(AV) rating of about {at_least(need, 'A')}"
     return text + _lost_text(r)
 
 
@@ -613,11 +613,11 @@ def _sum_junction(r: Reduced) -> str:
     if r.status != "pass":
         h = r.limits.get("headroom_marginal", 25.0)
         need = r.lo["rth_sa_required"]
-        fix = (f"needs Rth(s-a) ≤ {eng(need, 'K/W')}" if need > 0 else
+        fix = (f"needs Rth(s-a) ≤ {at_most(need, 'K/W')}" if need > 0 else
                "no heatsink is enough: less loss or a lower Rth(j-c) + Rth(c-s) is needed")
         text += f"; {r.status} ({h:g} K headroom wanted): {fix}"
     else:
-        text += f"; Rth(s-a) up to {eng(r.lo['rth_sa_required'], 'K/W')} would do"
+        text += f"; Rth(s-a) up to {at_most(r.lo['rth_sa_required'], 'K/W')} would do"
     return text + "; steady state only" + _lost_text(r)
 
 
@@ -666,7 +666,7 @@ def _sum_surge(r: Reduced) -> str:
     text = (f"cold-load inrush peak {eng(r.hi['inrush_peak'], 'A')} against ITSM "
             f"{eng(rating, 'A')} (at the line's half-cycle)")
     if r.status != "pass":
-        text += (f"; fails: needs ITSM ≥ {eng(r.hi['inrush_peak'], 'A')}, a soft start "
+        text += (f"; fails: needs ITSM ≥ {at_least(r.hi['inrush_peak'], 'A')}, a soft start "
                  "(α_min later), or an inrush limiter")
     if r.bound.inputs["r_cold"].path.endswith("cold_r"):
         text += "; a cold lamp's inrush lasts several cycles and ITSM covers one"
@@ -730,7 +730,7 @@ def _sum_fuse(r: Reduced) -> str:
             f"{eng(r.lo['device_i2t'], 'A^2*s')} at {eng(r.worst['t_base'], 's')} "
             f"({r.bound.options.get('base', '')})")
     if r.status != "pass":
-        text += (f"; fails: needs a fuse with clearing I²t < {eng(r.lo['device_i2t'], 'A^2*s')}"
+        text += (f"; fails: needs a fuse with clearing I²t < {at_most(r.lo['device_i2t'], 'A^2*s')}"
                  " or an SCR with more I²t")
     return text
 
@@ -808,17 +808,17 @@ def _sum_latching(r: Reduced) -> str:
             text += f"; the inductive load needs {eng(t, 's')} to reach IL (see gate.latch-time)"
         if r.status != "pass":
             r_need = r.bound.inputs["vs"].value.lo / il
-            text += f"; fails: needs load R ≤ {eng(r_need, 'ohm')}"
+            text += f"; fails: needs load R ≤ {at_most(r_need, 'ohm')}"
         return text + "; on-state drop not subtracted"
     amax = r.lo["max_firing_angle"]
     text = (f"anode current after firing reaches {eng(r.lo['reach_current'], 'A')} at the ends "
             f"of the firing range against IL {eng(il, 'A')} (cold, low line)")
     if amax == amax:
-        text += f"; latest firing that latches {_deg(amax)}"
+        text += f"; latest firing that latches {at_most(amax, 'deg')}"
     if r.status != "pass":
-        text += (f"; fails: needs α_max ≤ {_deg(amax)}" if amax == amax else
+        text += (f"; fails: needs α_max ≤ {at_most(amax, 'deg')}" if amax == amax else
                  f"; fails: even full output stays below IL: needs load R ≤ "
-                 f"{eng(r.bound.inputs['r'].value.lo * r.lo['reach_current'] / il, 'ohm')}")
+                 f"{at_most(r.bound.inputs['r'].value.lo * r.lo['reach_current'] / il, 'ohm')}")
     return text + "; the SCR as an ideal switch"
 
 
@@ -868,7 +868,7 @@ def _sum_holding(r: Reduced) -> str:
         if r.status != "pass":
             k = r.limits.get("marginal_below", 2.0)
             vs = r.bound.inputs["vs"].value.lo
-            text += f"; {r.status}: needs load R ≤ {eng(vs / (k * ih), 'ohm')} for {k:g}×IH"
+            text += f"; {r.status}: needs load R ≤ {at_most(vs / (k * ih), 'ohm')} for {k:g}×IH"
         return text + "; on-state drop not subtracted"
     text = (f"the anode current falls to IH {eng(ih, 'A')} (cold) at "
             f"{span(r.lo['dropout_angle'], r.hi['dropout_angle'], 'deg')}")
@@ -945,7 +945,7 @@ def _sum_didt(r: Reduced) -> str:
     if r.status != "pass":
         ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
         need = ls * r.hi["didt"] / rating
-        text += (f"; fails: needs the loop inductance ≥ {eng(need, 'H')} (add a series "
+        text += (f"; fails: needs the loop inductance ≥ {at_least(need, 'H')} (add a series "
                  "inductor, then re-run the snubber checks)")
     return text + "; the rating assumes a hard, fast gate drive"
 
@@ -991,8 +991,8 @@ def _sum_control(r: Reduced) -> str:
     phi = r.hi["load_angle"]
     text = f"load angle φ up to {_deg(phi)} against the earliest firing"
     if r.status != "pass":
-        text += (f"; fails: needs α_min ≥ {_deg(phi)}, or wide gate pulses / a pulse train "
-                 "(else one SCR can miss its pulse and DC flows in the load)")
+        text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or wide gate pulses / a "
+                 "pulse train (else one SCR can miss its pulse and DC flows in the load)")
     return text
 
 

@@ -17,7 +17,7 @@ import numpy as np
 
 from checks import snubber
 from checks.core import Outcome
-from reviewer.fmt import eng
+from reviewer.fmt import at_least, at_most, eng
 from reviewer.model import Stage, Value
 from reviewer.registry import (
     Bound,
@@ -213,9 +213,9 @@ def _sum_dvdt(r: Reduced) -> str:
         lv, rv, cv = (r.bound.inputs[n].value for n in ("l", "r", "c"))
         r_new = allowed * lv.lo / r.hi["step"] * _tol(rv, "hi")
         c_new = lv.hi / (r_new / _tol(rv, "lo")) ** 2 * _tol(cv, "lo")
-        text += (f"; {r.status}: needs ≤ {eng(allowed, 'V/s')}: R ≤ {eng(r_new, 'ohm')} with "
-                 f"C ≥ {eng(c_new, 'F')} (ζ ≥ 0.5 at every corner), or an SCR rated "
-                 f"≥ {eng(k * r.hi['dvdt_max'], 'V/s')}")
+        text += (f"; {r.status}: needs ≤ {at_most(allowed, 'V/s')}: "
+                 f"R ≤ {at_most(r_new, 'ohm')} with C ≥ {at_least(c_new, 'F')} (ζ ≥ 0.5 at "
+                 f"every corner), or an SCR rated ≥ {at_least(k * r.hi['dvdt_max'], 'V/s')}")
         if r.hi["dvdt_chord"] * k <= rating:
             text += " (the exponential chord is within it: confirm the rating's definition)"
     return text
@@ -259,7 +259,7 @@ def _sum_peak(r: Reduced) -> str:
     if r.status in ("fail", "marginal"):
         k = float(r.limits.get("fail_below" if r.status == "fail" else "marginal_below", 1.0))
         ratio = vdrm / (k * r.hi["step"])
-        need_v = f"VDRM ≥ {eng(k * r.hi['peak_voltage'], 'V')}"
+        need_v = f"VDRM ≥ {at_least(k * r.hi['peak_voltage'], 'V')}"
         if ratio <= 1.0:
             text += f"; {r.status}: no snubber keeps it below VDRM/{k:g}: needs {need_v}"
         else:
@@ -269,8 +269,9 @@ def _sum_peak(r: Reduced) -> str:
                 c_new = float(np.float64(4 * zeta**2 * lv.hi) / np.float64(rv.lo) ** 2
                               * _tol(cv, "lo"))
             r_new = 2 * zeta * math.sqrt(lv.hi / cv.lo) * _tol(rv, "lo")
-            text += (f"; {r.status}: needs ζ ≥ {zeta:.2f}: C ≥ {eng(c_new, 'F')} or "
-                     f"R ≥ {eng(r_new, 'ohm')}, or {need_v}")
+            zeta_up = math.ceil(zeta * 100) / 100
+            text += (f"; {r.status}: needs ζ ≥ {zeta_up:.2f}: C ≥ {at_least(c_new, 'F')} or "
+                     f"R ≥ {at_least(r_new, 'ohm')}, or {need_v}")
     return text
 
 
@@ -333,7 +334,7 @@ def _sum_discharge(r: Reduced) -> str:
     if r.status == "fail":
         room = itsm - w["load_current_at_fire"]
         need = vf / room * _tol(rv, "lo") if room > 0 else math.inf
-        text += f"; fails: needs R_sn ≥ {eng(need, 'ohm')}"
+        text += f"; fails: needs R_sn ≥ {at_least(need, 'ohm')}"
     elif r.status == "marginal":
         need = 0.0
         if not math.isnan(itsm):
@@ -433,8 +434,8 @@ def _sum_rpower(r: Reduced) -> str:
         k = float(r.limits.get("fail_below" if r.status == "fail" else "marginal_below", 1.0))
         cv = r.bound.inputs["c"].value
         c_new = cv.nom * rating / (k * p)
-        text += (f"; {r.status}: needs a resistor rated ≥ {eng(k * p, 'W')}, or C ≤ "
-                 f"{eng(c_new, 'F')}")
+        text += (f"; {r.status}: needs a resistor rated ≥ {at_least(k * p, 'W')}, or C ≤ "
+                 f"{at_most(c_new, 'F')}")
     return text + "; pulse-rated, non-inductive"
 
 
@@ -472,7 +473,7 @@ def _sum_cap(r: Reduced) -> str:
     text = (f"capacitor peak {eng(r.hi['capacitor_peak'], 'V')} against its "
             f"{eng(rating, 'V')} rating")
     if r.status == "fail":
-        text += f"; fails: needs c_voltage ≥ {eng(r.hi['capacitor_peak'], 'V')}"
+        text += f"; fails: needs c_voltage ≥ {at_least(r.hi['capacitor_peak'], 'V')}"
     return text + " (a peak or DC rating; across the mains use a safety-class film capacitor)"
 
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 from checks import turnoff
-from reviewer.fmt import eng, span
+from reviewer.fmt import at_least, at_most, eng, span
 from reviewer.model import Part, Stage
 from reviewer.registry import (
     Bound,
@@ -238,7 +238,7 @@ def _strip(fn: object) -> object:
 def _c_needed(r: Reduced, key: str) -> str:
     """The nominal C (same tolerance) that brings every corner to the limit: C_nom × max scale."""
     c = r.bound.inputs["c"].value
-    return eng(c.nom * r.hi[key], "F")
+    return at_least(c.nom * r.hi[key], "F")
 
 
 def _sum_time(r: Reduced) -> str:
@@ -266,8 +266,8 @@ def _sum_time(r: Reduced) -> str:
         else:
             text += f" ((2π − β)/ω, β up to {eng(r.hi['beta'], 'deg')})"
         if r.status != "pass":
-            text += (f"; needs an SCR with tq ≤ {eng(tc_lo / k_fail, 's')} "
-                     f"(≤ {eng(tc_lo / k_pass, 's')} to pass)")
+            text += (f"; needs an SCR with tq ≤ {at_most(tc_lo / k_fail, 's')} "
+                     f"(≤ {at_most(tc_lo / k_pass, 's')} to pass)")
         return text
     if net == "resonant":
         d = r.bound.options["diode"]
@@ -290,7 +290,7 @@ def _sum_capacitor(r: Reduced) -> str:
             f"rating; peak current {eng(r.hi['capacitor_current'], 'A')} (no current rating "
             "in the project: reported only)")
     if r.status == "fail":
-        text += f"; fails: needs c_voltage ≥ {eng(pk, 'V')}"
+        text += f"; fails: needs c_voltage ≥ {at_least(pk, 'V')}"
         if "c_scale_overcharge" in r.hi and math.isfinite(r.hi["c_scale_overcharge"]):
             text += (f", or C ≥ {_c_needed(r, 'c_scale_overcharge')} to hold the overcharge "
                      "within the rating")
@@ -306,7 +306,8 @@ def _sum_peak(r: Reduced) -> str:
     if r.status != "pass":
         lv = r.bound.inputs["l"].value
         text += (f"; fails: needs ≥ {k:g} × load current, C ≥ "
-                 f"{_c_needed(r, 'c_scale_fail')} or L ≤ {eng(lv.nom / r.hi['c_scale_fail'], 'H')}")
+                 f"{_c_needed(r, 'c_scale_fail')} or "
+                 f"L ≤ {at_most(lv.nom / r.hi['c_scale_fail'], 'H')}")
     return text
 
 

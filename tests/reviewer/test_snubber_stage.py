@@ -203,7 +203,8 @@ def test_discharge_bands(r_sn, itsm, status):
     assert res.status == status
     if status == "fail":
         need = number(res.summary, "R_sn ≥", "Ω")
-        assert need == pytest.approx(VM_HI / (150 - VM_HI / 50), rel=2e-3)
+        exact = VM_HI / (150 - VM_HI / 50)
+        assert need == pytest.approx(exact, rel=5e-3) and need >= exact  # rounded up
     if status == "marginal":
         assert "R_sn ≥" in res.summary
 
@@ -299,7 +300,7 @@ def test_capacitor_bands():
     assert res.status == "pass"
     assert res.values["capacitor_peak"].max == pytest.approx(476.4, abs=0.05)  # S9 [recomputed]
     res = run(project(snub=snub | {"c_voltage": val(400, "voltage", "V")}), "snubber.capacitor")
-    assert res.status == "fail" and "c_voltage ≥ 476 V" in res.summary
+    assert res.status == "fail" and "c_voltage ≥ 477 V" in res.summary  # 476.4 rounded up
     tight = standard()
     tight.limits["snubber.capacitor"] = {"fail_below": 1.0, "marginal_below": 1.5}
     res = run(project(snub=snub), "snubber.capacitor", tight)
