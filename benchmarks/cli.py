@@ -10,7 +10,11 @@ An installed program runs from compiled bytecode (``__pycache__``); so the child
 the caches. ``--no-bytecode`` keeps the caller's setting instead (every run then compiles every
 module from source, as in a sandbox that forbids writing the caches).
 
-    python -m benchmarks.cli [--repeat N] [--no-bytecode]
+``--against DIR`` also runs every command in DIR (another checkout, e.g. ``git archive main |
+tar -x -C DIR``: ``-m reviewer.cli`` then imports that checkout's code), alternating the two
+run by run so both see the same machine load, and prints the ratio of the medians.
+
+    python -m benchmarks.cli [--repeat N] [--no-bytecode] [--against DIR]
 """
 
 from __future__ import annotations
@@ -43,22 +47,33 @@ COMMANDS = [
 ]
 
 
-def run(cmd: list[str], repeat: int, bytecode: bool = True) -> tuple[float, float, float]:
-    """(fastest wall, median wall, median CPU) over ``repeat`` runs [s]."""
-    walls, cpus = [], []
+def _once(cmd: list[str], cwd: Path, env: dict[str, str]) -> tuple[float, float]:
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    t0 = time.perf_counter()
+    subprocess.run(cmd, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=env,
+                   check=False)
+    wall = time.perf_counter() - t0
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return wall, after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime
+
+
+def run(cmd: list[str], repeat: int, bytecode: bool = True,
+        roots: tuple[Path, ...] = (ROOT,)) -> list[tuple[float, float, float]]:
+    """Per root: (fastest wall, median wall, median CPU) over ``repeat`` runs [s]."""
     env = dict(os.environ, COLUMNS="100")
     if bytecode:
         env.pop("PYTHONDONTWRITEBYTECODE", None)
-        subprocess.run(cmd, cwd=ROOT, capture_output=True, env=env, check=False)
+        for root in roots:
+            subprocess.run(cmd, cwd=root, capture_output=True, env=env, check=False)
+    walls: list[list[float]] = [[] for _ in roots]
+    cpus: list[list[float]] = [[] for _ in roots]
     for _ in range(repeat):
-        before = resource.getrusage(resource.RUSAGE_CHILDREN)
-        t0 = time.perf_counter()
-        subprocess.run(cmd, cwd=ROOT, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
-                       env=env, check=False)
-        walls.append(time.perf_counter() - t0)
-        after = resource.getrusage(resource.RUSAGE_CHILDREN)
-        cpus.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
-    return min(walls), statistics.median(walls), statistics.median(cpus)
+        for i, root in enumerate(roots):
+            w, c = _once(cmd, root, env)
+            walls[i].append(w)
+            cpus[i].append(c)
+    return [(min(w), statistics.median(w), statistics.median(c))
+            for w, c in zip(walls, cpus, strict=True)]
 
 
 def main() -> None:
@@ -66,13 +81,23 @@ def main() -> None:
     ap.add_argument("--repeat", type=int, default=15)
     ap.add_argument("--no-bytecode", action="store_true",
                     help="keep PYTHONDONTWRITEBYTECODE as set (compile every run)")
+    ap.add_argument("--against", type=Path, metavar="DIR",
+                    help="another checkout to time the same commands in, alternately")
     args = ap.parse_args()
     if not args.no_bytecode:
         print("children run from compiled bytecode (caches written by a warm-up run)")
-    print(f"{'command':40} {'fastest':>9} {'median':>9} {'CPU':>9}   (wall, wall, user+sys)")
+    roots = (ROOT,) if args.against is None else (ROOT, args.against.resolve())
+    head = f"{'command':40} {'fastest':>9} {'median':>9} {'CPU':>9}"
+    if args.against:
+        head += f"   | against: {'fastest':>9} {'median':>9} {'CPU':>9}  ratio (median, CPU)"
+    print(head + "   (wall, wall, user+sys)")
     for label, cmd in COMMANDS:
-        fast, med, cpu = run(cmd, args.repeat, not args.no_bytecode)
-        print(f"{label:40} {fast * 1e3:7.0f} ms {med * 1e3:7.0f} ms {cpu * 1e3:7.0f} ms")
+        res = run(cmd, args.repeat, not args.no_bytecode, roots)
+        line = f"{label:40} " + " ".join(f"{x * 1e3:7.0f} ms" for x in res[0])
+        if args.against:
+            line += "   |          " + " ".join(f"{x * 1e3:7.0f} ms" for x in res[1])
+            line += f"  {res[1][1] / res[0][1]:5.2f}× {res[1][2] / res[0][2]:5.2f}×"
+        print(line)
 
 
 if __name__ == "__main__":
