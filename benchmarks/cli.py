@@ -7,8 +7,8 @@ bare interpreter and for ``import numpy`` (the floor any numpy program pays).
 
 An installed program runs from compiled bytecode (``__pycache__``); so the children run with
 ``PYTHONDONTWRITEBYTECODE`` removed from their environment after one warm-up run that writes
-the caches. ``--no-bytecode`` keeps the caller's setting instead (every run then compiles every
-module from source, as in a sandbox that forbids writing the caches).
+the caches. ``--no-bytecode`` keeps the caller's setting and skips the warm-up (where no cache
+was ever written, every run then compiles every module from source).
 
 ``--against DIR`` also runs every command in DIR (another checkout, e.g. ``git archive main |
 tar -x -C DIR``: ``-m reviewer.cli`` then imports that checkout's code), alternating the two
