@@ -146,11 +146,13 @@ def demo_copy(dest: Path) -> Path:
 def cmd_demo(args: argparse.Namespace) -> int:
     """No arguments: open the demo project, working on a copy in the current folder."""
     project = demo_copy(Path.cwd() / "latchbook-demo")
-    try:
-        from reviewer.tui.app import run_app
-    except ImportError:
-        run_app = None
-    if run_app is None or not sys.stdout.isatty():
+    run_app = None
+    if sys.stdout.isatty():  # the workbook (and its imports) only for a terminal
+        try:
+            from reviewer.tui.app import run_app
+        except ImportError:
+            run_app = None
+    if run_app is None:
         print_table(_load_run(str(project)))
         print(visible(f"\nThe demo project is at {project}.\nOpen it in the workbook with: "
                       f"latchbook open {project}\n{SAFETY_LINE}", lines=True))
