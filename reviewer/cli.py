@@ -53,8 +53,7 @@ def print_table(run: Any, out: Any = None,
         cols.append(Col("MC fail", right=True))
     rows, styles, prose = [], [], []
     for r in run.results:
-        cells = [visible(r.stage), visible(r.check), result_word(r.status),
-                 margin(r.margin, r.status)]
+        cells = [visible(r.stage), visible(r.check), result_word(r.status), margin(r.margin)]
         row_styles = ["", "", STYLES.get(r.status, ""), ""]
         if yields:
             y = yields.get((r.stage, r.check))

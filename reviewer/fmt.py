@@ -148,7 +148,7 @@ def pct(x: float) -> str:
     return text.replace("-", "−")
 
 
-def margin(m: float | None, status: str = "") -> str:
+def margin(m: float | None) -> str:
     """A margin (the checked metric over its fail limit, minus one) as a reader takes it in.
 
     −50 % … +900 % as a percentage, rounded toward the worse side; a metric of 10 to 100
@@ -159,7 +159,6 @@ def margin(m: float | None, status: str = "") -> str:
     >>> [margin(x) for x in (0.0417, 1.6, 11.128, 9026.89, -0.4996, -0.96, None)]
     ['+4.1 %', '+160 %', '12×', '> 100×', '−50 %', 'needs 25×', '']
     """
-    del status  # the form depends on the number only; kept for callers that pass it
     if m is None or math.isnan(m):
         return ""
     ratio = 1.0 + m

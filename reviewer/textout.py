@@ -74,7 +74,7 @@ def wrap(text: str, width: int) -> list[str]:
 
 @dataclass
 class Col:
-    """A column: its header, alignment, and the style of each cell (by row index)."""
+    """A column: its header and whether its cells align right."""
 
     header: str
     right: bool = False
@@ -90,7 +90,7 @@ def grid(cols: Sequence[Col], rows: Sequence[Sequence[str]], *,
 
     ``styles`` (same shape as ``rows``) names the style of each cell, "" for none.
     """
-    widths = [max([len(c.header)] + [len(r[i]) for r in rows]) for i, c in enumerate(cols)]
+    widths = widths_of(cols, rows)
     out = [GAP.join(_cell(c.header, w, c.right) for c, w in zip(cols, widths, strict=True))
            .rstrip(),
            GAP.join("─" * w for w in widths)]
