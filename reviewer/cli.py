@@ -65,7 +65,7 @@ def print_table(run: Any, out: Any = None,
     lines = wrap(title, width) + [""]
     lines += with_prose(cols, rows, prose, "summary", width, styles=styles, colour=colour)
     for w in getattr(p, "warnings", []):
-        lines += wrap(paint(f"warning: {visible(w)}", "yellow", colour), width)
+        lines += [paint(ln, "yellow", colour) for ln in wrap(f"warning: {visible(w)}", width)]
     from reviewer.engine import status_counts
 
     counts = status_counts(run.results)
