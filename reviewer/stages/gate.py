@@ -437,7 +437,7 @@ def _sum_noise(r: Reduced) -> str:
         what = f"common-mode current C_cc·dv/dt = {eng(i_cm, 'A')} through R_GK"
         if "r_gk" not in r.bound.inputs:
             return (f"fail: no gate–cathode resistor; coupled current {eng(i_cm, 'A')} flows "
-                    f"into the gate: fit R_GK ≤ {eng(r.lo['r_gk_max'], 'ohm')}")
+                    f"into the gate: fit R_GK ≤ {at_most(r.lo['r_gk_max'], 'ohm')}")
     else:
         what = "idle voltage of the DC-coupled oscillator"
     text = (f"noise at the gate ≤ {eng(r.hi['noise_voltage'], 'V')} ({what}) against VGD "

@@ -525,12 +525,12 @@ def _sum_discharge(r: Reduced) -> str:
         if dev == "ujt":
             ron = _at(r, "rb1_on") if "rb1_on" in ins else 0.0
             need = (vp - _at(r, "vd")) / i_rat - ron
-            fixes.append(f"R1 ≥ {eng(need, 'ohm')}")
+            fixes.append(f"R1 ≥ {at_least(need, 'ohm')}")
         else:
-            fixes.append(f"R_K ≥ {eng((vp - _at(r, 'vf')) / i_rat, 'ohm')}")
+            fixes.append(f"R_K ≥ {at_least((vp - _at(r, 'vf')) / i_rat, 'ohm')}")
     if "energy_rating" in ins and r.hi["pulse_energy"] > ins["energy_rating"].value.lo:
         vp = r.hi["peak_voltage"]
-        fixes.append(f"C_T ≤ {eng(2 * ins['energy_rating'].value.lo / vp ** 2, 'F')}")
+        fixes.append(f"C_T ≤ {at_most(2 * ins['energy_rating'].value.lo / vp ** 2, 'F')}")
     return f"{text}; fails: needs " + " and ".join(fixes or ["a lower peak point"])
 
 

@@ -346,7 +346,7 @@ def _sum_discharge(r: Reduced) -> str:
             f"the load current at firing and {pct} of ITSM"
         if math.isnan(itsm):
             what = "the load current at firing"
-        text += (f"; marginal: R_sn ≥ {eng(need * _tol(rv, 'lo'), 'ohm')} would keep it below "
+        text += (f"; marginal: R_sn ≥ {at_least(need * _tol(rv, 'lo'), 'ohm')} would keep it below "
                  f"{what}")
     return text
 
@@ -522,7 +522,7 @@ def _sum_leak(r: Reduced) -> str:
     if over:
         limit = r.lo["leakage_limit"]
         cv = r.bound.inputs["c"].value
-        text += (f"; above {' and '.join(over)}; C ≤ {eng(cv.nom * limit / i, 'F')} keeps it "
+        text += (f"; above {' and '.join(over)}; C ≤ {at_most(cv.nom * limit / i, 'F')} keeps it "
                  f"below {eng(limit, 'A')}")
     else:
         text += f"; below the {eng(r.lo['leakage_limit'], 'A')} limit"
