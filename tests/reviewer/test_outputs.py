@@ -89,9 +89,13 @@ def test_every_json_output_has_one_shape(line, capsys):
 
 def test_schema_words_are_the_shared_vocabulary():
     """The schema's result and review words are reviewer.states', not a copy that drifts."""
+    from reviewer.line import STATES
+
     s = document.schema()["$defs"]["check"]["properties"]
     assert tuple(s["result"]["enum"]) == RESULTS
     assert tuple(s["review"]["enum"]) == REVIEWS
+    stage = document.schema()["$defs"]["project"]["properties"]["stages"]["items"]
+    assert tuple(stage["properties"]["state"]["enum"]) == STATES
 
 
 def test_json_review_states_and_verdicts(line, capsys):
