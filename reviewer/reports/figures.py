@@ -164,10 +164,10 @@ def plot_svg(plot: Any) -> str:
     for x, label in plot.marks[:12]:
         if math.isfinite(x):
             ax.axvline(x / scale, color="0.6", linewidth=0.6)
-            # Inside the axes, just right of the line; kept by the tight bounding box below.
+            # Above the axes, off the curves; the tight bounding box below keeps it whole.
             ax.annotate(label, (x / scale, 1.0), xycoords=("data", "axes fraction"),
-                        xytext=(2, -3), textcoords="offset points", fontsize=7, color="0.3",
-                        rotation=90, va="top", ha="left", annotation_clip=False)
+                        xytext=(0, 2), textcoords="offset points", fontsize=7, color="0.3",
+                        rotation=90, va="bottom", ha="center", annotation_clip=False)
     ax.set_xlabel(axis_label("time", tunit) if is_time else axis_label("value", tunit))
     if units:
         ax.set_ylabel(axis_label(_y_quantity(plot, units[0]), units[0]))
