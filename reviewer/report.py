@@ -244,7 +244,7 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
                     row.figures, row.figure_note = cf.figures, cf.note
                     block.plots += [(f.caption, f.svg) for f in cf.figures]
         else:
-            block.no_plot = "no waveform"
+            block.no_plot = "drawn when the report is written to a file (-o FILE)"
         if schematics:
             from reviewer.reports.schematic import stage_svg
 

@@ -23,6 +23,7 @@ is a behavioural source (B element). Nothing here runs a simulator.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -33,11 +34,20 @@ from reviewer.model import Project, Stage, Value
 CORNERS = ("nominal", "worst")
 
 
+def ident(text: object) -> str:
+    """A designator or id as a SPICE element or node name: letters, digits and ``_`` only.
+
+    >>> ident("Q1"), ident("Q<b>&1"), ident("U 2")
+    ('Q1', 'Q_b__1', 'U_2')
+    """
+    return re.sub(r"\W", "_", str(text), flags=re.ASCII) or "X"
+
+
 def num(x: float) -> str:
     """A number as SPICE reads it everywhere: no unit suffix (``M`` would be milli).
 
     >>> num(4700.0), num(1e-7), num(0.5)
-    '4700', '1e-07', '0.5'
+    ('4700', '1e-07', '0.5')
     """
     return f"{x:.6g}"
 
@@ -55,6 +65,7 @@ class Netlist:
 
     def add(self, line: str, note: str = "") -> None:
         """An element line, with a trailing comment when ``note`` is given."""
+        note = " ".join(note.split())  # one line, whatever the user's ids hold
         self.lines.append(f"{line:<44} ; {note}" if note else line)
 
     def comment(self, text: str) -> None:
@@ -64,7 +75,7 @@ class Netlist:
     def text(self) -> str:
         """The whole netlist: title, elements, models, analysis, prints, ``.end``."""
         step, stop = self.tran
-        out = [f"* {self.title}", *self.lines, "*", *self.models,
+        out = [f"* {' '.join(self.title.split())}", *self.lines, "*", *self.models,
                f".tran {num(step)} {num(stop)} 0 {num(step)}" + (" uic" if self.uic else "")]
         out += [f".print tran {p}" for p in self.prints]
         return "\n".join(out + [".end", ""])
@@ -118,7 +129,7 @@ def _worst_corner(run: Any, stage: Stage) -> tuple[dict[str, float], str]:
 def scr(n: Netlist, ref: str, anode: str, cathode: str, project: Project, v: _Values, *,
         fire: float, width: float, period: float = 0.0, suffix: str = "") -> None:
     """A thyristor as a latching switch with hysteresis (see the module docstring)."""
-    name = f"{ref}{suffix}"
+    name = f"{ident(ref)}{suffix}"
     ih = v(f"parts.{ref}.ih", 1e-3) if f"parts.{ref}" in _part_paths(project) else 1e-3
     rm = 0.1 / ih  # the control falls to 0.1 V (the switch's off level) at I = IH
     n.comment(f"{name}: SCR as a switch with hysteresis, on above 0.9 V of control, off below "
@@ -184,8 +195,8 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
         n.add(f"R_B1 b1 0 {num(r1)}", "base1_r: the pulse is taken here")
         n.add(f"R_X2 vcc xi {num(max(r2, 1e-3) + (1 - eta) * rbb)}", "reference divider copy")
         n.add(f"R_X1 xi 0 {num(eta * rbb + r1)}", "reference divider copy")
-        n.add(f"E_{ref} ctl_{ref} 0 e xi 1", "emitter above the reference")
-        n.add(f"S_{ref} e eb1 ctl_{ref} 0 UJTSW")
+        n.add(f"E_{ident(ref)} ctl_{ident(ref)} 0 e xi 1", "emitter above the reference")
+        n.add(f"S_{ident(ref)} e eb1 ctl_{ident(ref)} 0 UJTSW")
         n.add(f"R_ON eb1 b1 {num(max(ron, 1e-3))}", "rb1_on")
         on, off = vd, vv - ref_v
         n.models.append(f".model UJTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
@@ -204,8 +215,8 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
                   "gate current is not modelled.")
         n.add(f"R_GA vcc g {num(ra)}", "gate_r_upper")
         n.add(f"R_GK g 0 {num(rk_)}", "gate_r_lower")
-        n.add(f"E_{ref} ctl_{ref} 0 e g 1", "anode above the gate")
-        n.add(f"S_{ref} e k ctl_{ref} 0 PUTSW")
+        n.add(f"E_{ident(ref)} ctl_{ident(ref)} 0 e g 1", "anode above the gate")
+        n.add(f"S_{ident(ref)} e k ctl_{ident(ref)} 0 PUTSW")
         n.add(f"R_K k 0 {num(rk)}", "cathode_r: the pulse is taken here")
         on, off = offset, vv - vg
         n.models.append(f".model PUTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "

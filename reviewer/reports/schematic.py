@@ -9,6 +9,7 @@ the emitter's arrow slanting into it); the PUT is drawn as the anode-gate thyris
 
 from __future__ import annotations
 
+import html
 import math
 import re
 from typing import Any
@@ -24,10 +25,16 @@ except ImportError:  # pragma: no cover - schemdraw is a declared dependency
     schemdraw = None  # type: ignore[assignment]
 
 
+def x(text: Any) -> str:
+    """User text for a schemdraw label, which its SVG backend parses as markup: escaped."""
+    return html.escape(str(text), quote=False)
+
+
 def val(v: Any) -> str:
-    """A component value for a drawing: ``100 nF ±10%``, ``5.6 kΩ – 155.6 kΩ``, or the text."""
+    """A component value for a drawing: ``100 nF ±10%``, ``5.6 kΩ – 155.6 kΩ``, or the text
+    (escaped for a label)."""
     if not isinstance(v, Value):
-        return "" if v is None else str(v)
+        return "" if v is None else x(v)
     if not v.varies:
         return show(v.nom, v.dim)
     if v.is_range or v.nom == 0:
@@ -63,7 +70,7 @@ def _param(stage: Stage, key: str) -> str:
 
 def _part(project: Project, ref: Any, what: str) -> str:
     part = project.parts.get(str(ref))
-    return f"{ref} {what}" if part is None else f"{ref} ({part.type.upper()})"
+    return f"{x(ref)} {what}" if part is None else f"{x(ref)} ({part.type.upper()})"
 
 
 def _source(d: Any, element: Any, text: str | list[str]) -> Any:
@@ -135,7 +142,7 @@ def _oscillator(d: Any, stage: Stage, project: Project) -> None:
 
 
 def _gate(d: Any, stage: Stage, project: Project) -> None:
-    d += elm.Dot(open=True).label(f"pulse from {stage.get('source')}", loc="left")
+    d += elm.Dot(open=True).label(f"pulse from {x(stage.get('source'))}", loc="left")
     if stage.get("coupling") == "transformer":
         d += elm.Line().right(0.8)
         t = elm.Transformer(t1=4, t2=4).anchor("p1").label(
@@ -191,7 +198,7 @@ def _power(d: Any, stage: Stage, project: Project) -> None:
     topology = stage.get("topology", "")
     ref = stage.get("scr")
     name = _part(project, ref, "SCR")
-    gate = f"gate from {stage.get('gate')}" if stage.get("gate") else "gate"
+    gate = f"gate from {x(stage.get('gate'))}" if stage.get("gate") else "gate"
     if topology == "ac-switch":
         q1 = elm.SCR().down()
         d += q1
@@ -300,7 +307,8 @@ def stage_svg(stage: Stage, project: Project) -> tuple[str, str]:
             d.config(fontsize=11, unit=2.2, margin=0.6)
             fn(d, stage, project)
         svg = d.get_imagedata("svg").decode("utf-8")
-    except (ValueError, KeyError, TypeError, AttributeError) as exc:
+    except (ValueError, KeyError, TypeError, AttributeError, SyntaxError) as exc:
+        # SyntaxError: xml.etree's ParseError, should a label still not parse as markup.
         return "", f"no schematic: it could not be drawn ({exc})"
     svg = svg[svg.index("<svg"):]
     svg = re.sub(r'\s+xmlns(?::\w+)?="[^"]*"', "", svg, count=3)

@@ -212,3 +212,16 @@ def test_printed_report_pages(tmp_path):
     assert len(starts) >= 2, "the inputs table's header is not repeated on a following page"
     last = re.sub(r"[0-9a-f]{64}", "", pages[-1])
     assert len(re.sub(r"\s+", " ", last)) > 300
+
+
+def test_schematic_escapes_user_text(tmp_path):
+    """A designator with markup characters is drawn as text, never as markup, and the
+    schematic is still drawn."""
+    src = (ROOT / "kiln-230.toml").read_text("utf-8").replace(
+        "[parts.Q1]", '[parts."Q<b>&1"]').replace('scr = "Q1"', 'scr = "Q<b>&1"')
+    p = tmp_path / "odd.toml"
+    p.write_text(src, encoding="utf-8")
+    doc = render(p, "html")
+    assert "<b>&1" not in doc
+    power = _sections(doc)["power"].split("</figure>")[0]
+    assert '<figure class="schematic"><svg' in power and "Q&lt;b&gt;&amp;1 (SCR)" in power

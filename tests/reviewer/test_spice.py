@@ -207,3 +207,16 @@ def test_cli_export(tmp_path, capsys):
     assert main(["export", "--spice", "nope", str(ROOT / "kiln-230.toml")]) == 2
     err = capsys.readouterr().err
     assert "no stage `nope`" in err and "snubber" in err and "Traceback" not in err
+
+
+@needs_ngspice
+def test_odd_designators_still_give_a_netlist(tmp_path):
+    """A designator with markup, spaces or a line break becomes a plain SPICE name; comments
+    stay on one line; ngspice runs the result."""
+    text = (ROOT / "kiln-230.toml").read_text("utf-8").replace(
+        "[parts.Q1]", '[parts."Q<b> &\\n1"]').replace('scr = "Q1"', 'scr = "Q<b> &\\n1"')
+    run = run_project(_write(tmp_path, "odd.toml", text))
+    net = netlist(run, "power")
+    assert "S_Q_b____1A" in net and "\nQ" not in net and "\n1" not in net
+    d = simulate(net, "i(V_ILOAD)", tmp_path)
+    assert np.isfinite(d).all() and np.max(np.abs(d[:, 1])) > 1.0
