@@ -229,18 +229,22 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
 
 # ------------------------------------------------------------------------- power stages
 
-def _firing(stage: Stage, project: Project, run: Any) -> tuple[float, str]:
-    """The firing angle to simulate: α_min (full output) from the stage or its oscillator."""
-    from reviewer import waveforms
+def _firing(stage: Stage, project: Project, run: Any, corner: str,
+            check: str = "") -> tuple[float, str]:
+    """The firing angle to simulate: α_min (full output) from the stage or its oscillator, at
+    the row of ``check`` (the check that sets the worst corner) or of power.output."""
+    from reviewer.waveforms import firing_range
 
-    res = next((r for r in run.results if r.stage == stage.id and r.check == "power.output"),
-               None) or next((r for r in run.results if r.stage == stage.id), None)
+    mine = [r for r in run.results if r.stage == stage.id]
+    res = (next((r for r in mine if r.check == check), None)
+           or next((r for r in mine if r.check == "power.output"), None)
+           or (mine[0] if mine else None))
     if res is None:
         raise ProjectError(f"stage `{stage.id}` has no results to take a firing angle from")
-    point = waveforms._Point(res, project, "nominal")
-    kw = waveforms._load_point(stage, point, project)
-    a_lo, _, where = waveforms._firing_ends(stage, point, project, math.sqrt(2) * kw["vs"],
-                                            kw["omega"])
+    try:
+        a_lo, _, where = firing_range(res, project, corner)
+    except ValueError as exc:
+        raise ProjectError(str(exc)) from None
     return a_lo, where
 
 
@@ -261,10 +265,11 @@ def _load(n: Netlist, stage: Stage, v: _Values, top: str, bottom: str) -> None:
         n.add(f"V_ILOAD {node} {bottom} DC 0", "senses the load current")
 
 
-def _phase_control(n: Netlist, stage: Stage, project: Project, v: _Values, run: Any) -> None:
+def _phase_control(n: Netlist, stage: Stage, project: Project, v: _Values, run: Any,
+                   corner: str, check: str = "") -> None:
     vs, f = v("supply.voltage"), v("supply.frequency")
     vm, period = math.sqrt(2) * vs, 1.0 / f
-    alpha, where = _firing(stage, project, run)
+    alpha, where = _firing(stage, project, run, corner, check)
     t_fire = alpha / (2 * math.pi * f)
     width = min(0.5e-3, 0.25 * period)
     ref = str(stage.get("scr"))
@@ -479,14 +484,14 @@ def netlist(run: Any, stage_id: str, corner: str = "nominal") -> str:
     if kind in ("ujt-oscillator", "put-oscillator"):
         _oscillator(n, stage, project, v)
     elif kind == "phase-control":
-        _phase_control(n, stage, project, v, run)
+        _phase_control(n, stage, project, v, run, corner, check)
     elif kind == "line-commutation":
         target = project.stages.get(str(stage.get("for", "")))
         if target is None or target.kind != "phase-control":
             raise ProjectError(f"stage `{stage.id}` names no phase-control stage in `for`")
         n.comment(f"Natural turn-off: the circuit of {target.id}; the line reverse-biases the "
                   "SCR after its current falls to zero.")
-        _phase_control(n, target, project, v, run)
+        _phase_control(n, target, project, v, run, corner)
     elif kind == "dc-switch":
         _dc_switch(n, stage, project, v)
     elif kind == "rc-snubber":

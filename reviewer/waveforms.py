@@ -308,6 +308,19 @@ def _load_point(stage: Stage, p: _Point, project: Project) -> dict[str, Any]:
             "omega": 2 * math.pi * f}
 
 
+def firing_range(result: Result, project: Project, corner: str = "nominal"
+                 ) -> tuple[float, float, str]:
+    """(α_min, α_max [rad], where they came from) of the phase-control stage of ``result`` at
+    the result's nominal row or worst corner; ValueError naming what is missing."""
+    stage = project.stages[result.stage]
+    point = _Point(result, project, corner)
+    try:
+        kw = _load_point(stage, point, project)
+        return _firing_ends(stage, point, project, math.sqrt(2) * kw["vs"], kw["omega"])
+    except _Missing as exc:
+        raise ValueError(f"no firing angle for `{stage.id}` (needs {exc})") from None
+
+
 def _cycle_plots(kw: dict[str, Any], angles: list[tuple[str, float]],
                  extra_marks: list[tuple[float, str]], notes: list[str]) -> list[Plot]:
     """Load voltage and current over one cycle, one curve per firing angle."""

@@ -133,3 +133,13 @@ def write_line_index(rows: Any, reports: Mapping[str, str | Path], path: str | P
     out = Path(path)
     kw.setdefault("generated", utc_now().strftime("%Y-%m-%d %H:%M:%S UTC"))
     return atomic_write(out, line_index_html(rows, reports, out.parent, **kw))
+
+
+def write_index_for(reports: Mapping[str | Path, str | Path], path: str | Path, **kw: Any
+                    ) -> Path:
+    """The index page for reports already written (project path → report file): computes the
+    status matrix of those projects and writes the page at ``path``."""
+    from reviewer.line import status_matrix
+
+    m = status_matrix(list(reports))
+    return write_line_index(m, {str(k): v for k, v in reports.items()}, path, **kw)
