@@ -135,6 +135,23 @@ def _y_quantity(plot: Any, unit: str) -> str:
     return _QUANTITY.get(unit, "value")
 
 
+def merge_marks(marks: list[tuple[float, str]], span: float) -> list[tuple[float, str]]:
+    """Marks closer than 1.5 % of the x span share one line and one label, so that their
+    labels do not print over each other.
+
+    >>> merge_marks([(0.0, "a"), (10.0, "b"), (10.1, "c"), (10.1, "c")], 100.0)
+    [(0.0, 'a'), (10.0, 'b, c')]
+    """
+    out: list[tuple[float, list[str]]] = []
+    for x, label in sorted((m for m in marks if math.isfinite(m[0])), key=lambda m: m[0]):
+        if out and abs(x - out[-1][0]) < 0.015 * span:
+            if label not in out[-1][1]:
+                out[-1][1].append(label)
+        else:
+            out.append((x, [label]))
+    return [(x, ", ".join(labels)) for x, labels in out]
+
+
 def plot_svg(plot: Any) -> str:
     """One chart as an inline ``<svg>`` element (no XML prolog, no metadata, no links)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -161,7 +178,7 @@ def plot_svg(plot: Any) -> str:
             ax.plot(t[::step] / scale, y[::step], label=s.name,
                     linestyle=":" if s.dotted else "-", linewidth=0.9 if s.dotted else 1.5)
         units.append(s.unit)
-    for x, label in plot.marks[:12]:
+    for x, label in merge_marks(plot.marks[:12], float(np.nanmax(t) - np.nanmin(t))):
         if math.isfinite(x):
             ax.axvline(x / scale, color="0.6", linewidth=0.6)
             # Above the axes, off the curves; the tight bounding box below keeps it whole.

@@ -225,3 +225,21 @@ def test_schematic_escapes_user_text(tmp_path):
     assert "<b>&1" not in doc
     power = _sections(doc)["power"].split("</figure>")[0]
     assert '<figure class="schematic"><svg' in power and "Q&lt;b&gt;&amp;1 (SCR)" in power
+
+
+def test_index_for_written_reports(tmp_path):
+    """write_index_for computes the matrix of the projects whose reports were written and
+    links each from the page; a broken project is a row that says so."""
+    from reviewer.reports.index import write_index_for
+
+    bad = tmp_path / "broken.toml"
+    bad.write_text('[project]\nname = "x"\n', encoding="utf-8")
+    reports = {}
+    for src in (LINE / "kiln-base.toml", LINE / "kiln-120-2k.toml"):
+        dest = tmp_path / f"{src.stem}.html"
+        write_report(src, "html", dest)
+        reports[src] = dest
+    reports[bad] = tmp_path / "broken.html"
+    doc = write_index_for(reports, tmp_path / "index.html").read_text("utf-8")
+    assert 'href="kiln-base.html"' in doc and 'href="kiln-120-2k.html#stage-power">fail</a>' in doc
+    assert '<td class="st fail">error</td>' in doc
