@@ -219,9 +219,11 @@ def _power(d: Any, stage: Stage, project: Project) -> None:
         d.move_from(q.end, 0, 0)
     start = d.here
     _load(d, stage)
-    if stage.get("freewheel"):
-        d += elm.Diode().at(start).right(0.01)
     bottom = d.here
+    if stage.get("freewheel"):
+        d += elm.Line().at(start).right(2.2)
+        d += elm.Diode().down().reverse().toy(bottom).label("freewheeling diode", loc="bottom")
+        d += elm.Line().to(bottom)
     d += elm.Line().to((src.start[0], bottom[1]))
     d += elm.Line().to(src.start)
     d += elm.Ground().at(src.start)
@@ -260,7 +262,8 @@ def _commutation(d: Any, stage: Stage, project: Project) -> None:
         _load(d, target, "right")
     d += elm.Line().right(1)
     a = d.here
-    d += elm.Line().right(2.6)
+    with_diode = stage.kind == "resonant-commutation" and stage.get("diode") is not False
+    d += elm.Line().right(6.0 if with_diode else 2.6)
     d += elm.Switch().down().label("auxiliary switch", loc="bottom")
     if stage.kind == "resonant-commutation":
         d += elm.Inductor().down().label(_param(stage, "l"), loc="bottom")
@@ -275,10 +278,11 @@ def _commutation(d: Any, stage: Stage, project: Project) -> None:
     d += elm.Line().at(src.start).toy(bottom)
     d += elm.Line().tox(bottom)
     d += elm.Ground().at(src.start)
-    if stage.kind == "resonant-commutation" and stage.get("diode") is not False:
-        d += elm.Line().at(a).left(1.4)
+    if with_diode:
+        d += elm.Line().at(a).right(1.3)
         d += elm.Diode().down().reverse().label(
-            "diode" if stage.get("diode") else "diode (both forms computed)", loc="top")
+            "diode" if stage.get("diode") else ["diode", "(both forms computed)"],
+            loc="bottom")
         d += elm.Line().toy(bottom)
 
 
