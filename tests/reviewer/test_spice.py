@@ -220,3 +220,22 @@ def test_odd_designators_still_give_a_netlist(tmp_path):
     assert "S_Q_b____1A" in net and "\nQ" not in net and "\n1" not in net
     d = simulate(net, "i(V_ILOAD)", tmp_path)
     assert np.isfinite(d).all() and np.max(np.abs(d[:, 1])) > 1.0
+
+
+@needs_ngspice
+def test_capacitor_commutation_turnoff_time(tmp_path):
+    """The flasher's turn-off network on a resistive load (12 Ω, 10 µF charged to the 24 V bus):
+    the SCR is reverse-biased for R·C·ln 2 after the capacitor is switched in
+    (resistive_turnoff_time), within 0.5 %."""
+    from checks.turnoff import resistive_turnoff_time
+
+    text = (ROOT / "flasher-dc.toml").read_text("utf-8").replace(
+        'load = { r = "12 ohm", l = "50 uH" }', 'load = { r = "12 ohm" }')
+    run = run_project(_write(tmp_path, "res.toml", text))
+    d = simulate(netlist(run, "turnoff"), "v(a)", tmp_path)
+    t, va = d[:, 0], d[:, 1]
+    neg = np.flatnonzero(va < 0.0)
+    start = _first_cross(t, va, 0.0, rising=False)
+    end = _first_cross(t[neg[0]:], va[neg[0]:], 0.0)
+    want = float(resistive_turnoff_time(r=12.0, c=10e-6, v_s=24.0, v_c0=24.0))
+    assert end - start == pytest.approx(want, rel=TOL)
