@@ -202,6 +202,7 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
         n.models.append(f".model UJTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
                         "RON=0.001 ROFF=1e12)")
         n.prints.append("v(e) v(b1)")
+        r_dis = max(ron, 1e-3) + r1
     else:
         ref = str(stage.get("put"))
         pp = f"parts.{ref}."
@@ -222,9 +223,21 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
         n.models.append(f".model PUTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
                         "RON=0.001 ROFF=1e12)")
         n.prints.append("v(e) v(k)")
+        r_dis = rk
     tau = rt * ct
-    stop = half if half else 4 * tau
-    n.tran = (min(tau, stop) / 4000, stop)
+    if half:
+        stop = half
+    else:
+        # Two full periods after the first pulse (checks.oscillator's closed forms say when).
+        from checks.oscillator import charge_time, discharge_time
+
+        vp = (ref_v + vd) if stage.kind == "ujt-oscillator" else vg + offset
+        first = float(charge_time(r=rt, c=ct, v1=v1, v0=0.0, vp=vp))
+        period = float(charge_time(r=rt, c=ct, v1=v1, v0=vv, vp=vp)
+                       + discharge_time(r_discharge=r_dis, c=ct, vp=vp, vv=vv))
+        stop = first + 2.2 * period if math.isfinite(first + period) else 4 * tau
+    # Steps fine enough that the switch opens close to VV at the end of the discharge.
+    n.tran = (min(stop / 4000, r_dis * ct / 4), stop)
 
 
 # ------------------------------------------------------------------------- power stages
