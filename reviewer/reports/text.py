@@ -85,7 +85,7 @@ RATIOS: dict[str, tuple[str, str]] = {
     "power.control": ("α_min", "the load angle φ"),
     "snubber.dvdt": ("the dv/dt rating", "the dv/dt"),
     "snubber.peak-voltage": ("VDRM", "the peak voltage"),
-    "snubber.discharge": ("the di/dt and surge limits", "the discharge stress"),
+    "snubber.discharge": ("the di/dt or surge limit", "the discharge stress"),
     "snubber.resistor-power": ("the resistor's rating", "its dissipation"),
     "snubber.capacitor": ("the capacitor's rating", "its peak voltage"),
     "turnoff.time": ("the turn-off interval t_c", "tq"),
