@@ -243,3 +243,16 @@ def test_index_for_written_reports(tmp_path):
     doc = write_index_for(reports, tmp_path / "index.html").read_text("utf-8")
     assert 'href="kiln-base.html"' in doc and 'href="kiln-120-2k.html#stage-power">fail</a>' in doc
     assert '<td class="st fail">error</td>' in doc
+
+
+@pytest.mark.parametrize("module", ["reviewer.reports.text", "reviewer.reports.figures",
+                                    "reviewer.reports.html", "reviewer.spice"])
+def test_module_examples(module):
+    """The examples in these modules' docstrings hold (the suite collects tests/ and checks/
+    only, so they are run here)."""
+    import doctest
+    import importlib
+
+    res = doctest.testmod(importlib.import_module(module),
+                          optionflags=doctest.NORMALIZE_WHITESPACE)
+    assert res.attempted > 0 and res.failed == 0
