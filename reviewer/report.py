@@ -67,13 +67,7 @@ class StageBlock:
     no_plot: str = ""
     schematic: str = ""
     schematic_note: str = ""
-
-    @property
-    def schematic_name(self) -> str:
-        """The schematic's file name (without ``.svg``) beside a Markdown report."""
-        from reviewer.reports.figures import _slug
-
-        return f"{_slug(self.id)}-schematic"
+    schematic_name: str = ""  # the file name (without .svg) beside a Markdown report
 
 
 @dataclass
@@ -190,6 +184,28 @@ def _worst(worst: dict[str, str]) -> dict[str, str]:
     return {k: pretty_units(v) for k, v in worst.items() if v not in ("—", "", "nan")}
 
 
+def _name_files(stages: list[StageBlock]) -> None:
+    """File names for the figures beside a Markdown report, unique within the report (two ids
+    may read the same once made file-safe)."""
+    from reviewer.reports.figures import slug
+
+    seen: set[str] = set()
+
+    def unique(name: str) -> str:
+        out, k = name, 1
+        while out in seen:
+            k += 1
+            out = f"{name}-{k}"
+        seen.add(out)
+        return out
+
+    for s in stages:
+        s.schematic_name = unique(f"{slug(s.id)}-schematic")
+        for r in s.checks:
+            for f in r.figures:
+                f.name = unique(f.name)
+
+
 def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> ReportData:
     """Compute the project once and collect everything the report shows."""
     from reviewer.diff import chain_text, input_rows
@@ -251,6 +267,7 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
             block.schematic, block.schematic_note = stage_svg(st, project)
         stages.append(block)
         summary.append((sid, st.kind, cell.state, cell.detail))
+    _name_files(stages)
     return ReportData(
         name=project.name, revision=project.revision, file=str(path), line=project.line,
         chain=chain_text(project), checklist=checklist.identity(),

@@ -57,7 +57,7 @@ def _fingerprint(plots: list[Any]) -> str:
     return h.hexdigest()
 
 
-def _slug(text: str) -> str:
+def slug(text: str) -> str:
     return re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")
 
 
@@ -78,7 +78,7 @@ def _draw(r: Any, project: Any) -> tuple[list[Figure], str, str]:
         except (ValueError, FloatingPointError) as exc:
             return [], "", f"no waveform: the plot could not be drawn ({exc})"
         out.append(Figure(f"{plot.title} ({cap}{'; ' + notes if notes else ''})", svg,
-                          f"{_slug(r.stage)}-{_slug(r.check)}-{k + 1}"))
+                          f"{slug(r.stage)}-{slug(r.check)}-{k + 1}"))
     return out, _fingerprint(pic.plots), ""
 
 
