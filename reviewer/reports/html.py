@@ -32,7 +32,7 @@ thead { display: table-header-group; } tr { break-inside: avoid; }
 .caution { border-left: 4px solid #b00000; padding-left: .6em; margin: .3em 0; }
 .meta td:first-child { width: 12em; font-weight: bold; }
 figure { margin: .6em 0; } .plot svg { width: 100%; height: auto; }
-.schematic svg { max-width: 100%; height: auto; max-height: 15em; }
+.schematic svg { max-width: 100%; height: auto; }
 .schematic { text-align: center; }
 .check { margin-top: 1em; }
 .small { font-size: .9em; color: #444; }

@@ -103,7 +103,7 @@ def _oscillator(d: Any, stage: Stage, project: Project) -> None:
         src = _source(d, elm.SourceV(), _param(stage, "supply"))
         d += elm.Ground().at(src.start)
         d.move_from(src.end, 0, 0)
-    d += elm.Line().right(2.6)
+    d += elm.Line().right(3.6 if stage.get("sync") == "line" else 2.6)  # room for labels
     node = d.here
     d += elm.Line().right(5.0)
     if stage.kind == "ujt-oscillator":
