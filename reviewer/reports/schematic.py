@@ -184,7 +184,46 @@ def _load(d: Any, stage: Stage, direction: str = "down") -> None:
         d += getattr(e, direction)()
 
 
+def _bridge(d: Any, stage: Stage, project: Project) -> None:
+    """A fully controlled single-phase bridge: two legs of two SCRs, the line between their
+    midpoints, the load between the legs' common cathodes (top) and anodes (bottom)."""
+    ref = x(stage.get("scr"))
+    gate = f"gates from {x(stage.get('gate'))}" if stage.get("gate") else "gates"
+    low = elm.SCR().up().label(f"{ref}", loc="bottom", ofst=0.2)
+    d += low
+    left = d.here
+    d += elm.SCR().up().label(f"{ref}", loc="bottom", ofst=0.2)
+    top_left = d.here
+    fuse = stage.get("fuse")
+    d += elm.Line().at(left).right(0.6)
+    if isinstance(fuse, dict):
+        d += elm.Fuse().right().label(f"fuse {val(fuse.get('rating'))}")
+    d += elm.SourceSin().right()
+    d += elm.Line().right(0.6)
+    right = d.here
+    d += elm.SCR().up().label(f"{ref}", loc="bottom", ofst=0.2)
+    top_right = d.here
+    d += elm.SCR().at((right[0], low.start[1])).up().toy(right).label(f"{ref}", loc="bottom",
+                                                                       ofst=0.2)
+    d += elm.Line().at(top_left).to(top_right)
+    d += elm.Line().right(2.4)
+    start = d.here
+    _load(d, stage)
+    d += elm.Line().toy(low.start)
+    bottom = d.here
+    if stage.get("freewheel"):
+        d += elm.Line().at(start).right(2.2)
+        d += elm.Diode().down().reverse().toy(bottom).label("freewheeling diode", loc="bottom")
+        d += elm.Line().to(bottom)
+    d += elm.Line().at(bottom).to(low.start)
+    d += elm.Label().at((low.start[0], low.start[1] - 0.9)).label(
+        f"source: {_supply_label(project)}\n{ref}: four SCRs, {gate}", halign="left")
+
+
 def _power(d: Any, stage: Stage, project: Project) -> None:
+    if stage.get("topology") == "bridge":
+        _bridge(d, stage, project)
+        return
     ac = stage.kind == "phase-control"
     src = _source(d, elm.SourceSin() if ac else elm.SourceV(), _supply_label(project))
     fuse = stage.get("fuse")
@@ -211,8 +250,7 @@ def _power(d: Any, stage: Stage, project: Project) -> None:
         d += elm.Line().at(q2.end).to(q1.end)
         d.move_from(q1.end, 0, 0)
     else:
-        q = elm.SCR().down().label(name + (" ×4, bridge" if topology == "bridge" else ""),
-                                   loc="bottom", ofst=0.2)
+        q = elm.SCR().down().label(name, loc="bottom", ofst=0.2)
         d += q
         d += elm.Line().at(q.gate).left(0.8)
         d += elm.Dot(open=True).label(gate, loc="left")

@@ -256,3 +256,21 @@ def test_module_examples(module):
     res = doctest.testmod(importlib.import_module(module),
                           optionflags=doctest.NORMALIZE_WHITESPACE)
     assert res.attempted > 0 and res.failed == 0
+
+
+@pytest.mark.parametrize("topology, extra, words", [
+    ("bridge", "", "four SCRs"),
+    ("half-wave", "\nfreewheel = true", "freewheeling diode"),
+])
+def test_power_stage_schematics(tmp_path, topology, extra, words):
+    """A bridge is drawn as its four SCRs, a freewheeling diode across the load."""
+    from reviewer.project import load_project
+    from reviewer.reports.schematic import stage_svg
+
+    src = (ROOT / "kiln-230.toml").read_text("utf-8").replace(
+        'topology = "ac-switch"', f'topology = "{topology}"{extra}')
+    p = tmp_path / "v.toml"
+    p.write_text(src, encoding="utf-8")
+    proj = load_project(p)
+    svg, why = stage_svg(proj.stages["power"], proj)
+    assert not why and words in svg and "load.r 26.5 Ω ±5%" in html.unescape(svg)
