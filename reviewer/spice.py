@@ -43,6 +43,20 @@ def ident(text: object) -> str:
     return re.sub(r"\W", "_", str(text), flags=re.ASCII) or "X"
 
 
+_ASCII = {"µ": "u", "μ": "u", "Ω": "ohm", "±": "+/-", "α": "alpha", "β": "beta", "×": "x",
+          "–": "-", "—": "-", "−": "-", "°": " deg", "²": "^2", "·": "*", "’": "'"}
+
+
+def ascii_text(text: str) -> str:
+    """A line as 7-bit ASCII, which every simulator reads: the report's symbols spelt out,
+    anything else as ``?``.
+
+    >>> ascii_text("kiln 4.7 kΩ ±5% at 60°, 2 µs – “x”")
+    'kiln 4.7 kohm +/-5% at 60 deg, 2 us - ?x?'
+    """
+    return "".join(_ASCII.get(ch, ch if ord(ch) < 128 else "?") for ch in text)
+
+
 def num(x: float) -> str:
     """A number as SPICE reads it everywhere: no unit suffix (``M`` would be milli).
 
@@ -78,7 +92,7 @@ class Netlist:
         out = [f"* {' '.join(self.title.split())}", *self.lines, "*", *self.models,
                f".tran {num(step)} {num(stop)} 0 {num(step)}" + (" uic" if self.uic else "")]
         out += [f".print tran {p}" for p in self.prints]
-        return "\n".join(out + [".end", ""])
+        return "\n".join(ascii_text(line) for line in out + [".end", ""])
 
 
 class _Values:

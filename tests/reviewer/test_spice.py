@@ -262,3 +262,13 @@ def test_bridge_average_output(tmp_path):
     assert np.max(i[first_half]) > 0.5 * i.max() and np.max(i[last & ~first_half]) > 0.5 * i.max()
     mean = float(np.trapezoid(i[last], t[last]) / (t[last][-1] - t[last][0]))
     assert mean * 26.5 == pytest.approx(vm / math.pi * (1 + math.cos(alpha)), rel=TOL)
+
+
+def test_netlist_is_ascii(tmp_path):
+    """A project named with the report's symbols still gives a 7-bit ASCII netlist."""
+    text = (ROOT / "kiln-230.toml").read_text("utf-8").replace(
+        'name = "Bench kiln element controller"', 'name = "Kiln 4k7 Ω ±5% – µ"')
+    run = run_project(_write(tmp_path, "u.toml", text))
+    for sid in run.project.stages:
+        net = netlist(run, sid)
+        assert net.isascii() and net.startswith("* Kiln 4k7 ohm +/-5% - u rev C")
