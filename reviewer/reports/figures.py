@@ -61,11 +61,16 @@ def slug(text: str) -> str:
     return re.sub(r"[^a-z0-9]+", "-", text.lower()).strip("-")
 
 
-def _draw(r: Any, project: Any) -> tuple[list[Figure], str, str]:
-    """(figures, fingerprint, reason) for one check's picture at its worst corner."""
+def _picture(r: Any, project: Any) -> tuple[Any, str]:
+    """(the check's picture at its worst corner, a fingerprint of its curves or "")."""
     pic = picture(r, project, "worst" if r.evaluation is not None else "nominal")
+    return pic, _fingerprint(pic.plots) if pic.plots else ""
+
+
+def _draw(r: Any, pic: Any) -> tuple[list[Figure], str]:
+    """(figures, reason for none) for one check's picture."""
     if not pic.plots:
-        return [], "", pic.reason
+        return [], pic.reason
     corner = "its worst corner" if pic.corner == "worst" else "its nominal"
     cap = f"at {corner}"
     if pic.nominal_used:
@@ -76,10 +81,10 @@ def _draw(r: Any, project: Any) -> tuple[list[Figure], str, str]:
         try:
             svg = plot_svg(plot)
         except (ValueError, FloatingPointError) as exc:
-            return [], "", f"no waveform: the plot could not be drawn ({exc})"
+            return [], f"no waveform: the plot could not be drawn ({exc})"
         out.append(Figure(f"{plot.title} ({cap}{'; ' + notes if notes else ''})", svg,
                           f"{slug(r.stage)}-{slug(r.check)}-{k + 1}"))
-    return out, _fingerprint(pic.plots), ""
+    return out, ""
 
 
 def stage_figures(results: list[Any], project: Any) -> tuple[dict[str, CheckFigures], str]:
@@ -90,12 +95,13 @@ def stage_figures(results: list[Any], project: Any) -> tuple[dict[str, CheckFigu
     seen: dict[str, str] = {}
     reason = "no waveform for this stage"
     for r in wanted:
-        figs, fp, why = _draw(r, project)
+        pic, fp = _picture(r, project)
+        if fp and fp in seen:  # the same curves: drawn once, under the first check
+            out[r.check] = CheckFigures(note=f"its waveform is the one shown under {seen[fp]}")
+            continue
+        figs, why = _draw(r, pic)
         if not figs:
             reason = why or reason
-            continue
-        if fp in seen:
-            out[r.check] = CheckFigures(note=f"its waveform is the one shown under {seen[fp]}")
             continue
         seen[fp] = r.check
         out[r.check] = CheckFigures(figs)
@@ -103,7 +109,7 @@ def stage_figures(results: list[Any], project: Any) -> tuple[dict[str, CheckFigu
         # Nothing the stage's explaining checks could draw: the first check that can.
         for r in results:
             if has_waveform(r.check) and r not in wanted:
-                figs, _, why = _draw(r, project)
+                figs, why = _draw(r, _picture(r, project)[0])
                 if figs:
                     out[r.check] = CheckFigures(figs)
                     break
@@ -193,8 +199,7 @@ def plot_svg(plot: Any) -> str:
         # Outside the axes, right of the plot: never over a curve or a marker label.
         ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0), frameon=False,
                   borderaxespad=0.0)
-    fig.tight_layout()
-    buf = io.StringIO()
+    buf = io.StringIO()  # the tight bounding box alone places everything: no layout pass
     with _svg_settings():
         fig.savefig(buf, format="svg", metadata={"Date": None}, bbox_inches="tight",
                     pad_inches=0.08)
