@@ -48,13 +48,13 @@ _ASCII = {"µ": "u", "μ": "u", "Ω": "ohm", "±": "+/-", "α": "alpha", "β": "
 
 
 def ascii_text(text: str) -> str:
-    """A line as 7-bit ASCII, which every simulator reads: the report's symbols spelt out,
-    anything else as ``?``.
+    """A line as printable 7-bit ASCII, which every simulator reads: the report's symbols
+    spelt out, anything else (control characters too) as ``?``.
 
     >>> ascii_text("kiln 4.7 kΩ ±5% at 60°, 2 µs – “x”")
     'kiln 4.7 kohm +/-5% at 60 deg, 2 us - ?x?'
     """
-    return "".join(_ASCII.get(ch, ch if ord(ch) < 128 else "?") for ch in text)
+    return "".join(_ASCII.get(ch, ch if 32 <= ord(ch) < 127 else "?") for ch in text)
 
 
 def num(x: float) -> str:

@@ -12,6 +12,7 @@ import html
 from typing import TYPE_CHECKING, Any
 
 from reviewer.safety import CAUTIONS, FOOTER
+from reviewer.textsafe import visible
 
 if TYPE_CHECKING:
     from reviewer.report import ReportData
@@ -50,7 +51,7 @@ footer { border-top: 1px solid #999; margin-top: 2em; padding-top: .6em; font-si
 
 
 def _e(x: Any) -> str:
-    return html.escape(str(x), quote=True)
+    return html.escape(visible(x, lines=True), quote=True)
 
 
 def css_string(text: str) -> str:
@@ -70,7 +71,8 @@ def css_string(text: str) -> str:
 
 def page_css(title: str) -> str:
     """The running header of printed pages: the project and revision left, page n of m right."""
-    return ("@page { @top-left { content: " + css_string(title) + "; font: 8pt sans-serif; "
+    return ("@page { @top-left { content: " + css_string(visible(title)) + "; font: 8pt "
+            "sans-serif; "
             "color: #444; } @top-right { content: \"page \" counter(page) \" of \" "
             "counter(pages); font: 8pt sans-serif; color: #444; } }")
 

@@ -19,6 +19,7 @@ from urllib.parse import quote
 from reviewer import TOOL
 from reviewer.reports.html import CSS, cls, page_css
 from reviewer.safety import FOOTER, SHORT
+from reviewer.textsafe import visible
 
 INDEX_CSS = """
 body { max-width: 90em; }
@@ -30,7 +31,7 @@ td.st a { color: inherit; }
 
 
 def _e(x: Any) -> str:
-    return html.escape(str(x), quote=True)
+    return html.escape(visible(x, lines=True), quote=True)
 
 
 def _rows_and_stages(rows: Any, stages: Iterable[str] | None) -> tuple[list[Any], list[str]]:

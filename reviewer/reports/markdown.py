@@ -12,19 +12,28 @@ from typing import TYPE_CHECKING, Any
 
 from reviewer.reports.figures import standalone_svg
 from reviewer.safety import CAUTIONS, FOOTER
+from reviewer.textsafe import markdown, visible
 
 if TYPE_CHECKING:
     from reviewer.report import ReportData
 
 
 def _md(text: Any) -> str:
-    """Plain text for a Markdown table cell or line: no HTML, no table breaks."""
-    s = str(text).replace("\\", "\\\\").replace("|", "\\|").replace("\n", " ")
-    return s.replace("<", "&lt;").replace(">", "&gt;")
+    """Plain text for a Markdown table cell or line: no HTML, no links or images, no table
+    breaks, control and bidi characters shown (:func:`reviewer.textsafe.markdown`)."""
+    return markdown(str(text).replace("\n", " "))
+
+
+def _code(text: Any) -> str:
+    """User text as a Markdown code span: visible, no backtick to close it early, no table
+    break (inside a code span a backslash escape would show, so nothing else is escaped)."""
+    s = visible(str(text)).replace("`", "ˋ").replace("|", "\\|")
+    return f"`{s}`"
 
 
 def _alt(text: str) -> str:
-    return _md(text).replace("[", "(").replace("]", ")")
+    """Text for an image's alt text: as :func:`_md`, without brackets that could end it."""
+    return _md(text).replace("\\[", "(").replace("\\]", ")")
 
 
 def _margin(x: float | None) -> str:
@@ -48,7 +57,7 @@ def _link(folder: str, name: str) -> str:
 def to_markdown(d: ReportData, figures: str = "") -> str:
     """The report as Markdown; with ``figures`` (the folder name) its plots are linked."""
     out: list[str] = [f"# Design review: {_md(d.name)}", ""]
-    out += [f"- Revision: **{_md(d.revision)}**", f"- Project file: `{_md(d.file)}`",
+    out += [f"- Revision: **{_md(d.revision)}**", f"- Project file: {_code(d.file)}",
             f"- Resolved from: {_md(d.chain)}"]
     if d.line:
         out.append(f"- Product line: {_md(d.line)}")
@@ -65,9 +74,9 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
             for s, k, st, det in d.summary]
     out += ["", "Counts: " + ", ".join(f"{k} {v}" for k, v in d.counts.items()), ""]
     out += ["## Inputs", "", "| input | value | from |", "|---|---|---|"]
-    out += [f"| `{_md(p)}` | {_md(v)} | {_md(f)} |" for p, v, f in d.inputs]
+    out += [f"| {_code(p)} | {_md(v)} | {_md(f)} |" for p, v, f in d.inputs]
     for s in d.stages:
-        out += ["", f"## Stage `{_md(s.id)}` ({_md(s.kind)}): {_md(s.state)}", ""]
+        out += ["", f"## Stage {_code(s.id)} ({_md(s.kind)}): {_md(s.state)}", ""]
         if s.schematic and figures:
             out += [f"![schematic of {_alt(s.id)}]({_link(figures, s.schematic_name)})", ""]
         out += ["| check | result | margin | limits | summary |", "|---|---|---|---|---|"]
@@ -102,7 +111,7 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
             out += ["", f"Waveforms: {_md(s.no_plot or 'no waveform')}."]
         if s.manual:
             out += ["", "| manual question | answer | note |", "|---|---|---|"]
-            out += [f"| {_md(q)} (`{_md(i)}`) | {_md(a)} | {_md(n)} |"
+            out += [f"| {_md(q)} ({_code(i)}) | {_md(a)} | {_md(n)} |"
                     for i, q, a, n in s.manual]
     out += ["", "## Sign-off history", ""]
     if d.history:

@@ -16,6 +16,7 @@ from typing import Any
 
 from reviewer.fmt import show
 from reviewer.model import Project, Stage, Value
+from reviewer.textsafe import visible
 
 try:  # an optional dependency at run time: a report without it says so
     import schemdraw
@@ -27,7 +28,7 @@ except ImportError:  # pragma: no cover - schemdraw is a declared dependency
 
 def x(text: Any) -> str:
     """User text for a schemdraw label, which its SVG backend parses as markup: escaped."""
-    return html.escape(str(text), quote=False)
+    return html.escape(visible(text), quote=False)
 
 
 def val(v: Any) -> str:

@@ -108,7 +108,10 @@ def test_ujt_oscillator_charge_matches_closed_forms(tmp_path):
         'target = { min = "30 deg", max = "150 deg" }', "").replace(
         'timing_r = { min = "5.6 kohm", max = "155.6 kohm" }', 'timing_r = "47 kohm"')
     text = text.replace('eta = { min = 0.56, max = 0.75 }', "eta = 0.65").replace(
-        'rbb = { min = "4.7 kohm", max = "9.1 kohm" }', 'rbb = "6.8 kohm"')
+        'rbb = { min = "4.7 kohm", max = "9.1 kohm" }', 'rbb = "6.8 kohm"').replace(
+        'zener = "20 V ±5%"\n', "").replace(
+        'topology = "ac-switch"\ngate = "gate"\n',
+        'topology = "ac-switch"\nfiring = { min = "30 deg", max = "150 deg" }\n')
     run = run_project(_write(tmp_path, "free.toml", text))
     d = simulate(netlist(run, "trigger"), "v(e) v(b1)", tmp_path)
     t, ve = d[:, 0], d[:, 1]
