@@ -274,3 +274,17 @@ def test_power_stage_schematics(tmp_path, topology, extra, words):
     proj = load_project(p)
     svg, why = stage_svg(proj.stages["power"], proj)
     assert not why and words in svg and "load.r 26.5 Ω ±5%" in html.unescape(svg)
+
+
+def test_cli_report_folder_writes_index(tmp_path, capsys):
+    """`latchbook report DIR --out-dir OUT` writes one report per project and an index.html
+    whose links reach each of them."""
+    from reviewer.cli import main
+
+    out = tmp_path / "out"
+    assert main(["report", str(LINE), "--format", "html", "--out-dir", str(out),
+                 "--jobs", "1"]) == 0
+    doc = (out / "index.html").read_text("utf-8")
+    hrefs = set(re.findall(r'href="([^"#]+)"', doc))
+    assert len(hrefs) == 4 and all((out / h).is_file() for h in hrefs)
+    assert "index written to" in capsys.readouterr().err
