@@ -241,8 +241,9 @@ def build_parser() -> argparse.ArgumentParser:
         cli_line = None  # type: ignore[assignment]
     if cli_line is not None:
         cli_line.register(sub)
-    from reviewer import completion
+    from reviewer import cli_export, completion
 
+    cli_export.register(sub)
     completion.register(sub)
     return parser
 

@@ -2,7 +2,8 @@
 
 ``report PROJECT... --format md|html [-o FILE | --out-dir DIR]`` writes review reports: one
 project to standard output or ``-o FILE``; several projects, or a folder, one report each into
-``--out-dir`` (on all cores; each file written atomically). ``diff OLD NEW [--json]`` compares
+``--out-dir`` (on all cores; each file written atomically) with an ``index.html`` holding the
+line's status matrix that links each report. ``diff OLD NEW [--json]`` compares
 two project revisions or two review records and exits 0 when nothing differs, 1 when something
 does, 2 on bad input.
 """
@@ -35,14 +36,31 @@ def cmd_report(args: argparse.Namespace) -> int:
 
     work = [(str(src), str(dest), args.format) for src, dest in jobs]
     failed = 0
+    reports: dict[str, str] = {}
     for src, written, error in ordered_map(_write_one, work, jobs=jobs_of(args),
                                            scheduler=args.scheduler):
         if error:
             failed += 1
             print(f"latchbook: {message(error)}", file=sys.stderr)
         else:
+            reports[src] = written
             print(f"report written to {visible(written)} ({visible(src)})", file=sys.stderr)
+    if reports and args.format == "html" and args.out_dir:
+        index = _write_index(reports, Path(args.out_dir))
+        print(f"index written to {visible(index)}", file=sys.stderr)
     return 2 if failed else 0
+
+
+def _write_index(reports: dict[str, str], out_dir: Path) -> Path:
+    """The product line's index page beside the reports (``index.html``, or
+    ``line-index.html`` where a project's own report already has that name)."""
+    from reviewer.reports.index import write_index_for
+
+    taken = {Path(w).resolve() for w in reports.values()}
+    page = out_dir / "index.html"
+    if page.resolve() in taken:
+        page = out_dir / "line-index.html"
+    return write_index_for(reports, page)
 
 
 def _write_one(job: tuple[str, str, str]) -> tuple[str, str, str]:

@@ -5,7 +5,8 @@ from __future__ import annotations
 import math
 
 _PREFIX = {-15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
-_SYMBOL = {"ohm": "Ω", "degC": "°C", "deg": "°", "A^2*s": "A²s", "1": "", "K/W": "K/W"}
+_SYMBOL = {"ohm": "Ω", "degC": "°C", "deg": "°", "A^2*s": "A²s", "1": "", "K/W": "K/W",
+           "V*s": "V·s", "1/K": "/K"}
 # Rates are read per microsecond in this trade; temperatures and angles take no prefix.
 _PER_US = {"V/s": "V/µs", "A/s": "A/µs"}
 _NO_PREFIX = {"degC", "deg", "K/W", "K", "1", "%", "A^2*s"}

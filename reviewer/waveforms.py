@@ -42,7 +42,7 @@ class Series:
 class Plot:
     """One chart: an x axis (time unless ``x_unit`` says otherwise), curves of one unit,
     marked x positions and notes; ``bars`` draws the first curve as filled columns (a
-    histogram)."""
+    histogram); ``y_label`` names the quantity on the y axis ("capacitor voltage")."""
 
     title: str
     t: np.ndarray
@@ -51,6 +51,7 @@ class Plot:
     notes: list[str] = field(default_factory=list)
     x_unit: str = "s"
     bars: bool = False
+    y_label: str = ""
 
 
 @dataclass
@@ -161,7 +162,7 @@ def _oscillator(stage: Stage, p: _Point) -> list[Plot]:
               Series("peak point", np.asarray(w["v_peak_point"]), "V", dotted=True),
               Series("supply", np.asarray(w["supply"]), "V", dotted=True)]
     title = "timing capacitor voltage" + (" over one half-cycle" if "vm" in kw else "")
-    return [Plot(title, t, series, marks)]
+    return [Plot(title, t, series, marks, y_label="capacitor voltage")]
 
 
 # ------------------------------------------------------------------------------- snubber
@@ -195,7 +196,8 @@ def _snubber(stage: Stage, p: _Point, project: Project) -> list[Plot]:
     marks = [(float(np.asarray(w.t_peak)), "peak"), (float(np.asarray(w.t_slope)), "steepest")]
     return [Plot("voltage across the SCR after the step", t,
                  [Series("device voltage", v, "V"),
-                  Series("step", np.full_like(t, e), "V", dotted=True)], marks)]
+                  Series("step", np.full_like(t, e), "V", dotted=True)], marks,
+                 y_label="voltage across the SCR")]
 
 
 # ------------------------------------------------------------------------------ turn-off
@@ -230,8 +232,10 @@ def _turnoff(stage: Stage, p: _Point, project: Project) -> list[Plot]:
         marks = [(float(t[idx[0]]), "turn-off starts"), (float(t[idx[-1]]), "ends")]
     return [Plot("commutating capacitor voltage", t,
                  [Series("capacitor", np.asarray(w.v_c), "V"),
-                  Series("zero", np.zeros_like(t), "V", dotted=True)], marks),
-            Plot("capacitor current", t, [Series("current", np.asarray(w.i_c), "A")])]
+                  Series("zero", np.zeros_like(t), "V", dotted=True)], marks,
+                 y_label="capacitor voltage"),
+            Plot("capacitor current", t, [Series("current", np.asarray(w.i_c), "A")],
+                 y_label="capacitor current")]
 
 
 # --------------------------------------------------------------------------------- power
@@ -304,6 +308,19 @@ def _load_point(stage: Stage, p: _Point, project: Project) -> dict[str, Any]:
             "omega": 2 * math.pi * f}
 
 
+def firing_range(result: Result, project: Project, corner: str = "nominal"
+                 ) -> tuple[float, float, str]:
+    """(α_min, α_max [rad], where they came from) of the phase-control stage of ``result`` at
+    the result's nominal row or worst corner; ValueError naming what is missing."""
+    stage = project.stages[result.stage]
+    point = _Point(result, project, corner)
+    try:
+        kw = _load_point(stage, point, project)
+        return _firing_ends(stage, point, project, math.sqrt(2) * kw["vs"], kw["omega"])
+    except _Missing as exc:
+        raise ValueError(f"no firing angle for `{stage.id}` (needs {exc})") from None
+
+
 def _cycle_plots(kw: dict[str, Any], angles: list[tuple[str, float]],
                  extra_marks: list[tuple[float, str]], notes: list[str]) -> list[Plot]:
     """Load voltage and current over one cycle, one curve per firing angle."""
@@ -319,8 +336,8 @@ def _cycle_plots(kw: dict[str, Any], angles: list[tuple[str, float]],
         marks.append((alpha / omega, label))
     assert t is not None
     marks += extra_marks
-    return [Plot("load voltage over one cycle", t, volts, marks, notes),
-            Plot("load current over one cycle", t, amps, marks, [])]
+    return [Plot("load voltage over one cycle", t, volts, marks, notes, y_label="load voltage"),
+            Plot("load current over one cycle", t, amps, marks, [], y_label="load current")]
 
 
 def _power(stage: Stage, p: _Point, project: Project) -> list[Plot]:
