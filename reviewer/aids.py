@@ -1,5 +1,12 @@
 """Design aids: the range of one input that makes a check pass, and preferred values in it.
 
+An aid is offered only on what a designer chooses (:func:`designer_chooses`): component values
+(resistors, capacitors, inductors of a stage) and the ratings of what is bought (a capacitor's
+voltage, a resistor's power, a zener voltage, a transformer's ratio, a heatsink, a fuse, an
+SCR's voltage and current ratings). Never the operating conditions, the supply, the load, or a
+part's datasheet characteristics (a UJT's η, an SCR's IGT): those are not the designer's to
+set, and "passes at supply ≤ 181 V" on a 230 V product helps nobody.
+
 The range is solved, not guessed: the check is evaluated on a grid of scale factors applied
 to the chosen input (its tolerance band scales with it) across every corner at once, and the
 edges of the passing interval are refined by bisection.
@@ -21,6 +28,40 @@ from reviewer.registry import CHECKS
 
 SPAN = (0.02, 50.0)
 GRID = 161
+
+#: Dimensions of the component values a stage is built from.
+COMPONENT_DIMS = frozenset({"resistance", "capacitance", "inductance"})
+#: Keys of a stage that are ratings of a part to buy (whatever their dimension).
+STAGE_RATINGS = frozenset({"zener", "turns_ratio", "r_power", "c_voltage", "volt_seconds",
+                           "isolation", "heatsink.rth_sa", "fuse.rating", "fuse.i2t"})
+#: Keys of a stage table that describe what the stage drives or meets, not what it is built of.
+STAGE_GIVEN = ("load.",)
+#: Ratings of an SCR part (its maximum-ratings table), which the designer buys to.
+PART_RATINGS = frozenset({"vdrm", "vrrm", "it_rms", "it_av", "itsm", "i2t"})
+
+
+def designer_chooses(path: str, dim: str) -> bool:
+    """Whether the value at ``path`` (dimension ``dim``) is the designer's choice.
+
+    >>> designer_chooses("stages.trigger.timing_r", "resistance")
+    True
+    >>> [designer_chooses(p, d) for p, d in (("supply.voltage", "voltage"),
+    ...  ("parts.U1.eta", "dimensionless"), ("stages.power.load.r", "resistance"),
+    ...  ("parts.Q1.vdrm", "voltage"), ("parts.Q1.cold.il#none", ""))]
+    [False, False, False, True, False]
+    """
+    if "#" in path:
+        return False
+    head, _, rest = path.partition(".")
+    if head == "stages":
+        _, _, key = rest.partition(".")
+        if any(key.startswith(g) for g in STAGE_GIVEN):
+            return False
+        return key in STAGE_RATINGS or (dim in COMPONENT_DIMS and "." not in key)
+    if head == "parts":
+        _, _, key = rest.partition(".")
+        return key in PART_RATINGS
+    return False
 
 
 @dataclass
@@ -51,6 +92,10 @@ class Aid:
             pref = f"; E{self.series}: " + ", ".join(eng(x, unit) for x in self.preferred)
         return f"{self.path.split('#')[0]} passes at {rng}{pref}"
 
+    def share_of(self) -> str:
+        """How the passing range reads beside the present value."""
+        return eng(self.current, DIM_UNIT.get(self.dim, ""))
+
 
 def _worst_status(result: Result, name: str, scales: np.ndarray) -> np.ndarray:
     """Worst status over the corners for each scale factor of input ``name``."""
@@ -73,7 +118,7 @@ def passing_range(result: Result, name: str, *, iterations: int = 40) -> Aid | N
         return None
     inp = ev.bound.inputs[name]
     v = inp.value
-    if v.nom <= 0 or "#" in inp.path:
+    if v.nom <= 0 or not designer_chooses(inp.path, v.dim):
         return None
     scales = np.geomspace(*SPAN, GRID)
     ok = _worst_status(result, name, scales) == PASS

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from reviewer.aids import Aid, suggest_text
+from reviewer.aids import Aid, designer_chooses, suggest_text
 from reviewer.engine import Result
 from reviewer.fmt import DIM_UNIT, to_report
 from reviewer.model import Value
@@ -104,17 +104,21 @@ def ranking(result: Result) -> list[Influence]:
 
 
 def aid_inputs(result: Result) -> list[AidInput]:
-    """The inputs the check reads that the aid can scale, largest sensitivity share first."""
+    """The inputs the check reads that a designer chooses (reviewer.aids.designer_chooses),
+    once per path, largest sensitivity share first. A value read under two names (both ends
+    of a range, a temperature two limits are given at) is one input: the first name."""
     ev = result.evaluation
     if ev is None:
         return []
     shares = {i.path: i.share for i in ranking(result)}
-    out = []
+    out: dict[str, AidInput] = {}
     for name, inp in ev.bound.inputs.items():
-        if "#" in inp.path or not (inp.value.nom > 0 and math.isfinite(inp.value.nom)):
+        v = inp.value
+        if inp.path in out or not designer_chooses(inp.path, v.dim) or \
+                not (v.nom > 0 and math.isfinite(v.nom)):
             continue
-        out.append(AidInput(name, inp.path, shares.get(inp.path, 0.0)))
-    return sorted(out, key=lambda a: -a.share)
+        out[inp.path] = AidInput(name, inp.path, shares.get(inp.path, 0.0))
+    return sorted(out.values(), key=lambda a: -a.share)
 
 
 def default_aid_input(result: Result) -> str | None:

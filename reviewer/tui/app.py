@@ -1,7 +1,10 @@
 """The workbook app: title, styles, global keys, screen routing, and ``run_app``.
 
-The app owns the :class:`~reviewer.tui.session.Session` (the open project) and the
-:class:`~reviewer.tui.compute.Computer` (the engine in a worker thread); screens do the rest.
+The app owns the :class:`~reviewer.tui.session.Session` (the open project), the
+:class:`~reviewer.tui.compute.Computer` (the engine in a worker thread) and the
+:class:`~reviewer.tui.compute.Analyst`; it is the screens' :class:`~reviewer.tui.host.Host`
+and they do the rest. An unhandled error keeps the journal of unsaved edits, says where to
+report it, and ends the process with exit code 3.
 """
 
 from __future__ import annotations
@@ -10,7 +13,6 @@ import sys
 from collections.abc import Iterable, Sequence
 from pathlib import Path
 
-from rich.text import Text
 from textual.app import App, SystemCommand
 from textual.binding import Binding
 from textual.events import Resize
@@ -19,19 +21,20 @@ from textual.screen import Screen
 from textual.worker import Worker, WorkerState
 
 from reviewer import store
+from reviewer.engine import Result
 from reviewer.errors import LatchbookError
 from reviewer.textsafe import visible
 from reviewer.tui import attention
 from reviewer.tui.compute import Analyst, Computer
+from reviewer.tui.crash import CRASHED, REPORT_TO, keep_and_explain
 from reviewer.tui.dialogs.choice import ChoiceDialog
-from reviewer.tui.screens.check import CheckScreen
-from reviewer.tui.screens.help import HelpScreen
-from reviewer.tui.screens.manual import ManualScreen
+from reviewer.tui.palette import WorkbookCommands
 from reviewer.tui.screens.overview import OverviewScreen
-from reviewer.tui.screens.stage import StageScreen
 from reviewer.tui.screens.too_small import MIN_HEIGHT, MIN_WIDTH, TooSmallScreen
 from reviewer.tui.session import Session
 from reviewer.tui.visible import VisibleFilter
+
+# The other screens are imported when first opened: the first screen comes up sooner.
 
 
 class Workbook(App[int]):
@@ -39,10 +42,11 @@ class Workbook(App[int]):
 
     TITLE = "Latchbook workbook"
     CSS_PATH = "app.tcss"
+    COMMANDS = {WorkbookCommands}
     BINDINGS = [
         Binding("question_mark,f1", "help", "Help"),
+        Binding("ctrl+p", "command_palette", "Find", priority=True),
         Binding("ctrl+q", "leave", "Quit", priority=True),
-        Binding("ctrl+p", "command_palette", "Commands", show=False, priority=True),
     ]
 
     def __init__(self, session: Session, *, recompute: bool = True) -> None:
@@ -50,9 +54,10 @@ class Workbook(App[int]):
         self.session = session
         self.computer = Computer(self, session)
         self.analyst = Analyst(self, session)
-        self.recompute = recompute
+        self.recompute_on_open = recompute
         self.theme = "textual-dark"
         self.filter_key = "all"  # the attention filter, shared by the overview and the stages
+        self.crash = ""  # what run_app prints after an unhandled error
         self._small: TooSmallScreen | None = None
         self._size_judged = False  # the size is judged once the first screen is up
         self._visible = VisibleFilter()
@@ -61,13 +66,9 @@ class Workbook(App[int]):
         """Textual's filters, then the one that shows control and bidi characters."""
         return [*super().get_line_filters(), self._visible]
 
-    # -- routing ------------------------------------------------------------------------
+    # -- the host the screens see (reviewer.tui.host.Host) ---------------------------------
     def on_mount(self) -> None:
-        self.title = visible(f"Latchbook · {self.session.project.name}")
-        self.push_screen(OverviewScreen())
-        self.call_after_refresh(self.notify_warnings)
-        if self.recompute and not self.session.computed:
-            self.computer.start(None)
+        self._open_first()
         self._offer_recovery()
         self._size_judged = True
         self.call_after_refresh(lambda: self._check_size(self.size.width, self.size.height))
@@ -81,51 +82,129 @@ class Workbook(App[int]):
                         title=f"{len(warnings)} value(s) outside the usual band",
                         severity="warning", timeout=20, markup=False)
 
+    def _open_first(self) -> None:
+        self.title = visible(f"Latchbook · {self.session.project.name}")
+        self.push_screen(OverviewScreen())
+        self.call_after_refresh(self.notify_warnings)
+        if self.recompute_on_open and not self.session.computed:
+            self.computer.start(None)
+
+    def recompute(self, paths: list[str] | None) -> None:
+        self.computer.start(paths)
+
+    def start_yield(self, stage: str | None) -> None:
+        self.analyst.start_yield(stage)
+
+    def start_aid(self, result: Result, name: str) -> None:
+        self.analyst.start_aid(result, name)
+
     def open_stage(self, stage: str) -> None:
-        """Show one stage's checklist."""
+        from reviewer.tui.screens.stage import StageScreen
+
         self.push_screen(StageScreen(stage))
 
-    def open_check(self, stage: str, check: str) -> None:
-        """Show one check's detail."""
-        self.push_screen(CheckScreen(stage, check))
+    def open_check(self, stage: str, check: str, *, waveform: bool = False) -> None:
+        from reviewer.tui.screens.check import CheckScreen
+
+        self.push_screen(CheckScreen(stage, check, waveform=waveform))
 
     def open_manual(self, stage: str) -> None:
-        """Show the manual questions of a stage."""
+        from reviewer.tui.screens.manual import ManualScreen
+
         self.push_screen(ManualScreen(stage))
 
+    def open_history(self, stage: str | None = None, check: str | None = None) -> None:
+        from reviewer.tui.screens.history import HistoryScreen
+
+        self.push_screen(HistoryScreen(stage, check))
+
     def cycle_filter(self) -> str:
-        """Step the attention filter (all → attention → fails → stale → all); returns it."""
         self.filter_key = attention.next_filter(self.filter_key)
         return self.filter_key
 
+    def show_help(self) -> None:
+        from reviewer.tui import helpkeys
+        from reviewer.tui.screens.help import HelpScreen
+
+        self.push_screen(HelpScreen(helpkeys.sections(self), helpkeys.notes(self)))
+
     def action_help(self) -> None:
-        sections: list[tuple[str, list]] = [
-            ("Everywhere", [*self.BINDINGS, *self._base_bindings()]),
-            ("Stages (first screen)", list(OverviewScreen.BINDINGS)),
-            ("A stage's checklist", list(StageScreen.BINDINGS)),
-            ("A check", list(CheckScreen.BINDINGS)),
-            ("Manual questions", list(ManualScreen.BINDINGS)),
-            ("In a dialog", [Binding("enter", "", "check and accept"),
-                             Binding("escape", "", "cancel")]),
-        ]
-        notes = Text()
-        notes.append("Filter (f, on the stages and a stage's checklist)\n", style="bold underline")
-        for f in attention.FILTERS:
-            mark = "▸ " if f.key == self.filter_key else "  "
-            notes.append(f"{mark}{f.label:<16}", style="bold")
-            notes.append(f"{f.rule}\n")
-        notes.append("\nApproval (a)\n", style="bold underline")
-        notes.append(f"  {self.session.approvers_text()}. An approval covers checks that "
-                     "already have a current reviewed sign-off; the review record decides and "
-                     "refuses anyone else. Opening NAME.review.toml is the lead's view: "
-                     "read-only values, approvals allowed.\n")
-        self.push_screen(HelpScreen(sections, notes))
+        self.show_help()
 
-    @staticmethod
-    def _base_bindings() -> list:
-        from reviewer.tui.screens.base import WorkbookScreen
+    def export_report(self, fmt: str) -> None:
+        """Write the report of the file on disk beside the project, in a worker."""
+        from reviewer.report import write_report
 
-        return list(WorkbookScreen.BINDINGS)
+        s = self.session
+        if s.writes_nothing:
+            self.notify("opened with --read-only: nothing is written, not even a report",
+                        severity="warning", markup=False)
+            return
+        out = s.path.with_name(f"{s.path.stem}.report.{fmt}")
+        unsaved = (f"; {len(s.state.edits)} unsaved edit(s) are not in it (it covers the "
+                   "file on disk)") if s.dirty else ""
+
+        def work() -> None:
+            try:
+                written = write_report(s.path, fmt, out)
+            except LatchbookError as exc:
+                self.call_from_thread(self.notify, str(exc), title="not written",
+                                      severity="error", markup=False)
+                return
+            self.call_from_thread(self.notify, f"wrote {written.name}{unsaved}", markup=False)
+
+        self.notify(f"writing {out.name}…", markup=False)
+        self.run_worker(work, name="report", group="report", thread=True, exit_on_error=False)
+
+    def switch_project(self, path: Path) -> None:
+        """Open another project in place of this one (asks about unsaved edits first)."""
+        def go() -> None:
+            try:
+                new = Session(path, read_only=self.session.writes_nothing)
+            except LatchbookError as exc:
+                self.notify(str(exc), title="not opened", severity="error", markup=False)
+                return
+            self.session.close()
+            self.session = new
+            self.computer = Computer(self, new)
+            self.analyst = Analyst(self, new)
+            while len(self.screen_stack) > 1:
+                self.pop_screen()
+            self._open_first()
+            self._offer_recovery()
+            self.notify(f"opened {path.name}", markup=False)
+
+        self._unless_unsaved(go, "switching project")
+
+    def leave(self) -> None:
+        self._unless_unsaved(lambda: self.exit(0), "quitting")
+
+    def action_leave(self) -> None:
+        self.leave()
+
+    def _unless_unsaved(self, then: object, doing: str) -> None:
+        s = self.session
+        if not s.dirty or s.read_only:
+            then()  # type: ignore[operator]
+            return
+
+        def answer(choice: str | None) -> None:
+            if choice == "save":
+                try:
+                    s.save()
+                except LatchbookError as exc:
+                    self.notify(str(exc), severity="error", timeout=15, markup=False)
+                    return
+                then()  # type: ignore[operator]
+            elif choice == "keep":
+                s.write_journal()
+                then()  # type: ignore[operator]
+
+        n = len(s.state.edits)
+        self.push_screen(ChoiceDialog(
+            "Unsaved edits", f"{n} edit(s) are not saved in {s.path.name} ({doing}).",
+            [("s", "save", "save, then go on"), ("k", "keep", "keep them for next time"),
+             ("escape", "stay", "stay")]), answer)
 
     # -- the terminal's size --------------------------------------------------------------
     def on_resize(self, event: Resize) -> None:
@@ -145,7 +224,7 @@ class Workbook(App[int]):
                 self.pop_screen()
             self._small = None
 
-    # -- recovery and leaving -------------------------------------------------------------
+    # -- recovery -------------------------------------------------------------------------
     def _offer_recovery(self) -> None:
         try:
             journal = self.session.pending()
@@ -154,54 +233,28 @@ class Workbook(App[int]):
             return
         if journal is None:
             return
-        body = Text(f"{len(journal.edits)} unsaved edit(s) from {journal.saved_at} by "
-                    f"{journal.by.get('login', '?')}:\n")
-        for e in journal.edits[:8]:
-            body.append(f"  {e.path} = {e.text}\n")
-        if journal.base_changed(self.session.path):
-            body.append("The file changed on disk since then: check each edit.\n",
-                        style="bold yellow")
+        session = self.session
 
         def answer(choice: str | None) -> None:
             if choice == "recover":
-                problems = self.session.recover(journal)
+                problems = session.recover(journal)
                 self.computer.start(None)
                 for p in problems:
                     self.notify(f"not recovered: {p}", severity="warning", markup=False)
                 self.notify(f"recovered {len(journal.edits) - len(problems)} edit(s); they "
                             "are unsaved", markup=False)
             elif choice == "discard":
-                self.session.discard_journal()
+                session.discard_journal()
                 self.notify("discarded the unsaved edits", markup=False)
 
-        self.push_screen(ChoiceDialog("Recover unsaved edits?", body,
+        from reviewer.tui.helpkeys import journal_text
+
+        self.push_screen(ChoiceDialog("Recover unsaved edits?",
+                                      journal_text(journal, session.path),
                                       [("r", "recover", "recover"), ("d", "discard", "discard"),
                                        ("escape", "later", "decide later")]), answer)
 
-    def action_leave(self) -> None:
-        if not self.session.dirty or self.session.read_only:
-            self.exit(0)
-            return
-
-        def answer(choice: str | None) -> None:
-            if choice == "save":
-                try:
-                    self.session.save()
-                except LatchbookError as exc:
-                    self.notify(str(exc), severity="error", timeout=15, markup=False)
-                    return
-                self.exit(0)
-            elif choice == "keep":
-                self.session.write_journal()
-                self.exit(0)
-
-        n = len(self.session.state.edits)
-        self.push_screen(ChoiceDialog(
-            "Unsaved edits", f"{n} edit(s) are not saved in {self.session.path.name}.",
-            [("s", "save", "save and quit"), ("k", "keep", "quit, keep them for next time"),
-             ("escape", "stay", "stay")]), answer)
-
-    # -- workers and the command palette --------------------------------------------------
+    # -- workers, the palette, and errors -------------------------------------------------
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         if event.worker.group == Computer.GROUP:
             self.computer.on_state(event)
@@ -213,40 +266,17 @@ class Workbook(App[int]):
                         severity="error", timeout=15, markup=False)
 
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
-        s = screen
+        return ()  # the workbook's own commands come from WorkbookCommands
 
-        def call(name: str) -> None:
-            fn = getattr(s, f"action_{name}", None)
-            if fn is not None:
-                fn()
-
-        yield SystemCommand("Show every key", "The key list and the cautions", self.action_help)
-        yield SystemCommand("Change a value", "Edit a value; dependent checks recompute",
-                            lambda: call("edit"))
-        yield SystemCommand("Step back one edit", "Undo", lambda: call("undo"))
-        yield SystemCommand("Step forward one edit", "Redo", lambda: call("redo"))
-        yield SystemCommand("Write the project file", "Save, keeping comments",
-                            lambda: call("save"))
-        yield SystemCommand("Recompute every check", "Run the engine on the whole project",
-                            lambda: self.computer.start(None))
-        yield SystemCommand("Monte Carlo yield", "Sample the production spreads (y)",
-                            lambda: call("yield"))
-        yield SystemCommand("Try the suggested value", "Design aid on a failing check (t)",
-                            lambda: call("try_value"))
-        yield SystemCommand("Sign the stage as reviewed", "Shows what is signed first",
-                            lambda: call("sign"))
-        yield SystemCommand("Approve the stage", "Approvers only (a); the review record "
-                            "decides", lambda: call("approve"))
-        yield SystemCommand("Cycle the attention filter", "All → attention → fails → stale (f)",
-                            lambda: call("cycle_filter"))
-        yield SystemCommand("Revoke a history entry", "With a reason", lambda: call("revoke"))
-        yield SystemCommand("Leave the workbook", "Quit (asks about unsaved edits)",
-                            self.action_leave)
+    def _handle_exception(self, error: Exception) -> None:
+        # Keep the unsaved edits before anything else, then say where to report the defect.
+        self.crash = keep_and_explain(self.session, error, f"{id(self):x}")
+        super()._handle_exception(error)
 
 
 def run_app(project_path: str, *, read_only: bool = False, mouse: bool = True,
-            record: str | None = None) -> int:
-    """Open the workbook on ``project_path``; returns the exit code.
+            record: str | None = None, headless: bool = False) -> int:
+    """Open the workbook on ``project_path``; returns the exit code (3 on an internal error).
 
     ``record``: the review record the user named (``latchbook open NAME.review.toml``); the
     project then opens read-only as the lead's view (see :class:`Session`).
@@ -259,10 +289,15 @@ def run_app(project_path: str, *, read_only: bool = False, mouse: bool = True,
     except LatchbookError as exc:
         print(f"latchbook: {visible(exc)}", file=sys.stderr)
         return 2
-    restore = store.install_hangup_handler(session.write_journal)
+    app = Workbook(session)
+    restore = store.install_hangup_handler(lambda: app.session.write_journal())
     try:
-        code = Workbook(session).run(mouse=mouse)
+        code = app.run(mouse=mouse, **({"headless": True} if headless else {}))
     finally:
         restore()
-        session.close()
+        app.session.close()
+    if app.crash or app.return_code not in (0, None):
+        print(app.crash or "latchbook: the workbook stopped on an internal error; please "
+              f"report it to {REPORT_TO}", file=sys.stderr)
+        return CRASHED
     return int(code or 0)

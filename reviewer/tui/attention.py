@@ -1,15 +1,16 @@
 """The attention filter the overview and a stage's checklist share (no Textual here).
 
 One key cycles through the filters; each is a rule over a check's computed result and its
-sign-off word (:meth:`reviewer.tui.session.Session.sign_state`). A check whose result is not
-in yet matches only "all": a filter shows what is known to need a look, never a guess.
+review word (:meth:`reviewer.tui.session.Session.review`, the words of reviewer.states). A
+check whose result is not in yet matches only "all": a filter shows what is known to need a
+look, never a guess.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-from reviewer.states import FAILING, needs_attention
+from reviewer import states
 
 
 @dataclass(frozen=True)
@@ -24,13 +25,11 @@ class Filter:
 FILTERS: tuple[Filter, ...] = (
     Filter("all", "all checks", "every stage and every check"),
     Filter("attention", "attention",
-           "checks that fail, error, are blocked, incomplete or marginal, and checks whose "
-           "sign-off is waived, "
-           "stale or missing (unsigned)"),
+           "checks whose result needs a look (fail, error, blocked, incomplete, marginal), "
+           "and checks whose review is unverified, stale, waived or missing (unsigned)"),
     Filter("fails", "fails only",
-           "checks that fail, error, are blocked or incomplete; waived failures stay in (a "
-           "waiver does not make a "
-           "check pass)"),
+           "checks whose result stops a build (fail, error, blocked, incomplete); waived "
+           "ones stay in (a waiver does not make a check pass)"),
     Filter("stale", "stale only",
            "checks covered by a sign-off, approval or waiver whose inputs, result or "
            "checklist changed since it was given"),
@@ -45,7 +44,7 @@ def next_filter(key: str) -> str:
 
 
 def matches(key: str, status: str, sign: str) -> bool:
-    """Whether a check with result ``status`` ("" while computing) and sign-off word ``sign``
+    """Whether a check with result ``status`` ("" while computing) and review word ``sign``
     passes filter ``key``.
 
     >>> matches("attention", "pass", "signed"), matches("attention", "pass", "stale")
@@ -58,9 +57,10 @@ def matches(key: str, status: str, sign: str) -> bool:
     if not status:
         return False
     if key == "attention":
-        return needs_attention(status) or sign in ("stale", "waived", "unsigned")
+        return states.needs_attention(status) or sign in (
+            "unverified", "stale", "waived", "unsigned")
     if key == "fails":
-        return status in FAILING
+        return status in states.FAILING
     if key == "stale":
         return sign == "stale"
     raise ValueError(f"unknown filter {key!r}")

@@ -1,9 +1,10 @@
 """Computing in the background: the engine, Monte Carlo and the design aids run in thread
 workers.
 
-The screen stays responsive while they run; each stage's results are handed to the session on
-the UI thread as they come, and results of a state the user has already left are dropped (the
-session's generation counter; yields and aids are kept with the inputs hash they sampled).
+The screen stays responsive while they run; the results of one run reach the session on the
+UI thread in one delivery (one repaint, not one per stage), and results of a state the user
+has already left are dropped (the session's generation counter; yields and aids are kept with
+the inputs hash they sampled).
 """
 
 from __future__ import annotations
@@ -23,38 +24,61 @@ from reviewer.tui.session import Session
 
 
 class Computer:
-    """Starts the engine for a session and delivers what it finds to the app's top screen."""
+    """Starts the engine for a session and delivers what it finds to the app's top screen.
+
+    A small recomputation (an edit's dependents, expected under :attr:`INLINE` seconds from
+    the measured cost per check) runs on the UI thread and the caller repaints: the screen
+    then repaints once, with the new results, instead of once for the edit and again when a
+    worker hands them over.
+    Anything larger runs in a worker and the screen stays responsive.
+    """
 
     GROUP = "compute"
+    INLINE = 0.06
 
     def __init__(self, app: App[Any], session: Session) -> None:
         self.app = app
         self.session = session
         self.last_seconds = 0.0
         self.started = 0.0
+        self.per_check: float | None = None  # seconds per check, from the last run
 
-    def start(self, paths: list[str] | None) -> Worker[None]:
+    def start(self, paths: list[str] | None) -> Worker[None] | None:
         """Recompute the checks that depend on ``paths`` (None: every check)."""
         gen, project, groups = self.session.plan(paths)
         self.started = time.perf_counter()
+        keys = [k for g in groups for k in g]
+        session = self.session
+        if paths is not None and self.per_check is not None and \
+                len(keys) * self.per_check < self.INLINE:
+            results = session.compute(project, keys) if keys else []
+            self._measure(len(keys))
+            # The caller (an edit, undo or redo) repaints right after: no message, so the
+            # screen is not refreshed a second time for the same results.
+            self._deliver(gen, results, True, tell=False)
+            return None
 
         def work() -> None:
-            for keys in groups:
-                results = self.session.compute(project, keys)
-                self.app.call_from_thread(self._deliver, gen, results, False)
-            self.app.call_from_thread(self._deliver, gen, [], True)
+            results = session.compute(project, keys) if keys else []
+            self._measure(len(keys))
+            self.app.call_from_thread(self._deliver, gen, results, True)
 
         return self.app.run_worker(work, name="engine", group=self.GROUP, thread=True,
                                    exit_on_error=False, exclusive=True,
                                    description="recompute the checks")
 
-    def _deliver(self, gen: int, results: list[Any], done: bool) -> None:
+    def _measure(self, n: int) -> None:
+        if n:
+            self.per_check = (time.perf_counter() - self.started) / n
+
+    def _deliver(self, gen: int, results: list[Any], done: bool, *, tell: bool = True) -> None:
         changed = self.session.accept(gen, results, done=done)
         if changed is None:
             return
         if done:
             self.last_seconds = time.perf_counter() - self.started
-        self.app.screen.post_message(ResultsChanged(done))
+        if tell:
+            self.app.screen.post_message(ResultsChanged(done))
 
     def on_state(self, event: Worker.StateChanged) -> None:
         """Report a failed computation instead of ending the app (exit_on_error=False)."""

@@ -16,7 +16,7 @@ from types import ModuleType
 from typing import Any
 
 from reviewer import edits as edit_text
-from reviewer import store
+from reviewer import states, store
 from reviewer.aids import Aid
 from reviewer.checklist import Checklist, load_checklist
 from reviewer.engine import Result, Run, evaluate
@@ -24,7 +24,6 @@ from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
 from reviewer.model import Project
 from reviewer.project import load_project_text
 from reviewer.schema import CATALOGUE
-from reviewer.states import WAIVABLE
 from reviewer.tolerance import Yield
 from reviewer.tui import attention
 
@@ -44,7 +43,10 @@ class State:
 
 @dataclass
 class StageCounts:
-    """How a stage stands: result counts and sign-off counts (None: not known in this version)."""
+    """How a stage stands: result counts, and review counts (None: no record known).
+
+    The two are kept apart: a waived failure counts as a ``fail`` result *and* a ``waived``
+    review; it never leaves the result counts."""
 
     stage: str
     kind: str
@@ -52,14 +54,20 @@ class StageCounts:
     waived: int | None = None
     stale: int | None = None
     unsigned: int | None = None
+    unverified: int | None = None
 
     @property
     def state(self) -> str:
-        """The worst result of the stage: fail, error, marginal, pass or not-applicable."""
-        for s in ("error", "fail", "blocked", "incomplete", "marginal", "pass"):
+        """The worst result of the stage (reviewer.states.RESULTS order)."""
+        for s in states.RESULTS:
             if self.counts.get(s):
                 return s
         return "not-applicable"
+
+    @property
+    def attention(self) -> int:
+        """Results that stop a build unless waived (fail, error, blocked, incomplete)."""
+        return sum(n for s, n in self.counts.items() if s in states.FAILING)
 
 
 def review_module() -> ModuleType | None:
@@ -116,6 +124,7 @@ class Session:
     def __init__(self, path: str | Path, *, read_only: bool = False, lock: bool = True,
                  record: str | Path | None = None) -> None:
         self.path = Path(path)
+        self.writes_nothing = read_only  # --read-only: no file at all is written
         self.lead_view = record is not None
         # The lead's view may approve (the record only); --read-only as well writes nothing.
         self.approvals_open = self.lead_view and not read_only
@@ -137,6 +146,9 @@ class Session:
         self.index = 0
         self.generation = 0  # bumps on every change of state: late runs are dropped
         self.results: dict[Key, Result] = {}
+        self._run: Run | None = None  # the Run of self.results, rebuilt only when they change
+        self._by_key: dict[Key, Result] = {}
+        self._keys: tuple[int, list[Key]] | None = None
         self.computed = False  # True once every check of the current state has a result
         self.changed: set[Key] = set()
         self._before: dict[Key, Result] = {}
@@ -218,14 +230,17 @@ class Session:
         label = f"{path} = {typed.strip()}"
         return State(text, project, (*self.state.edits, store.Edit(path, typed.strip())), label)
 
-    def push(self, state: State) -> None:
-        """Make ``state`` current, dropping the redo tail, and journal the pending edits."""
+    def push(self, state: State, *, journal: bool = True) -> None:
+        """Make ``state`` current, dropping the redo tail, and journal the pending edits
+        (``journal=False``: the caller writes the journal itself, right after)."""
         self.changed = set()
         del self.states[self.index + 1:]
         self.states.append(state)
         self.index += 1
         self.generation += 1
-        self.write_journal()
+        self._invalidate()
+        if journal:
+            self.write_journal()
 
     def undo(self) -> State | None:
         """Step back one edit (the step left is returned), or None when there is none."""
@@ -235,6 +250,7 @@ class Session:
         self.changed = set()
         self.index -= 1
         self.generation += 1
+        self._invalidate()
         self.write_journal()
         return undone
 
@@ -245,20 +261,30 @@ class Session:
         self.changed = set()
         self.index += 1
         self.generation += 1
+        self._invalidate()
         self.write_journal()
         return self.state
 
     # -- computing ----------------------------------------------------------------------
     def keys(self) -> list[Key]:
         """Every (stage, check) of the current project, in the order the engine reports them."""
-        return [(sid, cid) for sid, st in self.project.stages.items()
-                for cid, kinds in CATALOGUE if st.kind in kinds]
+        if self._keys is None or self._keys[0] != id(self.project):
+            self._keys = (id(self.project), [(sid, cid) for sid, st in self.project.stages.items()
+                                             for cid, kinds in CATALOGUE if st.kind in kinds])
+        return list(self._keys[1])
+
+    def _invalidate(self) -> None:
+        self._run = None
 
     @property
     def run(self) -> Run:
-        """The results known so far, in report order, as the engine's Run."""
-        rows = [self.results[k] for k in self.keys() if k in self.results]
-        return Run(self.project, self.checklist, rows)
+        """The results known so far, in report order, as the engine's Run (built once per
+        change of results or state, not per lookup)."""
+        if self._run is None or self._run.project is not self.project:
+            rows = [self.results[k] for k in self.keys() if k in self.results]
+            self._run = Run(self.project, self.checklist, rows)
+            self._by_key = self._run.by_key()
+        return self._run
 
     def dependents(self, paths: list[str] | None) -> list[Key]:
         """The checks an edit of ``paths`` can change (None: all of them).
@@ -312,10 +338,12 @@ class Session:
                 changed.add(key)
             self.results[key] = r
         self.changed |= changed
+        self._invalidate()
         if done:
             valid = set(self.keys())
             for key in [k for k in self.results if k not in valid]:
                 del self.results[key]
+            self._invalidate()
             self.computed = True
             self.refresh_review()
         return changed
@@ -323,9 +351,7 @@ class Session:
     def compute_all(self) -> None:
         """Compute everything now, in this thread (for scripts and tests)."""
         gen, project, groups = self.plan(None)
-        for g in groups:
-            self.accept(gen, self.compute(project, g), done=False)
-        self.accept(gen, [], done=True)
+        self.accept(gen, self.compute(project, [k for g in groups for k in g]), done=True)
 
     def edited_paths(self, before: int, after: int) -> list[str] | None:
         """The value paths that differ between two steps of the history (None: unknown)."""
@@ -337,7 +363,8 @@ class Session:
 
     def result(self, stage: str, check: str) -> Result | None:
         """The latest result of one check."""
-        return self.run.by_key().get((stage, check))
+        self.run  # noqa: B018 - builds the index when the results changed
+        return self._by_key.get((stage, check))
 
     def stage_counts(self) -> list[StageCounts]:
         """Per stage, in file order: result counts and the review module's sign-off counts."""
@@ -347,25 +374,34 @@ class Session:
             row = rows.get(r.stage)
             if row is not None:
                 row.counts[r.status] = row.counts.get(r.status, 0) + 1
-        mod = review_module()
-        if self.record is not None and mod is not None and self.computed:
-            for sid, row in rows.items():
-                c = mod.counts({k: v for k, v in self.check_states.items() if k[0] == sid})
-                row.waived, row.stale, row.unsigned = c["waived"], c["stale"], c["unsigned"]
+        if self.record is not None and self.computed:
+            for row in rows.values():
+                row.waived = row.stale = row.unsigned = row.unverified = 0
+            for r in self.run.results:
+                word = self.review(r.stage, r.check)
+                row = rows.get(r.stage)
+                if row is None:
+                    continue
+                row.waived += word == "waived"  # type: ignore[operator]
+                row.stale += word == "stale"  # type: ignore[operator]
+                row.unsigned += word == "unsigned"  # type: ignore[operator]
+                row.unverified += word == "unverified"  # type: ignore[operator]
         return list(rows.values())
 
-    def overall(self) -> str:
-        """The project's state: the worst result, a waived failure shown as "fail (waived)"."""
-        rank = {"pass": 0, "not-applicable": 0, "marginal": 1, "fail (waived)": 2,
-                "incomplete": 3, "blocked": 3, "fail": 3, "error": 4}
-        worst = "pass"
-        for r in self.run.results:
-            s = r.status
-            if s == "fail" and self.sign_state(r.stage, r.check) == "waived":
-                s = "fail (waived)"
-            if rank.get(s, 0) > rank[worst]:
-                worst = s
-        return worst
+    def overall(self) -> tuple[str, str]:
+        """The project's result and review state, as two words: the worst result of any
+        check, and the worst review state among the checks with that result ("" without a
+        record). A waived marginal check reads ``marginal | waived``, never ``pass``."""
+        rank = {w: i for i, w in enumerate(states.RESULTS)}
+        results = self.run.results
+        if not results:
+            return "", ""
+        worst = min((r.status for r in results), key=lambda w: rank.get(w, -1))
+        order = {w: i for i, w in enumerate(states.REVIEWS)}
+        words = [self.review(r.stage, r.check) for r in results if r.status == worst]
+        words = [w for w in words if w]
+        review = min(words, key=lambda w: order.get(w, -1)) if words else ""
+        return worst, review
 
     # -- tolerance analysis and design aids ------------------------------------------------
     def store_yield(self, result: Result, y: Yield | None) -> None:
@@ -410,20 +446,31 @@ class Session:
             self.record, self.check_states = None, {}
             self.review_error = str(exc)
 
-    def sign_state(self, stage: str, check: str) -> str:
-        """The sign-off word of one check: stale, waived, approved, signed, unsigned or ""."""
+    def review(self, stage: str, check: str) -> str:
+        """The review word of one check (reviewer.states.review_word); "" with no record
+        state, and for a not-applicable check nobody signed (nothing to decide)."""
         st = self.check_states.get((stage, check))
         if st is None:
             return ""
-        if st.state == "stale":
-            return "stale"
-        if st.waiver == "waived" and st.status in WAIVABLE:
-            return "waived"
-        if st.approval == "approved":
-            return "approved"
-        if st.signoff == "signed":
-            return "signed"
-        return "" if st.status == "not-applicable" else "unsigned"
+        word = states.review_word(st)
+        if word == "unsigned" and st.status == "not-applicable":
+            return ""
+        return word
+
+    def covering(self, stage: str, check: str) -> list[tuple[str, Any, str]]:
+        """The entries in force on one check: ``(role, entry, state)`` for the sign-off, the
+        approval and the waiver, each with its state word (signed, stale, approved…)."""
+        st = self.check_states.get((stage, check))
+        if st is None:
+            return []
+        by_seq = {e.seq: e for e in self.entries()}
+        out = []
+        for role, seq, word in (("sign-off", st.signoff_seq, st.signoff),
+                                ("approval", st.approval_seq, st.approval),
+                                ("waiver", st.waiver_seq, st.waiver)):
+            if seq is not None and seq in by_seq:
+                out.append((role, by_seq[seq], word))
+        return out
 
     def sign_changed(self, stage: str, check: str) -> str:
         """What changed since the check was signed, in words ("" when nothing)."""
@@ -498,7 +545,7 @@ class Session:
     def check_matches(self, key: str, stage: str, check: str) -> bool:
         """Whether one check passes filter ``key`` (see reviewer.tui.attention)."""
         r = self.result(stage, check)
-        return attention.matches(key, r.status if r else "", self.sign_state(stage, check))
+        return attention.matches(key, r.status if r else "", self.review(stage, check))
 
     def filtered_checks(self, key: str, stage: str) -> list[str]:
         """The checks of ``stage`` that pass filter ``key``, in report order."""
@@ -588,6 +635,14 @@ class Session:
         entry = fn(self.path, note=text, stage=stage, checks=[f"manual:{qid}"])
         self.refresh_review()
         return entry
+
+    def verify(self) -> Any:
+        """Verify the record (chain, results seal, SSH signatures, staleness): the review
+        module's report. Slow (it recomputes and may run ssh-keygen): call it in a worker."""
+        mod = review_module()
+        if mod is None:
+            raise ProjectError(NOT_SIGNED)
+        return mod.verify(self.path)
 
     def entries(self) -> list[Any]:
         """The review record's history entries (empty when unknown)."""

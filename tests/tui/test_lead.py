@@ -50,7 +50,17 @@ def as_login(monkeypatch: pytest.MonkeyPatch, login: str) -> None:
 
 
 def footer(app) -> str:
-    return screen_text(app).splitlines()[-1]
+    """The key bar of the screen on top, as plain text (it wraps over lines at 80×24)."""
+    from reviewer.tui.widgets.keybar import KeyBar
+
+    return " ".join(app.screen.query_one(KeyBar).plain().split())
+
+
+def footer_keys(app) -> list[tuple[str, str, bool]]:
+    """The key bar's entries: (key, what it does, whether it applies now)."""
+    from reviewer.tui.widgets.keybar import KeyBar
+
+    return app.screen.query_one(KeyBar).keys
 
 
 def keys_of(table) -> list[str]:
@@ -262,7 +272,7 @@ def test_non_approver_is_refused_naming_the_approvers_before_review_is_asked(lin
         app = Workbook(Session(line / "kiln-base.toml"))
         async with app.run_test(size=SIZE) as pilot:
             await settle(pilot, app)
-            assert "Approve" not in footer(app)
+            assert ("a", "Approve", False) in footer_keys(app)  # shown, dimmed
             app.screen.query_one(StageTable).select_key("trigger")
             await pilot.press("a")
             await pilot.pause()
@@ -302,7 +312,7 @@ def test_approver_approves_a_stage_from_the_lead_view(line, monkeypatch):
                 if load_record(project).entries[-1].kind == "approval":
                     break
             await settle(pilot, app)
-            assert app.session.sign_state("trigger", "osc.window") == "approved"
+            assert app.session.review("trigger", "osc.window") == "approved"
     run(go())
     last = load_record(project).entries[-1]
     assert last.kind == "approval" and last.stage == "trigger"
@@ -407,6 +417,8 @@ def test_manual_answer_is_recorded_and_shows_after_reopening(line):
             await pilot.pause()
             assert "independent thermal cut-out" in str(
                 app.screen.query_one("#manual-detail").render())
+            await pilot.press("enter")  # the answer is asked in a dialog of its own
+            await pilot.pause()
             await pilot.press("y")
             await pilot.pause()
             assert isinstance(app.screen, SignDialog)
@@ -449,6 +461,8 @@ def test_manual_answers_are_refused_in_the_lead_view(line):
             await settle(pilot, app)
             app.open_manual("power")
             await pilot.pause()
+            await pilot.press("enter")
+            await pilot.pause()
             await pilot.press("n")
             await pilot.pause()
             assert isinstance(app.screen, SignDialog)
@@ -456,9 +470,9 @@ def test_manual_answers_are_refused_in_the_lead_view(line):
     run(go())
 
 
-def test_ctrl_q_still_quits_from_a_stage_whose_footer_leaves_it_out(line):
-    """The stage footer leaves ^q out for room (Esc leads back to the overview, which shows
-    it); the key itself still quits from there."""
+def test_ctrl_q_is_in_every_key_bar_and_quits_from_a_stage(line):
+    """Every screen's key bar lists ^q (it wraps instead of leaving keys out); the key quits
+    from a stage too."""
     async def go():
         app = Workbook(Session(line / "kiln-base.toml", read_only=True))
         async with app.run_test(size=SIZE) as pilot:
@@ -466,7 +480,7 @@ def test_ctrl_q_still_quits_from_a_stage_whose_footer_leaves_it_out(line):
             assert "^q Quit" in footer(app)
             app.open_stage("power")
             await pilot.pause()
-            assert "^q" not in footer(app) and "esc Back" in footer(app)
+            assert "^q Quit" in footer(app) and "esc Back" in footer(app)
             await pilot.press("ctrl+q")
             await pilot.pause()
         return app.return_value

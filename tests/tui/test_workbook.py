@@ -131,7 +131,7 @@ def test_waveform_view_draws_braille_for_an_oscillator(kiln):
             text = screen_text(app)
             assert any(0x2801 <= ord(ch) <= 0x28FF for ch in text)
             assert "timing capacitor voltage" in text and "worst corner" in text
-            await pilot.press("n")
+            await pilot.press("o")
             await pilot.pause()
             assert "at the nominal" in screen_text(app)
             assert app.screen.query(BrailleChart)
@@ -286,7 +286,7 @@ def test_sign_off_writes_a_history_entry(kiln):
             entries = load_record(kiln).entries
             assert len(entries) == 1 and entries[0].kind == "signoff"
             assert entries[0].stage == clean[0]
-            assert app.session.sign_state(clean[0], entries[0].checks[0]) == "signed"
+            assert app.session.review(clean[0], entries[0].checks[0]) == "signed"
             app.session.close()
     run(go())
 
@@ -384,7 +384,7 @@ def test_help_lists_every_key_and_the_cautions(kiln):
             await pilot.pause()
             assert isinstance(app.screen, HelpScreen)
             body = str(app.screen.query_one("Static").render())
-            for key in ("ctrl+z", "ctrl+y", "ctrl+s", "ctrl+q", "escape", "enter"):
+            for key in ("^z", "^y", "^s", "^q", "Esc", "Enter", "? / f1"):
                 assert key in body
             for screen in (OverviewScreen, StageScreen, CheckScreen):
                 for b in screen.BINDINGS:

@@ -39,6 +39,12 @@ class RevokeDialog(ModalScreen[tuple[int, str] | None]):
             yield Static("", id="revoke-error", markup=False)
             yield Label(Text("Enter on an entry, then the reason   Esc: cancel", style="dim"))
 
+    def on_mount(self) -> None:
+        # One entry offered (revoking from the history): it is chosen; type the reason.
+        if len(self.entries) == 1 and not self.refusal:
+            self.seq = self.entries[0][0]
+            self.query_one("#revoke-note", Input).focus()
+
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
         self.seq = int(event.option.id or 0)

@@ -2,76 +2,77 @@
 sign-off and approval dialogs, the attention filter, and the boundary where a user's mistake
 becomes a message, not a traceback.
 
-The footer shows a key only where it applies now (Save with unsaved edits, Approve for an
-approver, Waive on a failing check…); the same key pressed where it does not apply still
-answers, through a hidden twin binding that says why (:func:`applies`).
+Screens reach the app only through :class:`reviewer.tui.host.Host` (they never import it).
+Every key a screen has is in its key bar; a key whose action does not apply now is dimmed
+there (:meth:`WorkbookScreen.applies_now`) and, pressed anyway, says why.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
-from typing import TYPE_CHECKING, Any, cast
+from typing import Any, cast
 
 from rich.text import Text
 from textual.binding import Binding
 from textual.screen import Screen
 
+from reviewer import states
 from reviewer.edits import shown_text
 from reviewer.errors import LatchbookError
 from reviewer.fmt import DIM_UNIT
 from reviewer.model import Value
 from reviewer.states import WAIVABLE
-from reviewer.textsafe import visible
 from reviewer.tui import attention, present
 from reviewer.tui.dialogs.edit_value import EditValueDialog
 from reviewer.tui.dialogs.pick_value import PickValueDialog
 from reviewer.tui.dialogs.revoke import RevokeDialog
 from reviewer.tui.dialogs.sign import SignDialog
+from reviewer.tui.host import Host
 from reviewer.tui.messages import AnalysisChanged, ResultsChanged
 from reviewer.tui.session import Session, State
 from reviewer.units import DIMS
 
-if TYPE_CHECKING:
-    from reviewer.tui.app import Workbook
-
-def applies(key: str, action: str, description: str, *, show: bool = True) -> list[Binding]:
-    """A binding shown only while :meth:`WorkbookScreen.applies_now` allows ``action``, and its
-    hidden twin on the same key, which runs the action anyway so that it can say why not."""
-    return [Binding(key, action, description, show=show),
-            Binding(key, f"explain('{action}')", description, show=False)]
-
-
-# Inner screens keep ctrl+q (the app's Quit) out of their footer for room: Esc leads back to
-# the overview, which shows it, and the help lists it.
-QUIET_QUIT = Binding("ctrl+q", "app.leave", "Quit", show=False, priority=True)
-
-# The actions whose footer entry follows WorkbookScreen.applies_now (each bound via applies()).
-DYNAMIC = frozenset({"edit", "undo", "redo", "save", "sign", "sign_check", "waive", "approve",
-                     "manual"})
+BACK = Binding("escape", "back", "Back")
 
 HINT = ('Same grammar as the file: 47 kohm ±5%, 4k7, 230 V +10% -15%, '
         '{ min = "10 kohm", max = "110 kohm" }')
+
+
+#: What the signer declares, by meaning (a waiver's words follow the result it covers).
+DECLARATION = {"reviewed": "I reviewed these results against the checklist.",
+               "approved": "I approve this stage's review."}
+WAIVER_WORDS = {
+    "fail": "I accept this failure, for the reason given.",
+    "marginal": "I accept this marginal result (it meets the limit, with less than the "
+                "checklist's margin to spare), for the reason given.",
+}
+
+
+def waiver_words(result: str) -> str:
+    """What a waiver of a check with ``result`` declares."""
+    return WAIVER_WORDS.get(result, f"I accept this {states.result_word(result)} result, "
+                                    "for the reason given.")
 
 
 class WorkbookScreen(Screen[None]):
     """Base of the workbook's screens."""
 
     BINDINGS = [
-        *applies("e", "edit", "Edit"),
-        *applies("ctrl+z", "undo", "Undo"),
-        *applies("ctrl+y", "redo", "Redo", show=False),
-        *applies("ctrl+s", "save", "Save"),
+        Binding("e", "edit", "Edit"),
+        Binding("ctrl+z", "undo", "Undo"),
+        Binding("ctrl+y", "redo", "Redo"),
+        Binding("ctrl+s", "save", "Save"),
     ]
 
     @property
-    def workbook(self) -> Workbook:
-        """The app, typed."""
-        return cast("Workbook", self.app)
+    def host(self) -> Host:
+        """The app, as far as a screen may use it."""
+        return cast(Host, self.app)
 
     @property
     def session(self) -> Session:
         """The open project."""
-        return self.workbook.session
+        return self.host.session
 
     # -- refresh ------------------------------------------------------------------------
     def refresh_view(self) -> None:
@@ -93,7 +94,7 @@ class WorkbookScreen(Screen[None]):
 
     # -- which keys apply ---------------------------------------------------------------
     def applies_now(self, action: str) -> bool:
-        """Whether ``action`` applies in the current state (its footer entry shows)."""
+        """Whether ``action`` applies in the current state (else its key is dimmed)."""
         s = self.session
         if action == "edit":
             return not s.read_only
@@ -103,35 +104,35 @@ class WorkbookScreen(Screen[None]):
             return not s.read_only and s.can_redo
         if action == "save":
             return not s.read_only and s.dirty
-        if action in ("sign", "sign_check", "waive"):
+        if action in ("sign", "sign_check", "waive", "revoke"):
             return not s.read_only and s.review_available
         if action == "approve":
             return not s.approval_problem()
         return True
 
-    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        if action in DYNAMIC:
-            return self.applies_now(action)
-        return True
+    def action_help(self) -> None:
+        self.host.show_help()
 
-    def action_explain(self, action: str) -> None:
-        """A key pressed where its action does not apply: run it, so it says why."""
-        fn = getattr(self, f"action_{action}", None)
-        if fn is not None:
-            fn()
+    def action_history(self) -> None:
+        """The review record's history (the history screen narrows it to where you are)."""
+        self.host.open_history(*self.history_scope())
+
+    def history_scope(self) -> tuple[str | None, str | None]:
+        """The stage and check the history opens filtered to (None: everything)."""
+        return None, None
 
     # -- the attention filter -----------------------------------------------------------
     @property
     def filter_key(self) -> str:
         """The filter in force (shared by the overview and every stage's checklist)."""
-        return self.workbook.filter_key
+        return self.host.filter_key
 
     def filter_label(self) -> str:
         """The banner's word for the filter ("" when every check shows)."""
         return "" if self.filter_key == "all" else attention.BY_KEY[self.filter_key].label
 
     def action_cycle_filter(self) -> None:
-        f = attention.BY_KEY[self.workbook.cycle_filter()]
+        f = attention.BY_KEY[self.host.cycle_filter()]
         self.refresh_all()
         self.notify(f"filter: {f.label} — {f.rule}", markup=False)
 
@@ -218,12 +219,14 @@ class WorkbookScreen(Screen[None]):
             return
         paths = [state.edits[-1].path] if state.edits else None
         before = set(self.session.project.warnings)
-        self.session.push(state)
-        self.workbook.computer.start(paths)
-        self.notify(visible(f"changed {state.label}; recomputing what depends on it"),
-                    markup=False)
+        # The journal (a synced file write) goes after the repaint: the table first.
+        self.session.push(state, journal=False)
+        self.app.call_after_refresh(self.session.write_journal)
+        self.host.recompute(paths)
+        # No toast: the banner counts the unsaved edits and Δ marks what the edit changed
+        # (a toast would cover the banner at 80 columns and cost a repaint of its own).
         if set(self.session.project.warnings) - before:
-            self.workbook.notify_warnings()
+            self.host.notify_warnings()
         self.refresh_all()
 
     def action_undo(self) -> None:
@@ -236,7 +239,7 @@ class WorkbookScreen(Screen[None]):
         if undone is None:
             self.notify("nothing to undo", markup=False)
             return
-        self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
+        self.host.recompute(self.session.edited_paths(before, self.session.index))
         self.notify(f"undone: {undone.label}", markup=False)
         self.refresh_all()
 
@@ -250,7 +253,7 @@ class WorkbookScreen(Screen[None]):
         if redone is None:
             self.notify("nothing to redo", markup=False)
             return
-        self.workbook.computer.start(self.session.edited_paths(before, self.session.index))
+        self.host.recompute(self.session.edited_paths(before, self.session.index))
         self.notify(f"redone: {redone.label}", markup=False)
         self.refresh_all()
 
@@ -295,10 +298,11 @@ class WorkbookScreen(Screen[None]):
             out.append(f"  {r.check:<24} ")
             out.append_text(present.status_text(r.status))
             out.append(f"  inputs {present.short_hash(r.inputs_sha256)}\n", style="dim")
-        words = {"reviewed": "I reviewed these results against the checklist.",
-                 "approved": "I approve this stage's review.",
-                 "waived": "I accept this failure, for the reason given."}
-        out.append(words.get(meaning, meaning))
+        if meaning == "waived":
+            if rows and rows[0].status in WAIVABLE:  # else the refusal below says why not
+                out.append(waiver_words(rows[0].status))
+        else:
+            out.append(DECLARATION.get(meaning, meaning))
         if meaning == "approved":
             out.append(f"\n{self.session.approvers_text()}", style="bold")
         out.append(f"\nsigned as {self._login()}; the record is tamper-evident, not "
@@ -332,8 +336,12 @@ class WorkbookScreen(Screen[None]):
         """Ask for the justification, then waive a failing check."""
         r = self.session.result(stage, check)
         refusal = self.refusal()
-        if not refusal and (r is None or r.status not in WAIVABLE | {"error"}):
-            refusal = "only a failing, blocked, incomplete or marginal check can be waived"
+        if not refusal and r is not None and r.status == "error":
+            refusal = "a computation error cannot be waived: it is a defect; please report it"
+        elif not refusal and (r is None or r.status not in WAIVABLE):
+            refusal = ("only a check that needs attention can be waived (" + ", ".join(
+                sorted(WAIVABLE)) + f"); this one is {states.result_word(r.status)}"
+                if r is not None else "the check has no result yet")
 
         def done(note: str | None) -> None:
             if note is None:
@@ -341,7 +349,8 @@ class WorkbookScreen(Screen[None]):
             self.background(f"waiving {stage} · {check}", lambda: self.session.waive(
                 stage=stage, check=check, note=note),
                 lambda e: f"waived {stage} · {check} (entry #{getattr(e, 'seq', '?')}): "
-                          "reported as fail (waived)")
+                          f"reported as {states.result_word(r.status if r else 'fail')} | "
+                          "waived")
 
         self.app.push_screen(SignDialog(f"Waive {stage} · {check}",
                                         self.what_is_signed(stage, [check], "waived"),
@@ -376,11 +385,13 @@ class WorkbookScreen(Screen[None]):
         if self.app.screen is not self:
             self.app.screen.post_message(ResultsChanged(True))
 
-    def revoke_entry(self) -> None:
-        """Choose an entry of the history and revoke it, with a reason."""
+    def revoke_entry(self, only: int | None = None) -> None:
+        """Choose an entry of the history (or take entry ``only``) and revoke it, with a
+        reason."""
         refusal = self.refusal()
         lines = [(e.seq, f"{e.title()}  {e.at or ''}") for e in self.session.entries()
-                 if e.kind in ("signoff", "approval", "waiver")]
+                 if e.kind in ("signoff", "approval", "waiver")
+                 and (only is None or e.seq == only)]
 
         def done(answer: tuple[int, str] | None) -> None:
             if answer is None:

@@ -10,16 +10,17 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import VerticalScroll
-from textual.widgets import ContentSwitcher, Footer, Static
+from textual.widgets import ContentSwitcher, Static
 
 from reviewer.aids import failing
 from reviewer.engine import Result
 from reviewer.states import WAIVABLE
 from reviewer.tui import analysis
 from reviewer.tui.dialogs.pick_value import PickValueDialog
-from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
+from reviewer.tui.screens.base import BACK, WorkbookScreen
 from reviewer.tui.widgets.banner import Banner, banner_parts
 from reviewer.tui.widgets.detail import CheckDetail, detail_head, detail_text
+from reviewer.tui.widgets.keybar import KeyBar
 from reviewer.tui.widgets.tolerance import AidView, TolerancePanel, ToleranceView
 from reviewer.tui.widgets.waveform import WaveformView
 from reviewer.waveforms import picture
@@ -30,17 +31,15 @@ class CheckScreen(WorkbookScreen):
 
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
-        Binding("escape", "back", "Back"),
-        QUIET_QUIT,
+        BACK,
         Binding("v", "toggle_view", "Wave"),
-        Binding("n", "toggle_corner", "Corner", show=False),
+        Binding("o", "toggle_corner", "Corner"),
         Binding("y", "yield", "Yield"),
-        Binding("i", "aid_input", "Aid input", show=False),
+        Binding("i", "aid_input", "Aid input"),
         Binding("t", "try_value", "Try"),
-        *applies("c", "sign_check", "Sign"),
-        *applies("w", "waive", "Waive"),
-        *applies("ctrl+z", "undo", "Undo", show=False),
-        *applies("ctrl+s", "save", "Save", show=False),
+        Binding("c", "sign_check", "Sign"),
+        Binding("w", "waive", "Waive"),
+        Binding("h", "history", "History"),
     ]
 
     def __init__(self, stage: str, check: str, *, waveform: bool = False) -> None:
@@ -59,13 +58,13 @@ class CheckScreen(WorkbookScreen):
                 yield TolerancePanel(id="tolerance")
                 yield CheckDetail(id="detail")
             yield WaveformView(id="wave")
-        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
+        yield KeyBar()
 
     def on_mount(self) -> None:
         if self.start_on_wave:
             self.query_one(ContentSwitcher).current = "wave"
         self.refresh_view()
-        self.query_one("#detail-scroll").focus()
+        self._keep_focus()
 
     def refresh_view(self) -> None:
         s = self.session
@@ -82,18 +81,29 @@ class CheckScreen(WorkbookScreen):
         self.view = self._tolerance(r)
         self.query_one(TolerancePanel).show(self.view)
         self.refresh_bindings()
-        detail.show(detail_text(r, s.project, sign_state=s.sign_state(self.stage, self.check),
+        detail.show(detail_text(r, s.project, review=s.review(self.stage, self.check),
+                                covering=s.covering(self.stage, self.check),
                                 origin=s.origin_of if s.has_chain else None,
                                 changed=s.sign_changed(self.stage, self.check),
                                 signing=s.review_available, limits=limits, head=False))
         if self.query_one(ContentSwitcher).current == "wave":
             self.query_one(WaveformView).show(picture(r, s.project, self.corner))
+        self._keep_focus()
+
+    def _keep_focus(self) -> None:
+        """The pane on show has the focus (arrows and page keys scroll it), whatever was
+        redrawn or switched; a dialog on top keeps its own."""
+        if self.app.screen is not self:
+            return
+        pane = self.query_one(f"#{self.query_one(ContentSwitcher).current}")
+        if self.focused is not pane:
+            pane.focus()
 
     # -- tolerance analysis and the design aid --------------------------------------------
     def _tolerance(self, r: Result) -> ToleranceView:
         s = self.session
         y = s.yield_of(self.stage, self.check)
-        view = ToleranceView(yield_=y, running=s.yield_progress is not None,
+        view = ToleranceView(yield_=y, running=s.yield_progress is not None, status=r.status,
                              ranking=analysis.ranking(r),
                              plot=analysis.yield_plot(r, y) if y is not None else None)
         if r.evaluation is None or not failing(r):
@@ -115,24 +125,24 @@ class CheckScreen(WorkbookScreen):
             aid.try_text = analysis.edit_text(inp.value, x) if x is not None else ""
         else:
             aid.pending = True
-            self.workbook.analyst.start_aid(r, name)
+            self.host.start_aid(r, name)
         return view
 
-    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        # "Try" is in the footer only while the design aid has a value to try.
+    def applies_now(self, action: str) -> bool:
         if action == "try_value":
             return bool(self.view.aid.try_text)
-        return super().check_action(action, parameters)
-
-    def applies_now(self, action: str) -> bool:
+        if action == "aid_input":
+            return self.view.aid.offered and self.view.aid.choices > 0
         if action == "waive":
             r = self.session.result(self.stage, self.check)
-            return super().applies_now(action) and r is not None and \
-                r.status in WAIVABLE
+            return super().applies_now(action) and r is not None and r.status in WAIVABLE
         return super().applies_now(action)
 
+    def history_scope(self) -> tuple[str | None, str | None]:
+        return self.stage, self.check
+
     def action_yield(self) -> None:
-        self.workbook.analyst.start_yield(self.stage)
+        self.host.start_yield(self.stage)
 
     def action_aid_input(self) -> None:
         r = self.session.result(self.stage, self.check)
@@ -142,7 +152,8 @@ class CheckScreen(WorkbookScreen):
             return
         inputs = analysis.aid_inputs(r)
         if not inputs:
-            self.notify("no input of this check can be scaled", markup=False)
+            self.notify("none of the values a designer chooses here changes this check",
+                        markup=False)
             return
         current = self.view.aid.path
         cands = [(a.path, f"share {a.share * 100:.0f} %", a.path == current) for a in inputs]
@@ -184,6 +195,7 @@ class CheckScreen(WorkbookScreen):
         sw = self.query_one(ContentSwitcher)
         sw.current = "detail-scroll" if sw.current == "wave" else "wave"
         self.refresh_view()
+        self._keep_focus()
 
     def action_toggle_corner(self) -> None:
         self.corner = "nominal" if self.corner == "worst" else "worst"

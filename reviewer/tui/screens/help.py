@@ -9,20 +9,31 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from reviewer.tui.safety import GENERAL, SAFETY_LINE
+from reviewer.tui.widgets.keybar import KeyBar
+
+# How a key is written for people (the rest: as Textual names it, ctrl+s as ^s).
+KEY_NAMES = {"question_mark": "?", "slash": "/", "escape": "Esc", "enter": "Enter"}
+
+
+def key_name(key: str) -> str:
+    """``question_mark,f1`` → ``? / f1``; ``ctrl+s`` → ``^s``."""
+    names = []
+    for k in key.split(","):
+        k = k.strip()
+        names.append(KEY_NAMES.get(k, "^" + k[5:] if k.startswith("ctrl+") else k))
+    return " / ".join(names)
 
 
 def _rows(bindings: list[BindingType]) -> list[tuple[str, str]]:
     out = []
     for b in bindings:
         if isinstance(b, Binding):
-            if b.action.startswith("explain(") or b.action == "app.leave":
-                continue  # the hidden twin of a key, or ctrl+q: each listed once already
-            out.append((b.key.replace(",", " / "), b.description or b.action))
+            out.append((key_name(b.key), b.description or b.action))
         elif isinstance(b, tuple):
-            out.append((str(b[0]).replace(",", " / "), str(b[2]) if len(b) > 2 else str(b[1])))
+            out.append((key_name(str(b[0])), str(b[2]) if len(b) > 2 else str(b[1])))
     return out
 
 
@@ -34,13 +45,15 @@ def help_text(sections: list[tuple[str, list[BindingType]]], notes: Text | None 
     for title, bindings in sections:
         out.append(f"\n{title}\n", style="bold underline")
         for key, what in _rows(bindings):
-            out.append(f"  {key:<16}", style="bold")
-            out.append(f"{what}\n")
+            out.append(f"  {key:<10}", style="bold")
+            out.append(f" {what}\n")
     out.append("\nValues are typed in the file's grammar: 47 kohm ±5%, 4k7, 230 V +10% -15%, "
                '{ min = "10 kohm", max = "110 kohm" }, a bare number only where the key has '
                "no unit.\n")
     out.append("Sign-offs cover the file on disk: save (or undo) edits first. A waiver needs "
-               "a written reason and reads \"fail (waived)\", never pass.\n")
+               "a written reason and reads \"FAIL | waived\", never pass.\n")
+    out.append("ctrl+p finds any check, value, stage or command, and the other projects of "
+               "the folder: type a few letters (\"junction\", \"report\").\n")
     if notes is not None:
         out.append("\n")
         out.append_text(notes)
@@ -66,7 +79,7 @@ class HelpScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-scroll"):
             yield Static(help_text(self.sections, self.notes), markup=False)
-        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.query_one("#help-scroll").focus()

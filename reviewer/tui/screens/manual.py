@@ -1,5 +1,8 @@
 """The checklist's manual questions for one stage: answer yes, no or not applicable, with a note.
 
+Enter on a question asks for the answer (y yes, n no, x not applicable, in the dialog: the
+screen's own keys keep the meaning they have everywhere), then for a note.
+
 Answers are kept in the review record's history as notes tagged ``manual:<id>`` (append-only,
 like everything there); the latest answer to a question is the one shown, and below the table
 the highlighted question in full with its answer's note and who gave it.
@@ -12,11 +15,14 @@ from pathlib import Path
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.widgets import DataTable, Footer, Static
+from textual.containers import VerticalScroll
+from textual.widgets import DataTable, Static
 
+from reviewer.tui.dialogs.choice import ChoiceDialog
 from reviewer.tui.dialogs.sign import SignDialog
-from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen
+from reviewer.tui.screens.base import BACK, WorkbookScreen
 from reviewer.tui.widgets.banner import Banner, banner_parts
+from reviewer.tui.widgets.keybar import KeyBar
 
 ANSWERS = {"y": "yes", "n": "no", "x": "not applicable"}
 
@@ -26,11 +32,9 @@ class ManualScreen(WorkbookScreen):
 
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
-        Binding("escape", "back", "Back"),
-        QUIET_QUIT,
-        Binding("y", "answer('y')", "Yes"),
-        Binding("n", "answer('n')", "No"),
-        Binding("x", "answer('x')", "Not applicable"),
+        BACK,
+        Binding("enter", "ask", "Answer"),
+        Binding("h", "history", "History"),
     ]
 
     def __init__(self, stage: str) -> None:
@@ -41,13 +45,14 @@ class ManualScreen(WorkbookScreen):
         yield Banner()
         yield Static("", id="manual-note", markup=False)
         yield DataTable(id="manual-table", cursor_type="row")
-        yield Static("", id="manual-detail", markup=False)
-        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
+        with VerticalScroll(id="manual-detail-box"):
+            yield Static("", id="manual-detail", markup=False)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         table = self.query_one(DataTable)
-        table.add_column(Text("question", style="bold"), key="q", width=52)
-        table.add_column(Text("answer", style="bold"), key="a", width=16)
+        table.add_column(Text("question", style="bold"), key="q", width=57)
+        table.add_column(Text("answer", style="bold"), key="a", width=14)
         self.refresh_view()
         table.focus()
 
@@ -63,7 +68,7 @@ class ManualScreen(WorkbookScreen):
             qid = q.get("id", "?")
             ans = answers.get(qid)
             cell = Text(ans[0], style="bold") if ans else Text("unanswered", style="dim")
-            table.add_row(Text(f"{qid}: {q.get('question', '')}"), cell, key=qid)
+            table.add_row(Text(f"{qid}: {q.get('question', '')}"), cell, key=qid, height=None)
         if qs:
             table.move_cursor(row=min(max(row, 0), len(qs) - 1), animate=False)
         note = "" if qs else ("the checklist asks no manual questions of a "
@@ -90,7 +95,7 @@ class ManualScreen(WorkbookScreen):
             out.append(q.get("question", ""))
             ans = self.session.manual_answers(self.stage).get(qid or "")
             if ans is None:
-                out.append("\nunanswered — y yes, n no, x not applicable", style="dim")
+                out.append("\nunanswered — Enter answers it", style="dim")
             else:
                 answer, note, who = ans
                 out.append("\nanswered ")
@@ -105,6 +110,34 @@ class ManualScreen(WorkbookScreen):
 
     def action_back(self) -> None:
         self.dismiss()
+
+    def history_scope(self) -> tuple[str | None, str | None]:
+        return self.stage, None
+
+    def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
+        event.stop()
+        self.action_ask()
+
+    def action_ask(self) -> None:
+        """Ask for the answer to the highlighted question, then for its note."""
+        qid = self._current()
+        if qid is None:
+            self.notify("no manual question here", markup=False)
+            return
+
+        def chosen(key: str | None) -> None:
+            if key in ANSWERS:
+                self.action_answer(key)
+
+        self.app.push_screen(ChoiceDialog(
+            f"Answer {qid}", self._question(qid),
+            [("y", "y", "yes"), ("n", "n", "no"), ("x", "x", "not applicable"),
+             ("escape", "", "cancel")]), chosen)
+
+    def _question(self, qid: str) -> Text:
+        q = next((m for m in self.session.manual_questions(self.stage) if m.get("id") == qid),
+                 {})
+        return Text(str(q.get("question", "")))
 
     def action_answer(self, key: str) -> None:
         table = self.query_one(DataTable)

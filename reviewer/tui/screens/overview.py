@@ -9,12 +9,13 @@ from pathlib import Path
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from reviewer.engine import status_counts
 from reviewer.tui import attention
-from reviewer.tui.screens.base import WorkbookScreen, applies
+from reviewer.tui.screens.base import WorkbookScreen
 from reviewer.tui.widgets.banner import Banner, banner_parts
+from reviewer.tui.widgets.keybar import KeyBar
 from reviewer.tui.widgets.tables import StageTable
 
 
@@ -23,12 +24,13 @@ class OverviewScreen(WorkbookScreen):
 
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
-        Binding("enter", "open_stage", "Open", show=True),
-        *applies("s", "sign", "Sign"),
-        Binding("y", "yield", "Yield (all)"),
+        Binding("enter", "open_stage", "Open"),
+        Binding("s", "sign", "Sign stage"),
+        Binding("a", "approve", "Approve"),
+        Binding("r", "revoke", "Revoke"),
+        Binding("h", "history", "History"),
+        Binding("y", "yield", "Yield"),
         Binding("f", "cycle_filter", "Filter"),
-        *applies("a", "approve", "Approve"),
-        Binding("r", "revoke", "Revoke", show=False),
     ]
 
     def compose(self) -> ComposeResult:
@@ -37,7 +39,7 @@ class OverviewScreen(WorkbookScreen):
         yield StageTable(id="stages")
         yield Static("", id="overview-totals", markup=False)
         yield Static("", id="overview-safety", markup=False)
-        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.refresh_view()
@@ -78,20 +80,23 @@ class OverviewScreen(WorkbookScreen):
                    if (y := s.yield_of(r.stage, r.check)) is not None]
         if sampled:
             worst, r = max(sampled, key=lambda x: x[0])
-            tot.append(f"  · Monte Carlo on {len(sampled)}: worst {worst * 100:.2f} % fail "
-                       f"({r.stage} · {r.check})", style="bold" if worst > 0 else "")
+            if worst > 0:
+                tot.append(f"  · Monte Carlo on {len(sampled)}: worst {worst * 100:.2f} % fail "
+                           f"({r.stage} · {r.check})", style="bold")
+            else:
+                tot.append(f"  · Monte Carlo on {len(sampled)}: no sample failed")
         self.query_one("#overview-totals", Static).update(tot)
         self.query_one("#overview-safety", Static).update(Text(
             "⚠ Mains circuits can kill. A pass means the computed margin meets the checklist "
             "limit; nothing here shows compliance with any standard.", style="italic dim"))
 
     def on_stage_table_stage_chosen(self, event: StageTable.StageChosen) -> None:
-        self.workbook.open_stage(event.stage)
+        self.host.open_stage(event.stage)
 
     def action_open_stage(self) -> None:
         key = self.query_one(StageTable).current_key
         if key:
-            self.workbook.open_stage(key)
+            self.host.open_stage(key)
 
     def _stage(self) -> str | None:
         return self.query_one(StageTable).current_key
@@ -108,4 +113,4 @@ class OverviewScreen(WorkbookScreen):
         self.revoke_entry()
 
     def action_yield(self) -> None:
-        self.workbook.analyst.start_yield(None)
+        self.host.start_yield(None)

@@ -9,14 +9,16 @@ from pathlib import Path
 from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.widgets import Footer, Static
+from textual.containers import VerticalScroll
+from textual.widgets import Static
 
 from reviewer.schema import CATALOGUE
 from reviewer.states import WAIVABLE
 from reviewer.textsafe import visible
 from reviewer.tui import attention, present
-from reviewer.tui.screens.base import QUIET_QUIT, WorkbookScreen, applies
+from reviewer.tui.screens.base import BACK, WorkbookScreen
 from reviewer.tui.widgets.banner import Banner, banner_parts
+from reviewer.tui.widgets.keybar import KeyBar
 from reviewer.tui.widgets.tables import ChecklistTable
 
 
@@ -25,19 +27,17 @@ class StageScreen(WorkbookScreen):
 
     CSS_PATH = Path(__file__).with_suffix(".tcss")
     BINDINGS = [
-        Binding("escape", "back", "Back"),
-        QUIET_QUIT,
+        BACK,
         Binding("enter", "open_check", "Detail"),
-        *applies("s", "sign", "Sign"),
-        Binding("c", "sign_check", "Sign one", show=False),
-        *applies("w", "waive", "Waive"),
-        *applies("m", "manual", "Manual"),
+        Binding("s", "sign", "Sign stage"),
+        Binding("c", "sign_check", "Sign"),
+        Binding("w", "waive", "Waive"),
+        Binding("m", "manual", "Manual"),
+        Binding("a", "approve", "Approve"),
+        Binding("r", "revoke", "Revoke"),
+        Binding("h", "history", "History"),
         Binding("y", "yield", "Yield"),
         Binding("f", "cycle_filter", "Filter"),
-        *applies("ctrl+z", "undo", "Undo", show=False),
-        *applies("ctrl+s", "save", "Save", show=False),
-        *applies("a", "approve", "Approve"),
-        Binding("r", "revoke", "Revoke", show=False),
     ]
 
     def __init__(self, stage: str) -> None:
@@ -48,8 +48,9 @@ class StageScreen(WorkbookScreen):
     def compose(self) -> ComposeResult:
         yield Banner(id="banner")
         yield ChecklistTable(id="checklist")
-        yield Static("", id="stage-summary", markup=False)
-        yield Footer(compact=True, show_command_palette=False)  # ctrl+p: in the help
+        with VerticalScroll(id="stage-summary-box"):
+            yield Static("", id="stage-summary", markup=False)
+        yield KeyBar()
 
     def on_mount(self) -> None:
         self.refresh_view()
@@ -73,7 +74,7 @@ class StageScreen(WorkbookScreen):
         shown = every if self.filter_key == "all" else \
             [c for c in every if s.check_matches(self.filter_key, self.stage, c)]
         table.show(shown, results, order=every,
-                   sign_state=lambda c: s.sign_state(self.stage, c),
+                   review=lambda c: s.review(self.stage, c),
                    changed={c for st, c in s.changed if st == self.stage},
                    limits=s.checklist.limits_for, signing=s.review_available,
                    yields=lambda c: s.yield_of(self.stage, c))
@@ -92,10 +93,13 @@ class StageScreen(WorkbookScreen):
                        style="dim")
         elif r is not None:
             out.append(f"{r.check}: ", style="bold")
-            out.append_text(present.status_text(r.status))
+            out.append_text(present.state_text(r.status, self.session.review(self.stage,
+                                                                             r.check)))
             y = self.session.yield_of(self.stage, r.check)
             if y is not None:
-                out.append(f"  Monte Carlo {y.fail_fraction * 100:.2f} % fail", style="bold")
+                out.append("  Monte Carlo: ", style="bold")
+                out.append_text(present.yield_cell(y))
+                out.append(" % fail" if 0 < y.fail_fraction < 1 else " failed", style="bold")
             out.append(f"  {visible(r.summary)}")
         elif self.check:
             out.append(f"{self.check}: computing…", style="italic")
@@ -109,18 +113,17 @@ class StageScreen(WorkbookScreen):
     def applies_now(self, action: str) -> bool:
         if action == "waive":
             r = self.session.result(self.stage, self.check) if self.check else None
-            return super().applies_now(action) and r is not None and \
-                r.status in WAIVABLE
+            return super().applies_now(action) and r is not None and r.status in WAIVABLE
         if action == "manual":
             return bool(self.session.manual_questions(self.stage))
         return super().applies_now(action)
 
     def on_checklist_table_check_chosen(self, event: ChecklistTable.CheckChosen) -> None:
-        self.workbook.open_check(self.stage, event.check)
+        self.host.open_check(self.stage, event.check)
 
     def action_open_check(self) -> None:
         if self.check:
-            self.workbook.open_check(self.stage, self.check)
+            self.host.open_check(self.stage, self.check)
 
     def action_back(self) -> None:
         self.dismiss()
@@ -151,7 +154,10 @@ class StageScreen(WorkbookScreen):
         self.revoke_entry()
 
     def action_yield(self) -> None:
-        self.workbook.analyst.start_yield(self.stage)
+        self.host.start_yield(self.stage)
 
     def action_manual(self) -> None:
-        self.workbook.open_manual(self.stage)
+        self.host.open_manual(self.stage)
+
+    def history_scope(self) -> tuple[str | None, str | None]:
+        return self.stage, None

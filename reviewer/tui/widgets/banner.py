@@ -29,7 +29,8 @@ def banner_parts(session: Session, where: str = "", filter_label: str = "",
     if p.variant_of:
         parts.append((2, Text(f" · variant of {visible(p.variant_of)}", style="dim")))
     state = Text("  ")
-    state.append_text(present.status_text(session.overall() if session.computed else ""))
+    state.append_text(present.state_text(*session.overall()) if session.computed
+                      else present.status_text(""))
     parts.append((9, state))
     if session.dirty:
         n = len(session.state.edits)

@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 from rich.text import Text
@@ -57,6 +58,8 @@ def input_rows(result: Result, project: Project,
     rows = []
     for name in ev.names:
         inp = bound.inputs.get(name)
+        if inp is not None and not present.shown_path(inp.path):
+            continue
         arr = np.asarray(ev.inputs[name])
         dim = inp.value.dim if inp else ""
         path = inp.path.split("#")[0] + (" (assumed)" if inp and "#assumed" in inp.path else "") \
@@ -80,6 +83,9 @@ def detail_head(result: Result, limits: dict[str, float]) -> Text:
     out.append_text(present.status_text(result.status))
     out.append("   margin ")
     out.append_text(present.margin_text(result.margin))
+    if result.status == "marginal" and result.margin is not None and result.margin < 0:
+        out.append(" (an advisory check: past its level it reads marginal, never fail)",
+                   style="dim")
     out.append("   worst vs limit ")
     out.append_text(present.worst_vs_limit(result, limits))
     out.append("\n")
@@ -87,12 +93,30 @@ def detail_head(result: Result, limits: dict[str, float]) -> Text:
     return out
 
 
-def detail_text(result: Result, project: Project, *, sign_state: str, changed: object,
+def entry_lines(role: str, entry: Any, state: str) -> Text:
+    """One entry covering a check, as the lead reads it: what, who, when, the entry number,
+    whether it still holds, and the note."""
+    out = Text()
+    meaning = getattr(entry, "meaning", "") or role
+    out.append(f"  {role} ", style="bold")
+    out.append(f"({meaning}) ")
+    out.append_text(present.review_text(state))
+    out.append(f"  entry #{entry.seq}\n", style="bold")
+    at = entry.at.strftime("%Y-%m-%d %H:%M UTC") if getattr(entry, "at", None) else "no date"
+    out.append(f"    by {entry.who()} on {at}\n")
+    note = getattr(entry, "note", "")
+    out.append(f"    “{note}”\n" if note else "    (no note)\n", style="" if note else "dim")
+    return out
+
+
+def detail_text(result: Result, project: Project, *, review: str, changed: object,
                 signing: bool, limits: dict[str, float], head: bool = True,
-                origin: Callable[[str], str] | None = None) -> Text:
+                origin: Callable[[str], str] | None = None,
+                covering: list[tuple[str, Any, str]] | None = None) -> Text:
     """Everything the detail view says about one check, as one Text (no markup parsed);
     ``head=False`` leaves out :func:`detail_head` (the screen shows it above the analysis);
-    ``origin`` (variants): an input's path → the file its value came from."""
+    ``origin`` (variants): an input's path → the file its value came from; ``covering``: the
+    record's entries in force on the check (Session.covering)."""
     defn = CHECKS.get(result.check)
     stage = project.stages.get(result.stage)
     out = detail_head(result, limits) if head else Text()
@@ -119,7 +143,8 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
             out.append("\n")
     if result.worst:
         out.append_text(_head("Worst corner"))
-        out.append("  " + ", ".join(f"{k} = {v}" for k, v in result.worst.items()) + "\n")
+        out.append("  " + ", ".join(f"{present.path_text(k)} = {v}" for k, v in
+                                    result.worst.items() if present.shown_path(k)) + "\n")
     if result.values:
         out.append_text(_head("Values (nominal, min … max)"))
         for name, st in result.values.items():
@@ -137,12 +162,20 @@ def detail_text(result: Result, project: Project, *, sign_state: str, changed: o
         out.append_text(_head("Notes"))
         for n in result.notes:
             out.append(f"  • {n}\n")
-    out.append_text(_head("Sign-off"))
+    out.append_text(_head("Review"))
     if signing:
-        out.append(f"  {sign_state or 'unsigned'}")
+        out.append("  ")
+        out.append_text(present.state_text(result.status, review or "unsigned"))
+        out.append("\n")
         if changed:
-            out.append(f" — changed since signed: {changed}", style="bold yellow")
-        out.append(f"\n  inputs hash {present.short_hash(result.inputs_sha256)}\n")
+            out.append(f"  changed since signed: {changed}\n", style="bold yellow")
+        for role, entry, state in covering or []:
+            out.append_text(entry_lines(role, entry, state))
+        if not covering:
+            out.append("  no sign-off, approval or waiver covers this check (h: the history)\n",
+                       style="dim")
+        out.append(f"  inputs hash {present.short_hash(result.inputs_sha256)} (what a sign-off "
+                   "binds to)\n", style="dim")
     else:
         out.append("  sign-off not available in this version\n", style="dim")
     out.append_text(_head("Cautions"))

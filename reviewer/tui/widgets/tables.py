@@ -15,7 +15,6 @@ from textual.message import Message
 from textual.widgets import DataTable
 
 from reviewer.engine import Result
-from reviewer.states import FAILING
 from reviewer.textsafe import visible
 from reviewer.tolerance import Yield
 from reviewer.tui import present
@@ -60,6 +59,7 @@ class KeyedTable(DataTable[Text]):
     """A row-cursor DataTable whose rows are replaced in place by key."""
 
     COLUMNS: tuple[tuple[str, str, int | None], ...] = ()
+    AUTO_HEIGHT = False  # rows as tall as their cells (measured on every rebuild: costly)
 
     def __init__(self, **kw: object) -> None:
         super().__init__(cursor_type="row", zebra_stripes=False, **kw)  # type: ignore[arg-type]
@@ -89,7 +89,7 @@ class KeyedTable(DataTable[Text]):
         current = self.current_key or self._last
         self.clear()
         for r in rows:
-            self.add_row(*r.cells, key=r.key)
+            self.add_row(*r.cells, key=r.key, height=None if self.AUTO_HEIGHT else 1)
         target = nearest(current, keys, order or [*self._keys, *keys])
         self._keys = keys
         self._last = current if not keys else None
@@ -109,10 +109,25 @@ class KeyedTable(DataTable[Text]):
             self.move_cursor(row=self._keys.index(key), animate=False)
 
 
-class StageTable(KeyedTable):
-    """Every stage with its counts; Enter opens it."""
+def fold(word: str, width: int) -> Text:
+    """``word`` on as many lines of ``width`` as it needs, broken after a hyphen (a stage kind
+    such as ``capacitor-commutation`` is never cut)."""
+    lines, line = [], ""
+    for part in word.replace("-", "-\0").split("\0"):
+        if line and len(line) + len(part) > width:
+            lines.append(line)
+            line = ""
+        line += part
+    lines.append(line)
+    return Text("\n".join(lines))
 
-    COLUMNS = (("stage", "stage", 11), ("kind", "kind", 16), ("state", "state", 10),
+
+class StageTable(KeyedTable):
+    """Every stage with its result and review counts; Enter opens it. The result counts and
+    the review counts are separate columns: a waived failure is in ``fail`` and in ``waiv``."""
+
+    AUTO_HEIGHT = True  # a stage kind folds over two lines at 80 columns
+    COLUMNS = (("stage", "stage", 11), ("kind", "kind", 13), ("worst", "state", 12),
                ("pass", "pass", 4), ("marg", "marginal", 4), ("fail", "fail", 4),
                ("waiv", "waived", 4), ("stale", "stale", 5), ("unsg", "unsigned", 4))
 
@@ -127,13 +142,14 @@ class StageTable(KeyedTable):
              order: list[str] | None = None) -> None:
         """Show the counts of the stages in ``rows`` (``order``: every stage, unfiltered)."""
         def row(c: StageCounts) -> Row:
-            fails = sum(c.counts.get(s, 0) for s in FAILING)
             state = present.status_text("" if computing and not c.counts else c.state)
+            kind = fold(visible(c.kind), 13)
+            kind.stylize("dim")
             return Row(c.stage, (
-                Text(visible(c.stage)), Text(c.kind, style="dim"), state,
+                Text(visible(c.stage)), kind, state,
                 present.count_text(c.counts.get("pass", 0), "green"),
                 present.count_text(c.counts.get("marginal", 0), "yellow"),
-                present.count_text(fails, "bold red"),
+                present.count_text(c.attention, "bold red"),
                 present.count_text(c.waived, "magenta"),
                 present.count_text(c.stale, "bold yellow"),
                 present.count_text(c.unsigned)))
@@ -147,11 +163,12 @@ class StageTable(KeyedTable):
 
 class ChecklistTable(KeyedTable):
     """One stage's checks: result, worst against limit, margin, Monte Carlo fail fraction,
-    sign-off; a check whose result changed with the last edit is marked Δ."""
+    and the review state in a column of its own; a check whose result changed with the last
+    edit is marked Δ."""
 
-    COLUMNS = (("check", "check", 23), ("result", "result", 11),
-               ("worst/limit", "worst", 11), ("margin", "margin", 6),
-               ("fail %", "yield", 9), ("sign-off", "sign", 8))
+    COLUMNS = (("check", "check", 23), ("result", "result", 12),
+               ("vs limit", "worst", 10), ("margin", "margin", 6),
+               ("MC fail", "yield", 7), ("review", "sign", 10))
 
     class CheckHighlighted(Message):
         """The cursor moved to a check."""
@@ -168,7 +185,7 @@ class ChecklistTable(KeyedTable):
             self.check = check
 
     def show(self, checks: list[str], results: Mapping[str, Result], *,
-             sign_state: Callable[[str], str], changed: set[str],
+             review: Callable[[str], str], changed: set[str],
              limits: Callable[[str], Mapping[str, float]], signing: bool,
              yields: Callable[[str], Yield | None] = lambda c: None,
              order: list[str] | None = None) -> None:
@@ -177,17 +194,16 @@ class ChecklistTable(KeyedTable):
         rows = []
         for cid in checks:
             r = results.get(cid)
-            st = sign_state(cid)
+            st = review(cid)
             status = "" if r is None else r.status
-            if status == "fail" and st == "waived":
-                status = "fail (waived)"
             name = Text(visible(cid))
             if cid in changed:
                 name.append("Δ", style="bold yellow")
             rows.append(Row(cid, (
                 name, present.status_text(status),
                 present.worst_vs_limit(r, limits(cid)) if r else Text(""),
-                present.margin_text(r.margin if r else None, compact=True),
+                present.margin_text(r.margin if r else None, compact=True,
+                                    status=r.status if r else ""),
                 present.yield_cell(yields(cid)),
                 present.sign_text(st, signing))))
         self.show_rows(rows, order=order)

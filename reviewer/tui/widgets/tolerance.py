@@ -44,6 +44,7 @@ class ToleranceView:
     ranking: list[Influence] = field(default_factory=list)
     aid: AidView = field(default_factory=AidView)
     plot: Plot | None = None
+    status: str = ""  # the check's result at the corners, for the words under the yield
 
 
 def bar(share: float, width: int = BAR) -> str:
@@ -69,6 +70,9 @@ def yield_text(v: ToleranceView) -> Text:
         out.append("  " + present.yield_line(v.yield_) + "\n")
         out.append("  95 % intervals; production spreads drawn (normal, tolerance = 3σ), "
                    "conditions held at the worst corner\n", style="dim")
+        caveat = present.yield_caveat(v.yield_, v.status)
+        if caveat:
+            out.append(f"  {caveat}\n", style="yellow")
     elif v.running:
         out.append("  running…\n", style="italic")
     else:
@@ -83,17 +87,19 @@ def rest_text(v: ToleranceView, *, dominant_paths: int = 6) -> Text:
         for n in v.plot.notes:
             out.append(f"  {n}\n", style="dim")
     out.append_text(_head("Sensitivity of the margin", "main effect over the corners"))
-    if v.ranking:
-        w = min(30, max(len(i.path) for i in v.ranking[:dominant_paths]))
-        for inf in v.ranking[:dominant_paths]:
-            out.append(f"  {inf.path[:w]:<{w}} ")
-            out.append(bar(inf.share), style="bold" if inf is v.ranking[0] else "")
+    ranking = [i for i in v.ranking if present.shown_path(i.path)]
+    if ranking:
+        top = ranking[:dominant_paths]
+        w = max(len(present.path_text(i.path)) for i in top)
+        for inf in top:
+            out.append(f"  {present.path_text(inf.path):<{w}} ")
+            out.append(bar(inf.share), style="bold" if inf is ranking[0] else "")
             out.append(f" {inf.share * 100:3.0f} %  ")
             if inf.effect:
                 out.append("higher helps" if inf.effect > 0 else "lower helps", style="dim")
             out.append("\n")
-        if len(v.ranking) > dominant_paths:
-            out.append(f"  … {len(v.ranking) - dominant_paths} more with smaller shares\n",
+        if len(ranking) > dominant_paths:
+            out.append(f"  … {len(ranking) - dominant_paths} more with smaller shares\n",
                        style="dim")
     else:
         out.append("  no input varies: nothing to rank\n", style="dim")
@@ -103,12 +109,14 @@ def rest_text(v: ToleranceView, *, dominant_paths: int = 6) -> Text:
         keys = "i: choose the input" + (", t: try the value" if a.try_text else "")
         out.append_text(_head("Design aid", keys))
         if not a.name:
-            out.append("  no input of this check can be scaled\n", style="dim")
+            out.append("  none of the values a designer chooses here (a resistor, capacitor, "
+                       "inductor or a rating to buy) changes this check's result\n",
+                       style="dim")
         elif a.pending:
             out.append(f"  passing range of {a.path} ({why}): computing…\n", style="italic")
         elif a.aid is None:
-            out.append(f"  no value of {a.path} between 0.02× and 50× passes at every "
-                       f"corner ({why}); try another input (i)\n")
+            out.append(f"  no value of {a.path} between 0.02× and 50× its value passes at "
+                       f"every corner ({why}); try another input (i)\n")
         else:
             out.append(f"  {a.aid.text()}  ({why})\n")
             if a.try_text:

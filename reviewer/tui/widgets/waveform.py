@@ -4,15 +4,16 @@ from __future__ import annotations
 
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.containers import Vertical
+from textual.containers import VerticalScroll
 from textual.widgets import Static
 
 from reviewer.tui.widgets.canvas import BrailleChart
 from reviewer.waveforms import Picture
 
 
-class WaveformView(Vertical):
-    """Shows a :class:`~reviewer.waveforms.Picture`."""
+class WaveformView(VerticalScroll):
+    """Shows a :class:`~reviewer.waveforms.Picture`; it scrolls and takes the focus, like the
+    detail it stands in for."""
 
     DEFAULT_CSS = """
     WaveformView { height: 1fr; }
@@ -29,7 +30,7 @@ class WaveformView(Vertical):
         note = Text()
         if pic.plots:
             note.append(f"at the {'worst corner' if pic.corner == 'worst' else 'nominal'}"
-                        " (n: switch)", style="bold")
+                        " (o: the other corner)", style="bold")
             if pic.nominal_used:
                 note.append("; taken at nominal (not read by this check): "
                             + ", ".join(pic.nominal_used))
