@@ -8,7 +8,7 @@ import shutil
 from pathlib import Path
 
 from reviewer.cli import main
-from reviewer.report import render
+from reviewer.report import render, write_report
 
 ROOT = Path(__file__).resolve().parents[2]
 LINE = ROOT / "projects" / "kiln-line"
@@ -29,8 +29,11 @@ def test_folder_and_file_give_one_report_each(tmp_path, capsys):
     names = sorted(p.name for p in out.rglob("*.md"))
     assert names == ["flasher-dc.md", "kiln-120-1k.md", "kiln-120-2k.md", "kiln-230-2k.md",
                      "kiln-base.md"]
+    single = write_report(LINE / "kiln-base.toml", "md", tmp_path / "single" / "kiln-base.md")
     assert _untimed((out / "kiln-base.md").read_text("utf-8")) == _untimed(
-        render(LINE / "kiln-base.toml", "md"))
+        single.read_text("utf-8"))
+    assert sorted(f.name for f in (out / "kiln-base.figures").iterdir()) == sorted(
+        f.name for f in (tmp_path / "single" / "kiln-base.figures").iterdir())
     assert err.count("report written to") == 5
     assert not list(out.glob(".*.tmp"))  # no temp file left behind
 
