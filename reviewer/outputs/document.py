@@ -153,7 +153,8 @@ def project_entry(pr: ProjectResult) -> dict[str, Any]:
     for sid in dict.fromkeys(r.stage for r in run.results):
         cell = stage_state(st for (s, _), st in pr.states.items() if s == sid)
         kind = next(r.kind for r in run.results if r.stage == sid)
-        stages.append({"id": sid, "kind": kind, "state": cell.state, "detail": cell.detail})
+        stages.append({"id": sid, "kind": kind, "state": cell.state, "detail": cell.detail,
+                       "result": cell.result, "review": cell.review or None})
     record = None
     if pr.has_record:
         record = {"file": pr.record_file, "history_ok": pr.history_ok,

@@ -197,15 +197,17 @@ def test_check_json_carries_the_review_state_and_agrees_with_the_exit_code(tmp_p
     capsys.readouterr()
     assert main(["check", str(p), "--json"]) == 0
     doc = json.loads(capsys.readouterr().out)
-    [r] = [r for r in doc["results"] if r["check"] == "osc.window"]
-    assert r["result"] == r["status"] == "fail"
-    assert r["review"]["state"] == "waived" and r["review"]["entries"] == [1]
+    [r] = [r for r in doc["projects"][0]["checks"] if r["check"] == "osc.window"]
+    assert r["result"] == "fail"
+    assert r["review"] == "waived" and r["review_entries"] == [1]
+    assert doc["exit_code"] == 0
     rp = record_path(p)
     rp.write_text(rp.read_text("utf-8").replace("checked on the bench", "checked by all"))
     assert main(["check", str(p), "--json"]) == 1
     doc = json.loads(capsys.readouterr().out)
-    [r] = [r for r in doc["results"] if r["check"] == "osc.window"]
-    assert r["review"]["state"] == "unverified" and doc["record"]["verified"] is False
+    [r] = [r for r in doc["projects"][0]["checks"] if r["check"] == "osc.window"]
+    assert r["review"] == "unverified" and doc["projects"][0]["record"]["history_ok"] is False
+    assert doc["exit_code"] == 1
 
 
 def test_check_json_without_a_record_has_no_review_field(tmp_path, capsys):
@@ -215,7 +217,8 @@ def test_check_json_without_a_record_has_no_review_field(tmp_path, capsys):
     p = make(tmp_path)
     assert main(["check", str(p), "--json"]) == 0
     doc = json.loads(capsys.readouterr().out)
-    assert doc["record"] is None and all("review" not in r for r in doc["results"])
+    proj = doc["projects"][0]
+    assert proj["record"] is None and all("review" not in r for r in proj["checks"])
 
 
 def test_disk_full_and_busy_have_their_own_exit_codes(tmp_path, capsys, monkeypatch):

@@ -75,19 +75,25 @@ def _json(argv: list[str], capsys) -> tuple[int, Any]:
     return code, json.loads(capsys.readouterr().out)
 
 
+def _doc_check(doc: dict[str, Any], p: Path) -> tuple[dict[str, Any], dict[str, Any]]:
+    """The project and the osc.window check of a results document."""
+    [proj] = [x for x in doc["projects"] if Path(x["file"]).name == p.name]
+    [chk] = [c for c in proj["checks"] if (c["stage"], c["check"]) == KEY]
+    return proj, chk
+
+
 def views(p: Path, capsys) -> dict[str, Any]:
     """What every view shows for trigger/osc.window, and each command's exit code."""
     out: dict[str, Any] = {}
-    code, rows = _json(["status", str(p), "--json"], capsys)
-    [row] = rows
-    out["status"] = (code, row["verified"], row["head_sha256"])
-    code, m = _json(["status", "--matrix", str(p.parent), "--json"], capsys)
-    [mrow] = [r for r in m["rows"] if Path(r["file"]).name == p.name]
-    label = mrow["stages"]["trigger"]["checks"]["osc.window"]
-    out["matrix"] = (code, label.split(" | ")[1], label)
+    code, doc = _json(["status", str(p), "--json"], capsys)
+    proj, _ = _doc_check(doc, p)
+    out["status"] = (code, proj["record"]["history_ok"], proj["record"]["head_sha256"])
+    code, doc = _json(["status", "--matrix", str(p.parent), "--json"], capsys)
+    _, chk = _doc_check(doc, p)
+    out["matrix"] = (code, chk["review"], f"{chk['result']} | {chk['review']}")
     code, doc = _json(["check", str(p), "--json"], capsys)
-    [res] = [r for r in doc["results"] if (r["stage"], r["check"]) == KEY]
-    out["check"] = (code, res["result"], res["review"]["state"], doc["record"]["verified"])
+    proj, chk = _doc_check(doc, p)
+    out["check"] = (code, chk["result"], chk["review"], proj["record"]["history_ok"])
     code, rep = _json(["verify", str(p), "--json"], capsys)
     out["verify"] = (code, rep["ok"], rep["history_ok"])
     data = gather(p, plots=False)

@@ -73,6 +73,8 @@ def test_check_record_refuses_to_rewrite_the_header_of_a_cut_history(tmp_path, c
     cut = text[: text.rindex("[[entry]]")]
     record_path(p).write_text(cut, "utf-8")
     capsys.readouterr()
-    assert main(["check", str(p), "--record"]) == 1
-    assert "does not verify" in capsys.readouterr().err
+    # The record is input the user must restore: exit 2, the reason named.
+    assert main(["check", str(p), "--record"]) == 2
+    said = capsys.readouterr()
+    assert "does not verify" in said.out + said.err
     assert record_path(p).read_text("utf-8") == cut
