@@ -103,7 +103,7 @@ def views(p: Path, capsys) -> dict[str, Any]:
     s = Session(p, read_only=True, lock=False)
     s.compute_all()
     s.refresh_review()
-    out["session"] = s.sign_state(*KEY)
+    out["session"] = s.review(*KEY)
     return out
 
 
