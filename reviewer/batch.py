@@ -52,6 +52,9 @@ class ProjectResult:
     record_file: str = ""
     history_ok: bool = True
     first_bad: int | None = None
+    head: str = ""
+    entries: int = 0
+    problems: list[str] = field(default_factory=list)
     entry_notes: dict[int, str] = field(default_factory=dict)
     at_worst: dict[Key, dict[str, float | None]] = field(default_factory=dict)
     yields: dict[Key, Any] | None = None
@@ -175,7 +178,7 @@ def compute(path: str | Path, opts: Options = Options()) -> ProjectResult:
             run = run_project(path)
         if opts.record:
             record_results(run, Path(path))
-        record = load_record(path)
+        record = load_record(path, run.checklist)  # verified once, here
     except LatchbookError as exc:
         pr.error = str(exc)
         return pr
@@ -190,7 +193,9 @@ def compute(path: str | Path, opts: Options = Options()) -> ProjectResult:
     pr.states = check_states(record, run)  # all unsigned without a record (the matrix)
     if record.exists:
         pr.record_file = str(record.path)
-        pr.history_ok, pr.first_bad = record.chain.ok, record.chain.first_bad
+        pr.history_ok, pr.first_bad = record.trust.ok, record.trust.first_bad
+        pr.head, pr.entries = record.head, len(record.entries)
+        pr.problems = record.trust.messages()
         pr.entry_notes = {e.seq: e.note for e in record.entries}
     for r in run.results:
         r.evaluation = None  # the corner tables: most of a project's memory, not needed now

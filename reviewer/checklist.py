@@ -32,11 +32,12 @@ from pathlib import Path
 from typing import Any
 
 from reviewer.errors import ProjectError, Where
+from reviewer.reasons import reason_problem
 from reviewer.safeio import read_regular
 
 TOP_KEYS = ("checklist", "limits", "off", "manual")
 HEAD_KEYS = ("name", "version", "extends", "approvers", "description", "sign_with_ssh",
-             "allowed_signers")
+             "allowed_signers", "self_approval")
 MANUAL_KEYS = ("id", "stage_kind", "question")
 # Pairs of limit keys where the first must not exceed the second once resolved.
 ORDERED_PAIRS = (("fail_below", "marginal_below"), ("headroom_fail", "headroom_marginal"),
@@ -66,20 +67,39 @@ class Checklist:
     extends: str = ""
     allowed_signers: str = ""
     description: str = ""
+    self_approval: bool = False
+    #: SHA-256 of the allowed-signers file's bytes at load time ("" when none is named,
+    #: "missing" when the named file is not there).
+    signers_sha256: str = ""
 
     @property
     def sha256(self) -> str:
-        """Hash of the canonical content (everything that changes what a review means)."""
+        """Hash of the canonical content: limits, switched-off checks, manual questions."""
         doc: dict[str, Any] = {"name": self.name, "version": self.version, "limits": self.limits,
-                               "disabled": self.disabled, "manual": self.manual,
-                               "approvers": self.approvers}
-        if self.reasons:  # left out when empty, so the standard's identity stays as it was
+                               "disabled": self.disabled, "manual": self.manual}
+        if self.reasons:
             doc["reasons"] = self.reasons
         return hashlib.sha256(json.dumps(doc, sort_keys=True).encode()).hexdigest()
 
+    def signers_path(self) -> Path | None:
+        """The allowed-signers file (relative names are relative to the checklist file)."""
+        return signers_path(self.allowed_signers, self.path)
+
+    def policy(self) -> dict[str, Any]:
+        """The signing policy: who may approve, whether self-approval counts, whether entries
+        are SSH-signed, and the content hash of the allowed-signers file."""
+        return {"approvers": list(self.approvers), "self_approval": self.self_approval,
+                "sign_with_ssh": self.sign_with_ssh, "allowed_signers": self.signers_sha256}
+
+    @property
+    def policy_sha256(self) -> str:
+        """Hash of :meth:`policy` (recorded with every entry: a change makes it stale)."""
+        return hashlib.sha256(json.dumps(self.policy(), sort_keys=True).encode()).hexdigest()
+
     def identity(self) -> dict[str, str]:
-        """The ``{name, version, sha256}`` recorded in results and entries."""
-        return {"name": self.name, "version": self.version, "sha256": self.sha256}
+        """The ``{name, version, sha256, policy_sha256}`` recorded in results and entries."""
+        return {"name": self.name, "version": self.version, "sha256": self.sha256,
+                "policy_sha256": self.policy_sha256}
 
     def limits_for(self, check: str) -> dict[str, float]:
         """The limits in force for ``check`` (empty when the checklist has none)."""
@@ -180,9 +200,27 @@ class _File:
 
 
 def _reason_problem(text: str) -> str | None:
-    from reviewer.review import reason_problem
-
     return reason_problem(text)
+
+
+def signers_path(ref: str, checklist_path: str) -> Path | None:
+    """Where an ``allowed_signers`` reference points (None when the checklist names none)."""
+    if not ref:
+        return None
+    p = Path(ref)
+    if not p.is_absolute() and checklist_path not in ("", "standard"):
+        p = Path(checklist_path).parent / p
+    return p
+
+
+def _signers_sha256(ref: str, checklist_path: str) -> str:
+    p = signers_path(ref, checklist_path)
+    if p is None:
+        return ""
+    try:
+        return hashlib.sha256(p.read_bytes()).hexdigest()
+    except OSError:
+        return "missing"
 
 
 def _number(val: Any) -> bool:
@@ -260,9 +298,9 @@ def _load_file(path: Path, seen: tuple[str, ...]) -> Checklist:
     for k in ("description", "allowed_signers", "extends"):
         if k in head and not isinstance(head[k], str):
             raise ProjectError(f"`{k}` must be a string in quotes", f.where("checklist", k))
-    if "sign_with_ssh" in head and not isinstance(head["sign_with_ssh"], bool):
-        raise ProjectError("`sign_with_ssh` must be true or false",
-                           f.where("checklist", "sign_with_ssh"))
+    for k in ("sign_with_ssh", "self_approval"):
+        if k in head and not isinstance(head[k], bool):
+            raise ProjectError(f"`{k}` must be true or false", f.where("checklist", k))
 
     extends = head.get("extends", "standard")
     if extends in ("", "standard"):
@@ -289,11 +327,15 @@ def _load_file(path: Path, seen: tuple[str, ...]) -> Checklist:
             raise ProjectError('`approvers` must be a list of logins, e.g. approvers = '
                                '["lead-login"]', f.where("checklist", "approvers"))
         approvers = list(dict.fromkeys(a.strip() for a in raw))
+    signers = str(head.get("allowed_signers", base.allowed_signers))
+    if "allowed_signers" not in head and base.path not in ("", "standard") and signers:
+        # Inherited: keep it relative to the checklist that named it.
+        signers = str(signers_path(signers, base.path))
     return Checklist(name.strip(), str(version), limits, disabled, manual, approvers,
                      bool(head.get("sign_with_ssh", base.sign_with_ssh)), key, reasons,
-                     str(extends or "standard"),
-                     str(head.get("allowed_signers", base.allowed_signers)),
-                     str(head.get("description", "")))
+                     str(extends or "standard"), signers, str(head.get("description", "")),
+                     bool(head.get("self_approval", base.self_approval)),
+                     _signers_sha256(signers, key))
 
 
 def _apply_limits(raw: Any, limits: dict[str, dict[str, float]], reasons: dict[str, str],

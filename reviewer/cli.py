@@ -249,7 +249,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: Sequence[str] | None = None) -> int:
-    """Run the command line; return the exit code (0, 1 or 2)."""
+    """Run the command line; return the exit code (0, 1, 2 or 3)."""
     parser = build_parser()
     args = parser.parse_args(argv)
     try:
@@ -257,8 +257,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             return cmd_demo(args)
         return int(args.func(args))
     except LatchbookError as exc:
-        print(f"latchbook: {message(exc)}", file=sys.stderr)
-        return 2
+        from reviewer.cli_review import report_error
+
+        code = report_error(exc)  # what reaches here is the user's input (2), or busy (3)
+        return 2 if code == 1 else code
     except RecursionError:
         print("latchbook: a file nests tables or arrays too deep to read", file=sys.stderr)
         return 2
@@ -268,6 +270,15 @@ def main(argv: Sequence[str] | None = None) -> int:
         # The reader (e.g. `head`) went away: stop quietly, as shell tools do.
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
+    except OSError as exc:
+        from reviewer.errors import environment_fault
+
+        if environment_fault(exc) is None:
+            raise
+        from reviewer.store import os_fault
+
+        print(f"latchbook: {exc.filename or 'a file'}: {os_fault(exc)}", file=sys.stderr)
+        return 2
 
 
 if __name__ == "__main__":

@@ -14,16 +14,60 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from reviewer.errors import LatchbookError, ProjectError, UnsafeFileError
+from reviewer.errors import LatchbookError, ProjectError
 from reviewer.states import FAILING
 from reviewer.textsafe import dump_json, message, visible
 
-COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "waived", "stale", "unsigned")
+RESULT_COLUMNS = ("pass", "marginal", "fail", "blocked", "incomplete", "n/a")
+REVIEW_COLUMNS = ("unsigned", "signed", "approved", "waived", "stale", "unverified")
+SHORT = {"marginal": "marg", "blocked": "blkd", "incomplete": "incp", "unsigned": "unsg",
+         "signed": "sign", "approved": "appr", "waived": "waiv", "stale": "stal",
+         "unverified": "unvr"}
+
+
+def report_error(exc: BaseException) -> int:
+    """Print a command's error in words, with the cause when it is the environment's; return
+    its exit code (:func:`reviewer.errors.exit_code`: 1 refused, 2 input or environment, 3
+    busy)."""
+    from reviewer.errors import environment_fault, exit_code
+
+    fault = environment_fault(exc)
+    text = message(exc)
+    if fault is not None:
+        from reviewer.store import os_fault
+
+        hint = os_fault(fault)
+        if hint not in text:
+            text += f" ({hint})"
+    print(f"latchbook: {text}", file=sys.stderr)
+    return exit_code(exc)
 
 
 def _err(exc: LatchbookError) -> int:
-    print(f"latchbook: {message(exc)}", file=sys.stderr)
-    return 2 if isinstance(exc, (ProjectError, UnsafeFileError)) else 1
+    return report_error(exc)
+
+
+def _say(text: str) -> None:
+    print(f"latchbook: {visible(text)}", file=sys.stderr, flush=True)
+
+
+def _lock_args(args: argparse.Namespace, project: Path) -> dict[str, Any]:
+    """``wait``/``on_wait`` for an action, after breaking the lock if the user asked."""
+    if getattr(args, "break_lock", False):
+        from reviewer.store import break_lock
+
+        holder = break_lock(project)
+        _say(f"broke the lock held by {holder.text()} ({holder.what})" if holder else
+             "there was no lock to break")
+    return {"wait": args.wait, "on_wait": _say}
+
+
+def _done(verb: str, e: Any, extra: str = "") -> None:
+    if e.existing:
+        print(visible(f"already {verb}: {e.title()} (a retry: that entry is already in the "
+                      "history; nothing was added)"))
+    else:
+        print(visible(f"{verb}: {e.title()}{extra}"))
 
 
 def _project(path: str) -> Path:
@@ -46,34 +90,38 @@ def _where(p: Path) -> Any:
 
 def cmd_sign(args: argparse.Namespace) -> int:
     """Sign a stage (or ``*``) as reviewed or approved."""
-    from reviewer.review import sign
+    from reviewer.records import sign
 
     try:
-        e = sign(_project(args.project), stage=args.stage, checks=args.check or None,
-                 meaning=args.meaning, note=args.note or "", ssh_key=args.ssh_key)
+        p = _project(args.project)
+        e = sign(p, stage=args.stage, checks=args.check or None, meaning=args.meaning,
+                 note=args.note or "", ssh_key=args.ssh_key, **_lock_args(args, p))
     except LatchbookError as exc:
         return _err(exc)
-    print(visible(f"signed: {e.title()}, {len(e.items)} check(s), entry {e.entry_sha256[:16]}"))
+    verb = "approved" if args.meaning == "approved" else "signed"
+    _done(verb, e, f", {len(e.items)} check(s), entry {e.entry_sha256[:16]}")
     return 0
 
 
 def cmd_waive(args: argparse.Namespace) -> int:
     """Waive a failing or marginal check with a reason."""
-    from reviewer.review import waive
+    from reviewer.records import waive
 
     try:
-        e = waive(_project(args.project), stage=args.stage, check=args.check, note=args.note,
-                  ssh_key=args.ssh_key)
+        p = _project(args.project)
+        e = waive(p, stage=args.stage, check=args.check, note=args.note, ssh_key=args.ssh_key,
+                  **_lock_args(args, p))
     except LatchbookError as exc:
         return _err(exc)
-    print(visible(f"waived: {e.title()} ({args.stage}/{args.check} now reads fail — waived)"))
+    status = e.items[0].get("status", "fail") if e.items else "fail"
+    _done("waived", e, f" ({args.stage}/{args.check} now reads {status} | waived)")
     return 0
 
 
 def cmd_revoke(args: argparse.Namespace) -> int:
     """Revoke an earlier entry by its seq (an entry that does not exist is named first, before
     anything is said about the note)."""
-    from reviewer.review import load_record, revoke
+    from reviewer.records import load_record, revoke
 
     try:
         rec = load_record(_project(args.project))
@@ -82,52 +130,64 @@ def cmd_revoke(args: argparse.Namespace) -> int:
                     else "there is no review history yet")
             raise ProjectError(f"there is no entry #{args.entry}: {have} (each [[entry]] in "
                                f"{rec.path.name} has its number as seq)", _where(rec.path))
-        e = revoke(_project(args.project), seq=args.entry, note=args.note, ssh_key=args.ssh_key)
+        p = _project(args.project)
+        e = revoke(p, seq=args.entry, note=args.note, ssh_key=args.ssh_key,
+                   **_lock_args(args, p))
     except LatchbookError as exc:
         return _err(exc)
-    print(visible(f"revoked: {e.title()}"))
+    _done("revoked", e)
     return 0
 
 
 def cmd_verify(args: argparse.Namespace) -> int:
     """Check the history chain, the signatures and the staleness of every sign-off."""
-    from reviewer.review import verify
+    from reviewer.records import verify
 
     try:
-        rep = verify(_project(args.project))
+        rep = verify(_project(args.project), head=args.head)
     except LatchbookError as exc:
         return _err(exc)
     if args.json:
-        dump_json({"ok": rep.ok, "first_bad": rep.first_bad, "entries": rep.entries,
-                   "ssh_signatures_good": rep.signed, "head_sha256": rep.head,
-                   "messages": rep.messages, "stale": rep.stale}, sys.stdout)
+        dump_json(rep.as_dict(), sys.stdout)
     else:
-        if rep.ok:
-            print(f"history intact: {rep.entries} entries, head {rep.head[:16] or '(none)'}")
+        head = rep.head[:16] or "(none)"
+        if rep.history_ok:
+            sig = f"; {rep.signed} SSH signature(s) good" if rep.signed else ""
+            print(f"history verifies: {rep.entries} entries, head {head}{sig}")
         else:
             where = f" at entry {rep.first_bad}" if rep.first_bad else ""
-            print(f"history BROKEN{where}")
+            print(f"history does NOT verify{where}: nothing shown from the entries that fail "
+                  "counts as signed, approved or waived")
         for m in rep.messages:
             print(f"  {visible(m)}")
-        for s in rep.stale:
-            print(f"  stale: {visible(s)}")
+        for st in rep.stale:
+            print(f"  stale: {visible(st)}")
+        for n in rep.notes:
+            print(f"  note: {visible(n)}")
     return 0 if rep.ok else 1
 
 
 def status_row_of(pr: Any) -> dict[str, Any]:
-    """One project's status row from its :class:`reviewer.batch.ProjectResult`."""
-    from reviewer.review import counts
+    """One project's status row from its :class:`reviewer.batch.ProjectResult`: result and
+    review counts, what needs attention, and the record's head and verification."""
+    from reviewer.records import counts
 
     if pr.error:
         return {"project": None, "file": pr.file, "error": pr.error}
     project, states = pr.run.project, pr.states
     failing = [f"{s.stage}/{s.check}" for s in states.values()
-               if s.status in FAILING and s.waiver != "waived"]
+               if s.status in FAILING and s.review != "waived"]
     stale = [{"check": f"{s.stage}/{s.check}", "changed": [ch.text() for ch in s.changed]}
-             for s in states.values() if "stale" in (s.signoff, s.approval, s.waiver)]
+             for s in states.values() if s.review == "stale"]
+    unverified = [{"check": f"{s.stage}/{s.check}", "entries": s.unverified_seqs,
+                   "problems": s.problems} for s in states.values()
+                  if s.review == "unverified"]
     return {"project": project.name, "file": pr.file, "revision": project.revision,
             "variant_of": project.variant_of or None, "counts": counts(states),
-            "failing": failing, "stale": stale, "chain_ok": pr.history_ok,
+            "failing": failing, "stale": stale, "unverified": unverified,
+            "record": pr.record_file or None, "entries": pr.entries, "head_sha256": pr.head,
+            "verified": pr.history_ok if pr.record_file else None,
+            "problems": list(pr.problems), "chain_ok": pr.history_ok,
             "first_bad": pr.first_bad}
 
 
@@ -195,20 +255,51 @@ def _matrix(args: argparse.Namespace, paths: list[str]) -> int:
 def _print_status(rows: list[dict[str, Any]]) -> None:
     names = [visible(Path(r["file"]).name) for r in rows]
     w = max([len(n) for n in names] + [7])
-    print(f"{'project':<{w}}  " + "  ".join(f"{c:>8}" for c in COLUMNS))
+    res = " ".join(f"{SHORT.get(c, c):>4}" for c in RESULT_COLUMNS)
+    rev = " ".join(f"{SHORT.get(c, c):>4}" for c in REVIEW_COLUMNS)
+    print(f"{'':<{w}}  {'result':<{len(res)}}  review")
+    print(f"{'project':<{w}}  {res}  {rev}")
     for name, r in zip(names, rows, strict=True):
         if "error" in r:
             print(f"{name:<{w}}  cannot load: {message(r['error'])}")
             continue
-        cells = "  ".join(f"{r['counts'][c]:>8}" for c in COLUMNS)
-        extra = "" if r["chain_ok"] else f"  history broken at entry {r['first_bad']}"
-        print(f"{name:<{w}}  {cells}{extra}")
+        c = r["counts"]
+        cells = " ".join(f"{c[k]:>4}" for k in RESULT_COLUMNS) + "  " + \
+            " ".join(f"{c[k]:>4}" for k in REVIEW_COLUMNS)
+        print(f"{name:<{w}}  {cells}")
+    for cols in (RESULT_COLUMNS, REVIEW_COLUMNS):
+        print("  " + ", ".join(f"{SHORT[k]} {k}" for k in cols if k in SHORT))
     for name, r in zip(names, rows, strict=True):
+        if "error" in r:
+            continue
+        if r["record"] is None:
+            print(f"  {name}: no review record yet")
+        else:
+            state = "verifies" if r["verified"] else "does NOT verify"
+            print(f"  {name}: history {state}; {r['entries']} entries, head "
+                  f"{r['head_sha256'][:16] or '(none)'}")
+            for m in r["problems"][:3]:
+                print(f"  {name}:   {visible(m)}")
         for f in r.get("failing", []):
             print(f"  {name}: {visible(f)} fails without a current waiver")
-        for s in r.get("stale", []):
-            why = "; ".join(s["changed"][:3])
-            print(visible(f"  {name}: {s['check']} stale ({why})"))
+        for st in r.get("stale", []):
+            why = "; ".join(st["changed"][:3])
+            print(visible(f"  {name}: {st['check']} stale ({why})"))
+        for u in r.get("unverified", []):
+            entries = ", ".join(f"#{n}" for n in u["entries"]) or "its entry"
+            print(visible(f"  {name}: {u['check']} unverified: {entries} does not verify"))
+
+
+def _writer_args(p: argparse.ArgumentParser) -> None:
+    from reviewer.store import DEFAULT_WAIT
+
+    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
+    p.add_argument("--wait", type=float, default=DEFAULT_WAIT, metavar="SECONDS",
+                   help="how long to wait for another command's save to finish "
+                   f"(default {DEFAULT_WAIT:.0f})")
+    p.add_argument("--break-lock", action="store_true",
+                   help="remove the project's lock first, whoever holds it (for a stopped "
+                   "holder or a reused pid; it names the holder it removed)")
 
 
 PROJECT_HELP = "the project file, NAME.toml (its record is NAME.review.toml beside it)"
@@ -232,7 +323,7 @@ def register(sub: Any) -> None:
                    "approval, which the checklist may restrict to named approvers")
     p.add_argument("--note", default="", metavar="TEXT",
                    help="what you looked at or why you sign (kept in the history)")
-    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
+    _writer_args(p)
     p.set_defaults(func=cmd_sign)
 
     p = sub.add_parser("waive", help="accept a failing or marginal check, with a reason",
@@ -246,7 +337,7 @@ def register(sub: Any) -> None:
     p.add_argument("--note", required=True, metavar="TEXT",
                    help="why the result is acceptable (at least 20 characters, three "
                    "different words)")
-    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
+    _writer_args(p)
     p.set_defaults(func=cmd_waive)
 
     p = sub.add_parser("revoke", help="withdraw an earlier sign-off, approval or waiver",
@@ -259,7 +350,7 @@ def register(sub: Any) -> None:
     p.add_argument("--note", required=True, metavar="TEXT",
                    help="why it no longer holds (at least 20 characters, three different "
                    "words)")
-    p.add_argument("--ssh-key", metavar="PATH", help=KEY_HELP)
+    _writer_args(p)
     p.set_defaults(func=cmd_revoke)
 
     p = sub.add_parser("verify", help="check the review history and the sign-offs' staleness",
@@ -267,6 +358,9 @@ def register(sub: Any) -> None:
                        "approver rules, and which sign-offs the project's inputs have made "
                        "stale. Exit 1 when something is wrong.")
     p.add_argument("project", metavar="PROJECT", help=PROJECT_HELP)
+    p.add_argument("--head", metavar="HASH",
+                   help="a head hash kept elsewhere (from status, a report or a commit): the "
+                   "history must still contain it, else entries were cut off")
     p.add_argument("--json", action="store_true", help="JSON on standard output")
     p.set_defaults(func=cmd_verify)
 
@@ -286,4 +380,4 @@ def register(sub: Any) -> None:
     p.set_defaults(func=cmd_status)
 
 
-__all__ = ["register", "status_exit_code", "status_row", "status_row_of"]
+__all__ = ["register", "report_error", "status_exit_code", "status_row", "status_row_of"]

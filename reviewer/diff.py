@@ -392,11 +392,17 @@ def diff_records(old_path: str | Path, new_path: str | Path) -> Diff:
                                      "as it was"))
     for e in rb.entries[common:]:
         change = "revoked" if e.kind == "revoke" else "added"
+        problems = rb.trust.problems_of(e)
         d.entries.append(EntryChange(change, e.seq, e.kind, e.title(), _when(e), e.note,
-                                     f"{e.meaning}: " + ", ".join(e.checks[:6])
+                                     (f"UNVERIFIED, counts for nothing: {problems[0]}; "
+                                      if problems else "")
+                                     + f"{e.meaning}: " + ", ".join(e.checks[:6])
                                      + (" …" if len(e.checks) > 6 else "")))
-    if not rb.chain.ok:
-        d.info.append(("history", "", f"broken at entry {rb.chain.first_bad}"))
+    for rec, side in ((ra, "OLD"), (rb, "NEW")):
+        if rec.exists and not rec.trust.ok:
+            where = f" at entry {rec.trust.first_bad}" if rec.trust.first_bad else ""
+            first = rec.trust.messages()[0] if rec.trust.messages() else ""
+            d.info.append(("history", "", f"{side} does not verify{where}: {first}"))
     stale_a = {e.seq for e, _ in stale_entries(ra, runa)}
     stale_b = {e.entry_sha256: (e, ch) for e, ch in stale_entries(rb, runb)}
     by_key_b = runb.by_key()

@@ -1,19 +1,20 @@
-"""The product line at a glance: projects and variants × stages, the review state of each stage.
+"""The product line at a glance: projects and variants × stages, result and review of each.
 
 :func:`status_matrix` loads every project under the given folders or files, computes each one
-once, reads its review record, and reduces the per-check states of :mod:`reviewer.review` to one
-word per stage, by precedence (the first that applies wins):
+once, reads and verifies its review record once, and reduces the per-check states of
+:mod:`reviewer.records` to two words per stage, shown side by side (``fail | waived``):
 
-1. ``fail`` — a check fails (or errors) without a current waiver;
-2. ``stale`` — a sign-off, approval or waiver covering one of its checks no longer matches;
-3. ``marginal`` — a check is marginal without a current waiver;
-4. ``waived`` — a failing or marginal check is covered by a current waiver ("fail — waived");
-5. ``unsigned`` — an applicable check has no reviewed sign-off at all;
-6. ``n/a`` — nothing in the stage applies;
-7. ``pass`` — every applicable check passes (or is waived) and is signed.
+* the *result*: the worst result of its checks (:data:`reviewer.states.RESULTS` order);
+* the *review*: the worst review word of its applicable checks (unverified, stale, unsigned,
+  waived, signed, approved); none when the project has no review record.
+
+``Cell.state`` keeps one word for a build's verdict, by precedence: ``unverified``, ``fail``
+(a check fails or errors without a current waiver), ``blocked``, ``incomplete``, ``stale``,
+``marginal``, ``waived``, ``unsigned``, ``n/a``, ``pass``.
 
 A project that does not load is a row with its error. :func:`matrix_exit_code` gives what a build
-should exit with: 2 when a project does not load, 1 when any stage fails or is stale, else 0.
+should exit with: 2 when a project does not load, 1 when any stage fails, is stale or
+unverified, or a history does not verify, else 0.
 """
 
 from __future__ import annotations
@@ -25,14 +26,16 @@ from pathlib import Path
 from typing import Any, TextIO
 
 from reviewer.engine import run_project  # noqa: F401  (re-exported: reports import it from here)
-from reviewer.states import FAILING, WAIVABLE
+from reviewer.states import FAILING, RESULTS, REVIEWS, result_word, review_word
 from reviewer.textsafe import visible
 
-STATES = ("fail", "blocked", "incomplete", "stale", "marginal", "waived", "unsigned", "n/a",
-          "pass")
+STATES = ("unverified", "fail", "blocked", "incomplete", "stale", "marginal", "waived",
+          "unsigned", "n/a", "pass")
 _FLAGGED = STATES[:-2]  # every state a cell can be flagged with
 STYLES = {"pass": "green", "marginal": "yellow", "fail": "bold red", "stale": "bold magenta",
-          "waived": "cyan", "unsigned": "dim", "n/a": "dim", "error": "bold red"}
+          "waived": "cyan", "unsigned": "dim", "n/a": "dim", "error": "bold red",
+          "unverified": "bold red", "blocked": "red", "incomplete": "red", "signed": "green",
+          "approved": "bold green"}
 
 
 @dataclass
@@ -43,11 +46,17 @@ class Cell:
     checks: dict[str, str] = field(default_factory=dict)
     counts: dict[str, int] = field(default_factory=dict)
     detail: str = ""
+    result: str = ""
+    review: str = ""
 
     def as_dict(self) -> dict[str, Any]:
         """JSON form."""
-        return {"state": self.state, "detail": self.detail, "counts": dict(self.counts),
-                "checks": dict(self.checks)}
+        return {"state": self.state, "result": self.result, "review": self.review or None,
+                "detail": self.detail, "counts": dict(self.counts), "checks": dict(self.checks)}
+
+    def text(self) -> str:
+        """``fail | waived`` (the result alone without a record)."""
+        return f"{self.result} | {self.review}" if self.review else self.result
 
 
 @dataclass
@@ -66,6 +75,8 @@ class Row:
     error: str = ""
     record: str = ""
     chain_ok: bool = True
+    head: str = ""
+    problems: list[str] = field(default_factory=list)
 
     def as_dict(self) -> dict[str, Any]:
         """JSON form."""
@@ -74,6 +85,9 @@ class Row:
                 "checklist": dict(self.checklist) or None, "state": self.state,
                 "counts": dict(self.counts), "error": self.error or None,
                 "record": self.record or None, "history_ok": self.chain_ok,
+                "head_sha256": self.head or None, "problems": list(self.problems),
+                "result": row_words(self)[0] if self.cells else None,
+                "review": row_words(self)[1] or None,
                 "stages": {k: c.as_dict() for k, c in self.cells.items()}}
 
 
@@ -96,42 +110,59 @@ class Matrix:
         return [r for r in self.rows if any(c.state == "stale" for c in r.cells.values())]
 
     @property
+    def unverified(self) -> list[Row]:
+        """Rows whose history does not verify, or with a stage covered by such an entry."""
+        return [r for r in self.rows if not r.chain_ok
+                or any(c.state == "unverified" for c in r.cells.values())]
+
+    @property
     def broken(self) -> list[Row]:
         """Rows whose project does not load."""
         return [r for r in self.rows if r.error]
 
 
-def stage_state(states: Iterable[Any]) -> Cell:
-    """Reduce the :class:`reviewer.review.CheckState` of one stage's checks to one cell."""
+def stage_state(states: Iterable[Any], *, has_record: bool = True) -> Cell:
+    """Reduce the :class:`reviewer.records.CheckState` of one stage's checks to one cell."""
     sts = list(states)
     flags: dict[str, list[str]] = {s: [] for s in STATES}
     for st in sts:
-        waived = st.waiver == "waived" and st.status in WAIVABLE
+        review = getattr(st, "review", None) or review_word(st)
+        waived = review == "waived"
+        if review == "unverified":
+            flags["unverified"].append(st.check)
         if st.status in ("blocked", "incomplete") and not waived:
             flags[st.status].append(st.check)
         elif st.status in FAILING and not waived:
             flags["fail"].append(st.check)
-        if "stale" in (st.signoff, st.approval, st.waiver):
+        if review == "stale":
             flags["stale"].append(st.check)
         if st.status == "marginal" and not waived:
             flags["marginal"].append(st.check)
         if waived:
             flags["waived"].append(st.check)
-        if st.status != "not-applicable" and st.signoff == "unsigned":
+        if st.status != "not-applicable" and review == "unsigned":
             flags["unsigned"].append(st.check)
     applicable = [st for st in sts if st.status != "not-applicable"]
-    if not applicable and not flags["stale"]:
+    if not applicable and not flags["stale"] and not flags["unverified"]:
         state = "n/a"
     else:
         state = next((s for s in _FLAGGED if flags[s]), "pass")
     counts = {s: len(v) for s, v in flags.items() if v and s != "n/a"}
     detail_parts = []
     for s in _FLAGGED:
-        if flags[s]:
+        if flags[s] and (has_record or s != "unsigned"):
             names = ", ".join(flags[s][:3]) + (" …" if len(flags[s]) > 3 else "")
             detail_parts.append(f"{s}: {names}" if s != "unsigned" else
                                 f"{len(flags[s])} unsigned")
-    return Cell(state, {st.check: st.label for st in sts}, counts, "; ".join(detail_parts))
+    rank = {w: i for i, w in enumerate(RESULTS)}
+    result = result_word(min((st.status for st in sts), key=lambda w: rank.get(w, 0),
+                             default="not-applicable"))
+    reviews = [getattr(st, "review", None) or review_word(st) for st in (applicable or sts)]
+    order = {w: i for i, w in enumerate(REVIEWS)}
+    review = min(reviews, key=lambda w: order.get(w, 0), default="") if has_record else ""
+    labels = {st.check: (f"{result_word(st.status)} | {review_word(st)}" if has_record
+                         else result_word(st.status)) for st in sts}
+    return Cell(state, labels, counts, "; ".join(detail_parts), result, review)
 
 
 def _worst(states: Iterable[str]) -> str:
@@ -153,7 +184,7 @@ def row_of(pr: Any) -> tuple[Row, list[str]]:
     if pr.error:
         row.error, row.state = pr.error, "error"
         return row, []
-    from reviewer.review import counts
+    from reviewer.records import counts
 
     run, p = pr.run, pr.run.project
     row.name, row.revision, row.variant_of = p.name, p.revision, p.variant_of
@@ -161,13 +192,33 @@ def row_of(pr: Any) -> tuple[Row, list[str]]:
     row.checklist = run.checklist.identity()
     row.record = pr.record_file
     row.chain_ok = pr.history_ok
+    row.head = pr.head
+    row.problems = list(pr.problems)
     states = pr.states
     row.counts = counts(states)
+    has_record = bool(pr.record_file)
     order = list(dict.fromkeys(r.stage for r in run.results))
     for sid in order:
-        row.cells[sid] = stage_state(st for (s, _), st in states.items() if s == sid)
+        row.cells[sid] = stage_state((st for (s, _), st in states.items() if s == sid),
+                                     has_record=has_record)
     row.state = _worst(c.state for c in row.cells.values())
+    if not row.chain_ok and row.state not in ("unverified", "fail"):
+        row.state = "unverified"
     return row, order
+
+
+def row_words(row: Row) -> tuple[str, str]:
+    """A row's worst result and worst review word (review "" without a record); a history
+    that does not verify reads ``unverified`` whatever its stages say."""
+    rank = {result_word(w): i for i, w in enumerate(RESULTS)}
+    order = {w: i for i, w in enumerate(REVIEWS)}
+    cells = list(row.cells.values())
+    result = min((c.result for c in cells), key=lambda w: rank.get(w, 0), default="n/a")
+    reviews = [c.review for c in cells if c.review]
+    review = min(reviews, key=lambda w: order.get(w, 0), default="")
+    if row.record and not row.chain_ok:
+        review = "unverified"
+    return result, review
 
 
 def _sort_key(row: Row) -> tuple[str, int, str]:
@@ -212,11 +263,11 @@ def status_matrix(paths: Sequence[str | Path], *, jobs: int = 1,
 
 
 def matrix_exit_code(m: Matrix) -> int:
-    """2 when a project does not load; 1 when a stage fails or is stale, or a history is
-    broken; else 0."""
+    """2 when a project does not load; 1 when a stage fails, is stale or unverified, or a
+    history does not verify; else 0."""
     if m.broken or not m.rows:
         return 2
-    return 1 if m.failing or m.stale or any(not r.chain_ok for r in m.rows) else 0
+    return 1 if m.failing or m.stale or m.unverified else 0
 
 
 def _display_name(row: Row, base_dir: Path | None) -> str:
@@ -243,7 +294,12 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
     bd = Path(base_dir) if base_dir is not None else None
     lead_rows, lead_styles, body_rows, body_styles = [], [], [], []
     for row in m.rows:
-        lead_rows.append([visible(_display_name(row, bd)), row.state])
+        if row.error:
+            overall = row.state
+        else:
+            result, review = row_words(row)
+            overall = f"{result} | {review}" if review else result
+        lead_rows.append([visible(_display_name(row, bd)), overall])
         lead_styles.append(["", STYLES.get(row.state, "")])
         if row.error:
             body_rows.append(["", ""] + ["" for _ in m.stages])
@@ -252,13 +308,13 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
         cells, styles = [], []
         for sid in m.stages:
             c = row.cells.get(sid)
-            cells.append("—" if c is None else c.state)
-            styles.append("dim" if c is None else STYLES.get(c.state, ""))
+            cells.append("—" if c is None else c.text())
+            styles.append("dim" if c is None else STYLES.get(c.review or c.result, ""))
         body_rows.append([visible(row.revision),
                           visible(Path(row.variant_of).name if row.variant_of else ""), *cells])
         body_styles.append(["", "", *styles])
     body = [Col("rev"), Col("variant of"), *(Col(visible(sid)) for sid in m.stages)]
-    lines = ["Review status by project and stage", ""]
+    lines = ["Review status by project and stage (result | review)", ""]
     lines += blocks([Col("project"), Col("overall")], lead_rows, body, body_rows, width,
                     lead_styles=lead_styles, body_styles=body_styles, colour=colour)
     notes: list[str] = []
@@ -268,10 +324,12 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
             notes.append(f"{label}: {visible(row.error)}")
             continue
         parts = [f"{sid}: {c.detail}" for sid, c in row.cells.items()
-                 if c.state in ("fail", "blocked", "incomplete", "stale", "marginal", "waived")
-                 and c.detail]
+                 if c.state in ("unverified", "fail", "blocked", "incomplete", "stale",
+                                "marginal", "waived") and c.detail]
         if not row.chain_ok:
-            parts.insert(0, "the review history is broken (latchbook verify)")
+            parts.insert(0, "the review history does not verify (latchbook verify)")
+        if row.record and row.head:
+            parts.append(f"head {row.head[:16]}")
         if parts:
             notes.append(f"{label}: " + visible(" | ".join(parts)))
     if notes:
@@ -280,8 +338,9 @@ def render_matrix(m: Matrix, out: TextIO | None = None, *, base_dir: str | Path 
         first, *rest = wrap(note, width - 4)
         lines += ["  " + first] + ["    " + r for r in wrap(" ".join(rest), width - 4) if r]
     code = matrix_exit_code(m)
-    verdict = {0: "nothing fails and no sign-off is stale",
-               1: f"{len(m.failing)} project(s) fail, {len(m.stale)} with stale sign-offs",
+    verdict = {0: "nothing fails, no sign-off is stale or unverified",
+               1: f"{len(m.failing)} project(s) fail, {len(m.stale)} with stale sign-offs, "
+                  f"{len(m.unverified)} whose review does not verify",
                2: "some projects do not load" if m.rows else "no projects found"}[code]
     lines += wrap(f"{len(m.rows)} project(s): {verdict}", width)
     stream.write("\n".join(lines) + "\n")
@@ -296,4 +355,4 @@ def summary_counts(rows: Iterable[Row]) -> Mapping[str, int]:
 
 
 __all__ = ["Cell", "Matrix", "MatrixBuilder", "Row", "find_projects", "matrix_exit_code",
-           "render_matrix", "row_of", "run_project", "stage_state", "status_matrix"]
+           "render_matrix", "row_of", "row_words", "run_project", "stage_state", "status_matrix"]

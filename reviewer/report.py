@@ -107,6 +107,9 @@ class ReportData:
     stages: list[StageBlock]
     history: list[HistoryRow]
     counts: dict[str, int]
+    outstanding: list[str] = field(default_factory=list)
+    entries: int = 0
+    anchor_note: str = ""
 
 
 # ---------------------------------------------------------------------------------- gather
@@ -141,11 +144,11 @@ def _history(record: Any, states: dict[tuple[str, str], Any], stale: dict[int, l
     in_force = set()
     for st in states.values():
         in_force.update(s for s in (st.signoff_seq, st.approval_seq, st.waiver_seq) if s)
-    trusted = {e.seq for e in record.trusted}
     rows = []
     for e in record.entries:
-        if e.seq not in trusted:
-            state = "not trusted: the history breaks here or before"
+        problems = record.trust.problems_of(e)
+        if problems:
+            state = "UNVERIFIED (counts for nothing): " + "; ".join(problems[:2])
         elif e.kind == "revoke":
             state = f"withdraws #{e.revokes}"
         elif e.kind == "note":
@@ -210,15 +213,16 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
     """Compute the project once and collect everything the report shows."""
     from reviewer.diff import chain_text, input_rows
     from reviewer.line import run_project, stage_state
+    from reviewer.records import FILE_ALONE, counts, review_view, stale_entries
     from reviewer.registry import CHECKS
-    from reviewer.review import check_states, counts, load_record, stale_entries
+    from reviewer.states import result_word
     from reviewer.store import utc_now
 
     path = Path(path)
     run = run_project(path)
     project, checklist = run.project, run.checklist
-    record = load_record(path)
-    states = check_states(record, run)
+    view = review_view(path, run)
+    record, states = view.record, view.states
     stale = {e.seq: ch for e, ch in stale_entries(record, run)}
     answers = _manual_answers(record)
     notes_by_seq = {e.seq: e.note for e in record.entries}
@@ -234,14 +238,16 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
     summary = []
     for sid, st in project.stages.items():
         results = [r for r in run.results if r.stage == sid]
-        cell = stage_state(states[(r.stage, r.check)] for r in results)
+        cell = stage_state((states[(r.stage, r.check)] for r in results),
+                           has_record=record.exists)
         rows = []
         for r in results:
             cs = states[(r.stage, r.check)]
             defn = CHECKS.get(r.check)
             limits = checklist.limits_for(r.check)
             rows.append(CheckRow(
-                r.check, defn.question if defn else "", r.status, cs.label, r.margin,
+                r.check, defn.question if defn else "", r.status,
+                cs.label if record.exists else result_word(r.status), r.margin,
                 r.summary, _values(r), limits, _worst(dict(r.worst)),
                 list(r.notes),
                 notes_by_seq.get(cs.waiver_seq, "") if cs.waiver_seq else "",
@@ -251,7 +257,12 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
             a = answers.get((sid, q["id"]))
             manual.append((q["id"], q["question"], a[0] if a else "not answered",
                            f"{a[1]} ({a[2]}, {a[3]})".strip() if a else ""))
-        block = StageBlock(sid, st.kind, cell.state, cell.detail, rows, manual, [])
+        detail = cell.detail
+        unanswered = [m[0] for m in manual if m[2] == "not answered"]
+        if unanswered:
+            detail = "; ".join(x for x in (detail, f"{len(unanswered)} manual question(s) "
+                               "not answered") if x)
+        block = StageBlock(sid, st.kind, cell.text(), detail, rows, manual, [])
         if plots:
             figs, block.no_plot = stage_figures(results, project)
             for row in rows:
@@ -266,7 +277,7 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
 
             block.schematic, block.schematic_note = stage_svg(st, project)
         stages.append(block)
-        summary.append((sid, st.kind, cell.state, cell.detail))
+        summary.append((sid, st.kind, cell.text(), detail))
     _name_files(stages)
     return ReportData(
         name=project.name, revision=project.revision, file=str(path), line=project.line,
@@ -274,12 +285,68 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
         checklist_file=checklist.path if checklist.path == "standard" else rel(checklist.path),
         tool=TOOL, generated=_when(utc_now()),
         record=rel(str(record.path)) if record.exists else "",
-        history_ok=record.chain.ok,
-        history_note="" if record.chain.ok else "; ".join(record.chain.messages[:3]),
+        history_ok=record.trust.ok,
+        history_note="" if record.trust.ok else "; ".join(record.trust.messages()[:3]),
         head=record.head, summary=summary,
         inputs=[(p, pretty_units(v), rel(f)) for p, v, f in input_rows(project)
                 if v not in ("", "—")],
-        stages=stages, history=_history(record, states, stale), counts=counts(states))
+        stages=stages, history=_history(record, states, stale), counts=counts(states),
+        outstanding=outstanding(view, checklist, stages), entries=len(record.entries),
+        anchor_note=FILE_ALONE)
+
+
+def outstanding(view: Any, checklist: Any, stages: list[StageBlock]) -> list[str]:
+    """What stands between this design and a finished review, in words (empty: nothing).
+
+    Failing checks without a current waiver, marginal ones, review words other than signed or
+    approved, unanswered manual questions, a missing approval, and a record that does not
+    verify. A report's summary never reads "pass" while any of these remains.
+    """
+    from reviewer.states import FAILING
+
+    sts = list(view.states.values())
+    out: list[str] = []
+    if view.exists and not view.verified:
+        out.append("the review history does not verify (latchbook verify)")
+
+    def names(pick: Any) -> list[str]:
+        return [f"{s.stage}/{s.check}" for s in sts if pick(s)]
+
+    def say(what: str, found: list[str]) -> None:
+        if found:
+            out.append(f"{len(found)} {what}: " + ", ".join(found[:4])
+                       + (" …" if len(found) > 4 else ""))
+
+    say("failing without a current waiver",
+        names(lambda s: s.status in FAILING and s.review != "waived"))
+    say("marginal without a current waiver",
+        names(lambda s: s.status == "marginal" and s.review != "waived"))
+    say("unverified", names(lambda s: s.review == "unverified"))
+    say("stale", names(lambda s: s.review == "stale"))
+    applicable = [s for s in sts if s.status != "not-applicable"]
+    if not view.exists:
+        out.append("no review record: nothing is signed")
+    else:
+        say("not signed", names(lambda s: s.status != "not-applicable"
+                                and s.review == "unsigned"))
+    unanswered = [f"{b.id}/{m[0]}" for b in stages for m in b.manual if m[2] == "not answered"]
+    say("manual question(s) not answered", unanswered)
+    if applicable and not all(s.review == "approved" or s.review == "waived"
+                              for s in applicable):
+        who = (", ".join(checklist.approvers) if checklist.approvers
+               else "an approver (the checklist names none)")
+        out.append(f"approval missing: not every check is approved (by {who})")
+    return out
+
+
+
+def verdict(d: ReportData) -> str:
+    """The summary's first line: never "pass" while anything is outstanding."""
+    if not d.outstanding:
+        return "Review complete: every check passes or is waived, is approved, and every " \
+               "manual question is answered"
+    return f"Review not complete: {len(d.outstanding)} thing(s) outstanding"
+
 
 
 def render(path: str | Path, fmt: str) -> str:

@@ -7,8 +7,11 @@ the same folder, is flushed to disk, gets the old file's permissions, replaces t
 A project and its review record are guarded by one sidecar lock, ``NAME.lock`` beside
 ``NAME.toml`` (the data files are never locked themselves: replacing a file would drop a lock held
 on it). The lock names its holder (login from the password database, host, pid, start time);
-a second writer is told who holds it and works read-only. A lock left by a dead process on this
-host is broken after checking that its pid is gone; a lock from another host is never broken.
+a command waits (bounded) for another command's short save and names whom it waits for; a
+workbook session is not waited for. A lock left by a dead process on this host is broken after
+checking that its pid is gone; a lock from another host, or one whose pid was reused, is broken
+only when the user asks (``--break-lock``). Temp files left by killed writers are removed the
+next time the lock is taken.
 
 Unsaved edits are kept in ``NAME.journal`` (JSON lines: a header, then one ``{path, text}`` per
 pending edit), written by the caller on a timer and on SIGHUP/SIGTERM, so that a dropped SSH
@@ -345,17 +348,28 @@ def lock_path(project_path: str | Path) -> Path:
 
 @dataclass(frozen=True)
 class LockInfo:
-    """Who holds a lock: the content of ``NAME.lock``."""
+    """Who holds a lock: the content of ``NAME.lock``.
+
+    ``what`` is what the holder is doing: ``session`` (the workbook, for as long as it is
+    open), or a short write such as ``sign``, ``waive``, ``record`` (worth waiting for).
+    """
 
     login: str
     host: str
     pid: int
     started: str
     token: str = ""
+    what: str = "session"
 
     def text(self) -> str:
         """``alice on buildhost since 2026-12-01 17:40 UTC (pid 4242)``."""
         return f"{self.login} on {self.host} since {self.started} (pid {self.pid})"
+
+    def doing(self) -> str:
+        """``kiln-lead's sign, pid 4242 on buildhost``, or their open workbook."""
+        if self.what == "session":
+            return f"{self.login}'s workbook session, pid {self.pid} on {self.host}"
+        return f"{self.login}'s {self.what}, pid {self.pid} on {self.host}"
 
 
 def _pid_alive(pid: int) -> bool:
@@ -392,7 +406,7 @@ def _parse_lock(raw: str) -> LockInfo:
     try:
         d = json.loads(raw)
         return LockInfo(str(d["login"]), str(d["host"]), int(d["pid"]), str(d["started"]),
-                        str(d.get("token", "")))
+                        str(d.get("token", "")), str(d.get("what", "session")))
     except (ValueError, KeyError, TypeError):
         return LockInfo("?", "?", 0, "?")
 
@@ -405,6 +419,35 @@ class LockedError(RecordError):
         self.holder = holder
 
 
+class LockTimeout(LockedError):
+    """Waited for the lock as long as allowed; ``waited`` is how long (s)."""
+
+    def __init__(self, message: str, where: Where | None, holder: LockInfo,
+                 waited: float) -> None:
+        super().__init__(message, where, holder)
+        self.waited = waited
+
+
+#: How long a command waits for another writer's short save before it gives up (s).
+DEFAULT_WAIT = 30.0
+
+_NO_SPACE = {errno.ENOSPC: "the disk is full (no space left on the device)",
+             errno.EDQUOT: "the disk quota is used up",
+             errno.EFBIG: "the file size limit was reached (ulimit -f)",
+             errno.EROFS: "the file system is read-only",
+             errno.EACCES: "permission denied", errno.EPERM: "permission denied"}
+
+
+def os_fault(exc: OSError) -> str:
+    """An OS error in words a user can act on (disk full, quota, size limit, permissions)."""
+    what = _NO_SPACE.get(exc.errno or 0)
+    if what is None:
+        return exc.strerror or str(exc)
+    fix = ("check the folder's permissions" if exc.errno in (errno.EACCES, errno.EPERM)
+           else "free some space (or raise the limit) and try again")
+    return f"{what}; {fix}"
+
+
 # Locks this process holds, by lock path: (lock, depth). Re-entrant so that the workbook, which
 # holds the lock for its whole session, can call the same functions the command line uses.
 _HELD: dict[str, list[Any]] = {}
@@ -413,13 +456,21 @@ _HELD: dict[str, list[Any]] = {}
 class ProjectLock:
     """An exclusive, re-entrant (within this process) lock on a project and its review record.
 
-    Use as a context manager, or :meth:`acquire` / :meth:`release`.
+    Use as a context manager, or :meth:`acquire` / :meth:`release`. ``wait`` is how long to
+    wait for another writer's short save (0: refuse at once); ``on_wait`` is told once, in
+    words, whom it waits for. A workbook session is not waited for: it holds the lock until
+    it is closed. ``waited`` says how long the wait took.
     """
 
-    def __init__(self, project_path: str | Path) -> None:
+    def __init__(self, project_path: str | Path, *, what: str = "session", wait: float = 0.0,
+                 on_wait: Callable[[str], object] | None = None) -> None:
         self.path = lock_path(project_path)
         self.project = Path(project_path)
         self.info: LockInfo | None = None
+        self.what = what
+        self.wait = wait
+        self.on_wait = on_wait
+        self.waited = 0.0
 
     @property
     def held(self) -> bool:
@@ -427,34 +478,71 @@ class ProjectLock:
         return self.info is not None
 
     def acquire(self) -> ProjectLock:
-        """Take the lock or raise :class:`LockedError` naming the holder."""
+        """Take the lock, waiting up to ``wait`` s for a short holder; else
+        :class:`LockedError` (:class:`LockTimeout` after waiting) naming the holder."""
+        started = time.monotonic()
+        pause = 0.005
+        told = False
+        while True:
+            try:
+                self._acquire_once()
+            except LockedError as exc:
+                holder = exc.holder
+                waited = time.monotonic() - started
+                if holder.pid == 0 or holder.what == "session" or self.wait <= 0:
+                    raise
+                if waited >= self.wait:
+                    raise LockTimeout(
+                        f"gave up after {waited:.0f} s waiting for {holder.doing()} (holding "
+                        f"it since {holder.started}). If that process is stopped or its pid "
+                        "now belongs to something else, run the command again with "
+                        "--break-lock", Where(str(self.project)), holder, waited) from None
+                if not told:
+                    if self.on_wait is not None:
+                        self.on_wait(f"waiting for {holder.doing()}…")
+                    told = True
+                time.sleep(min(pause, max(0.0, self.wait - waited)) *
+                           (0.5 + int.from_bytes(os.urandom(1), "big") / 255))
+                pause = min(pause * 1.6, 0.1)
+                continue
+            # Only time spent refused counts as waiting (not a slow first try).
+            self.waited = time.monotonic() - started if told or pause > 0.005 else 0.0
+            return self
+
+    def _acquire_once(self) -> None:
         key = str(self.path.absolute())
         held = _HELD.get(key)
         if held is not None and held[0].info is not None and held[0].info.pid == os.getpid():
             held[1] += 1
             self.info = held[0].info
-            return self
+            return
         me = current_person()
         info = LockInfo(me.login, me.host, os.getpid(),
-                        utc_now().strftime("%Y-%m-%d %H:%M:%S UTC"), os.urandom(8).hex())
+                        utc_now().strftime("%Y-%m-%d %H:%M:%S UTC"), os.urandom(8).hex(),
+                        self.what)
         body = json.dumps({"format": LOCK_FORMAT, "login": info.login, "host": info.host,
-                           "pid": info.pid, "started": info.started, "token": info.token})
+                           "pid": info.pid, "started": info.started, "token": info.token,
+                           "what": info.what})
         for _ in range(5):
             # Write the content to a private file, then hard-link it into place: the lock
-            # appears complete or not at all, and link() fails if the name exists.
+            # appears complete or not at all, and link() fails if the name exists. The temp
+            # name carries the pid, so that one left by a killed process can be cleaned.
             try:
-                fd, tmp = tempfile.mkstemp(prefix=f".{self.path.name}.", suffix=".tmp",
-                                           dir=self.path.parent)
+                fd, tmp = tempfile.mkstemp(prefix=f".{self.path.name}.{os.getpid()}.",
+                                           suffix=".tmp", dir=self.path.parent)
             except OSError as exc:
                 raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                  f"{exc.strerror}; check the folder's permissions",
-                                  Where(str(self.project))) from None
+                                  f"{os_fault(exc)}", Where(str(self.project))) from None
             try:
-                with os.fdopen(fd, "w", encoding="utf-8") as fh:
-                    fh.write(body + "\n")
-                    fh.flush()
-                    os.fsync(fh.fileno())
-                os.chmod(tmp, 0o644)
+                try:
+                    with os.fdopen(fd, "w", encoding="utf-8") as fh:
+                        fh.write(body + "\n")
+                        fh.flush()
+                        os.fsync(fh.fileno())
+                    os.chmod(tmp, 0o644)
+                except OSError as exc:
+                    raise RecordError(f"cannot create the lock file {self.path.name}: "
+                                      f"{os_fault(exc)}", Where(str(self.project))) from None
                 try:
                     os.link(tmp, self.path)
                 except FileExistsError:
@@ -465,7 +553,7 @@ class ProjectLock:
                 except OSError as exc:
                     if exc.errno not in (errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP):
                         raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                          f"{exc.strerror}", Where(str(self.project))) from None
+                                          f"{os_fault(exc)}", Where(str(self.project))) from None
                     if not self._create_exclusive(body):  # no hard links on this file system
                         holder = self._break_if_stale()
                         if holder is None:
@@ -477,7 +565,8 @@ class ProjectLock:
             _fsync_dir(self.path.parent)
             self.info = info
             _HELD[key] = [self, 1]
-            return self
+            clean_leftovers(self.project)
+            return
         holder = read_lock(self.project) or LockInfo("?", "?", 0, "?")
         raise self._locked(holder)
 
@@ -496,14 +585,18 @@ class ProjectLock:
     def _locked(self, holder: LockInfo) -> LockedError:
         me = current_person()
         if holder.pid == 0:
-            return LockedError(f"the lock file {self.path.name} is damaged or not ours; "
-                               "opened read-only: if no session has this project open, delete "
-                               "it by hand", Where(str(self.project)), holder)
-        hint = ("close it there" if holder.host == me.host else
-                f"close it there; if that session is gone, check on {holder.host} and then "
-                f"delete {self.path.name} by hand")
+            return LockedError(f"the lock file {self.path.name} is damaged or not ours: if no "
+                               "session has this project open, run again with --break-lock "
+                               "(or delete it by hand)", Where(str(self.project)), holder)
+        if holder.host != me.host:
+            hint = (f"close it there; if that session is gone, check on {holder.host} and then "
+                    "run again with --break-lock")
+        elif holder.what == "session":
+            hint = "it is open in the workbook there: close it, then try again"
+        else:
+            hint = "try again when it is done"
         return LockedError(f"locked by {holder.login} on {holder.host} since {holder.started} "
-                           f"(pid {holder.pid}); opened read-only: {hint}",
+                           f"(pid {holder.pid}, {holder.what}): {hint}",
                            Where(str(self.project)), holder)
 
     def _break_if_stale(self) -> LockInfo | None:
@@ -512,28 +605,7 @@ class ProjectLock:
         The break is serialised with ``flock`` on the lock file and re-checks that the path still
         names the inode it judged, so two breakers cannot remove a fresh lock.
         """
-        try:
-            fd = os.open(self.path, os.O_RDONLY)
-        except FileNotFoundError:
-            return None
-        try:
-            try:
-                fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
-            except OSError:  # someone else is breaking or releasing it right now
-                time.sleep(0.05)
-                return read_lock(self.project) if self.path.exists() else None
-            try:
-                if os.stat(self.path).st_ino != os.fstat(fd).st_ino:
-                    return None  # replaced meanwhile: look again
-            except FileNotFoundError:
-                return None
-            holder = _parse_lock(os.read(fd, 4096).decode("utf-8", "replace"))
-            if holder.host != socket.gethostname() or _pid_alive(holder.pid):
-                return holder
-            os.unlink(self.path)  # its process is gone on this host: a stale lock
-            return None
-        finally:
-            os.close(fd)
+        return _break(self.path, self.project, force=False)
 
     def release(self) -> None:
         """Give the lock up (the outermost release removes the file, if it is still ours)."""
@@ -568,9 +640,80 @@ class ProjectLock:
         self.release()
 
 
+def _break(path: Path, project: Path, *, force: bool) -> LockInfo | None:
+    """Remove the lock at ``path`` when its holder is a dead process here (or ``force``).
+
+    Returns the holder that was kept (None when the lock is gone or was removed).
+    """
+    try:
+        fd = os.open(path, os.O_RDONLY)
+    except FileNotFoundError:
+        return None
+    try:
+        try:
+            fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:  # someone else is breaking or releasing it right now
+            time.sleep(0.05)
+            return read_lock(project) if path.exists() else None
+        try:
+            if os.stat(path).st_ino != os.fstat(fd).st_ino:
+                return None  # replaced meanwhile: look again
+        except FileNotFoundError:
+            return None
+        holder = _parse_lock(os.read(fd, 4096).decode("utf-8", "replace"))
+        if not force and (holder.host != socket.gethostname() or _pid_alive(holder.pid)):
+            return holder
+        os.unlink(path)
+        return None
+    finally:
+        os.close(fd)
+
+
+def break_lock(project_path: str | Path) -> LockInfo | None:
+    """Remove the project's lock whoever holds it (a deliberate act: the user asked for it).
+
+    For a holder that is stopped, or whose pid now belongs to another program. Returns the
+    holder that was removed (None when there was no lock).
+    """
+    holder = read_lock(project_path)
+    if holder is None:
+        return None
+    _break(lock_path(project_path), Path(project_path), force=True)
+    _fsync_dir(lock_path(project_path).parent)
+    return holder
+
+
+def clean_leftovers(project_path: str | Path) -> list[Path]:
+    """Remove the temp files killed writers left beside a project (call holding its lock).
+
+    Every write of the project, its record and its journal happens under the lock, so while
+    we hold it their temp files are orphans. A lock's own temp file is removed when the pid
+    in its name is gone (or it is older than :data:`ORPHAN_AGE`). Returns what was removed.
+    """
+    b = base_name(project_path)
+    folder, name = b.parent, glob_escape(b.name)
+    gone: list[Path] = []
+    for pattern in (f".{name}.toml.*.tmp", f".{name}.review.toml.*.tmp",
+                    f".{name}.journal.*.tmp"):
+        for tmp in folder.glob(pattern):
+            with contextlib.suppress(OSError):
+                tmp.unlink()
+                gone.append(tmp)
+    now = time.time()
+    for tmp in folder.glob(f".{name}.lock.*.tmp"):
+        parts = tmp.name[len(b.name) + 7:].split(".")
+        pid = int(parts[0]) if parts and parts[0].isdigit() else 0
+        with contextlib.suppress(OSError):
+            if (pid and not _pid_alive(pid)) or now - tmp.stat().st_mtime > ORPHAN_AGE:
+                tmp.unlink()
+                gone.append(tmp)
+    return gone
+
+
 def lock_project(project_path: str | Path) -> ProjectLock:
-    """Take the project's lock (raises :class:`LockedError` naming the holder)."""
-    return ProjectLock(project_path).acquire()
+    """Take the project's lock for a workbook session (raises :class:`LockedError` naming the
+    holder; waits a little for another command's short save)."""
+    return ProjectLock(project_path, wait=5.0).acquire()
 
 
 # --------------------------------------------------------------------------------------------
@@ -617,12 +760,30 @@ def write_journal(project_path: str | Path, edits: Iterable[Edit | Mapping[str, 
     if not items:
         clear_journal(project_path)
         return None
+    _journal_like_project(project_path)
     head = {"format": JOURNAL_FORMAT, "project": Path(project_path).name,
             "saved_at": utc_now().isoformat().replace("+00:00", "Z"),
             "base_sha256": base_sha256, "by": current_person().as_dict()}
     lines = [json.dumps(head, ensure_ascii=False)]
     lines += [json.dumps({"path": e.path, "text": e.text}, ensure_ascii=False) for e in items]
     return atomic_write(journal_path(project_path), "\n".join(lines) + "\n")
+
+
+def _journal_like_project(project_path: str | Path) -> None:
+    """Create the journal, empty, with the project file's permissions before its first write.
+
+    The journal holds the project's values; a new file would get the umask's mode, so a 0600
+    project's edits would be world-readable. :func:`atomic_write` keeps an existing file's mode.
+    """
+    jp = journal_path(project_path)
+    try:
+        mode = stat.S_IMODE(os.stat(project_path).st_mode) & 0o666
+    except OSError:
+        return
+    with contextlib.suppress(FileExistsError, OSError):
+        fd = os.open(jp, os.O_WRONLY | os.O_CREAT | os.O_EXCL, mode)
+        os.fchmod(fd, mode)  # not widened by the umask, not narrowed either
+        os.close(fd)
 
 
 def pending_journal(project_path: str | Path) -> Journal | None:
@@ -639,6 +800,8 @@ def pending_journal(project_path: str | Path) -> Journal | None:
         raise RecordError(f"cannot read the unsaved-edits journal: {exc}; move it aside to "
                           "open the project without it", Where(str(jp))) from None
     rows = [ln for ln in raw.splitlines() if ln.strip()]
+    if not rows:  # created with the project's mode, not yet written: nothing pending
+        return None
     try:
         head = json.loads(rows[0]) if rows else {}
         if head.get("format") != JOURNAL_FORMAT:
@@ -710,9 +873,9 @@ def hangup_saves(callback: Callable[[], object]) -> Iterator[None]:
         restore()
 
 
-__all__ = ["Edit", "Journal", "LockInfo", "LockedError", "Person", "ProjectLock",
-           "atomic_stream", "atomic_write", "base_name", "clear_journal", "current_person",
-           "file_sha256",
+__all__ = ["DEFAULT_WAIT", "Edit", "Journal", "LockInfo", "LockTimeout", "LockedError",
+           "Person", "ProjectLock", "atomic_stream", "atomic_write", "base_name", "break_lock",
+           "clean_leftovers", "clear_journal", "current_person", "file_sha256",
            "hangup_saves", "install_hangup_handler", "journal_path", "lock_path", "lock_project",
-           "mine_path", "pending_journal", "read_lock", "read_with_hash", "save_checked",
-           "sha256_bytes", "stamp", "utc_now", "write_journal"]
+           "mine_path", "os_fault", "pending_journal", "read_lock", "read_with_hash",
+           "save_checked", "sha256_bytes", "stamp", "utc_now", "write_journal"]

@@ -108,6 +108,8 @@ def check_entry(pr: ProjectResult, r: Any) -> dict[str, Any]:
     }
     if review is not None:
         entry["review"] = review
+        st = pr.states.get(key)
+        entry["review_entries"] = list(getattr(st, "seqs", []) or [])
     entry |= {
         "margin": d["margin"], "summary": r.summary,
         "fix": (fix_of(r.check) or None) if r.status in ATTENTION else None,
@@ -151,11 +153,13 @@ def project_entry(pr: ProjectResult) -> dict[str, Any]:
     for sid in dict.fromkeys(r.stage for r in run.results):
         cell = stage_state(st for (s, _), st in pr.states.items() if s == sid)
         kind = next(r.kind for r in run.results if r.stage == sid)
-        stages.append({"id": sid, "kind": kind, "state": cell.state, "detail": cell.detail})
+        stages.append({"id": sid, "kind": kind, "state": cell.state, "detail": cell.detail,
+                       "result": cell.result, "review": cell.review or None})
     record = None
     if pr.has_record:
         record = {"file": pr.record_file, "history_ok": pr.history_ok,
-                  "first_bad": pr.first_bad}
+                  "first_bad": pr.first_bad, "head_sha256": pr.head, "entries": pr.entries,
+                  "problems": list(pr.problems)}
     return {
         "file": pr.file, "name": p.name, "revision": p.revision,
         "variant_of": p.variant_of or None, "line": p.line or None,

@@ -125,8 +125,18 @@ def to_html(d: ReportData) -> str:
              + "</tbody></table>")
     h.append("<h2>Cautions</h2>")
     h += [f'<div class="caution"><b>{_e(t)}.</b> {_e(b)}</div>' for t, b in CAUTIONS]
+    from reviewer.report import verdict
+
     h.append("<h2>Summary</h2>")
-    h.append(_table(["stage", "kind", "state", "detail"],
+    h.append(f"<p><b>{_e(verdict(d))}</b></p>")
+    if d.outstanding:
+        h.append("<ul>" + "".join(f"<li>{_e(o)}</li>" for o in d.outstanding) + "</ul>")
+    if d.record:
+        h.append(f'<p class="small">History head: <code>{_e(d.head or "(none)")}</code> '
+                 f"({d.entries} entries; {'verifies' if d.history_ok else 'does NOT verify'})."
+                 " Check a copy of the record against it later with "
+                 "<code>latchbook verify --head HASH</code>.</p>")
+    h.append(_table(["stage", "kind", "result | review", "detail"],
                     [f'<tr><td>{_e(s)}</td><td>{_e(k)}</td><td class="st {cls(st)}">{_e(st)}'
                      f"</td><td>{_e(det)}</td></tr>" for s, k, st, det in d.summary]))
     h.append(f'<p class="small">Counts: {_e(", ".join(f"{k} {v}" for k, v in d.counts.items()))}'
@@ -194,8 +204,8 @@ def to_html(d: ReportData) -> str:
                          for x in d.history]))
         if d.head:
             h.append(f'<p class="small head">History head (anchor it in version control): '
-                     f"<code>{_e(d.head)}</code>. The history is a hash chain: tamper-evident, "
-                     "not tamper-proof.</p>")
+                     f"<code>{_e(d.head)}</code>. What the record alone proves: "
+                     f"{_e(d.anchor_note)}.</p>")
     else:
         h.append("<p>No sign-offs yet.</p>")
     h.append(f"<footer><p>{_e(d.tool)}; checklist {_e(c['name'])} version {_e(c['version'])} "

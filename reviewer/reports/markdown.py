@@ -69,10 +69,18 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
             f"- Exported: {_md(d.generated)} by {_md(d.tool)}", ""]
     out += ["## Cautions", ""]
     out += [f"- **{_md(t)}.** {_md(b)}" for t, b in CAUTIONS]
-    out += ["", "## Summary", "", "| stage | kind | state | detail |", "|---|---|---|---|"]
+    from reviewer.report import verdict
+
+    out += ["", "## Summary", "", f"**{_md(verdict(d))}**", ""]
+    out += [f"- {_md(o)}" for o in d.outstanding]
+    out += ["", "| stage | kind | result \\| review | detail |", "|---|---|---|---|"]
     out += [f"| {_md(s)} | {_md(k)} | **{_md(st)}** | {_md(det)} |"
             for s, k, st, det in d.summary]
     out += ["", "Counts: " + ", ".join(f"{k} {v}" for k, v in d.counts.items()), ""]
+    if d.record:
+        out += [f"History head: `{d.head or '(none)'}` ({d.entries} entries; "
+                + ("verifies" if d.history_ok else "does NOT verify") + "). Check a copy "
+                "of the record against it later with `latchbook verify --head HASH`.", ""]
     out += ["## Inputs", "", "| input | value | from |", "|---|---|---|"]
     out += [f"| {_code(p)} | {_md(v)} | {_md(f)} |" for p, v, f in d.inputs]
     for s in d.stages:
@@ -121,8 +129,8 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
                 f"{_md(h.checks)} | {_md(h.by)} | {_md(h.at)} | {_md(h.note)} | "
                 f"{_md(h.state)} |" for h in d.history]
         if d.head:
-            out += ["", f"History head (anchor it in version control): `{d.head}`. The history "
-                    "is a hash chain: tamper-evident, not tamper-proof."]
+            out += ["", f"History head (anchor it in version control): `{d.head}`. "
+                    f"What the record alone proves: {_md(d.anchor_note)}."]
     else:
         out.append("No sign-offs yet.")
     out += ["", "---", "", f"{_md(d.tool)}; checklist {_md(c['name'])} version "

@@ -28,7 +28,7 @@ def test_check_json_shape(capsys):
     assert doc["format"] == "latchbook.results/1" and doc["command"] == "check"
     assert doc["tool"].startswith("latchbook ")
     [project] = doc["projects"]  # a list even for one project
-    assert set(project["checklist"]) == {"name", "version", "sha256"}
+    assert set(project["checklist"]) == {"name", "version", "sha256", "policy_sha256"}
     assert project["warnings"] == []
     assert project["record"] is None and project["checks"]
     for r in project["checks"]:

@@ -42,11 +42,11 @@ def line(tmp_path: Path) -> Path:
 
 def as_login(monkeypatch: pytest.MonkeyPatch, login: str) -> None:
     """Make both the workbook and the review module see ``login`` as the user."""
-    import reviewer.review as review
+    from reviewer.records import actions
 
     person = store.Person(login, login, socket.gethostname())
     monkeypatch.setattr(store, "current_person", lambda: person)
-    monkeypatch.setattr(review, "current_person", lambda: person)
+    monkeypatch.setattr(actions, "current_person", lambda: person)
 
 
 def footer(app) -> str:
