@@ -8,7 +8,7 @@ import shutil
 from pathlib import Path
 
 from reviewer.cli import main
-from reviewer.report import render
+from reviewer.report import gather, render, to_markdown
 
 ROOT = Path(__file__).resolve().parents[2]
 LINE = ROOT / "projects" / "kiln-line"
@@ -29,8 +29,10 @@ def test_folder_and_file_give_one_report_each(tmp_path, capsys):
     names = sorted(p.name for p in out.rglob("*.md"))
     assert names == ["flasher-dc.md", "kiln-120-1k.md", "kiln-120-2k.md", "kiln-230-2k.md",
                      "kiln-base.md"]
+    # A written Markdown report links its figures, written beside it.
     assert _untimed((out / "kiln-base.md").read_text("utf-8")) == _untimed(
-        render(LINE / "kiln-base.toml", "md"))
+        to_markdown(gather(LINE / "kiln-base.toml"), "kiln-base.figures"))
+    assert (out / "kiln-base.figures" / "trigger-schematic.svg").is_file()
     assert err.count("report written to") == 5
     assert not list(out.glob(".*.tmp"))  # no temp file left behind
 
