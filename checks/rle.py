@@ -28,10 +28,11 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 
 import numpy as np
 
+from checks.core import FAIL, PASS, Outcome, grade
 from checks.power import _decay, _one_minus_decay, _segment_peak, segment_integrals
 
 TOPOLOGIES = ("half-wave", "bridge")
@@ -306,3 +307,156 @@ def dropout_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
         hi = np.where(up, hi, mid)
     out = np.where(handed, b, 0.5 * (lo + hi))
     return np.where(reach, out, np.nan).reshape(shape)
+
+
+# --------------------------------------------------------------------------------------------
+# Checks that read the load current of a back-EMF load. They follow checks.power's checks of
+# the same name; the current here is the R–L–E current.
+
+def first_peak(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+               omega: np.ndarray, alpha: np.ndarray, e: np.ndarray) -> np.ndarray:
+    """The largest current after firing at α from zero current [A]: the peak of the segment
+    from max(α, θ1) to its extinction (a first firing from rest, the least current the SCR
+    sees after a pulse; steady continuous conduction only adds to it). 0 where the line never
+    exceeds E after α. Arguments as :func:`stage_values`.
+
+    >>> round(float(first_peak(vs=100 / np.sqrt(2), r=10.0, l=0.0, omega=314.16,
+    ...                        alpha=np.radians(150), e=20.0)), 6)
+    3.0
+    """
+    v = stage_values(topology="half-wave", freewheel=False, vs=vs, r=r, l=l, omega=omega,
+                     alpha=alpha, e=e, peak=True)
+    return v["it_peak"]
+
+
+def max_firing_angle(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                     omega: np.ndarray, e: np.ndarray, il: np.ndarray) -> np.ndarray:
+    """Latest α at which the current after firing still reaches IL [rad]: bisection of
+    :func:`first_peak` = IL over [max(π/2, θ1), π − θ1], where the peak falls as α grows; NaN
+    when even firing at max(π/2, θ1) stays below IL. il [A]; the rest as :func:`stage_values`.
+
+    >>> round(float(np.degrees(max_firing_angle(vs=100 / np.sqrt(2), r=10.0, l=0.0,
+    ...     omega=314.16, e=20.0, il=3.0))), 4)
+    150.0
+    """
+    vs, r, l, omega, e, il = np.broadcast_arrays(_a(vs), _a(r), _a(l), _a(omega), _a(e),  # noqa: E741
+                                                 _a(il))
+    th1 = emf_angle(vm=np.sqrt(2) * vs, e=e)
+    lo = np.maximum(np.pi / 2, th1)
+    hi = np.maximum(np.pi - th1, lo)
+    ok = first_peak(vs=vs, r=r, l=l, omega=omega, alpha=lo, e=e) >= il
+    for _ in range(40):
+        mid = 0.5 * (lo + hi)
+        reach = first_peak(vs=vs, r=r, l=l, omega=omega, alpha=mid, e=e) >= il
+        lo = np.where(reach, mid, lo)
+        hi = np.where(reach, hi, mid)
+    return np.where(ok, 0.5 * (lo + hi), np.nan)
+
+
+def latching_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                   omega: np.ndarray, alpha: np.ndarray, alpha_lo: np.ndarray,
+                   alpha_hi: np.ndarray, e: np.ndarray, il_cold: np.ndarray,
+                   limits: Mapping[str, float]) -> Outcome:
+    """``power.latching`` with a back EMF: min over α_lo, α_hi of :func:`first_peak` / IL_c,
+    graded with ``fail_below``; ``anode_current_at_fire`` is the first peak at the row's α and
+    ``max_firing_angle`` comes from :func:`max_firing_angle`. The largest E is the worst.
+
+    >>> o = latching_check(vs=np.array([100 / np.sqrt(2)]), r=10.0, l=0.0, omega=314.16,
+    ...                    alpha=np.radians(150), alpha_lo=np.radians(30),
+    ...                    alpha_hi=np.radians(150), e=20.0, il_cold=4.0, limits={})
+    >>> o.status.tolist(), round(float(o.values["reach_current"][0]), 3)
+    ([2], 3.0)
+    """
+    il_cold = _a(il_cold)
+    kw = dict(vs=vs, r=r, l=l, omega=omega, e=e)
+    at_fire = first_peak(alpha=alpha, **kw)
+    th1 = emf_angle(vm=np.sqrt(2) * _a(vs), e=e)
+
+    def peak_or_none(a: np.ndarray) -> np.ndarray:
+        # Where the line never exceeds E after α there is no current to latch (a dead band,
+        # said by power.control), not a latching failure.
+        dead = np.maximum(_a(a), th1) >= np.pi - th1
+        return np.where(dead, np.inf, first_peak(alpha=a, **kw))
+
+    reach = np.minimum(peak_or_none(alpha_lo), peak_or_none(alpha_hi))
+    margin, status = grade(reach / il_cold, limits)
+    margin = np.where(np.isinf(reach), np.inf, margin)
+    reach = np.where(np.isinf(reach), np.nan, reach)
+    amax = max_firing_angle(il=il_cold, **kw)
+    return Outcome({"anode_current_at_fire": at_fire, "il": il_cold + 0 * at_fire,
+                    "max_firing_angle": amax + 0 * at_fire, "reach_current": reach},
+                   margin, status)
+
+
+def holding_check(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
+                  l: np.ndarray, omega: np.ndarray, alpha: np.ndarray,  # noqa: E741
+                  e: np.ndarray, ih_cold: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+    """``power.holding`` with a back EMF: the angle where the SCR current falls to IH_c
+    (:func:`dropout_angle`), reported with pass; fail where the current never reaches IH_c
+    (margin = peak/IH − 1 there).
+
+    >>> o = holding_check(topology="half-wave", freewheel=False, vs=np.array([50.0]), r=10.0,
+    ...                   l=0.0, omega=314.16, alpha=0.5, e=60.0, ih_cold=2.0, limits={})
+    >>> o.status.tolist()
+    [2]
+    """
+    ih = _a(ih_cold)
+    v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=omega,
+                     alpha=alpha, e=e, peak=True)
+    peak = v["it_peak"]
+    drop = dropout_angle(vs=vs, r=r, l=l, omega=omega, alpha=alpha, e=e, topology=topology,
+                         freewheel=freewheel, ih=ih)
+    th1 = emf_angle(vm=np.sqrt(2) * _a(vs), e=e)
+    dead = (np.maximum(_a(alpha), th1) >= np.pi - th1) & (v["continuous"] == 0)
+    never = np.isnan(drop) & ~dead
+    status = np.where(never, FAIL, PASS).astype(np.int8)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        margin = np.where(never, peak / ih - 1.0, np.inf)
+    return Outcome({"load_current": peak, "ih": ih + 0 * peak, "dropout_angle": drop},
+                   margin, status)
+
+
+def surge_check(*, vs: np.ndarray, r_cold: np.ndarray, l: np.ndarray,  # noqa: E741
+                omega: np.ndarray, alpha: np.ndarray, e_start: np.ndarray, itsm: np.ndarray,
+                t_sm: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+    """``power.surge`` with a back EMF: the first half-cycle from rest into the cold load with
+    the EMF at its start value ``e_start`` [V] (a motor at standstill has none; a battery its
+    lowest), :func:`first_peak`, against ITSM at the line's half-cycle
+    (:func:`checks.power.itsm_at`).
+
+    >>> o = surge_check(vs=np.array([253.0]), r_cold=2.0, l=0.0, omega=314.16, alpha=0.0,
+    ...                 e_start=0.0, itsm=200.0, t_sm=0.01, limits={})
+    >>> o.status.tolist(), round(float(o.values["inrush_peak"][0]), 1)
+    ([0], 178.9)
+    """
+    from checks.power import itsm_at
+
+    peak = first_peak(vs=vs, r=r_cold, l=l, omega=omega, alpha=alpha, e=e_start)
+    rating = itsm_at(itsm=itsm, t_sm=t_sm, t=np.pi / _a(omega))
+    with np.errstate(divide="ignore"):
+        margin, status = grade(rating / peak, limits)
+    return Outcome({"inrush_peak": peak, "itsm_at_line": rating + 0 * peak}, margin, status)
+
+
+def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
+                  alpha_hi: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+    """``power.control`` with a back EMF: firing before θ1 = asin(E/Vm) starts no current, so a
+    firing range that begins below θ1 has lost control there (a narrow gate pulse misses the
+    half-cycle; a wide one fires at θ1 whatever the setting)  [1, §3], [2, ch. 6].
+
+    metric = α_min/θ1 (graded with ``fail_below``); ``last_angle`` = π − θ1, the latest firing
+    that gives any current. vs [V RMS]; e [V]; alpha_lo, alpha_hi [rad].
+
+    >>> o = control_check(vs=np.array([60.0]), e=12.0, alpha_lo=np.radians(5),
+    ...                   alpha_hi=np.radians(120), limits={})
+    >>> o.status.tolist(), round(float(np.degrees(o.values["emf_angle"][0])), 2)
+    ([2], 8.13)
+    """
+    th1 = emf_angle(vm=np.sqrt(2) * _a(vs), e=e)
+    lo = _a(alpha_lo) + 0 * th1
+    with np.errstate(divide="ignore", invalid="ignore"):
+        metric = np.where(th1 > 0, lo / th1, np.inf)
+    margin, status = grade(metric, limits)
+    margin = np.where(np.isinf(metric), np.inf, margin)
+    return Outcome({"emf_angle": th1, "alpha_min": lo, "alpha_max": _a(alpha_hi) + 0 * th1,
+                    "last_angle": np.pi - th1}, margin, status)

@@ -322,13 +322,15 @@ class _Loader:
                 raise ProjectError(f'`{key}` must be "line", "dc" or a voltage such as '
                                    '"400 V"', where) from None
         if p.kind in ("target", "required"):
-            dims = ("frequency", "angle") if p.kind == "target" else ("power", "voltage")
+            dims = (("frequency", "angle") if p.kind == "target"
+                    else ("power", "voltage", "current"))
             for d in dims:
                 try:
                     return parse_value(val, d, where, allow_zero=True)
                 except LatchbookError:
                     continue
-            raise ProjectError(f"`{key}` must be a range of {dims[0]} or {dims[1]}, e.g. "
+            raise ProjectError(f"`{key}` must be a range of " + ", ".join(dims[:-1])
+                               + f" or {dims[-1]}, e.g. "
                                + ('{ min = "40 Hz", max = "120 Hz" }' if p.kind == "target"
                                   else '{ min = "50 W", max = "1.8 kW" }'), where)
         raise AssertionError(p.kind)
@@ -406,6 +408,7 @@ class _Loader:
                                            + f', but "{val}" is {target.kind}', where)
                     if target.id == st.id:
                         raise ProjectError(f"`{key}` names the stage itself", where)
+            _check_emf_load(st, self.where(f"stages.{st.id}", "load"))
             if st.kind == "phase-control":
                 if project.supply["kind"] != "ac":
                     raise ProjectError("a phase-control stage needs an AC supply "
@@ -428,6 +431,23 @@ def _confine(base: Path, ref: str, naming: Path, where: Where) -> None:
                            "folder below it", where)
     if not ref.endswith(".toml"):
         raise ProjectError(f'variant_of = "{ref}" must name a project file NAME.toml', where)
+
+
+def _check_emf_load(st: Stage, where: Where) -> None:
+    """A back EMF (`load.e`) belongs to a rectifier: a half-wave or bridge phase-control stage."""
+    load = st.params.get("load")
+    if not isinstance(load, dict):
+        return
+    if "type" in load and "e" not in load:
+        raise ProjectError(f'`load.type = "{load["type"]}"` needs the back EMF `e`, e.g. '
+                           'load = { r = "0.5 ohm", e = { min = "11 V", max = "14.4 V" } }',
+                           where)
+    if "e" not in load:
+        return
+    if st.kind != "phase-control" or st.params.get("topology") not in ("half-wave", "bridge"):
+        raise ProjectError("a back EMF `load.e` is for a half-wave or bridge phase-control "
+                           "stage (a rectifier feeding a battery or a DC motor); remove `e` or "
+                           'use topology = "half-wave" or "bridge"', where)
 
 
 def _is_range(v: dict[str, Any]) -> bool:

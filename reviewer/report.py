@@ -26,7 +26,7 @@ import numpy as np
 
 from reviewer import TOOL
 from reviewer.fmt import eng, pct
-from reviewer.safety import CAUTIONS, FOOTER
+from reviewer.safety import CAUTIONS, FOOTER, load_cautions
 from reviewer.textsafe import markdown, visible
 from reviewer.waveforms import has_waveform, picture
 
@@ -102,6 +102,7 @@ class ReportData:
     stages: list[StageBlock]
     history: list[HistoryRow]
     counts: dict[str, int]
+    extra_cautions: tuple[tuple[str, str], ...] = ()
 
 
 # ---------------------------------------------------------------------------------- gather
@@ -230,7 +231,14 @@ def gather(path: str | Path, *, plots: bool = True) -> ReportData:
         history_note="" if record.chain.ok else "; ".join(record.chain.messages[:3]),
         head=record.head, summary=summary,
         inputs=[(p, v, rel(f)) for p, v, f in input_rows(project)],
-        stages=stages, history=_history(record, states, stale), counts=counts(states))
+        stages=stages, history=_history(record, states, stale), counts=counts(states),
+        extra_cautions=load_cautions(_load_types(project)))
+
+
+def _load_types(project: Any) -> list[str]:
+    """The kinds of back-EMF load ("battery", "motor") among the project's stages."""
+    loads = [st.params.get("load") for st in project.stages.values()]
+    return [str(ld["type"]) for ld in loads if isinstance(ld, dict) and "type" in ld]
 
 
 # ----------------------------------------------------------------------------------- plots
@@ -374,7 +382,7 @@ def to_markdown(d: ReportData) -> str:
             + ("" if d.history_ok else f" — HISTORY BROKEN: {_md(d.history_note)}"),
             f"- Exported: {_md(d.generated)} by {_md(d.tool)}", ""]
     out += ["## Cautions", ""]
-    out += [f"- **{_md(t)}.** {_md(b)}" for t, b in CAUTIONS]
+    out += [f"- **{_md(t)}.** {_md(b)}" for t, b in CAUTIONS + d.extra_cautions]
     out += ["", "## Summary", "", "| stage | kind | state | detail |", "|---|---|---|---|"]
     out += [f"| {_md(s)} | {_md(k)} | **{_md(st)}** | {_md(det)} |"
             for s, k, st, det in d.summary]
@@ -487,7 +495,8 @@ def to_html(d: ReportData) -> str:
     h += [f"<tr><td>{_e(k)}</td><td>{_e(v)}</td></tr>" for k, v in meta]
     h.append("</table>")
     h.append("<h2>Cautions</h2>")
-    h += [f'<div class="caution"><b>{_e(t)}.</b> {_e(b)}</div>' for t, b in CAUTIONS]
+    h += [f'<div class="caution"><b>{_e(t)}.</b> {_e(b)}</div>'
+          for t, b in CAUTIONS + d.extra_cautions]
     h += ["<h2>Summary</h2>", "<table><tr><th>stage</th><th>kind</th><th>state</th>"
           "<th>detail</th></tr>"]
     h += [f'<tr><td>{_e(s)}</td><td>{_e(k)}</td><td class="st {_cls(st)}">{_e(st)}</td>'

@@ -8,7 +8,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import oscillator, power
+from checks import oscillator, power, rle
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
 from checks.rl import extinction_angle
@@ -35,6 +35,8 @@ LOAD = {
     "l": Param(V, "inductance", allow_zero=True),
     "cold_r": Param(V, "resistance"),
     "hold_current": Param(V, "current"),
+    "e": Param(V, "voltage", allow_zero=True),
+    "type": Param("choice", choices=("battery", "motor")),
 }
 HEATSINK = {
     "rth_cs": Param(V, "thermal_resistance", allow_zero=True),
@@ -98,6 +100,23 @@ def _bind_load(ctx: Context, b: Bound, *, l_needed: bool = True) -> None:
         ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
         # A missing inductance is the resistive case, not an assumption worth a note.
         b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+    _bind_emf(ctx, b)
+
+
+def _emf_type(ctx: Context) -> str | None:
+    """"battery", "motor" or "emf" for a load with a back EMF `e`; None without one."""
+    load = ctx.stage.get("load")
+    if not isinstance(load, dict) or not isinstance(load.get("e"), Value):
+        return None
+    return str(load.get("type", "emf"))
+
+
+def _bind_emf(ctx: Context, b: Bound) -> None:
+    """A back EMF (battery, motor armature): input ``e`` and option ``emf`` (its type)."""
+    kind = _emf_type(ctx)
+    if kind is not None and not _is_dc(ctx):
+        ctx.need(b, "e", _sp(ctx, "load.e"))
+        b.options["emf"] = kind
 
 
 def _bind_stage_options(ctx: Context, b: Bound) -> None:
@@ -262,6 +281,10 @@ def _bind_output(ctx: Context) -> Bound:
         return b
     req = ctx.stage.get("required")
     path = _sp(ctx, "required")
+    if "e" in b.inputs:
+        ev = b.inputs["e"].value
+        b.add("e_full", _sp(ctx, "load.e") + "#max", ev.at(ev.hi))
+        b.add("e_least", _sp(ctx, "load.e") + "#min", ev.at(ev.lo))
     if not isinstance(req, Value):
         # The values are always reported; only the pass/fail needs a `required` range.
         b.options["quantity"] = "power"
@@ -269,7 +292,11 @@ def _bind_output(ctx: Context) -> Bound:
         b.add("req_hi", path + "#none", nan)
         b.add("req_lo", path + "#none-min", nan)
         return b
-    b.options["quantity"] = "power" if req.dim == "power" else "voltage"
+    b.options["quantity"] = {"power": "power", "current": "current"}.get(req.dim, "voltage")
+    if req.dim == "current" and "e" not in b.inputs:
+        b.not_applicable = ("`required` as a current is for a battery or motor load (give "
+                            "`load.e`); give a power or a voltage for this load")
+        return b
     b.add("req_hi", path + "#max", req.at(req.hi))
     b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
           else Value.fixed(float("nan"), req.dim, req.unit))
@@ -279,6 +306,7 @@ def _bind_output(ctx: Context) -> Bound:
 def _fn_output(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
+    kw.pop("emf", None)
     w = _omega(kw)
     pulse = kw.get("gate_pulse")
     a, note = _pulses(kw, a, w)
@@ -292,8 +320,12 @@ def _fn_output(**kw: Any) -> Outcome:
 def _sum_output(r: Reduced) -> str:
     q = r.bound.options.get("quantity", "power")
     topo = r.bound.options.get("topology")
-    unit = "W" if q == "power" else "V"
+    emf = r.bound.options.get("emf")
+    unit = {"power": "W", "current": "A"}.get(q, "V")
     name = "load power" if q == "power" else ("V_rms" if topo == "ac-switch" else "V_dc")
+    if q == "current":
+        name = {"battery": "charge current", "motor": "armature current"}.get(emf,
+                                                                              "load current")
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
             f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
     req_hi = r.bound.inputs["req_hi"].value.nom
@@ -307,6 +339,8 @@ def _sum_output(r: Reduced) -> str:
                 # P ∝ 1/R at a given α and line: the load R that would just reach it.
                 r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
                 short += f", or load R ≤ {eng(r_need, 'ohm')}"
+            if emf and r.bound.inputs["e"].value.varies:
+                short += f" (at E = {eng(r.bound.inputs['e'].value.hi, 'V')})"
             fixes.append(short)
         if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
@@ -322,7 +356,29 @@ def _sum_output(r: Reduced) -> str:
     if inductive:
         beta = span(r.lo["extinction_angle"], r.hi["extinction_angle"], "deg")
         text += f"; current runs on to β = {beta}"
+    if emf:
+        text += _emf_output_text(r, emf)
     return text + _lost_text(r)
+
+
+def _emf_output_text(r: Reduced, emf: str) -> str:
+    """What a back-EMF load adds to the output summary: current, voltage, θ1, conduction."""
+    what = {"battery": "charge current", "motor": "armature current"}.get(emf, "load current")
+    q = r.bound.options.get("quantity")
+    text = ""
+    if q != "current":
+        text += f"; {what} {span(r.lo['load_current'], r.hi['load_current'], 'A')} (mean)"
+    if q != "voltage":
+        text += f"; V_dc {span(r.lo['vdc'], r.hi['vdc'], 'V')} at the terminals"
+    text += (f"; the line exceeds E from θ1 = {span(r.lo['emf_angle'], r.hi['emf_angle'], 'deg')}"
+             " (earlier firing does nothing: see power.control)")
+    cont = r.hi.get("continuous", 0.0)
+    if cont > 0:
+        text += ("; conduction is continuous at some corners" if r.lo.get("continuous", 0) == 0
+                 else "; conduction is continuous")
+    else:
+        text += "; conduction is discontinuous"
+    return text
 
 
 register(CheckDef(
@@ -354,6 +410,9 @@ def _bind_blocking(ctx: Context) -> Bound:
     ctx.need(b, "vrrm", f"parts.{part.ref}.vrrm")
     ctx.need(b, "vs", "supply.voltage")
     b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    if _emf_type(ctx) is not None:
+        # The back EMF adds to the line in reverse: an SCR blocks up to Vm + E.
+        ctx.need(b, "emf_e", _sp(ctx, "load.e"))
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:
         sn = snubs[0]
@@ -390,7 +449,7 @@ def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarra
                  limits: Mapping[str, float], snubber: str = "", step: str = "",
                  snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
                  snub_e: Any = None, reverse_from: str = "", v_c0: Any = None,
-                 diode_clamp: float | None = None) -> Outcome:
+                 diode_clamp: float | None = None, emf_e: Any = None) -> Outcome:
     vs = np.asarray(vs, dtype=float)
     v_line = vs if kind == "dc" else np.sqrt(2.0) * vs
     v_fwd = v_line
@@ -408,6 +467,15 @@ def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarra
             v_rev = v_c0 if v_c0 is not None else vs
     else:
         v_rev = v_fwd
+    if emf_e is not None:
+        # Reverse, the line and the back EMF add: a step of up to Vm + E (snubbed, its
+        # overshoot on that step).
+        if snubber and step == "line":
+            e_rev = np.sqrt(2.0) * vs + np.asarray(emf_e, dtype=float)
+            v_snub, _ = snubber_mod.step_peak(e=e_rev, r=snub_r, l=snub_l, c=snub_c)
+            v_rev = np.maximum(e_rev, v_snub)
+        else:
+            v_rev = v_rev + np.asarray(emf_e, dtype=float)
     out = power.blocking_check(vdrm=vdrm, vrrm=vrrm, v_fwd=v_fwd, v_rev=v_rev, limits=limits)
     out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
     return out
@@ -422,6 +490,8 @@ def _sum_blocking(r: Reduced) -> str:
     text = (f"VDRM {eng(vdrm, 'V')} / VRRM {eng(vrrm, 'V')} against "
             f"{eng(r.hi['peak_voltage'], 'V')} ({src}, high line): ratio "
             f"{r.worst['blocking_ratio']:.2f}")
+    if "emf_e" in r.bound.inputs:
+        text += "; reverse stress includes the back EMF (Vm + E)"
     if r.bound.options["kind"] == "dc" and not r.bound.options.get("reverse_from"):
         text += "; no turn-off network reverse-biases it, so VRRM is not stressed"
     elif r.bound.options.get("diode_clamp") is not None:
@@ -506,6 +576,7 @@ def _lost_text(r: Reduced) -> str:
 
 def _fn_currents(core: Any) -> Any:
     def fn(**kw: Any) -> Outcome:
+        kw.pop("emf", None)
         if kw.get("kind") == "ac":
             a, _, _ = _firing(kw)
             kw["omega"] = _omega(kw)
@@ -652,12 +723,34 @@ def _bind_surge(ctx: Context) -> Bound:
     ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
     b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
     b.options["topology"] = ctx.stage.get("topology")
+    _bind_surge_emf(ctx, b)
     _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
     return b
 
 
+def _bind_surge_emf(ctx: Context, b: Bound) -> None:
+    """The back EMF at the first firing: none for a motor at standstill (or an EMF of unknown
+    kind), the lowest for a battery (deeply discharged)."""
+    kind = _emf_type(ctx)
+    if kind is None:
+        return
+    b.options["emf"] = kind
+    if kind == "battery":
+        e = ctx.project.lookup(_sp(ctx, "load.e"))
+        b.add("e_start", _sp(ctx, "load.e") + "#min", e.at(e.lo))
+        b.notes.append("the battery at its lowest E for the first firing")
+    else:
+        b.add("e_start", _sp(ctx, "load.e") + "#start", Value.fixed(0.0, "voltage", "V"))
+        b.notes.append("no back EMF at the first firing (a motor at standstill: the stall "
+                       "current)")
+
+
 def _fn_surge(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
+    if "e_start" in kw:
+        for k in ("topology", "emf"):
+            kw.pop(k)
+        return rle.surge_check(alpha=a, omega=_omega(kw), **kw)
     return power.surge_check(alpha=a, omega=_omega(kw), **kw)
 
 
@@ -794,6 +887,11 @@ def _fn_latching(**kw: Any) -> Outcome:
         out.values["time_to_il"] = t_il + 0 * out.margin
         return out
     a, lo, hi = _firing(kw)
+    if "e" in kw:
+        kw.pop("kind")
+        kw.pop("emf")
+        return rle.latching_check(il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
+                                  omega=_omega(kw), **kw)
     return power.latching_check(il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
                                 omega=_omega(kw), **kw)
 
@@ -849,6 +947,8 @@ def _bind_holding(ctx: Context) -> Bound:
     _bind_load(ctx, b)
     ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
+    if "e" in b.inputs:
+        _bind_stage_options(ctx, b)
     return b
 
 
@@ -857,6 +957,10 @@ def _fn_holding(**kw: Any) -> Outcome:
     if kw["kind"] == "dc":
         return power.holding_check(ih_cold=ih, **kw)
     a, _, _ = _firing(kw)
+    if "e" in kw:
+        for k in ("kind", "emf"):
+            kw.pop(k)
+        return rle.holding_check(ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
     return power.holding_check(ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
 
 
@@ -905,6 +1009,8 @@ def _bind_didt(ctx: Context) -> Bound:
     if ls is None and ll is None:  # di/dt is then bounded only by the wiring
         b.missing.append("supply.inductance (or " + _sp(ctx, "load.l") + ")")
         return b
+    if _emf_type(ctx) is not None:
+        ctx.need(b, "e", _sp(ctx, "load.e"))
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:
         sn = snubs[0]
@@ -920,7 +1026,7 @@ def _bind_didt(ctx: Context) -> Bound:
 
 def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float],
              l_s: Any = 0.0, l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
-             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+             snub_r: Any = None, t_on: Any = None, e: Any = 0.0, **kw: Any) -> Outcome:
     if kind == "ac":
         a, _, _ = _firing(kw, vs=vs)
     else:
@@ -931,7 +1037,7 @@ def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float
         with np.errstate(divide="ignore"):
             snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
     return power.didt_check(kind=kind, vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
-                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+                            snub_didt=snub, didt_rating=didt_rating, limits=limits, e=e)
 
 
 def _sum_didt(r: Reduced) -> str:
@@ -968,6 +1074,8 @@ register(CheckDef(
 
 def _bind_control(ctx: Context) -> Bound:
     b = Bound()
+    if _emf_type(ctx) is not None:
+        return _bind_control_emf(ctx, b)
     if ctx.stage.get("topology") != "ac-switch":
         b.not_applicable = "only an ac-switch loses control below the load angle"
         return b
@@ -981,18 +1089,50 @@ def _bind_control(ctx: Context) -> Bound:
     return b
 
 
+def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
+    """A back-EMF load: control starts where the line first exceeds E (θ1 = asin(E/Vm))."""
+    b.options["emf"] = _emf_type(ctx)
+    ctx.need(b, "vs", "supply.voltage")
+    ctx.need(b, "e", _sp(ctx, "load.e"))
+    _bind_firing(ctx, b)
+    return b
+
+
 def _fn_control(**kw: Any) -> Outcome:
+    if "emf" in kw:
+        kw.pop("emf")
+        _, lo, hi = _firing(kw)
+        kw.pop("freq", None)
+        return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     _, lo, _ = _firing(kw)
     kw.pop("vs", None)
     return power.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
 
 
 def _sum_control(r: Reduced) -> str:
+    if "emf" in r.bound.options:
+        return _sum_control_emf(r)
     phi = r.hi["load_angle"]
     text = f"load angle φ up to {_deg(phi)} against the earliest firing"
     if r.status != "pass":
         text += (f"; fails: needs α_min ≥ {_deg(phi)}, or wide gate pulses / a pulse train "
                  "(else one SCR can miss its pulse and DC flows in the load)")
+    return text
+
+
+def _sum_control_emf(r: Reduced) -> str:
+    th1 = r.hi["emf_angle"]
+    text = (f"the line exceeds the back EMF from θ1 = asin(E/Vm) = "
+            f"{span(r.lo['emf_angle'], th1, 'deg')}; the earliest firing is "
+            f"{_deg(r.lo['alpha_min'])}")
+    if r.status != "pass":
+        text += (f"; fails: firing before {_deg(th1)} does nothing (a short gate pulse misses "
+                 f"the half-cycle, a long one fires at θ1), so the range loses control below "
+                 f"it: needs α_min ≥ {_deg(th1)}, or a gate pulse lasting past θ1")
+    last = r.lo["last_angle"]
+    if r.hi["alpha_max"] >= last:
+        text += (f"; above π − θ1 = {_deg(last)} the line never exceeds E again: no current "
+                 "at all there")
     return text
 
 
@@ -1003,6 +1143,6 @@ register(CheckDef(
     method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
-    units={"load_angle": "deg"}, summarise=_sum_control,
+    units={"load_angle": "deg", "emf_angle": "deg"}, summarise=_sum_control,
     fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train.",
 ))
