@@ -281,6 +281,10 @@ def _bind_output(ctx: Context) -> Bound:
         return b
     req = ctx.stage.get("required")
     path = _sp(ctx, "required")
+    ls = ctx.project.supply.get("inductance")
+    if (ctx.stage.get("topology") == "bridge" and not b.options.get("freewheel")
+            and isinstance(ls, Value) and ls.hi > 0):
+        ctx.need(b, "l_s", "supply.inductance")  # the commutation overlap
     if "e" in b.inputs:
         ev = b.inputs["e"].value
         b.add("e_full", _sp(ctx, "load.e") + "#max", ev.at(ev.hi))
@@ -307,6 +311,7 @@ def _fn_output(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
     kw.pop("emf", None)
+    l_s = kw.pop("l_s", None)
     w = _omega(kw)
     pulse = kw.get("gate_pulse")
     a, note = _pulses(kw, a, w)
@@ -314,7 +319,32 @@ def _fn_output(**kw: Any) -> Outcome:
     out = power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw)
     if note:
         out.notes.append(note)
+    if l_s is not None:
+        out = _overlap(out, kw, a, lo, w, l_s)
     return out
+
+
+def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
+             l_s: Any) -> Outcome:
+    """A full bridge with source inductance: the overlap and the full output it costs."""
+    from checks import bridge
+    from checks.core import FAIL
+
+    common = dict(topology="bridge", freewheel=False, vs=kw["vs"], r=kw["r"], l=kw["l"],
+                  omega=omega, peak=False, e=kw.get("e"))
+    cont = power.stage_values(alpha=a, **common)["continuous"]
+    cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
+    e_full = kw.get("e_full", kw.get("e"))
+    vals = bridge.overlap_on_output(
+        values=out.values, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega,
+        l_s=l_s, alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
+        continuous_lo=cont_lo, req_hi=kw["req_hi"])
+    short = vals["overlap_short"] > 0
+    status = np.where(short, FAIL, out.status).astype(np.int8)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        margin = np.where(short, vals["output_at_min"] / np.asarray(kw["req_hi"]) - 1.0,
+                          out.margin)
+    return Outcome(vals, margin, status, out.notes)
 
 
 def _sum_output(r: Reduced) -> str:
@@ -358,6 +388,13 @@ def _sum_output(r: Reduced) -> str:
         text += f"; current runs on to β = {beta}"
     if emf:
         text += _emf_output_text(r, emf)
+    mu = r.hi.get("overlap_angle", float("nan"))
+    if mu == mu:
+        text += (f"; the supply inductance overlaps the commutation by μ up to {_deg(mu)}, "
+                 f"taking up to {eng(r.hi['overlap_drop'], 'V')} of the mean output "
+                 "(counted in the full output)")
+    if r.hi.get("overlap_short", 0.0) > 0:
+        text += "; the overlap's drop is what makes the full output fall short"
     return text + _lost_text(r)
 
 
@@ -392,7 +429,8 @@ register(CheckDef(
            "Electronics §3",
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
-           "conduction_angle": "deg", "shortcut_error": "1"},
+           "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
+           "overlap_angle": "deg", "overlap_drop": "V"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",

@@ -175,3 +175,50 @@ def test_reports_carry_the_load_cautions_only_where_they_apply(tmp_path):
     assert "stall current" in motor and "hydrogen" not in motor
     assert "hydrogen" in charger and "short-circuit current" in charger
     assert "hydrogen" not in kiln and "stall current" not in kiln
+
+
+MOTOR = """
+[project]
+name = "test drive"
+revision = "A"
+
+[conditions]
+ambient = { min = "0 degC", max = "40 degC" }
+
+[supply]
+kind = "ac"
+voltage = "230 V"
+frequency = "50 Hz"
+inductance = "LS"
+
+[parts.Q1]
+type = "scr"
+vdrm = "1200 V"
+vrrm = "1200 V"
+igt = "25 mA"
+vgt = "1.5 V"
+
+[stages.drive]
+kind = "phase-control"
+scr = "Q1"
+topology = "bridge"
+firing = { min = "30 deg", max = "120 deg" }
+load = { r = "5 ohm", l = "300 mH", e = "100 V", type = "motor" }
+required = { min = "150 V", max = "REQ" }
+"""
+
+
+def test_full_bridge_overlap_costs_output():
+    """A continuous full bridge at α = 30° gives (2Vm/π)·cos 30° = 179.3 V without source
+    inductance; 2 mH takes ΔV = (2/π)·ωL_s·I_d with I_d = (179.3 − 100)/(5 + 0.4) = 14.69 A:
+    5.87 V. A requirement of 177 V passes without L_s and fails with it, saying why."""
+    def out(ls: str, req: str):
+        p = load_project_text(MOTOR.replace("LS", ls).replace("REQ", req), "m.toml")
+        return evaluate(p, only=[("drive", "power.output")], strict=True).results[0]
+
+    assert out("0 uH", "177 V").status == "pass"
+    r = out("2 mH", "177 V")
+    assert r.status == "fail" and "overlap" in r.summary
+    assert r.values["overlap_drop"].max == pytest.approx(4 * 50 * 2e-3 * 14.687, rel=2e-3)
+    assert r.values["overlap_angle"].max > 0
+    assert out("2 mH", "170 V").status == "pass"
