@@ -413,7 +413,23 @@ class _Loader:
                 if project.supply["kind"] != "ac":
                     raise ProjectError("a phase-control stage needs an AC supply "
                                        '(supply kind = "ac")', self.where(f"stages.{st.id}"))
-                if "gate" not in st.params and "firing" not in st.params:
+                if st.params.get("control") == "burst":
+                    if "burst" not in st.params or st.params.get("topology") != "ac-switch":
+                        raise ProjectError('control = "burst" (integral-cycle control of a '
+                                           'heater) needs topology = "ac-switch" and '
+                                           'burst = { period = 50, on = { min = 1, max = 50 } }'
+                                           " (whole cycles on out of every period)",
+                                           self.where(f"stages.{st.id}", "control"))
+                    on, period = st.params["burst"]["on"], st.params["burst"]["period"]
+                    if (on.hi > period or on.lo < 0 or on.lo != round(on.lo)
+                            or on.hi != round(on.hi)):
+                        raise ProjectError(f"`burst.on` ({on.lo:g} … {on.hi:g}) must be whole "
+                                           f"cycles within 0 … `burst.period` ({period})",
+                                           self.where(f"stages.{st.id}", "burst"))
+                elif "burst" in st.params:
+                    raise ProjectError('`burst` needs control = "burst" in the same stage',
+                                       self.where(f"stages.{st.id}", "burst"))
+                elif "gate" not in st.params and "firing" not in st.params:
                     raise ProjectError('needs `firing = { min = "…", max = "…" }` or `gate` '
                                        "(a gate-drive stage)", self.where(f"stages.{st.id}"))
 

@@ -32,6 +32,9 @@ def _bind(ctx: Context) -> Bound:
         extra.append(math.atan2(2 * math.pi * f.nom * lv.nom, r.nom))  # nominal φ
     if not pw._bind_firing(ctx, b, sweep=FIRING_SWEEP, extra=tuple(extra)):
         return b
+    if ctx.stage.get("control") == "burst":
+        pw._bind_burst(ctx, b)
+        b.inputs["n_on"].sweep = 9
     vs = ctx.project.supply["voltage"]
     if vs.nom < 100.0:
         b.not_applicable = (f"the supply is {eng(vs.nom, 'V')}, not the mains (a transformer "
@@ -44,8 +47,50 @@ def _bind(ctx: Context) -> Bound:
     return b
 
 
+def _fn_burst(*, topology: str, limits: Mapping[str, float], burst_period: int,
+              **kw: Any) -> Outcome:
+    """Burst control: the spectrum at p·f/M; the line harmonics (integer orders ≥ 2) vanish
+    and the table is met by them; the largest sub- or interharmonic is reported."""
+    from checks import burst
+    from checks.core import PASS
+
+    pw._firing(kw)
+    omega = pw._omega(kw)
+    r, l_ = np.asarray(kw["r"], dtype=float), np.asarray(kw["l"], dtype=float)
+    z = np.hypot(r, omega * l_)
+    ipk = np.sqrt(2.0) * np.asarray(kw["vs"], dtype=float) / z
+    n_on = np.round(np.asarray(kw["n_on"], dtype=float))  # whole cycles
+    m = burst_period
+    nu, comp = burst.burst_spectrum(n_on=n_on + 0 * ipk, period=m, i_peak=ipk)
+    line = harmonics.ORDERS * m
+    h = comp[..., line]
+    lim = harmonics.class_a_limits() * float(limits.get("class_factor", 1.0))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratios = np.where(h > 1e-9, lim / h, np.inf)
+    ratios[..., :2] = np.inf
+    inter = comp.copy()
+    inter[..., line] = 0.0
+    k = np.argmax(inter, axis=-1)
+    frac = n_on / m
+    disp = np.cos(np.arctan2(omega * l_, r)) + 0 * frac
+    values = {"line_current": ipk / np.sqrt(2.0) * np.sqrt(frac),
+              "thd": np.sqrt(np.sum(h[..., 2:] ** 2, axis=-1)) / np.maximum(h[..., 1], 1e-300),
+              "displacement_factor": disp, "distortion_factor": np.sqrt(frac),
+              "power_factor": disp * np.sqrt(frac), "limit_ratio": np.min(ratios, axis=-1),
+              "worst_order": np.argmin(ratios, axis=-1).astype(float),
+              "in_scope": np.ones_like(frac),
+              "interharmonic_current": np.take_along_axis(inter, k[..., None], -1)[..., 0],
+              "interharmonic_frequency": nu[k] * omega / (2 * np.pi)}
+    values.update({f"i_h{n}": h[..., n] for n in harmonics.ORDERS})
+    status = np.full(frac.shape, PASS, dtype=np.int8)
+    return Outcome(values, np.full(frac.shape, np.inf), status)
+
+
 def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: str = "ac",
         emf: str = "", **kw: Any) -> Outcome:
+    if "burst_period" in kw:
+        kw.pop("quantity", None)
+        return _fn_burst(topology=topology, limits=limits, **kw)
     a, _, _ = pw._firing(kw)
     omega = pw._omega(kw)
     e = kw.pop("e", None)
@@ -57,6 +102,15 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
 
 
 def _summarise(r: Reduced) -> str:
+    if "burst_period" in r.bound.options:
+        return (f"integral-cycle control: no line harmonics (whole cycles), line current "
+                f"{span(r.lo['line_current'], r.hi['line_current'], 'A')} RMS, power factor "
+                f"{r.lo['power_factor']:.2f}–{r.hi['power_factor']:.2f}; sub- and "
+                f"interharmonics of the {r.bound.options['burst_period']}-cycle period up to "
+                f"{eng(r.hi['interharmonic_current'], 'A')} (largest near "
+                f"{eng(r.worst['interharmonic_frequency'], 'Hz')}): the supply voltage dips "
+                "with every burst, so short periods make lamps on it flicker (IEC 61000-3-3 "
+                "governs that); an engineering estimate, never a compliance test")
     n = int(r.worst["worst_order"])
     lim = harmonics.class_a_limits()[n] * r.limits.get("class_factor", 1.0)
     cls = "Class A" if r.limits.get("class_factor", 1.0) == 1.0 else (
@@ -83,6 +137,7 @@ def _summarise(r: Reduced) -> str:
 UNITS = {"line_current": "A", "thd": "1", "displacement_factor": "1",
          "distortion_factor": "1", "power_factor": "1", "limit_ratio": "1", "worst_order": "1"}
 UNITS.update({f"i_h{n}": "A" for n in range(0, 41)})
+UNITS.update(interharmonic_current="A", interharmonic_frequency="Hz")
 
 register(CheckDef(
     id="power.harmonics", kinds=("phase-control",),

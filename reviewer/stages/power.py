@@ -59,6 +59,9 @@ PHASE_CONTROL = register_kind(StageKind("phase-control", {
     "heatsink": Param("table", fields=HEATSINK),
     "fuse": Param("table", fields=FUSE),
     "required": Param("required"),
+    "control": Param("choice", choices=("phase", "burst")),
+    "burst": Param("table", fields={"period": Param("number", required=True),
+                                    "on": Param(V, "dimensionless", required=True)}),
 }, "SCRs controlling power from an AC supply by firing angle"))
 
 DC_SWITCH = register_kind(StageKind("dc-switch", {
@@ -175,6 +178,15 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
     """
     fv = ctx.stage.get("firing")
     path = _sp(ctx, "firing")
+    if ctx.stage.get("control") == "burst":
+        # Integral-cycle control: whole cycles switched at the voltage zero; every on-cycle
+        # carries the full current, so the device checks see full conduction.
+        zero = Value.fixed(0.0, "angle", "rad")
+        for name in ("alpha", "alpha_lo", "alpha_hi"):
+            b.add(name, _sp(ctx, "control") + "#burst", zero)
+        b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
+                       "on-cycle at full current")
+        return True
     if isinstance(fv, Value):
         if _osc_stage(ctx) is not None:
             b.notes.append("firing range taken from `firing`, not from the gate's oscillator")
@@ -297,6 +309,8 @@ def _bind_output(ctx: Context) -> Bound:
         b.add("req_lo", path + "#none-min", nan)
         return b
     b.options["quantity"] = {"power": "power", "current": "current"}.get(req.dim, "voltage")
+    if ctx.stage.get("control") == "burst":
+        _bind_burst(ctx, b)
     if req.dim == "current" and "e" not in b.inputs:
         b.not_applicable = ("`required` as a current is for a battery or motor load (give "
                             "`load.e`); give a power or a voltage for this load")
@@ -307,7 +321,37 @@ def _bind_output(ctx: Context) -> Bound:
     return b
 
 
+def _bind_burst(ctx: Context, b: Bound) -> None:
+    """Burst control's on-cycles (a range: the control's span) and its period in cycles."""
+    burst = ctx.stage.get("burst")
+    assert isinstance(burst, dict)  # the loader requires it with control = "burst"
+    b.options["burst_period"] = int(burst["period"])
+    on = ctx.need(b, "n_on", _sp(ctx, "burst.on"))
+    b.add("n_lo", _sp(ctx, "burst.on") + "#min", on.at(on.lo))
+    b.add("n_hi", _sp(ctx, "burst.on") + "#max", on.at(on.hi))
+
+
+def _fn_burst_output(**kw: Any) -> Outcome:
+    from checks import burst
+    from checks.core import grade
+
+    a, _, _ = _firing(kw)
+    omega = _omega(kw)
+    m = kw.pop("burst_period")
+    full = power.stage_values(topology=kw["topology"], freewheel=False, vs=kw["vs"],
+                              r=kw["r"], l=kw["l"], omega=omega, alpha=a, peak=False)
+    o = burst.burst_output(p_full=full["load_power"], vs=kw["vs"], n_on=kw["n_on"],
+                           n_lo=kw["n_lo"], n_hi=kw["n_hi"], period=m, req_lo=kw["req_lo"],
+                           req_hi=kw["req_hi"], quantity=kw["quantity"])
+    metric = o.pop("metric")
+    margin, status = grade(metric, kw["limits"])
+    margin = np.where(np.isinf(metric), np.inf, margin)
+    return Outcome({**o, "conduction_angle": full["conduction"]}, margin, status)
+
+
 def _fn_output(**kw: Any) -> Outcome:
+    if "burst_period" in kw:
+        return _fn_burst_output(**kw)
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
     kw.pop("emf", None)
@@ -347,7 +391,25 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
     return Outcome(vals, margin, status, out.notes)
 
 
+def _sum_burst(r: Reduced) -> str:
+    m = r.bound.options["burst_period"]
+    on = r.bound.inputs["n_on"].value
+    q = r.bound.options.get("quantity", "power")
+    unit = "W" if q == "power" else "V"
+    text = (f"integral-cycle control, {on.lo:g}–{on.hi:g} of every {m} cycles on: "
+            f"{'load power' if q == 'power' else 'V_rms'} "
+            f"{span(r.lo['output_at_max'], r.hi['output_at_min'], unit)}, in steps of "
+            f"{span(r.lo['power_step'], r.hi['power_step'], 'W')} (1/{m} of full power)")
+    if r.status != "pass":
+        text += "; fails: the on-cycles do not cover `required`: change the period, the range "
+        text += "of on-cycles or the load"
+    return text + ("; each burst starts at a voltage zero with the cold-load current; short "
+                   "control periods make lamps on the same supply flicker")
+
+
 def _sum_output(r: Reduced) -> str:
+    if "burst_period" in r.bound.options:
+        return _sum_burst(r)
     q = r.bound.options.get("quantity", "power")
     topo = r.bound.options.get("topology")
     emf = r.bound.options.get("emf")
@@ -430,7 +492,7 @@ register(CheckDef(
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
            "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
-           "overlap_angle": "deg", "overlap_drop": "V"},
+           "overlap_angle": "deg", "overlap_drop": "V", "power_step": "W"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
