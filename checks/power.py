@@ -311,7 +311,8 @@ def shortcut_output(*, topology: str, vs: np.ndarray, conduction: np.ndarray) ->
 
 def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
                   l: float, omega: float, alpha: float,  # noqa: E741
-                  points: int = 721) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                  points: int = 721, e: float | None = None
+                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """One cycle of the load voltage and current, (θ [rad], v_load [V], i_load [A]), for plots.
 
     θ runs over 0..2π at ``points`` samples; the supply is √2·V_s·sin θ, fired at ``alpha``
@@ -323,7 +324,14 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
     ...                          r=10.0, l=0.0, omega=314.16, alpha=np.pi / 2, points=5)
     >>> np.abs(v).round(6).tolist(), np.abs(i).round(6).tolist()
     ([0.0, 100.0, 0.0, 0.0, 0.0], [0.0, 10.0, 0.0, 0.0, 0.0])
+
+    A back EMF ``e`` [V] hands over to :func:`checks.rle.load_waveform`.
     """
+    if e is not None:
+        from checks import rle
+
+        return rle.load_waveform(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l,
+                                 omega=omega, alpha=alpha, e=e, points=points)
     vm, z, phi = _vm_z_phi(vs, r, l, omega)
     w = waveform_pu(topology=topology, freewheel=freewheel, alpha=_a(alpha), phi=phi)
     a, b, c = float(w["seg_a"]), float(w["seg_b"]), float(w["seg_c"])

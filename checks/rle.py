@@ -460,3 +460,45 @@ def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
     margin = np.where(np.isinf(metric), np.inf, margin)
     return Outcome({"emf_angle": th1, "alpha_min": lo, "alpha_max": _a(alpha_hi) + 0 * th1,
                     "last_angle": np.pi - th1}, margin, status)
+
+
+def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float, l: float,  # noqa: E741
+                  omega: float, alpha: float, e: float,
+                  points: int = 721) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """One cycle of the load's terminal voltage and current with a back EMF, (θ [rad],
+    v_load [V], i_load [A]), for plots: the steady state of :func:`waveform_pu`. The
+    terminals sit at E while no current flows and at 0 V while the diode freewheels.
+    Arguments as :func:`stage_values` (scalars); ``points`` samples over 0..2π.
+
+    >>> th, v, i = load_waveform(topology="half-wave", freewheel=False, vs=100 / np.sqrt(2),
+    ...                          r=10.0, l=0.0, omega=314.16, alpha=0.0, e=50.0, points=5)
+    >>> v.round(6).tolist(), i.round(6).tolist()
+    ([50.0, 100.0, 50.0, 50.0, 50.0], [0.0, 5.0, 0.0, 0.0, 0.0])
+    """
+    vm = float(np.sqrt(2.0) * vs)
+    z = float(np.hypot(r, omega * l))
+    phi = float(np.arctan2(omega * l, r))
+    w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi, m=e / vm)
+    a, b, c, k = (float(w[n]) for n in ("seg_a", "seg_b", "seg_c", "offset"))
+    fw_len, i_pi = float(w["fw_len"]), float(w["i_pi"])
+    tau = float(np.tan(phi))
+    theta = np.linspace(0.0, 2 * np.pi, points)
+    src = np.sin(theta)
+    conducts = float(w["conduction"]) > 0
+    v_load = np.full_like(theta, e / vm)
+    i_load = np.zeros_like(theta)
+    starts = [(0.0, 1.0)] if topology == "half-wave" else [(0.0, 1.0), (np.pi, -1.0)]
+    for shift, sign in starts:
+        if not conducts:
+            break
+        x = np.mod(theta - a - shift, 2 * np.pi)
+        on = x <= (b - a)
+        cur = np.sin(x + a - phi) - k + c * _decay(x, tau)
+        i_load = np.where(on, cur, i_load)
+        v_load = np.where(on, sign * src, v_load)
+        if fw_len > 0:
+            y = np.mod(theta - np.pi - shift, 2 * np.pi)
+            fw = (y < fw_len) & ~on
+            i_load = np.where(fw, (i_pi + k) * _decay(y, tau) - k, i_load)
+            v_load = np.where(fw, 0.0, v_load)
+    return theta, v_load * vm, np.maximum(i_load, 0.0) * vm / z

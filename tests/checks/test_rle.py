@@ -271,3 +271,20 @@ def test_e_zero_matches_the_rl_stage():
             for key in ("vdc", "vrms", "idc", "irms", "it_av", "it_rms", "it_peak"):
                 np.testing.assert_allclose(w1[key], w0[key], rtol=1e-7, atol=1e-9,
                                            err_msg=f"{topology} fw={fw} {key}")
+
+
+@pytest.mark.parametrize("topology,freewheel,alpha_deg,l,e", [
+    ("half-wave", False, 40.0, 0.3e-3, 13.0), ("bridge", True, 60.0, 80e-3, 120.0),
+    ("bridge", False, 30.0, 300e-3, 100.0), ("bridge", False, 70.0, 5e-3, 60.0)])
+def test_plotted_waveform_means_match_the_averages(topology, freewheel, alpha_deg, l, e):
+    """The workbook's waveform (one cycle) integrates to the closed-form means and RMS."""
+    vs = 24.0 if e < 20 else 230.0
+    r = 0.6 if e < 20 else 8.0
+    kw = dict(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=W50,
+              alpha=np.radians(alpha_deg), e=e)
+    th, v, i = rle.load_waveform(points=200_001, **kw)
+    ref = rle.stage_values(**kw)
+    m = 2 * np.pi
+    assert np.trapezoid(i, th) / m == pytest.approx(float(ref["idc"]), rel=REL)
+    assert np.sqrt(np.trapezoid(i * i, th) / m) == pytest.approx(float(ref["irms"]), rel=REL)
+    assert np.trapezoid(v, th) / m == pytest.approx(float(ref["vdc"]), rel=REL)
