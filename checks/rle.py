@@ -64,6 +64,7 @@ def _root_falling(lo: np.ndarray, hi: np.ndarray,
     lo, hi = np.array(lo, dtype=float), np.array(hi, dtype=float)
     rows = np.arange(lo.size)
     b = 0.5 * (lo + hi)
+    out = b.copy()
     for _ in range(_NEWTON_MAX):
         g, dg = f(b, rows)
         pos = g > 0.0
@@ -75,9 +76,15 @@ def _root_falling(lo: np.ndarray, hi: np.ndarray,
         b_new = np.where(g == 0.0, b, np.where(inside, step, 0.5 * (lo + hi)))
         done = (np.abs(b_new - b) <= _TOL) | (hi - lo <= _TOL)
         b = b_new
-        if done.all():
+        n_done = int(np.count_nonzero(done))
+        if n_done == done.size:
             break
-    return b
+        if 4 * n_done >= done.size:  # enough rows converged: iterate on the rest only
+            out[rows[done]] = b[done]
+            keep = ~done
+            rows, b, lo, hi = rows[keep], b[keep], lo[keep], hi[keep]
+    out[rows] = b
+    return out
 
 
 def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.ndarray,
