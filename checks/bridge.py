@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from checks.core import FAIL, Outcome
 from checks.turnoff import overlap_angle
 
 
@@ -89,3 +90,20 @@ def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.nd
     out["output_at_min"] = lowered
     out["overlap_short"] = ((lowered < _a(req_hi)) & ~(full < _a(req_hi))).astype(float)
     return out
+
+
+def overlap_check(*, outcome: Outcome, quantity: str, vs: np.ndarray, r: np.ndarray,
+                  omega: np.ndarray, l_s: np.ndarray, alpha: np.ndarray, alpha_lo: np.ndarray,
+                  e: np.ndarray | float, continuous: np.ndarray, continuous_lo: np.ndarray,
+                  req_hi: np.ndarray) -> Outcome:
+    """``power.output`` of a full bridge with source inductance: the outcome of the check
+    without it, with :func:`overlap_on_output`'s values; rows whose full output the overlap
+    brings below ``req_hi`` fail (margin = lowered/req_hi − 1)."""
+    vals = overlap_on_output(values=outcome.values, quantity=quantity, vs=vs, r=r, omega=omega,
+                             l_s=l_s, alpha=alpha, alpha_lo=alpha_lo, e=e,
+                             continuous=continuous, continuous_lo=continuous_lo, req_hi=req_hi)
+    short = vals["overlap_short"] > 0
+    status = np.where(short, FAIL, outcome.status).astype(np.int8)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        margin = np.where(short, vals["output_at_min"] / _a(req_hi) - 1.0, outcome.margin)
+    return Outcome(vals, margin, status, list(outcome.notes))

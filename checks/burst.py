@@ -21,7 +21,11 @@ References
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 import numpy as np
+
+from checks.core import MARGINAL, Outcome, cap_status, grade
 
 
 def _a(x: object) -> np.ndarray:
@@ -69,6 +73,24 @@ def burst_spectrum(*, n_on: np.ndarray, period: int, i_peak: np.ndarray,
     return nu, rms * _a(i_peak)[..., None]
 
 
+def burst_output_check(*, p_full: np.ndarray, vs: np.ndarray, n_on: np.ndarray,
+                       n_lo: np.ndarray, n_hi: np.ndarray, period: int, req_lo: np.ndarray,
+                       req_hi: np.ndarray, quantity: str,
+                       limits: Mapping[str, float]) -> Outcome:
+    """``power.output`` of burst control: :func:`burst_output` graded with ``fail_below``.
+
+    >>> o = burst_output_check(p_full=1440.0, vs=120.0, n_on=25, n_lo=25, n_hi=25, period=100,
+    ...                        req_lo=np.nan, req_hi=300.0, quantity="power", limits={})
+    >>> o.status.tolist(), float(o.values["output_at_min"])
+    (0, 360.0)
+    """
+    v = burst_output(p_full=p_full, vs=vs, n_on=n_on, n_lo=n_lo, n_hi=n_hi, period=period,
+                     req_lo=req_lo, req_hi=req_hi, quantity=quantity)
+    metric = v.pop("metric")
+    margin, status = grade(metric, limits)
+    return Outcome(v, np.where(np.isinf(metric), np.inf, margin), status)
+
+
 def burst_output(*, p_full: np.ndarray, vs: np.ndarray, n_on: np.ndarray, n_lo: np.ndarray,
                  n_hi: np.ndarray, period: int, req_lo: np.ndarray, req_hi: np.ndarray,
                  quantity: str) -> dict[str, np.ndarray]:
@@ -97,3 +119,54 @@ def burst_output(*, p_full: np.ndarray, vs: np.ndarray, n_on: np.ndarray, n_lo: 
     return {"load_power": burst_power(p_full=p_full, n_on=n_on, period=m),
             "vrms": _a(vs) * np.sqrt(_a(n_on) / m), "power_step": _a(p_full) / m,
             "output_at_min": y_lo, "output_at_max": y_hi, "metric": np.minimum(m_full, m_min)}
+
+
+def burst_harmonics_check(*, n_on: np.ndarray, period: int, i_peak: np.ndarray,
+                          phi: np.ndarray, line_hz: np.ndarray,
+                          limits: Mapping[str, float]) -> Outcome:
+    """``power.harmonics`` of burst control: the spectrum of :func:`burst_spectrum` (whole
+    cycles: N rounded), the line-frequency orders against class_factor × the IEC 61000-3-2
+    Class A table (they vanish for whole cycles, so the table is met), and the largest sub- or
+    interharmonic (``interharmonic_current`` [A], ``interharmonic_frequency`` [Hz]) for the
+    flicker caution. Displacement factor cos φ, distortion factor √(N/M), power factor their
+    product  [1, §11]. i_peak [A] full-conduction peak; phi [rad]; line_hz [Hz].
+
+    >>> o = burst_harmonics_check(n_on=np.array([25.0]), period=100, i_peak=16.97, phi=0.0,
+    ...                           line_hz=60.0, limits={})
+    >>> round(float(o.values["power_factor"][0]), 4), o.status.tolist()
+    (0.5, [0])
+    """
+    from checks.harmonics import ORDERS, class_a_limits
+
+    n = np.round(_a(n_on))  # whole cycles
+    frac = n / float(period)
+    shape = np.broadcast_shapes(frac.shape, np.shape(i_peak), np.shape(phi))
+    n = np.broadcast_to(n, shape)
+    nu, comp = burst_spectrum(n_on=n, period=period, i_peak=np.broadcast_to(_a(i_peak), shape))
+    line = ORDERS * int(period)
+    h = comp[..., line]
+    lim = class_a_limits() * float(limits.get("class_factor", 1.0))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratios = np.where(h > 1e-9, lim / h, np.inf)
+    ratios[..., :2] = np.inf
+    inter = comp.copy()
+    inter[..., line] = 0.0
+    k = np.argmax(inter, axis=-1)
+    frac = np.broadcast_to(frac, shape)
+    disp = np.broadcast_to(np.cos(_a(phi)), shape)
+    metric = np.min(ratios, axis=-1)
+    margin, status = grade(metric, limits)
+    margin = np.where(np.isinf(metric), np.inf, margin)
+    if float(limits.get("advisory", 1.0)) >= 0.5:
+        status = cap_status(status, MARGINAL)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        thd = np.sqrt(np.sum(h[..., 2:] ** 2, axis=-1)) / h[..., 1]
+    values = {"line_current": _a(i_peak) / np.sqrt(2.0) * np.sqrt(frac), "thd": thd,
+              "displacement_factor": disp, "distortion_factor": np.sqrt(frac),
+              "power_factor": disp * np.sqrt(frac), "limit_ratio": metric,
+              "worst_order": np.argmin(ratios, axis=-1).astype(float),
+              "in_scope": np.ones(shape),
+              "interharmonic_current": np.take_along_axis(inter, k[..., None], -1)[..., 0],
+              "interharmonic_frequency": nu[k] * _a(line_hz)}
+    values.update({f"i_h{o}": h[..., o] for o in ORDERS})
+    return Outcome(values, margin, status)

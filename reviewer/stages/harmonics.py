@@ -49,41 +49,15 @@ def _bind(ctx: Context) -> Bound:
 
 def _fn_burst(*, topology: str, limits: Mapping[str, float], burst_period: int,
               **kw: Any) -> Outcome:
-    """Burst control: the spectrum at p·f/M; the line harmonics (integer orders ≥ 2) vanish
-    and the table is met by them; the largest sub- or interharmonic is reported."""
     from checks import burst
-    from checks.core import PASS
 
     pw._firing(kw)
     omega = pw._omega(kw)
     r, l_ = np.asarray(kw["r"], dtype=float), np.asarray(kw["l"], dtype=float)
-    z = np.hypot(r, omega * l_)
-    ipk = np.sqrt(2.0) * np.asarray(kw["vs"], dtype=float) / z
-    n_on = np.round(np.asarray(kw["n_on"], dtype=float))  # whole cycles
-    m = burst_period
-    nu, comp = burst.burst_spectrum(n_on=n_on + 0 * ipk, period=m, i_peak=ipk)
-    line = harmonics.ORDERS * m
-    h = comp[..., line]
-    lim = harmonics.class_a_limits() * float(limits.get("class_factor", 1.0))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ratios = np.where(h > 1e-9, lim / h, np.inf)
-    ratios[..., :2] = np.inf
-    inter = comp.copy()
-    inter[..., line] = 0.0
-    k = np.argmax(inter, axis=-1)
-    frac = n_on / m
-    disp = np.cos(np.arctan2(omega * l_, r)) + 0 * frac
-    values = {"line_current": ipk / np.sqrt(2.0) * np.sqrt(frac),
-              "thd": np.sqrt(np.sum(h[..., 2:] ** 2, axis=-1)) / np.maximum(h[..., 1], 1e-300),
-              "displacement_factor": disp, "distortion_factor": np.sqrt(frac),
-              "power_factor": disp * np.sqrt(frac), "limit_ratio": np.min(ratios, axis=-1),
-              "worst_order": np.argmin(ratios, axis=-1).astype(float),
-              "in_scope": np.ones_like(frac),
-              "interharmonic_current": np.take_along_axis(inter, k[..., None], -1)[..., 0],
-              "interharmonic_frequency": nu[k] * omega / (2 * np.pi)}
-    values.update({f"i_h{n}": h[..., n] for n in harmonics.ORDERS})
-    status = np.full(frac.shape, PASS, dtype=np.int8)
-    return Outcome(values, np.full(frac.shape, np.inf), status)
+    ipk = np.sqrt(2.0) * np.asarray(kw["vs"], dtype=float) / np.hypot(r, omega * l_)
+    return burst.burst_harmonics_check(n_on=kw["n_on"], period=burst_period, i_peak=ipk,
+                                       phi=np.arctan2(omega * l_, r), line_hz=omega / (2 * np.pi),
+                                       limits=limits)
 
 
 def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: str = "ac",

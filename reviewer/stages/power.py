@@ -333,20 +333,17 @@ def _bind_burst(ctx: Context, b: Bound) -> None:
 
 def _fn_burst_output(**kw: Any) -> Outcome:
     from checks import burst
-    from checks.core import grade
 
     a, _, _ = _firing(kw)
     omega = _omega(kw)
-    m = kw.pop("burst_period")
     full = power.stage_values(topology=kw["topology"], freewheel=False, vs=kw["vs"],
                               r=kw["r"], l=kw["l"], omega=omega, alpha=a, peak=False)
-    o = burst.burst_output(p_full=full["load_power"], vs=kw["vs"], n_on=kw["n_on"],
-                           n_lo=kw["n_lo"], n_hi=kw["n_hi"], period=m, req_lo=kw["req_lo"],
-                           req_hi=kw["req_hi"], quantity=kw["quantity"])
-    metric = o.pop("metric")
-    margin, status = grade(metric, kw["limits"])
-    margin = np.where(np.isinf(metric), np.inf, margin)
-    return Outcome({**o, "conduction_angle": full["conduction"]}, margin, status)
+    out = burst.burst_output_check(
+        p_full=full["load_power"], vs=kw["vs"], n_on=kw["n_on"], n_lo=kw["n_lo"],
+        n_hi=kw["n_hi"], period=kw["burst_period"], req_lo=kw["req_lo"], req_hi=kw["req_hi"],
+        quantity=kw["quantity"], limits=kw["limits"])
+    out.values["conduction_angle"] = full["conduction"]
+    return out
 
 
 def _fn_output(**kw: Any) -> Outcome:
@@ -372,23 +369,16 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
              l_s: Any) -> Outcome:
     """A full bridge with source inductance: the overlap and the full output it costs."""
     from checks import bridge
-    from checks.core import FAIL
 
     common = dict(topology="bridge", freewheel=False, vs=kw["vs"], r=kw["r"], l=kw["l"],
                   omega=omega, peak=False, e=kw.get("e"))
     cont = power.stage_values(alpha=a, **common)["continuous"]
     cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
     e_full = kw.get("e_full", kw.get("e"))
-    vals = bridge.overlap_on_output(
-        values=out.values, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega,
-        l_s=l_s, alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
+    return bridge.overlap_check(
+        outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
+        alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
         continuous_lo=cont_lo, req_hi=kw["req_hi"])
-    short = vals["overlap_short"] > 0
-    status = np.where(short, FAIL, out.status).astype(np.int8)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        margin = np.where(short, vals["output_at_min"] / np.asarray(kw["req_hi"]) - 1.0,
-                          out.margin)
-    return Outcome(vals, margin, status, out.notes)
 
 
 def _sum_burst(r: Reduced) -> str:
