@@ -88,4 +88,5 @@ register(CheckDef(
     cautions=("The supply inductance given bounds the fault current; a stiffer supply makes "
               "it larger. A battery on the load side adds its own short-circuit current, which "
               "no mains fuse limits.",),
+    optional=frozenset({"device_i2t"}),  # no fuse: no time base to convert the SCR's I²t to
 ))

@@ -128,4 +128,8 @@ register(CheckDef(
     fix="A line choke or filter, a smaller load per stage, or integral-cycle (burst) control "
         "for a heater.",
     cautions=(f"{HARMONICS[0]}: {HARMONICS[1]}",),
+    # Undefined where no current flows (the end of a firing range, no on-cycles) or where no
+    # harmonic flows at all (whole cycles): the limit ratio is then unbounded.
+    optional=frozenset({"thd", "displacement_factor", "distortion_factor", "power_factor",
+                        "limit_ratio"}),
 ))

@@ -486,7 +486,7 @@ register(CheckDef(
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
-    optional=frozenset({"shortcut_error"}),
+    optional=frozenset({"shortcut_error", "overlap_angle", "overlap_drop"}),
 ))
 
 
@@ -1021,7 +1021,7 @@ register(CheckDef(
     units={"anode_current_at_fire": "A", "il": "A", "max_firing_angle": "deg"},
     summarise=_sum_latching,
     fix="Limit α_max, lower the load R, or add a bleeder resistor across the load.",
-    optional=frozenset({"max_firing_angle", "time_to_il"}),
+    optional=frozenset({"max_firing_angle", "time_to_il", "reach_current"}),
 ))
 
 
