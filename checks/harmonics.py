@@ -156,8 +156,8 @@ def harmonics_check(*, waveform: Mapping[str, np.ndarray], topology: str, freewh
     ``it_rms`` and optionally ``offset``, plus ``z`` [Ω]. Metric = min over n of
     class_factor·limit_n/I_n, graded with ``fail_below``/``marginal_below``; with
     ``advisory`` = 1 the status is at worst marginal (an estimate, never a compliance test).
-    Rows whose line current exceeds 16 A RMS are outside the table's scope: not graded
-    (``in_scope`` 0). Values: ``line_current``, ``thd``, ``displacement_factor``,
+    Rows whose line current exceeds 16 A RMS are outside the table's scope (``in_scope`` 0):
+    they are still graded against it, so a larger current never reads better. Values: ``line_current``, ``thd``, ``displacement_factor``,
     ``distortion_factor``, ``power_factor``, ``limit_ratio`` (the metric), ``worst_order``,
     and ``i_h0`` … ``i_h40`` [A RMS].
     """
@@ -177,8 +177,9 @@ def harmonics_check(*, waveform: Mapping[str, np.ndarray], topology: str, freewh
     ratios[..., :2] = np.inf
     worst = np.argmin(ratios, axis=-1)
     metric = np.min(ratios, axis=-1)
+    # Above 16 A per phase the table is out of its scope; the rows are still graded against
+    # it (a larger current must never read better), and the summary says so.
     in_scope = line_rms <= 16.0
-    metric = np.where(in_scope, metric, np.inf)
     margin, status = grade(metric, limits)
     margin = np.where(np.isinf(metric), np.inf, margin)
     if float(limits.get("advisory", 1.0)) >= 0.5:
@@ -186,7 +187,8 @@ def harmonics_check(*, waveform: Mapping[str, np.ndarray], topology: str, freewh
     values = {"line_current": line_rms, "thd": q["thd"],
               "displacement_factor": q["displacement_factor"],
               "distortion_factor": q["distortion_factor"], "power_factor": q["power_factor"],
-              "limit_ratio": metric, "worst_order": worst.astype(float),
+              "limit_ratio": np.where(np.isfinite(metric), metric, np.nan),
+              "worst_order": worst.astype(float),
               "in_scope": in_scope.astype(float)}
     values.update({f"i_h{n}": h[..., n] for n in ORDERS})
     return Outcome(values, margin, status)
