@@ -157,7 +157,8 @@ def harmonics_check(*, waveform: Mapping[str, np.ndarray], topology: str, freewh
     class_factor·limit_n/I_n, graded with ``fail_below``/``marginal_below``; with
     ``advisory`` = 1 the status is at worst marginal (an estimate, never a compliance test).
     Rows whose line current exceeds 16 A RMS are outside the table's scope (``in_scope`` 0):
-    they are still graded against it, so a larger current never reads better. Values: ``line_current``, ``thd``, ``displacement_factor``,
+    they are still graded against it, so a larger current never reads better.
+    Values: ``line_current``, ``thd``, ``displacement_factor``,
     ``distortion_factor``, ``power_factor``, ``limit_ratio`` (the metric), ``worst_order``,
     and ``i_h0`` … ``i_h40`` [A RMS].
     """
