@@ -8,6 +8,8 @@ and the largest relative difference over the integrated subset:
 * UJT free-running period: charge V_V → V_P through R_T, discharge V_P → V_V through R_dis;
 * line-synchronised firing angle: R_T·C_T·dv/dt = min(Vm·|sin ωt|, VZ) − v up to v = a·V_b + d;
 * R–L extinction angle: X·di/dθ = sin θ − i (per unit, X = tan φ) from i(α) = 0 until i = 0;
+* R–L–E (battery, motor) extinction angle, per unit with Z = 1:
+  sin φ·di/dθ = sin θ − cos φ·i − m from i(max(α, θ1)) = 0 until i = 0 (half-wave);
 * R–C snubber step: L·di/dt = E − R·i − v_C, C·dv_C/dt = i; the peak of v = v_C + R·i and
   its steepest slope (events where dv/dt and d²v/dt² cross zero).
 
@@ -24,6 +26,7 @@ from collections.abc import Callable
 import numpy as np
 from scipy.integrate import solve_ivp
 
+from checks import rle
 from checks.oscillator import divider_ratio, free_running, line_sync_firing_angle
 from checks.rl import extinction_angle
 from checks.snubber import step_max_dvdt, step_peak
@@ -127,6 +130,28 @@ def ivp_extinction(p: dict[str, float]) -> float:
     return float(sol.t_events[0][0])
 
 
+def rle_sets(rng: np.random.Generator, n: int) -> dict[str, np.ndarray]:
+    """Firing angles, load angles and back EMFs m = E/Vm that leave a conduction window."""
+    m = rng.uniform(0.0, 0.8, n)
+    th1 = np.arcsin(m)
+    return {"alpha": rng.uniform(0.0, 0.95, n) * (np.pi - th1), "phi": rng.uniform(0.05, 1.5, n),
+            "m": m}
+
+
+def ivp_rle_extinction(p: dict[str, float]) -> float:
+    """β of the half-wave R–L–E circuit: sin φ·di/dθ = sin θ − cos φ·i − m from zero [rad]."""
+    r, x, m = math.cos(p["phi"]), math.sin(p["phi"]), p["m"]
+
+    def zero(th: float, i: np.ndarray) -> float:
+        return i[0]
+
+    zero.terminal, zero.direction = True, -1  # type: ignore[attr-defined]
+    a = max(p["alpha"], math.asin(m))
+    sol = solve_ivp(lambda th, i: (math.sin(th) - r * i - m) / x, (a, 2 * math.pi + a),
+                    [0.0], events=zero, rtol=RTOL, atol=ATOL_REL)
+    return float(sol.t_events[0][0])
+
+
 def snubber_sets(rng: np.random.Generator, n: int) -> dict[str, np.ndarray]:
     """Step E, loop L, snubber C, and R from a damping ratio ζ in 0.1–2."""
     l_ = 10 ** rng.uniform(-5.5, -4.0, n)
@@ -218,6 +243,17 @@ def main() -> None:
     ref, ti = timed(lambda: np.array([ivp_extinction({q: float(v[j]) for q, v in p.items()})
                                       for j in range(k)]))
     row("R–L extinction angle", tc, n, ti, k, *rel_diff(got, ref))
+
+    p = rle_sets(rng, n)
+
+    def rle_beta() -> np.ndarray:
+        return rle.waveform_pu(topology="half-wave", freewheel=False, peak=False, **p)["beta"]
+
+    tc = best(rle_beta)
+    got = rle_beta()[:k]
+    ref, ti = timed(lambda: np.array([ivp_rle_extinction({q: float(v[j]) for q, v in p.items()})
+                                      for j in range(k)]))
+    row("R–L–E extinction angle", tc, n, ti, k, *rel_diff(got, ref))
 
     p = snubber_sets(rng, n)
     tc = best(lambda: (step_peak(**p), step_max_dvdt(**p)))

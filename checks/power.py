@@ -262,7 +262,8 @@ def _vm_z_phi(vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
 
 def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
                  l: np.ndarray, omega: np.ndarray,  # noqa: E741
-                 alpha: np.ndarray, peak: bool = True) -> dict[str, np.ndarray]:
+                 alpha: np.ndarray, peak: bool = True,
+                 e: np.ndarray | None = None) -> dict[str, np.ndarray]:
     """:func:`waveform_pu` in SI for supply ``vs`` [V RMS], load ``r`` [Ω], ``l`` [H] at
     ``omega`` [rad/s], fired at ``alpha`` [rad]. Adds ``phi`` [rad], ``load_power`` [W] =
     I_rms²·R and ``vm`` [V]. ``peak=False`` leaves out ``it_peak``.
@@ -271,7 +272,14 @@ def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     ...                  omega=2 * np.pi * 60, alpha=np.pi / 2)  # Rashid 4e Ex 11.1 [book]
     >>> round(float(v["vrms"]), 2), round(float(v["load_power"]), 1)
     (84.85, 720.0)
+
+    A back EMF ``e`` [V] (battery, motor armature) hands over to :func:`checks.rle.stage_values`.
     """
+    if e is not None:
+        from checks import rle
+
+        return rle.stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l,
+                                omega=omega, alpha=alpha, e=e, peak=peak)
     vm, z, phi = _vm_z_phi(vs, r, l, omega)
     w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi, peak=peak)
     ib = vm / z
@@ -303,7 +311,8 @@ def shortcut_output(*, topology: str, vs: np.ndarray, conduction: np.ndarray) ->
 
 def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
                   l: float, omega: float, alpha: float,  # noqa: E741
-                  points: int = 721) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                  points: int = 721, e: float | None = None
+                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """One cycle of the load voltage and current, (θ [rad], v_load [V], i_load [A]), for plots.
 
     θ runs over 0..2π at ``points`` samples; the supply is √2·V_s·sin θ, fired at ``alpha``
@@ -315,7 +324,14 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
     ...                          r=10.0, l=0.0, omega=314.16, alpha=np.pi / 2, points=5)
     >>> np.abs(v).round(6).tolist(), np.abs(i).round(6).tolist()
     ([0.0, 100.0, 0.0, 0.0, 0.0], [0.0, 10.0, 0.0, 0.0, 0.0])
+
+    A back EMF ``e`` [V] hands over to :func:`checks.rle.load_waveform`.
     """
+    if e is not None:
+        from checks import rle
+
+        return rle.load_waveform(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l,
+                                 omega=omega, alpha=alpha, e=e, points=points)
     vm, z, phi = _vm_z_phi(vs, r, l, omega)
     w = waveform_pu(topology=topology, freewheel=freewheel, alpha=_a(alpha), phi=phi)
     a, b, c = float(w["seg_a"]), float(w["seg_b"]), float(w["seg_c"])
@@ -367,7 +383,9 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float,
 def output_check(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
                  l: np.ndarray, omega: np.ndarray, alpha: np.ndarray,  # noqa: E741
                  alpha_lo: np.ndarray, alpha_hi: np.ndarray, req_lo: np.ndarray,
-                 req_hi: np.ndarray, quantity: str, limits: Mapping[str, float]) -> Outcome:
+                 req_hi: np.ndarray, quantity: str, limits: Mapping[str, float],
+                 e: np.ndarray | None = None, e_full: np.ndarray | None = None,
+                 e_least: np.ndarray | None = None) -> Outcome:
     """``power.output``: the load output over the firing range against ``required``.
 
     Exact values per row (:func:`stage_values`); pass when the output at α_lo reaches
@@ -375,6 +393,11 @@ def output_check(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     ``quantity`` is ``power`` (load power [W]) or ``voltage`` (V_dc [V] for the rectifiers,
     V_rms for the ac-switch). Metric = min(out(α_lo)/req_hi, req_lo/out(α_hi)), graded with
     ``fail_below``. ``shortcut_error`` = shortcut/exact − 1 (:func:`shortcut_output`).
+    With a back EMF ``e`` [V]: ``quantity`` may also be ``current`` (the mean load current:
+    charge or armature current, ``load_current``); V_dc is the terminal voltage, E included;
+    the shortcut does not apply (NaN). The full output is taken at ``e_full`` (E at its
+    highest: a full battery, top speed) and the minimum at ``e_least`` (E at its lowest), the
+    pairing in which a charger or a drive runs; both default to ``e``.
 
     >>> o = output_check(topology="ac-switch", freewheel=False, vs=np.array([230.0]), r=26.45,
     ...                  l=0.0, omega=314.159, alpha=0.0, alpha_lo=0.0, alpha_hi=np.pi * 0.9,
@@ -383,29 +406,38 @@ def output_check(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     >>> o.status.tolist(), round(float(o.values["load_power"][0]))
     ([0], 2000)
     """
-    def out_of(a: np.ndarray) -> tuple[np.ndarray, dict[str, np.ndarray]]:
+    def out_of(a: np.ndarray, e: np.ndarray | None = e) -> tuple[np.ndarray,
+                                                                  dict[str, np.ndarray]]:
         v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=omega,
-                         alpha=a, peak=False)
+                         alpha=a, peak=False, e=e)
         if quantity == "power":
             return v["load_power"], v
+        if quantity == "current":
+            return v["idc"], v
         return (v["vrms"] if topology == "ac-switch" else v["vdc"]), v
 
     y, v = out_of(_a(alpha))
-    y_lo, _ = out_of(_a(alpha_lo))
-    y_hi, _ = out_of(_a(alpha_hi))
+    y_lo, _ = out_of(_a(alpha_lo), e if e_full is None else e_full)
+    y_hi, _ = out_of(_a(alpha_hi), e if e_least is None else e_least)
     exact = v["vrms"] if topology == "ac-switch" else v["vdc"]
     short = shortcut_output(topology=topology, vs=vs, conduction=v["conduction"])
     with np.errstate(divide="ignore", invalid="ignore"):
         err = np.where(np.abs(exact) > 1e-9 * v["vm"], short / exact - 1.0, np.nan)
+        if e is not None:
+            err = np.nan * err
         m_full = np.where(np.isnan(req_hi), np.inf, y_lo / _a(req_hi))
         m_min = np.where(np.isnan(req_lo), np.inf, np.where(y_hi > 0, _a(req_lo) / y_hi, np.inf))
     metric = np.minimum(m_full, m_min)
     margin, status = grade(metric, limits)
     margin = np.where(np.isinf(metric), np.inf, margin)
-    return Outcome({"vdc": v["vdc"], "vrms": v["vrms"], "load_power": v["load_power"],
-                    "extinction_angle": v["beta"], "conduction_angle": v["conduction"],
-                    "shortcut_error": err, "output_at_min": y_lo, "output_at_max": y_hi,
-                    "load_angle": v["phi"]}, margin, status)
+    values = {"vdc": v["vdc"], "vrms": v["vrms"], "load_power": v["load_power"],
+              "extinction_angle": v["beta"], "conduction_angle": v["conduction"],
+              "shortcut_error": err, "output_at_min": y_lo, "output_at_max": y_hi,
+              "load_angle": v["phi"]}
+    if e is not None:
+        values.update(load_current=v["idc"], load_rms_current=v["irms"],
+                      emf_angle=v["theta1"], continuous=v["continuous"])
+    return Outcome(values, margin, status)
 
 
 def blocking_check(*, vdrm: np.ndarray, vrrm: np.ndarray, v_fwd: np.ndarray,
@@ -445,11 +477,11 @@ def dc_currents(*, vs: np.ndarray, r: np.ndarray,
 
 def _currents(kind: str, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
               l: np.ndarray, omega: np.ndarray, alpha: np.ndarray,  # noqa: E741
-              duty: np.ndarray) -> dict[str, np.ndarray]:
+              duty: np.ndarray, e: np.ndarray | None = None) -> dict[str, np.ndarray]:
     if kind == "dc":
         return dc_currents(vs=vs, r=r, duty=duty)
     v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l, omega=omega,
-                     alpha=alpha, peak=False)
+                     alpha=alpha, peak=False, e=e)
     with np.errstate(divide="ignore", invalid="ignore"):
         ff = np.where(v["it_av"] > 0, v["it_rms"] / v["it_av"], np.nan)
     return {"it_av": v["it_av"], "it_rms": v["it_rms"], "form_factor": ff}
@@ -458,7 +490,8 @@ def _currents(kind: str, topology: str, freewheel: bool, vs: np.ndarray, r: np.n
 def rms_current_check(*, kind: str, topology: str = "", freewheel: bool = False,
                       vs: np.ndarray, r: np.ndarray, l: np.ndarray = 0.0,  # noqa: E741
                       omega: np.ndarray = 1.0, alpha: np.ndarray = 0.0, duty: np.ndarray = 1.0,
-                      it_rms_rating: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+                      it_rms_rating: np.ndarray, limits: Mapping[str, float],
+                      e: np.ndarray | None = None) -> Outcome:
     """``power.rms-current``: IT(RMS) of one SCR against its rating (``kind`` "ac" or "dc").
 
     >>> o = rms_current_check(kind="ac", topology="ac-switch", vs=np.array([230.0]), r=5.29,
@@ -466,7 +499,7 @@ def rms_current_check(*, kind: str, topology: str = "", freewheel: bool = False,
     >>> round(float(o.values["it_rms"][0]), 2), o.status.tolist()
     (30.74, [0])
     """
-    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty)
+    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty, e)
     with np.errstate(divide="ignore"):
         metric = _a(it_rms_rating) / cur["it_rms"]
     margin, status = grade(metric, limits)
@@ -499,7 +532,7 @@ def average_current_check(*, kind: str, topology: str = "", freewheel: bool = Fa
                           omega: np.ndarray = 1.0, alpha: np.ndarray = 0.0,
                           duty: np.ndarray = 1.0, it_av_rating: np.ndarray,
                           vt0: np.ndarray = np.nan, rt: np.ndarray = np.nan,
-                          limits: Mapping[str, float]) -> Outcome:
+                          limits: Mapping[str, float], e: np.ndarray | None = None) -> Outcome:
     """``power.average-current``: IT(AV) against the equal-loss derated rating.
 
     metric = it_av_allowed/it_av with it_av_allowed = :func:`equal_loss_current` at the row's
@@ -510,7 +543,7 @@ def average_current_check(*, kind: str, topology: str = "", freewheel: bool = Fa
     >>> round(float(o.values["it_av_allowed"]), 3), o.status.tolist()
     (2.766, [0])
     """
-    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty)
+    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty, e)
     allowed = equal_loss_current(ff=cur["form_factor"], it_av_rated=it_av_rating, vt0=vt0, rt=rt)
     with np.errstate(divide="ignore", invalid="ignore"):
         metric = np.where(cur["it_av"] > 0, allowed / cur["it_av"], np.inf)
@@ -535,7 +568,7 @@ def junction_check(*, kind: str, topology: str = "", freewheel: bool = False,
                    vt0: np.ndarray, rt: np.ndarray, rth_jc: np.ndarray, rth_cs: np.ndarray,
                    rth_sa: np.ndarray, devices: float = 1.0, tj_max: np.ndarray,
                    t_max_ambient: np.ndarray, t_max_rise: np.ndarray,
-                   limits: Mapping[str, float]) -> Outcome:
+                   limits: Mapping[str, float], e: np.ndarray | None = None) -> Outcome:
     """``power.junction``: Tj = T_a + ΔT_enc + n·P·Rth(s-a) + P·(Rth(j-c) + Rth(c-s)) [K].
 
     Fail when Tj > tj_max − ``headroom_fail`` (0 K), marginal when Tj > tj_max −
@@ -550,7 +583,7 @@ def junction_check(*, kind: str, topology: str = "", freewheel: bool = False,
     >>> round(float(o.values["junction_temperature"][0]) - 273.15, 2), o.status.tolist()
     (71.88, [0])
     """
-    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty)
+    cur = _currents(kind, topology, freewheel, vs, r, l, omega, alpha, duty, e)
     p = device_loss(it_av=cur["it_av"], it_rms=cur["it_rms"], vt0=vt0, rt=rt)
     ta = _a(t_max_ambient) + _a(t_max_rise)
     n = float(devices)
@@ -795,11 +828,12 @@ def holding_check(*, kind: str, vs: np.ndarray, r: np.ndarray, l: np.ndarray = 0
 
 def didt_check(*, kind: str, vs: np.ndarray, l_tot: np.ndarray, alpha: np.ndarray = np.pi / 2,
                snub_didt: np.ndarray = 0.0, didt_rating: np.ndarray,
-               limits: Mapping[str, float]) -> Outcome:
+               limits: Mapping[str, float], e: np.ndarray = 0.0) -> Outcome:
     """``power.didt``: di/dt at firing = V·sin α/L_tot (+ the snubber discharge's) [A/s]  [1, §17].
 
     AC: V = √2·V_s at the row's α (the engine adds α = 90° where the range spans it); DC: V_s.
-    ``snub_didt`` [A/s] is the snubber discharge contribution at the same instant.
+    ``snub_didt`` [A/s] is the snubber discharge contribution at the same instant. A back EMF
+    ``e`` [V] in the loop opposes the line: the load term is (V − E)/L_tot, never below 0.
 
     >>> o = didt_check(kind="ac", vs=np.array([253.0]), l_tot=50e-6, alpha=np.pi / 2,
     ...                didt_rating=50e6, limits={})
@@ -807,6 +841,7 @@ def didt_check(*, kind: str, vs: np.ndarray, l_tot: np.ndarray, alpha: np.ndarra
     (7.16, [0])
     """
     v = _a(vs) if kind == "dc" else np.sqrt(2) * _a(vs) * np.sin(_a(alpha))
+    v = np.maximum(v - _a(e), 0.0)
     with np.errstate(divide="ignore"):
         rate = v / _a(l_tot) + _a(snub_didt)
         margin, status = grade(_a(didt_rating) / rate, limits)

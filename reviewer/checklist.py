@@ -102,8 +102,9 @@ class Checklist:
                 "policy_sha256": self.policy_sha256}
 
     def limits_for(self, check: str) -> dict[str, float]:
-        """The limits in force for ``check`` (empty when the checklist has none)."""
-        return dict(self.limits.get(check, {}))
+        """The limits in force for ``check`` (empty when the checklist has none); a check added
+        after version 1 of the standard starts from its defaults (:func:`later_defaults`)."""
+        return {**later_defaults().get(check, {}), **self.limits.get(check, {})}
 
     def manual_for(self, stage_kind: str) -> list[dict[str, str]]:
         """The manual questions asked of every stage of ``stage_kind``."""
@@ -115,7 +116,7 @@ class Checklist:
         out: dict[str, dict[str, tuple[float, float]]] = {}
         for check, lim in self.limits.items():
             for k, v in lim.items():
-                base = std.get(check, {}).get(k)
+                base = {**later_defaults().get(check, {}), **std.get(check, {})}.get(k)
                 if base is not None and v != base:
                     out.setdefault(check, {})[k] = (base, v)
         return out
@@ -134,6 +135,15 @@ def _standard_doc() -> dict[str, Any]:
 def standard_limits() -> dict[str, dict[str, float]]:
     """The standard checklist's limits (a fresh copy)."""
     return {k: dict(v) for k, v in _standard_doc()["limits"].items()}
+
+
+def later_defaults() -> dict[str, dict[str, float]]:
+    """Default limits of the checks added after version 1 of the standard checklist.
+
+    They live outside its ``[limits]`` so that the standard's identity, and every sign-off
+    bound to it, stays as it was; a checklist sets them under ``[limits."…"]`` like any other.
+    """
+    return {k: dict(v) for k, v in _standard_doc().get("later_defaults", {}).items()}
 
 
 def lower_is_stricter(check: str, key: str) -> bool:
@@ -354,7 +364,8 @@ def _apply_limits(raw: Any, limits: dict[str, dict[str, float]], reasons: dict[s
         if not isinstance(lim, dict):
             raise ProjectError(f'`{check}` must be a table [limits."{check}"] of limit keys',
                                f.where("limits", check))
-        allowed = list(std.get(check, {}))
+        later = later_defaults().get(check, {})
+        allowed = list(std.get(check, {})) or list(later)
         reason = lim.get("reason")
         if reason is not None:
             if not isinstance(reason, str):
@@ -372,7 +383,7 @@ def _apply_limits(raw: Any, limits: dict[str, dict[str, float]], reasons: dict[s
             if not _number(v):
                 raise ProjectError(f"`{k}` must be a finite number (no quotes, no units)",
                                    f.where(table, k))
-            base = std[check][k]
+            base = {**later, **std.get(check, {})}[k]
             looser = v > base if lower_is_stricter(check, k) else v < base
             if looser and reason is None:
                 direction = "above" if lower_is_stricter(check, k) else "below"

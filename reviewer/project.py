@@ -320,13 +320,15 @@ class _Loader:
                 raise ProjectError(f'`{key}` must be "line", "dc" or a voltage such as '
                                    '"400 V"', where) from None
         if p.kind in ("target", "required"):
-            dims = ("frequency", "angle") if p.kind == "target" else ("power", "voltage")
+            dims = (("frequency", "angle") if p.kind == "target"
+                    else ("power", "voltage", "current"))
             for d in dims:
                 try:
                     return parse_value(val, d, where, allow_zero=True)
                 except LatchbookError:
                     continue
-            raise ProjectError(f"`{key}` must be a range of {dims[0]} or {dims[1]}, e.g. "
+            raise ProjectError(f"`{key}` must be a range of " + ", ".join(dims[:-1])
+                               + f" or {dims[-1]}, e.g. "
                                + ('{ min = "40 Hz", max = "120 Hz" }' if p.kind == "target"
                                   else '{ min = "50 W", max = "1.8 kW" }'), where)
         raise AssertionError(p.kind)
@@ -404,11 +406,28 @@ class _Loader:
                                            + f', but "{val}" is {target.kind}', where)
                     if target.id == st.id:
                         raise ProjectError(f"`{key}` names the stage itself", where)
+            _check_emf_load(st, self.where(f"stages.{st.id}", "load"))
             if st.kind == "phase-control":
                 if project.supply["kind"] != "ac":
                     raise ProjectError("a phase-control stage needs an AC supply "
                                        '(supply kind = "ac")', self.where(f"stages.{st.id}"))
-                if "gate" not in st.params and "firing" not in st.params:
+                if st.params.get("control") == "burst":
+                    if "burst" not in st.params or st.params.get("topology") != "ac-switch":
+                        raise ProjectError('control = "burst" (integral-cycle control of a '
+                                           'heater) needs topology = "ac-switch" and '
+                                           'burst = { period = 50, on = { min = 1, max = 50 } }'
+                                           " (whole cycles on out of every period)",
+                                           self.where(f"stages.{st.id}", "control"))
+                    on, period = st.params["burst"]["on"], st.params["burst"]["period"]
+                    if (on.hi > period or on.lo < 0 or on.lo != round(on.lo)
+                            or on.hi != round(on.hi)):
+                        raise ProjectError(f"`burst.on` ({on.lo:g} … {on.hi:g}) must be whole "
+                                           f"cycles within 0 … `burst.period` ({period})",
+                                           self.where(f"stages.{st.id}", "burst"))
+                elif "burst" in st.params:
+                    raise ProjectError('`burst` needs control = "burst" in the same stage',
+                                       self.where(f"stages.{st.id}", "burst"))
+                elif "gate" not in st.params and "firing" not in st.params:
                     raise ProjectError('needs `firing = { min = "…", max = "…" }` or `gate` '
                                        "(a gate-drive stage)", self.where(f"stages.{st.id}"))
 
@@ -426,6 +445,23 @@ def _confine(base: Path, ref: str, naming: Path, where: Where) -> None:
                            "folder below it", where)
     if not ref.endswith(".toml"):
         raise ProjectError(f'variant_of = "{ref}" must name a project file NAME.toml', where)
+
+
+def _check_emf_load(st: Stage, where: Where) -> None:
+    """A back EMF (`load.e`) belongs to a rectifier: a half-wave or bridge phase-control stage."""
+    load = st.params.get("load")
+    if not isinstance(load, dict):
+        return
+    if "type" in load and "e" not in load:
+        raise ProjectError(f'`load.type = "{load["type"]}"` needs the back EMF `e`, e.g. '
+                           'load = { r = "0.5 ohm", e = { min = "11 V", max = "14.4 V" } }',
+                           where)
+    if "e" not in load:
+        return
+    if st.kind != "phase-control" or st.params.get("topology") not in ("half-wave", "bridge"):
+        raise ProjectError("a back EMF `load.e` is for a half-wave or bridge phase-control "
+                           "stage (a rectifier feeding a battery or a DC motor); remove `e` or "
+                           'use topology = "half-wave" or "bridge"', where)
 
 
 def _is_range(v: dict[str, Any]) -> bool:

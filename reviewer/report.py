@@ -26,6 +26,7 @@ from reviewer.reports.figures import Figure, plot_svg, stage_figures
 from reviewer.reports.html import to_html
 from reviewer.reports.markdown import to_markdown, write_markdown
 from reviewer.reports.text import limit_words, pretty_units
+from reviewer.safety import load_cautions
 
 
 @dataclass
@@ -110,6 +111,7 @@ class ReportData:
     outstanding: list[str] = field(default_factory=list)
     entries: int = 0
     anchor_note: str = ""
+    extra_cautions: tuple[tuple[str, str], ...] = ()
 
 
 # ---------------------------------------------------------------------------------- gather
@@ -292,7 +294,13 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
                 if v not in ("", "—")],
         stages=stages, history=_history(record, states, stale), counts=counts(states),
         outstanding=outstanding(view, checklist, stages), entries=len(record.entries),
-        anchor_note=FILE_ALONE)
+        anchor_note=FILE_ALONE, extra_cautions=load_cautions(_load_types(project)))
+
+
+def _load_types(project: Any) -> list[str]:
+    """The kinds of back-EMF load ("battery", "motor") among the project's stages."""
+    loads = [st.params.get("load") for st in project.stages.values()]
+    return [str(ld["type"]) for ld in loads if isinstance(ld, dict) and "type" in ld]
 
 
 def outstanding(view: Any, checklist: Any, stages: list[StageBlock]) -> list[str]:

@@ -44,3 +44,35 @@ FOOTER = ("These results are design aids for a review. They compute electrical m
           "the stated assumptions. They do not show compliance with any safety standard, and "
           "they do not replace local codes, certification or the judgement of qualified, and "
           "where required licensed, people.")
+
+# Cautions that belong to a kind of load or to one check: shown only where they apply.
+LOAD_CAUTIONS: dict[str, tuple[tuple[str, str], ...]] = {
+    "battery": (
+        ("Batteries gas and can burst",
+         "A charging lead-acid battery gives off hydrogen, which can explode: ventilate, keep "
+         "sparks away, and do not connect or disconnect the clips while current flows. A "
+         "battery delivers a very large short-circuit current that no mains fuse limits: fuse "
+         "the battery lead close to the terminal and guard against reverse connection."),
+    ),
+    "motor": (
+        ("Motors stall and kick",
+         "At standstill a motor has no back EMF: the first firing and a stalled rotor draw the "
+         "full stall current, so limit it. The armature inductance kicks when the current is "
+         "interrupted (a broken lead, an opened contactor): give its current a freewheeling "
+         "path, and remember a coasting motor is a generator that keeps its terminals live."),
+    ),
+}
+
+HARMONICS = ("Harmonics are an estimate",
+             "The line harmonics, power factor and comparison with the IEC 61000-3-2 table are "
+             "an engineering estimate from the ideal waveform that shows where a design "
+             "stands; they are never a compliance test, which needs the standard's test "
+             "conditions, source and measuring equipment.")
+
+
+def load_cautions(loads: list[str]) -> tuple[tuple[str, str], ...]:
+    """The cautions for the kinds of load ("battery", "motor") a project has, each once."""
+    out: list[tuple[str, str]] = []
+    for kind in dict.fromkeys(loads):
+        out += LOAD_CAUTIONS.get(kind, ())
+    return tuple(out)

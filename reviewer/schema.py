@@ -84,6 +84,7 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("power.rms-current", POWER), ("power.average-current", POWER), ("power.junction", POWER),
     ("power.surge", ("phase-control",)), ("power.fuse", POWER), ("power.latching", POWER),
     ("power.holding", POWER), ("power.didt", POWER), ("power.control", ("phase-control",)),
+    ("power.harmonics", ("phase-control",)), ("power.fault", ("phase-control",)),
     ("snubber.dvdt", ("rc-snubber",)), ("snubber.peak-voltage", ("rc-snubber",)),
     ("snubber.discharge", ("rc-snubber",)), ("snubber.resistor-power", ("rc-snubber",)),
     ("snubber.capacitor", ("rc-snubber",)), ("snubber.leakage", ("rc-snubber",)),

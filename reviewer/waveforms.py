@@ -302,10 +302,14 @@ def _load_point(stage: Stage, p: _Point, project: Project) -> dict[str, Any]:
     if topology == "ac-switch":
         freewheel = False  # an ac-switch load sees AC: no freewheeling
     f = p.get(("freq", "f", "line_f"), "supply.frequency")
-    return {"topology": topology, "freewheel": freewheel,
-            "vs": p.get(("vs", "v_s", "line_v"), "supply.voltage"),
-            "r": p.get(("r",), sp + "load.r"), "l": p.get(("l",), sp + "load.l", default=0.0),
-            "omega": 2 * math.pi * f}
+    kw = {"topology": topology, "freewheel": freewheel,
+          "vs": p.get(("vs", "v_s", "line_v"), "supply.voltage"),
+          "r": p.get(("r",), sp + "load.r"), "l": p.get(("l",), sp + "load.l", default=0.0),
+          "omega": 2 * math.pi * f}
+    load = stage.get("load")
+    if isinstance(load, dict) and "e" in load:  # a battery or motor: the back EMF
+        kw["e"] = p.get(("e",), sp + "load.e")
+    return kw
 
 
 def firing_range(result: Result, project: Project, corner: str = "nominal"

@@ -124,7 +124,8 @@ def to_html(d: ReportData) -> str:
              + "".join(f"<tr><td>{_e(k)}</td><td>{_e(v)}</td></tr>" for k, v in meta)
              + "</tbody></table>")
     h.append("<h2>Cautions</h2>")
-    h += [f'<div class="caution"><b>{_e(t)}.</b> {_e(b)}</div>' for t, b in CAUTIONS]
+    h += [f'<div class="caution"><b>{_e(t)}.</b> {_e(b)}</div>'
+          for t, b in CAUTIONS + d.extra_cautions]
     from reviewer.report import verdict
 
     h.append("<h2>Summary</h2>")

@@ -68,7 +68,7 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
             + ("" if d.history_ok else f" — HISTORY BROKEN: {_md(d.history_note)}"),
             f"- Exported: {_md(d.generated)} by {_md(d.tool)}", ""]
     out += ["## Cautions", ""]
-    out += [f"- **{_md(t)}.** {_md(b)}" for t, b in CAUTIONS]
+    out += [f"- **{_md(t)}.** {_md(b)}" for t, b in CAUTIONS + d.extra_cautions]
     from reviewer.report import verdict
 
     out += ["", "## Summary", "", f"**{_md(verdict(d))}**", ""]

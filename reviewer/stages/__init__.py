@@ -5,4 +5,12 @@ module declares its :class:`~reviewer.registry.StageKind` parameters and its
 :class:`~reviewer.registry.CheckDef` entries side by side.
 """
 
-from reviewer.stages import gate, oscillator, power, snubber, turnoff  # noqa: F401
+from reviewer.stages import (  # noqa: F401
+    fault,
+    gate,
+    harmonics,
+    oscillator,
+    power,
+    snubber,
+    turnoff,
+)

@@ -8,7 +8,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import oscillator, power
+from checks import oscillator, power, rle
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
 from checks.rl import extinction_angle
@@ -35,6 +35,8 @@ LOAD = {
     "l": Param(V, "inductance", allow_zero=True),
     "cold_r": Param(V, "resistance"),
     "hold_current": Param(V, "current"),
+    "e": Param(V, "voltage", allow_zero=True),
+    "type": Param("choice", choices=("battery", "motor")),
 }
 HEATSINK = {
     "rth_cs": Param(V, "thermal_resistance", allow_zero=True),
@@ -57,6 +59,9 @@ PHASE_CONTROL = register_kind(StageKind("phase-control", {
     "heatsink": Param("table", fields=HEATSINK),
     "fuse": Param("table", fields=FUSE),
     "required": Param("required"),
+    "control": Param("choice", choices=("phase", "burst")),
+    "burst": Param("table", fields={"period": Param("number", required=True),
+                                    "on": Param(V, "dimensionless", required=True)}),
 }, "SCRs controlling power from an AC supply by firing angle"))
 
 DC_SWITCH = register_kind(StageKind("dc-switch", {
@@ -98,6 +103,23 @@ def _bind_load(ctx: Context, b: Bound, *, l_needed: bool = True) -> None:
         ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
         # A missing inductance is the resistive case, not an assumption worth a note.
         b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+    _bind_emf(ctx, b)
+
+
+def _emf_type(ctx: Context) -> str | None:
+    """"battery", "motor" or "emf" for a load with a back EMF `e`; None without one."""
+    load = ctx.stage.get("load")
+    if not isinstance(load, dict) or not isinstance(load.get("e"), Value):
+        return None
+    return str(load.get("type", "emf"))
+
+
+def _bind_emf(ctx: Context, b: Bound) -> None:
+    """A back EMF (battery, motor armature): input ``e`` and option ``emf`` (its type)."""
+    kind = _emf_type(ctx)
+    if kind is not None and not _is_dc(ctx):
+        ctx.need(b, "e", _sp(ctx, "load.e"))
+        b.options["emf"] = kind
 
 
 def _bind_stage_options(ctx: Context, b: Bound) -> None:
@@ -156,6 +178,15 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
     """
     fv = ctx.stage.get("firing")
     path = _sp(ctx, "firing")
+    if ctx.stage.get("control") == "burst":
+        # Integral-cycle control: whole cycles switched at the voltage zero; every on-cycle
+        # carries the full current, so the device checks see full conduction.
+        zero = Value.fixed(0.0, "angle", "rad")
+        for name in ("alpha", "alpha_lo", "alpha_hi"):
+            b.add(name, _sp(ctx, "control") + "#burst", zero)
+        b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
+                       "on-cycle at full current")
+        return True
     if isinstance(fv, Value):
         if _osc_stage(ctx) is not None:
             b.notes.append("firing range taken from `firing`, not from the gate's oscillator")
@@ -262,6 +293,14 @@ def _bind_output(ctx: Context) -> Bound:
         return b
     req = ctx.stage.get("required")
     path = _sp(ctx, "required")
+    ls = ctx.project.supply.get("inductance")
+    if (ctx.stage.get("topology") == "bridge" and not b.options.get("freewheel")
+            and isinstance(ls, Value) and ls.hi > 0):
+        ctx.need(b, "l_s", "supply.inductance")  # the commutation overlap
+    if "e" in b.inputs:
+        ev = b.inputs["e"].value
+        b.add("e_full", _sp(ctx, "load.e") + "#max", ev.at(ev.hi))
+        b.add("e_least", _sp(ctx, "load.e") + "#min", ev.at(ev.lo))
     if not isinstance(req, Value):
         # The values are always reported; only the pass/fail needs a `required` range.
         b.options["quantity"] = "power"
@@ -269,16 +308,51 @@ def _bind_output(ctx: Context) -> Bound:
         b.add("req_hi", path + "#none", nan)
         b.add("req_lo", path + "#none-min", nan)
         return b
-    b.options["quantity"] = "power" if req.dim == "power" else "voltage"
+    b.options["quantity"] = {"power": "power", "current": "current"}.get(req.dim, "voltage")
+    if ctx.stage.get("control") == "burst":
+        _bind_burst(ctx, b)
+    if req.dim == "current" and "e" not in b.inputs:
+        b.not_applicable = ("`required` as a current is for a battery or motor load (give "
+                            "`load.e`); give a power or a voltage for this load")
+        return b
     b.add("req_hi", path + "#max", req.at(req.hi))
     b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
           else Value.fixed(float("nan"), req.dim, req.unit))
     return b
 
 
+def _bind_burst(ctx: Context, b: Bound) -> None:
+    """Burst control's on-cycles (a range: the control's span) and its period in cycles."""
+    burst = ctx.stage.get("burst")
+    assert isinstance(burst, dict)  # the loader requires it with control = "burst"
+    b.options["burst_period"] = int(burst["period"])
+    on = ctx.need(b, "n_on", _sp(ctx, "burst.on"))
+    b.add("n_lo", _sp(ctx, "burst.on") + "#min", on.at(on.lo))
+    b.add("n_hi", _sp(ctx, "burst.on") + "#max", on.at(on.hi))
+
+
+def _fn_burst_output(**kw: Any) -> Outcome:
+    from checks import burst
+
+    a, _, _ = _firing(kw)
+    omega = _omega(kw)
+    full = power.stage_values(topology=kw["topology"], freewheel=False, vs=kw["vs"],
+                              r=kw["r"], l=kw["l"], omega=omega, alpha=a, peak=False)
+    out = burst.burst_output_check(
+        p_full=full["load_power"], vs=kw["vs"], n_on=kw["n_on"], n_lo=kw["n_lo"],
+        n_hi=kw["n_hi"], period=kw["burst_period"], req_lo=kw["req_lo"], req_hi=kw["req_hi"],
+        quantity=kw["quantity"], limits=kw["limits"])
+    out.values["conduction_angle"] = full["conduction"]
+    return out
+
+
 def _fn_output(**kw: Any) -> Outcome:
+    if "burst_period" in kw:
+        return _fn_burst_output(**kw)
     a, lo, hi = _firing(kw)
     kw.pop("kind", None)
+    kw.pop("emf", None)
+    l_s = kw.pop("l_s", None)
     w = _omega(kw)
     pulse = kw.get("gate_pulse")
     a, note = _pulses(kw, a, w)
@@ -286,14 +360,54 @@ def _fn_output(**kw: Any) -> Outcome:
     out = power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw)
     if note:
         out.notes.append(note)
+    if l_s is not None:
+        out = _overlap(out, kw, a, lo, w, l_s)
     return out
 
 
+def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
+             l_s: Any) -> Outcome:
+    """A full bridge with source inductance: the overlap and the full output it costs."""
+    from checks import bridge
+
+    common = dict(topology="bridge", freewheel=False, vs=kw["vs"], r=kw["r"], l=kw["l"],
+                  omega=omega, peak=False, e=kw.get("e"))
+    cont = power.stage_values(alpha=a, **common)["continuous"]
+    cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
+    e_full = kw.get("e_full", kw.get("e"))
+    return bridge.overlap_check(
+        outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
+        alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
+        continuous_lo=cont_lo, req_hi=kw["req_hi"])
+
+
+def _sum_burst(r: Reduced) -> str:
+    m = r.bound.options["burst_period"]
+    on = r.bound.inputs["n_on"].value
+    q = r.bound.options.get("quantity", "power")
+    unit = "W" if q == "power" else "V"
+    text = (f"integral-cycle control, {on.lo:g}–{on.hi:g} of every {m} cycles on: "
+            f"{'load power' if q == 'power' else 'V_rms'} "
+            f"{span(r.lo['output_at_max'], r.hi['output_at_min'], unit)}, in steps of "
+            f"{span(r.lo['power_step'], r.hi['power_step'], 'W')} (1/{m} of full power)")
+    if r.status != "pass":
+        text += "; fails: the on-cycles do not cover `required`: change the period, the range "
+        text += "of on-cycles or the load"
+    return text + ("; each burst starts at a voltage zero with the cold-load current; short "
+                   "control periods make lamps on the same supply flicker")
+
+
 def _sum_output(r: Reduced) -> str:
+    if "burst_period" in r.bound.options:
+        return _sum_burst(r)
     q = r.bound.options.get("quantity", "power")
     topo = r.bound.options.get("topology")
-    unit = "W" if q == "power" else "V"
+    emf = r.bound.options.get("emf")
+    unit = {"power": "W", "current": "A"}.get(q, "V")
     name = "load power" if q == "power" else ("V_rms" if topo == "ac-switch" else "V_dc")
+    if q == "current":
+        name = {"battery": "charge current", "motor": "armature current"}.get(emf,
+                                                                              "load current")
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
             f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
     req_hi = r.bound.inputs["req_hi"].value.nom
@@ -307,6 +421,8 @@ def _sum_output(r: Reduced) -> str:
                 # P ∝ 1/R at a given α and line: the load R that would just reach it.
                 r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
                 short += f", or load R ≤ {at_most(r_need, 'ohm')}"
+            if emf and r.bound.inputs["e"].value.varies:
+                short += f" (at E = {eng(r.bound.inputs['e'].value.hi, 'V')})"
             fixes.append(short)
         if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
@@ -322,7 +438,36 @@ def _sum_output(r: Reduced) -> str:
     if inductive:
         beta = span(r.lo["extinction_angle"], r.hi["extinction_angle"], "deg")
         text += f"; current runs on to β = {beta}"
+    if emf:
+        text += _emf_output_text(r, emf)
+    mu = r.hi.get("overlap_angle", float("nan"))
+    if mu == mu:
+        text += (f"; the supply inductance overlaps the commutation by μ up to {_deg(mu)}, "
+                 f"taking up to {eng(r.hi['overlap_drop'], 'V')} of the mean output "
+                 "(counted in the full output)")
+    if r.hi.get("overlap_short", 0.0) > 0:
+        text += "; the overlap's drop is what makes the full output fall short"
     return text + _lost_text(r)
+
+
+def _emf_output_text(r: Reduced, emf: str) -> str:
+    """What a back-EMF load adds to the output summary: current, voltage, θ1, conduction."""
+    what = {"battery": "charge current", "motor": "armature current"}.get(emf, "load current")
+    q = r.bound.options.get("quantity")
+    text = ""
+    if q != "current":
+        text += f"; {what} {span(r.lo['load_current'], r.hi['load_current'], 'A')} (mean)"
+    if q != "voltage":
+        text += f"; V_dc {span(r.lo['vdc'], r.hi['vdc'], 'V')} at the terminals"
+    text += (f"; the line exceeds E from θ1 = {span(r.lo['emf_angle'], r.hi['emf_angle'], 'deg')}"
+             " (earlier firing does nothing: see power.control)")
+    cont = r.hi.get("continuous", 0.0)
+    if cont > 0:
+        text += ("; conduction is continuous at some corners" if r.lo.get("continuous", 0) == 0
+                 else "; conduction is continuous")
+    else:
+        text += "; conduction is discontinuous"
+    return text
 
 
 register(CheckDef(
@@ -336,11 +481,12 @@ register(CheckDef(
            "Electronics §3",
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
-           "conduction_angle": "deg", "shortcut_error": "1"},
+           "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
+           "overlap_angle": "deg", "overlap_drop": "V", "power_step": "W"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
-    optional=frozenset({"shortcut_error"}),
+    optional=frozenset({"shortcut_error", "overlap_angle", "overlap_drop"}),
 ))
 
 
@@ -354,6 +500,9 @@ def _bind_blocking(ctx: Context) -> Bound:
     ctx.need(b, "vrrm", f"parts.{part.ref}.vrrm")
     ctx.need(b, "vs", "supply.voltage")
     b.options["kind"] = "dc" if _is_dc(ctx) else "ac"
+    if _emf_type(ctx) is not None:
+        # The back EMF adds to the line in reverse: an SCR blocks up to Vm + E.
+        ctx.need(b, "emf_e", _sp(ctx, "load.e"))
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:
         sn = snubs[0]
@@ -390,7 +539,7 @@ def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarra
                  limits: Mapping[str, float], snubber: str = "", step: str = "",
                  snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
                  snub_e: Any = None, reverse_from: str = "", v_c0: Any = None,
-                 diode_clamp: float | None = None) -> Outcome:
+                 diode_clamp: float | None = None, emf_e: Any = None) -> Outcome:
     vs = np.asarray(vs, dtype=float)
     v_line = vs if kind == "dc" else np.sqrt(2.0) * vs
     v_fwd = v_line
@@ -408,6 +557,15 @@ def _fn_blocking(*, kind: str, vs: np.ndarray, vdrm: np.ndarray, vrrm: np.ndarra
             v_rev = v_c0 if v_c0 is not None else vs
     else:
         v_rev = v_fwd
+    if emf_e is not None:
+        # Reverse, the line and the back EMF add: a step of up to Vm + E (snubbed, its
+        # overshoot on that step).
+        if snubber and step == "line":
+            e_rev = np.sqrt(2.0) * vs + np.asarray(emf_e, dtype=float)
+            v_snub, _ = snubber_mod.step_peak(e=e_rev, r=snub_r, l=snub_l, c=snub_c)
+            v_rev = np.maximum(e_rev, v_snub)
+        else:
+            v_rev = v_rev + np.asarray(emf_e, dtype=float)
     out = power.blocking_check(vdrm=vdrm, vrrm=vrrm, v_fwd=v_fwd, v_rev=v_rev, limits=limits)
     out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
     return out
@@ -422,6 +580,8 @@ def _sum_blocking(r: Reduced) -> str:
     text = (f"VDRM {eng(vdrm, 'V')} / VRRM {eng(vrrm, 'V')} against "
             f"{eng(r.hi['peak_voltage'], 'V')} ({src}, high line): ratio "
             f"{r.worst['blocking_ratio']:.2f}")
+    if "emf_e" in r.bound.inputs:
+        text += "; reverse stress includes the back EMF (Vm + E)"
     if r.bound.options["kind"] == "dc" and not r.bound.options.get("reverse_from"):
         text += "; no turn-off network reverse-biases it, so VRRM is not stressed"
     elif r.bound.options.get("diode_clamp") is not None:
@@ -506,6 +666,7 @@ def _lost_text(r: Reduced) -> str:
 
 def _fn_currents(core: Any) -> Any:
     def fn(**kw: Any) -> Outcome:
+        kw.pop("emf", None)
         if kw.get("kind") == "ac":
             a, _, _ = _firing(kw)
             kw["omega"] = _omega(kw)
@@ -652,12 +813,34 @@ def _bind_surge(ctx: Context) -> Bound:
     ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
     b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
     b.options["topology"] = ctx.stage.get("topology")
+    _bind_surge_emf(ctx, b)
     _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
     return b
 
 
+def _bind_surge_emf(ctx: Context, b: Bound) -> None:
+    """The back EMF at the first firing: none for a motor at standstill (or an EMF of unknown
+    kind), the lowest for a battery (deeply discharged)."""
+    kind = _emf_type(ctx)
+    if kind is None:
+        return
+    b.options["emf"] = kind
+    if kind == "battery":
+        e = ctx.project.lookup(_sp(ctx, "load.e"))
+        b.add("e_start", _sp(ctx, "load.e") + "#min", e.at(e.lo))
+        b.notes.append("the battery at its lowest E for the first firing")
+    else:
+        b.add("e_start", _sp(ctx, "load.e") + "#start", Value.fixed(0.0, "voltage", "V"))
+        b.notes.append("no back EMF at the first firing (a motor at standstill: the stall "
+                       "current)")
+
+
 def _fn_surge(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
+    if "e_start" in kw:
+        for k in ("topology", "emf"):
+            kw.pop(k)
+        return rle.surge_check(alpha=a, omega=_omega(kw), **kw)
     return power.surge_check(alpha=a, omega=_omega(kw), **kw)
 
 
@@ -794,6 +977,11 @@ def _fn_latching(**kw: Any) -> Outcome:
         out.values["time_to_il"] = t_il + 0 * out.margin
         return out
     a, lo, hi = _firing(kw)
+    if "e" in kw:
+        kw.pop("kind")
+        kw.pop("emf")
+        return rle.latching_check(il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
+                                  omega=_omega(kw), **kw)
     return power.latching_check(il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
                                 omega=_omega(kw), **kw)
 
@@ -833,7 +1021,7 @@ register(CheckDef(
     units={"anode_current_at_fire": "A", "il": "A", "max_firing_angle": "deg"},
     summarise=_sum_latching,
     fix="Limit α_max, lower the load R, or add a bleeder resistor across the load.",
-    optional=frozenset({"max_firing_angle", "time_to_il"}),
+    optional=frozenset({"max_firing_angle", "time_to_il", "reach_current"}),
 ))
 
 
@@ -849,6 +1037,8 @@ def _bind_holding(ctx: Context) -> Bound:
     _bind_load(ctx, b)
     ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
+    if "e" in b.inputs:
+        _bind_stage_options(ctx, b)
     return b
 
 
@@ -857,6 +1047,10 @@ def _fn_holding(**kw: Any) -> Outcome:
     if kw["kind"] == "dc":
         return power.holding_check(ih_cold=ih, **kw)
     a, _, _ = _firing(kw)
+    if "e" in kw:
+        for k in ("kind", "emf"):
+            kw.pop(k)
+        return rle.holding_check(ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
     return power.holding_check(ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
 
 
@@ -905,6 +1099,8 @@ def _bind_didt(ctx: Context) -> Bound:
     if ls is None and ll is None:  # di/dt is then bounded only by the wiring
         b.missing.append("supply.inductance (or " + _sp(ctx, "load.l") + ")")
         return b
+    if _emf_type(ctx) is not None:
+        ctx.need(b, "e", _sp(ctx, "load.e"))
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:
         sn = snubs[0]
@@ -920,7 +1116,7 @@ def _bind_didt(ctx: Context) -> Bound:
 
 def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float],
              l_s: Any = 0.0, l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
-             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+             snub_r: Any = None, t_on: Any = None, e: Any = 0.0, **kw: Any) -> Outcome:
     if kind == "ac":
         a, _, _ = _firing(kw, vs=vs)
     else:
@@ -931,7 +1127,7 @@ def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float
         with np.errstate(divide="ignore"):
             snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
     return power.didt_check(kind=kind, vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
-                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+                            snub_didt=snub, didt_rating=didt_rating, limits=limits, e=e)
 
 
 def _sum_didt(r: Reduced) -> str:
@@ -968,6 +1164,8 @@ register(CheckDef(
 
 def _bind_control(ctx: Context) -> Bound:
     b = Bound()
+    if _emf_type(ctx) is not None:
+        return _bind_control_emf(ctx, b)
     if ctx.stage.get("topology") != "ac-switch":
         b.not_applicable = "only an ac-switch loses control below the load angle"
         return b
@@ -981,18 +1179,50 @@ def _bind_control(ctx: Context) -> Bound:
     return b
 
 
+def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
+    """A back-EMF load: control starts where the line first exceeds E (θ1 = asin(E/Vm))."""
+    b.options["emf"] = _emf_type(ctx)
+    ctx.need(b, "vs", "supply.voltage")
+    ctx.need(b, "e", _sp(ctx, "load.e"))
+    _bind_firing(ctx, b)
+    return b
+
+
 def _fn_control(**kw: Any) -> Outcome:
+    if "emf" in kw:
+        kw.pop("emf")
+        _, lo, hi = _firing(kw)
+        kw.pop("freq", None)
+        return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     _, lo, _ = _firing(kw)
     kw.pop("vs", None)
     return power.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
 
 
 def _sum_control(r: Reduced) -> str:
+    if "emf" in r.bound.options:
+        return _sum_control_emf(r)
     phi = r.hi["load_angle"]
     text = f"load angle φ up to {_deg(phi)} against the earliest firing"
     if r.status != "pass":
         text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or wide gate pulses / a "
                  "pulse train (else one SCR can miss its pulse and DC flows in the load)")
+    return text
+
+
+def _sum_control_emf(r: Reduced) -> str:
+    th1 = r.hi["emf_angle"]
+    text = (f"the line exceeds the back EMF from θ1 = asin(E/Vm) = "
+            f"{span(r.lo['emf_angle'], th1, 'deg')}; the earliest firing is "
+            f"{_deg(r.lo['alpha_min'])}")
+    if r.status != "pass":
+        text += (f"; fails: firing before {_deg(th1)} does nothing (a short gate pulse misses "
+                 f"the half-cycle, a long one fires at θ1), so the range loses control below "
+                 f"it: needs α_min ≥ {_deg(th1)}, or a gate pulse lasting past θ1")
+    last = r.lo["last_angle"]
+    if r.hi["alpha_max"] >= last:
+        text += (f"; above π − θ1 = {_deg(last)} the line never exceeds E again: no current "
+                 "at all there")
     return text
 
 
@@ -1003,6 +1233,6 @@ register(CheckDef(
     method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
-    units={"load_angle": "deg"}, summarise=_sum_control,
+    units={"load_angle": "deg", "emf_angle": "deg"}, summarise=_sum_control,
     fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train.",
 ))

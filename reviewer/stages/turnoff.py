@@ -3,6 +3,9 @@
 from __future__ import annotations
 
 import math
+from typing import Any
+
+import numpy as np
 
 from checks import turnoff
 from reviewer.fmt import at_least, at_most, eng, span
@@ -30,6 +33,7 @@ CAPACITOR = register_kind(StageKind("capacitor-commutation", {
     "for": Param("stage", required=True, stage_kinds=("dc-switch",)),
     "c": Param(V, "capacitance", required=True),
     "c_voltage": Param(V, "voltage"),
+    "c_current": Param(V, "current"),
     "charge_voltage": Param(V, "voltage"),
     "load_model": Param("choice", choices=("resistive", "constant-current")),
 }, "a charged capacitor switched across the conducting SCR"))
@@ -39,6 +43,7 @@ RESONANT = register_kind(StageKind("resonant-commutation", {
     "c": Param(V, "capacitance", required=True),
     "l": Param(V, "inductance", required=True),
     "c_voltage": Param(V, "voltage"),
+    "c_current": Param(V, "current"),
     "charge_voltage": Param(V, "voltage"),
     "diode": Param("bool"),
 }, "an L–C circuit rings a current pulse against the load current"))
@@ -187,6 +192,7 @@ def _bind_capacitor(ctx: Context) -> Bound:
     b, pw, _ = _start(ctx)
     if ctx.want(b, "c_voltage", ctx.stage_path("c_voltage")) is None:
         return b
+    ctx.read(b, "c_current", ctx.stage_path("c_current"))  # the peak (pulse) current rating
     _bind_network(ctx, b, pw)
     return b
 
@@ -284,12 +290,35 @@ def _sum_time(r: Reduced) -> str:
     return text
 
 
+def _fn_capacitor(**kw: Any) -> Any:
+    """turnoff.capacitor, with the capacitor's peak current rating ``c_current`` when given:
+    the metric is the smaller of the voltage and the current ratios."""
+    c_current = kw.pop("c_current", None)
+    out = _strip(turnoff.capacitor_check)(**kw)  # type: ignore[operator]
+    if c_current is None:
+        return out
+    from checks.core import Outcome, grade
+
+    cur = out.values["capacitor_current"]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio_v = np.asarray(kw["c_voltage"], dtype=float) / out.values["capacitor_peak"]
+        ratio_i = np.asarray(c_current, dtype=float) / cur
+    margin, status = grade(np.minimum(ratio_v, ratio_i), kw["limits"])
+    values = dict(out.values, c_current=np.asarray(c_current, dtype=float) + 0 * cur)
+    return Outcome(values, margin, status, out.notes)
+
+
 def _sum_capacitor(r: Reduced) -> str:
     pk = r.hi["capacitor_peak"]
+    rated = "c_current" in r.bound.inputs
     text = (f"capacitor peak {eng(pk, 'V')} against its {eng(r.lo['c_voltage'], 'V')} "
-            f"rating; peak current {eng(r.hi['capacitor_current'], 'A')} (no current rating "
-            "in the project: reported only)")
-    if r.status == "fail":
+            f"rating; peak current {eng(r.hi['capacitor_current'], 'A')}"
+            + (f" against its {eng(r.lo['c_current'], 'A')} rating" if rated else
+               " (no current rating in the project: reported only)"))
+    if rated and r.hi["capacitor_current"] > r.lo["c_current"]:
+        text += ("; fails: needs a capacitor rated for "
+                 f"≥ {at_least(r.hi['capacitor_current'], 'A')}")
+    if r.status == "fail" and pk > r.lo["c_voltage"]:
         text += f"; fails: needs c_voltage ≥ {at_least(pk, 'V')}"
         if "c_scale_overcharge" in r.hi and math.isfinite(r.hi["c_scale_overcharge"]):
             text += (f", or C ≥ {_c_needed(r, 'c_scale_overcharge')} to hold the overcharge "
@@ -364,7 +393,7 @@ register(CheckDef(
              "against its ratings.",
     method="capacitor: max(V_c0, V_s), current (V_s + V_c0)/R or I_o; resonant: "
            "V_s + √(L/C)·I_o or V_c0, current I_p",
-    source=_SRC, fn=_strip(turnoff.capacitor_check), bind=_bind_capacitor,  # type: ignore
+    source=_SRC, fn=_fn_capacitor, bind=_bind_capacitor,
     units={"capacitor_peak": "V", "capacitor_current": "A"}, summarise=_sum_capacitor,
     cautions=("the capacitor swings both ways: a non-polar film type",),
     fix="A capacitor rated above the peak (or, resonant, a larger C to cut the overcharge).",

@@ -43,6 +43,10 @@ BY_KIND = {
 }
 
 
-def cautions_for(kind: str) -> tuple[str, ...]:
-    """The cautions of a stage kind, then the general ones."""
-    return BY_KIND.get(kind, ()) + GENERAL
+def cautions_for(kind: str, load_type: str = "") -> tuple[str, ...]:
+    """The cautions of a stage kind (and of its load's kind: "battery", "motor"), then the
+    general ones."""
+    from reviewer.safety import load_cautions
+
+    extra = tuple(f"{t}: {b}" for t, b in load_cautions([load_type] if load_type else []))
+    return BY_KIND.get(kind, ()) + extra + GENERAL

@@ -28,12 +28,29 @@ def load(p: Path):
 
 
 def test_standard_names_every_catalogue_check():
-    """The built-in checklist has limits for exactly the checks of the catalogue."""
+    """The built-in checklist has limits, or later defaults, for exactly the checks of the
+    catalogue, never both."""
+    from reviewer.checklist import later_defaults
+
     s = standard()
-    assert set(s.limits) == {cid for cid, _ in CATALOGUE}
-    for check, lim in s.limits.items():
+    later = later_defaults()
+    assert not set(s.limits) & set(later)
+    assert set(s.limits) | set(later) == {cid for cid, _ in CATALOGUE}
+    for check in {cid for cid, _ in CATALOGUE}:
+        lim = s.limits_for(check)
         assert lim, check
         assert all(isinstance(v, float | int) for v in lim.values()), check
+
+
+def test_a_later_check_keeps_the_standard_identity_and_takes_limits():
+    """power.harmonics' defaults leave the standard's hash as version 1 had it, and a product
+    line can choose the class (looser, so with a reason) or make it fail instead of warn."""
+    from reviewer.checklist import later_defaults
+
+    s = standard()
+    assert "power.harmonics" not in s.limits
+    assert s.limits_for("power.harmonics")["class_factor"] == 1.0
+    assert later_defaults()["power.harmonics"]["advisory"] == 1.0
 
 
 def test_lower_is_stricter_keys_exist():
@@ -192,3 +209,21 @@ def test_changed_checklist_makes_signoffs_stale(line_copy):
     st = check_states(load_record(base), run2)[("commutation", "turnoff.time")]
     assert st.signoff == "stale"
     assert any(c.path == "checklist" for c in st.changed)
+
+
+def test_a_product_line_chooses_the_harmonics_class_or_switches_it_off(tmp_path):
+    """Class B (1.5 ×) is looser than the standard's Class A, so it needs a reason;
+    advisory = 0 makes an excess fail; [off] switches the check off."""
+    import pytest
+
+    from reviewer.errors import ProjectError
+
+    with pytest.raises(ProjectError, match=r"class_factor.*looser"):
+        load(write(tmp_path, '[limits."power.harmonics"]\nclass_factor = 1.5\n'))
+    c = load(write(tmp_path, '[limits."power.harmonics"]\nclass_factor = 1.5\nreason = "'
+                   + REASON + '"\nadvisory = 0\n'))
+    assert c.limits_for("power.harmonics") == {"class_factor": 1.5, "fail_below": 1.0,
+                                               "marginal_below": 1.0, "advisory": 0.0}
+    assert c.tightened()["power.harmonics"]["advisory"] == (1.0, 0.0)
+    with pytest.raises(ProjectError, match=r"unknown limit key `klass`"):
+        load(write(tmp_path, '[limits."power.harmonics"]\nklass = 1.5\n'))

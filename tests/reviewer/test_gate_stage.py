@@ -126,17 +126,23 @@ VGT_C = 1.0 * (1 + 0.5 * 35 / 65)
 
 def test_every_gate_check_runs_on_the_demo_projects(projects_dir):
     from reviewer.project import load_project
+    with_gate = 0
     for f in sorted(projects_dir.glob("*.toml")):
         project = load_project(f)
         only = [(s.id, c) for s in project.stages.values() if s.kind == "gate-drive"
                 for c in GATE_CHECKS]
-        assert only, f
+        if not only:  # a demo fired over a `firing` range has no gate-drive stage
+            assert all("firing" in s.params for s in project.stages.values()
+                       if s.kind == "phase-control"), f
+            continue
+        with_gate += 1
         res = evaluate(project, only=only, strict=True).results
         gate = [r for r in res if r.check.startswith("gate.")]
         assert {r.check for r in gate} == set(GATE_CHECKS), f
         for r in gate:
             assert r.status in ("pass", "marginal", "fail", "not-applicable"), (f, r.check)
             assert r.summary and "\n" not in r.summary
+    assert with_gate >= 3
 
 
 # ------------------------------------------------------------------ gate.trigger

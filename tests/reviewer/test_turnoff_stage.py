@@ -340,3 +340,19 @@ def test_demo_projects_evaluate(name):
     assert results and all(r.status in ("pass", "marginal", "fail", "not-applicable")
                            for r in results)
     assert all(r.summary for r in results)
+
+
+@pytest.mark.parametrize(("rating", "status"), [(100.0, "pass"), (80.0, "pass"),
+                                                (60.0, "fail")])
+def test_capacitor_current_rating(rating, status):
+    """With `c_current` the peak current (V_s + V_c0)/R = 80 A [recomputed, Bimbhra Ex 5.6
+    circuit] is graded too; without it, it is only reported."""
+    p = cap_circuit(10e-6)
+    p.stages["cc"].params["c_current"] = val(rating, "current")
+    r = run(p, "cc")["turnoff.capacitor"]
+    assert r.status == status, r.summary
+    assert r.values["capacitor_current"].max == pytest.approx(80.0)
+    if status == "fail":
+        assert "rated for ≥ 80 A" in r.summary and "c_voltage" not in r.summary
+    unrated = run(cap_circuit(10e-6), "cc")["turnoff.capacitor"]
+    assert "reported only" in unrated.summary

@@ -157,8 +157,9 @@ def test_project_of_record_refuses_a_record_not_kept_beside_its_project(line):
 
 def test_attention_filter_shows_only_the_stale_checks_of_the_stale_variant(line):
     """In the variant whose sign-offs went stale, "attention" lists only the stages with a
-    stale check and, in the power stage, only the stale one; passing signed checks are hidden.
-    The banner names the filter."""
+    stale check and, in the power stage, the stale one and the checks its record never signed
+    (power.harmonics and power.fault came after the sign-off); passing signed checks are
+    hidden. "stale only" narrows it to the stale one. The banner names the filter."""
     async def go():
         app = Workbook(Session(line / "kiln-120-1k.toml", record=line / "kiln-120-1k.review.toml"))
         async with app.run_test(size=SIZE) as pilot:
@@ -170,7 +171,7 @@ def test_attention_filter_shows_only_the_stale_checks_of_the_stale_variant(line)
             await pilot.pause()
             assert isinstance(app.screen, StageScreen)
             table = app.screen.query_one(ChecklistTable)
-            assert keys_of(table) == ["power.blocking"]
+            assert keys_of(table) == ["power.blocking", "power.harmonics", "power.fault"]
             text = screen_text(app)
             assert "filter: attention" in text.splitlines()[0]
             assert "STALE" in text and "power.output" not in text
@@ -178,19 +179,23 @@ def test_attention_filter_shows_only_the_stale_checks_of_the_stale_variant(line)
             assert keys_of(table) == ["power.blocking"]
             await press_filter_until(pilot, app, "fails only")
             assert keys_of(table) == []
-            assert "none of the 11 checks of power" in screen_text(app)
+            assert "none of the 13 checks of power" in screen_text(app)
     run(go())
 
 
 def test_attention_filter_shows_the_waived_check_of_the_base(line):
-    """In the base, whose only open point is a waived marginal check, "attention" lists the
-    snubber stage and in it only the waived check; "all checks" brings every row back."""
+    """In the base, whose open points are a waived marginal check and the two checks its
+    record never signed (power.harmonics and power.fault came after the sign-off),
+    "attention" lists those stages and in the snubber only the waived check; "all checks"
+    brings every row back."""
     async def go():
         app = Workbook(Session(line / "kiln-base.toml", record=line / "kiln-base.review.toml"))
         async with app.run_test(size=SIZE) as pilot:
             await settle(pilot, app)
             await press_filter_until(pilot, app, "attention")
-            assert keys_of(app.screen.query_one(StageTable)) == ["snubber"]
+            stages = app.screen.query_one(StageTable)
+            assert keys_of(stages) == ["power", "snubber"]
+            stages.select_key("snubber")
             await pilot.press("enter")
             await pilot.pause()
             table = app.screen.query_one(ChecklistTable)

@@ -179,7 +179,10 @@ def detail_text(result: Result, project: Project, *, review: str, changed: objec
     else:
         out.append("  sign-off not available in this version\n", style="dim")
     out.append_text(_head("Cautions"))
-    for c in (defn.cautions if defn else ()) + cautions_for(stage.kind if stage else ""):
+    load = stage.params.get("load") if stage else None
+    load_type = str(load.get("type", "")) if isinstance(load, dict) else ""
+    for c in (defn.cautions if defn else ()) + cautions_for(stage.kind if stage else "",
+                                                            load_type):
         out.append(f"  ⚠ {c}\n")
     out.append(f"\n{SAFETY_LINE}\n", style="italic")
     return out

@@ -1,0 +1,63 @@
+"""Integral-cycle (burst) control as a phase-control option, through the engine: the power
+range and its steps, full-conduction device stress, no line harmonics, the flicker caution."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from reviewer.engine import evaluate
+from reviewer.errors import ProjectError
+from reviewer.project import load_project_text
+
+KILN = (Path(__file__).resolve().parents[2] / "projects" / "kiln-230.toml").read_text("utf-8")
+
+
+def burst_kiln(on: str = "{ min = 2, max = 45 }", period: str = "50",
+               required: str = 'required = { min = "100 W", max = "1.4 kW" }') -> str:
+    text = KILN.replace('required = { min = "100 W", max = "1.4 kW" }',
+                        f'control = "burst"\nburst = {{ period = {period}, on = {on} }}\n'
+                        + required)
+    return text
+
+
+def result(text: str, check: str):
+    p = load_project_text(text, "k.toml")
+    return evaluate(p, only=[("power", check)], strict=True).results[0]
+
+
+def test_power_range_and_resolution():
+    """26.5 Ω ±5 % on 230 V ±10 %: full power at low line 207²/27.8 = 1541 W × 45/50 =
+    1387 W — short of 1.4 kW; 46 of 50 gives 1418 W, and 1 of 50 at high line
+    253²/25.2/50 = 50.8 W is below 100 W (2 of 50, 101.6 W, is not): that passes; the step
+    is P_full/50."""
+    r = result(burst_kiln(), "power.output")
+    assert r.status == "fail" and "integral-cycle" in r.summary
+    assert result(burst_kiln(on="{ min = 2, max = 46 }"), "power.output").status == "fail"
+    r = result(burst_kiln(on="{ min = 1, max = 46 }"), "power.output")
+    assert r.status == "pass", r.summary
+    assert r.values["power_step"].min == pytest.approx(207.0**2 / (26.5 * 1.05) / 50, rel=1e-6)
+    assert "flicker" in r.summary
+
+
+def test_devices_see_full_conduction():
+    """Every on-cycle is a whole cycle: IT(RMS) is that of α = 0, whatever N."""
+    r = result(burst_kiln(), "power.rms-current")
+    assert r.values["it_rms"].max == pytest.approx(253.0 / (26.5 * 0.95) / 2**0.5, rel=1e-6)
+    assert any("integral-cycle" in n for n in r.notes)
+
+
+def test_no_line_harmonics_but_subharmonics():
+    r = result(burst_kiln(), "power.harmonics")
+    assert r.status == "pass" and "flicker" in r.summary and "estimate" in r.summary
+    assert r.values["i_h3"].max < 1e-9 and r.values["interharmonic_current"].max > 0.1
+
+
+@pytest.mark.parametrize("on,period,match", [
+    ("{ min = 2, max = 60 }", "50", "whole cycles within 0"),
+    ("{ min = 2.5, max = 45 }", "50", "whole cycles within 0"),
+    ("{ min = 2, max = 45 }", "0", "whole number")])
+def test_bad_burst_tables(on, period, match):
+    with pytest.raises(ProjectError, match=match):
+        load_project_text(burst_kiln(on=on, period=period), "k.toml")
