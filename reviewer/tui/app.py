@@ -4,7 +4,7 @@ The app owns the :class:`~reviewer.tui.session.Session` (the open project), the
 :class:`~reviewer.tui.compute.Computer` (the engine in a worker thread) and the
 :class:`~reviewer.tui.compute.Analyst`; it is the screens' :class:`~reviewer.tui.host.Host`
 and they do the rest. An unhandled error keeps the journal of unsaved edits, says where to
-report it, and ends the process with exit code 3.
+report it, and ends the process with exit code 4.
 """
 
 from __future__ import annotations

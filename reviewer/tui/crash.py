@@ -1,6 +1,6 @@
 """What the workbook does with a defect it did not expect: keep the unsaved edits, keep the
 traceback in a file, and say in plain words that it is a defect and where to report it.
-``run_app`` then exits with :data:`CRASHED` (0 ok, 1 a check fails, 2 bad input)."""
+``run_app`` then exits with :data:`CRASHED` (0 ok, 1 a check fails, 2 bad input, 3 busy)."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import traceback
 from pathlib import Path
 from typing import Any
 
-CRASHED = 3
+CRASHED = 4
 REPORT_TO = "the Latchbook maintainers (attach the crash file; it holds no project data)"
 
 

@@ -108,7 +108,7 @@ def test_internal_error_keeps_the_journal_says_where_to_report_and_exits_3(kiln)
     """)
     proc = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True,
                           cwd=ROOT, timeout=120)
-    assert proc.returncode == 3, proc.stderr[-2000:]
+    assert proc.returncode == 4, proc.stderr[-2000:]
     assert "internal error" in proc.stderr and "please report it" in proc.stderr
     assert "unsaved edits are kept" in proc.stderr
     journal = store.pending_journal(kiln)
