@@ -124,7 +124,8 @@ def render() -> str:
     for ptype, params in schema.PART_TYPES.items():
         out += _table(f'[parts.ID] type = "{ptype}"', {**schema.PART_COMMON, **params},
                       f"parts.{ptype}")
-    out += _table('[parts.ID] type = "scr" → `cold`', schema.COLD_KEYS, "parts.scr.cold")
+    for ptype, keys in schema.COLD_TABLES.items():
+        out += _table(f'[parts.ID] type = "{ptype}" → `cold`', keys, f"parts.{ptype}.cold")
     out += ["## Stages", ""]
     for name, kind in STAGE_KINDS.items():
         out += _table(f'[stages.ID] kind = "{name}" — {kind.about}', kind.params,
