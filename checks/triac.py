@@ -391,8 +391,8 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
                        _a(np.nan if vdrm is None else vdrm) / peak)
     metric = np.minimum(np.minimum(m_dv, m_di), m_v)
     margin, status = grade(metric, limits)
-    return Outcome({"commutation_angle": beta, "step_voltage": step,
-                    "step_bound": step_used + 0 * step, "didt_zero": didt,
+    return Outcome({"commutation_angle": beta + 0 * step, "step_voltage": step,
+                    "step_bound": step_used + 0 * step, "didt_zero": didt + 0 * step,
                     "dvdt_reapplied": dvdt, "dvdt_time": t_m + 0 * step,
                     "damping": zeta + 0 * step, "reapplied_peak": peak + 0 * step,
                     "dvdt_ratio": m_dv, "didt_ratio": m_di, "vdrm_ratio": m_v + 0 * step,
