@@ -403,9 +403,13 @@ class _Loader:
                         raise ProjectError(f'`{key}` names stage "{val}", which does not exist'
                                            + _did_you_mean(val, project.stages), where)
                     if target.kind not in p.stage_kinds:
+                        hint = ("; a triac turns off by itself at its current's zero, and "
+                                "triac.commutation checks that: remove this stage"
+                                if target.kind == "triac-phase-control" and key == "for"
+                                else "")
                         raise ProjectError(f'`{key}` must name a stage of kind '
                                            + " or ".join(p.stage_kinds)
-                                           + f', but "{val}" is {target.kind}', where)
+                                           + f', but "{val}" is {target.kind}' + hint, where)
                     if target.id == st.id:
                         raise ProjectError(f"`{key}` names the stage itself", where)
             _check_emf_load(st, self.where(f"stages.{st.id}", "load"))
