@@ -679,15 +679,17 @@ def _sum_commutation(r: Reduced) -> str:
                      f"falls faster: a triac rated for ≥ {at_least(k * r.hi['didt_zero'], 'A/s')}"
                      f" at commutation, or a load choke raising L to ≥ {at_least(need_l, 'H')}")
     if r.lo["dvdt_ratio"] < k and inductive:
-        e = r.hi["step_voltage"]
-        l_lo = r.bound.inputs["l"].value.lo
+        # The step is bounded by the line's peak; with C ≥ L/R_s² the response is damped
+        # (ζ ≥ 0.5, R_s·(R + R_s)·C ≥ L) and dv/dt is largest at once: R_s·E/L.
+        e = math.sqrt(2.0) * r.bound.inputs["vs"].value.hi
+        l_lo, l_hi = r.bound.inputs["l"].value.lo, r.bound.inputs["l"].value.hi
         allowed = rating_dv / k
-        # dv/dt(0+) = R_s·E/L: the largest R_s that starts within it, C for ζ ≥ 0.5 with it.
         r_s = allowed * l_lo / e
-        c_s = l_lo / r_s**2 if r_s > 0 else math.inf
+        c_s = l_hi / r_s**2 if r_s > 0 else math.inf
         fixes.append(f"needs dv/dt ≤ {at_most(allowed, 'V/s')}: an R–C snubber across the triac "
-                     f"with R ≤ {at_most(r_s, 'ohm')} and C ≥ {at_least(c_s, 'F')} (ζ ≥ 0.5 with "
-                     f"the load's L ≥ {eng(l_lo, 'H')}), or a triac with a higher (dv/dt)c")
+                     f"with R ≤ {at_most(r_s, 'ohm')} and C ≥ {at_least(c_s, 'F')} at their "
+                     f"ends of tolerance (for the load's L of {eng(l_lo, 'H')} – "
+                     f"{eng(l_hi, 'H')}), or a triac with a higher (dv/dt)c")
     elif r.lo["dvdt_ratio"] < k:
         fixes.append(f"needs (dv/dt)c ≥ {at_least(k * r.hi['dvdt_reapplied'], 'V/s')}")
     if r.lo.get("vdrm_ratio", math.inf) < k:
