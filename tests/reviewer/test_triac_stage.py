@@ -444,3 +444,22 @@ def test_spice_exports_the_triac_stage_and_refuses_the_gate_clearly():
     proc = subprocess.run([sys.executable, "-m", "reviewer.cli", "export", "--spice", "gate",
                            str(DATA / "fan-triac.toml")], capture_output=True, text=True)
     assert proc.returncode == 2 and "Traceback" not in proc.stderr
+
+
+def test_commutation_waveform_with_a_snubber_and_the_reason_without():
+    from reviewer.waveforms import picture
+
+    r = run_project(str(DATA / "fan-triac-snubbed.toml"))
+    res = next(x for x in r.results if x.check == "triac.commutation")
+    pic = picture(res, r.project)
+    assert pic.plots and "after the current zero" in pic.plots[0].title
+    v = pic.plots[0].series[0].y
+    e = float(pic.plots[0].series[1].y[0])
+    # the sampled curve peaks at the closed form's peak for its step (within the sampling)
+    w = res.worst
+    assert w["supply.voltage"] == "253 V"
+    peak = res.values["reapplied_peak"].max
+    assert float(v.max()) <= peak * 1.0001 and e <= VM_HI * (1 + 1e-12)
+    bare = run_project(str(DATA / "fan-triac.toml"))
+    res = next(x for x in bare.results if x.check == "triac.commutation")
+    assert "without one the voltage steps at once" in picture(res, bare.project).reason
