@@ -123,6 +123,25 @@ def gate_trigger_check(*, used: tuple[str, ...], drive: np.ndarray, drop: np.nda
                     "quadrant": idx.astype(float), "series_r_max": r_max}, margin, status)
 
 
+def gate_power_check(*, drive: np.ndarray, drop: np.ndarray, series_r: np.ndarray,
+                     pg_av: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+    """``triac.gate-power``: a DC drive holds the gate on: its power against PG(AV).
+
+    Whatever the gate's V–I curve, a source V behind R delivers at most V²/4R (matched load),
+    so P_G ≤ (V_drive − V_drop)²/(4·R_S) bounds the gate's dissipation from above without the
+    gate characteristic; metric PG(AV)/P_G. drive, drop [V]; series_r [Ω]; pg_av [W].
+
+    >>> o = gate_power_check(drive=np.array([12.0]), drop=0.0, series_r=100.0, pg_av=0.5,
+    ...                      limits={"fail_below": 1.0, "marginal_below": 1.0})
+    >>> round(float(o.values["gate_power"][0]), 3), o.status.tolist()
+    (0.36, [0])
+    """
+    p = np.maximum(_a(drive) - _a(drop), 0.0) ** 2 / (4 * _a(series_r))
+    with np.errstate(divide="ignore"):
+        margin, status = grade(_a(pg_av) / p, limits)
+    return Outcome({"gate_power": p}, margin, status)
+
+
 # --------------------------------------------------------------------------------------------
 # Currents
 

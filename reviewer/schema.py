@@ -119,6 +119,7 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("triac.surge", TRIAC), ("triac.fuse", TRIAC), ("triac.latching", TRIAC),
     ("triac.holding", TRIAC), ("triac.didt", TRIAC), ("triac.control", TRIAC),
     ("triac.commutation", TRIAC), ("triac.gate-trigger", ("triac-gate",)),
+    ("triac.gate-power", ("triac-gate",)),
 ]
 
 

@@ -813,3 +813,45 @@ register(CheckDef(
               "drive voltage is the line's at the firing instant, and the gate circuit is at "
               "mains potential.",),
 ))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.gate-power
+
+def _bind_gate_power(ctx: Context) -> Bound:
+    b = Bound()
+    if ctx.stage.get("mode") == "ac":
+        b.not_applicable = ("an AC drive conducts only until the triac fires (a few µs): its "
+                            "peak current is the driver's own rating, a manual check")
+        return b
+    if not _ratings(ctx, b, {"pg_av": "pg_av"}):
+        return b
+    ctx.need(b, "drive", _sp(ctx, "drive"))
+    ctx.read(b, "drop", _sp(ctx, "drive_drop"), default=0.0, dim="voltage", unit="V")
+    b.notes[:] = [n for n in b.notes if not n.startswith("drive_drop not given")]
+    ctx.need(b, "series_r", _sp(ctx, "series_r"))
+    return b
+
+
+def _sum_gate_power(r: Reduced) -> str:
+    rating = r.bound.inputs["pg_av"].value.lo
+    text = (f"gate dissipation at most {eng(r.hi['gate_power'], 'W')} (V²/4R_S, highest drive, "
+            f"lowest R_S: a bound for any gate) against PG(AV) {eng(rating, 'W')}")
+    if r.status != "pass":
+        v = r.bound.inputs["drive"].value.hi
+        rv = r.bound.inputs["series_r"].value
+        need = v**2 / (4 * rating) * (rv.nom / rv.lo if rv.lo else 1.0)
+        text += f"; fails: needs R_S ≥ {at_least(need, 'ohm')} (nominal), or a pulsed drive"
+    return text + "; a DC drive holds the gate on for as long as it is enabled"
+
+
+register(CheckDef(
+    id="triac.gate-power", kinds=GATE_KIND,
+    question="Can a DC drive, holding the gate on, overheat the gate?",
+    method="P_G ≤ (V_drive − V_drop)²/(4·R_S) at the highest drive and lowest R_S (the most a "
+           "source behind R_S can deliver into any load), against PG(AV).",
+    source="Rashid 4e §7 (gate circuit: the gate power limit); maximum power transfer",
+    fn=triac.gate_power_check, bind=_bind_gate_power,
+    units={"gate_power": "W"}, summarise=_sum_gate_power,
+    fix="A larger R_S (keeping triac.gate-trigger's margin), or pulse the drive.",
+))

@@ -289,3 +289,19 @@ def test_triac_currents_are_both_scrs_of_the_ac_switch():
                   * np.exp(-(th - math.pi / 2) / math.tan(phi)))
     rms = math.sqrt(2 * np.trapezoid(i**2, th) / (2 * math.pi))
     assert rel(float(c["it_rms"]), rms) < 1e-5
+
+
+def test_gate_power_bound_holds_for_any_linear_gate():
+    # Maximum power transfer [common practice]: a source V behind R puts at most V²/4R into
+    # any load. Gates as V = V0 + r_g·I lines, on a grid, never exceed it.
+    v, r = 12.0, 100.0
+    o = triac.gate_power_check(drive=np.array([v]), drop=0.0, series_r=r, pg_av=1.0,
+                               limits={"fail_below": 1.0, "marginal_below": 1.0})
+    bound = float(o.values["gate_power"][0])
+    assert bound == pytest.approx(0.36)
+    v0 = np.linspace(0.0, 3.0, 31)[:, None]
+    rg = np.geomspace(0.1, 1e4, 41)[None, :]
+    i = (v - v0) / (r + rg)
+    p = (v0 + rg * i) * i
+    assert float(p.max()) <= bound * (1 + 1e-12)
+    assert float(p.max()) >= 0.99 * bound  # reached at r_g = R with V0 = 0

@@ -47,7 +47,8 @@ def triac_part(**over: Value) -> Part:
          "vgt_q2": val(1.3, "voltage", "V"), "vgt_q3": val(1.3, "voltage", "V"),
          "ih": val(15e-3, "current", "A"), "il": val(25e-3, "current", "A"),
          "didt": val(50e6, "current_rate", "A/s"), "dvdt_c": val(5e6, "voltage_rate", "V/s"),
-         "didt_c": val(1.8e3, "current_rate", "A/s"), "tgt": val(2e-6, "time", "s")}
+         "didt_c": val(1.8e3, "current_rate", "A/s"), "tgt": val(2e-6, "time", "s"),
+         "pg_av": val(0.5, "power", "W")}
     p.update(over)
     return Part("T1", "triac", p)
 
@@ -108,7 +109,7 @@ def test_every_triac_check_is_registered_with_later_defaults():
     from reviewer.schema import CATALOGUE
 
     ids = [c for c, kinds in CATALOGUE if c.startswith("triac.")]
-    assert len(ids) == 11
+    assert len(ids) == 12
     for cid in ids:
         assert cid in CHECKS, cid
         assert cid in later_defaults(), cid
@@ -463,3 +464,16 @@ def test_commutation_waveform_with_a_snubber_and_the_reason_without():
     bare = run_project(str(DATA / "fan-triac.toml"))
     res = next(x for x in bare.results if x.check == "triac.commutation")
     assert "without one the voltage steps at once" in picture(res, bare.project).reason
+
+
+@pytest.mark.parametrize("r_s,status", [(100, "pass"), (10, "fail")])
+def test_gate_power_bound(r_s, status):
+    res = run(project(gate={"series_r": val(r_s, "resistance", "ohm", 0.05)}),
+              "triac.gate-power", "gate")
+    assert res.values["gate_power"].max == pytest.approx(5.25**2 / (4 * r_s * 0.95), rel=1e-9)
+    assert res.status == status  # against PG(AV) 0.5 W
+
+
+def test_gate_power_not_applicable_to_an_ac_drive():
+    res = run(project(gate={"mode": "ac"}), "triac.gate-power", "gate")
+    assert res.status == "not-applicable"
