@@ -151,8 +151,9 @@ def currents(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray, omega: np.ndarray,
 
     The triac carries both SCRs' half-cycles of :func:`checks.power.stage_values`
     (``ac-switch``): with control kept (α ≥ φ) I_RMS = √2·I_RMS,SCR and mean|i| =
-    2·I_AV,SCR; fired before φ with narrow pulses (the worst case) only one polarity conducts,
-    a half-wave longer than π, and the triac carries that one current  [1, §11].
+    2·I_AV,SCR; fired before φ, narrow pulses let only one polarity conduct (a half-wave
+    longer than π), a gate held on gives the steady sine from φ: the larger of the two is
+    taken (each can be the larger)  [1, §11].
     vs [V RMS]; r [Ω]; l [H]; omega [rad/s]; alpha [rad]. Also returns ``lost`` (1 where α < φ).
 
     >>> c = currents(vs=120.0, r=10.0, l=0.0, omega=2 * np.pi * 60, alpha=np.pi / 2)
@@ -164,6 +165,14 @@ def currents(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray, omega: np.ndarray,
     lost = _a(alpha) < v["phi"] - 1e-12
     it_rms = np.where(lost, v["it_rms"], np.sqrt(2.0) * v["it_rms"])
     it_mean = np.where(lost, v["it_av"], 2.0 * v["it_av"])
+    if np.any(lost):
+        # A gate held on fires the other polarity as soon as the first stops: the steady sine
+        # from φ, both polarities in the one triac, can carry more than the one-polarity
+        # half-wave. Which one happens depends on the drive: the larger is taken.
+        w = power.stage_values(topology="ac-switch", freewheel=False, vs=vs, r=r, l=l,
+                               omega=omega, alpha=np.maximum(_a(alpha), v["phi"]), peak=False)
+        it_rms = np.where(lost, np.maximum(it_rms, np.sqrt(2.0) * w["it_rms"]), it_rms)
+        it_mean = np.where(lost, np.maximum(it_mean, 2.0 * w["it_av"]), it_mean)
     return {"it_rms": it_rms, "it_mean": it_mean, "lost": lost.astype(float)}
 
 

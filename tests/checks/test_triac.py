@@ -305,3 +305,24 @@ def test_gate_power_bound_holds_for_any_linear_gate():
     p = (v0 + rg * i) * i
     assert float(p.max()) <= bound * (1 + 1e-12)
     assert float(p.max()) >= 0.99 * bound  # reached at r_g = R with V0 = 0
+
+
+@pytest.mark.parametrize("alpha_deg", [5.0, 30.0, 55.0, 59.0])
+def test_triac_current_fired_before_the_load_angle_is_never_below_either_drive(alpha_deg):
+    # α < φ = 60°: a gate held on gives the steady sine, I = Vm/(√2·|Z|) [Rashid 4e §11]; a
+    # short pulse one polarity's half-wave from α, integrated here on a fine grid. The triac's
+    # figure must cover both.
+    vm, r = math.sqrt(2) * 230.0, 10.0
+    l = r * math.tan(math.radians(60.0)) / W50  # noqa: E741
+    z = math.hypot(r, W50 * l)
+    a = math.radians(alpha_deg)
+    c = triac.currents(vs=230.0, r=r, l=l, omega=W50, alpha=a)
+    sine = vm / z / math.sqrt(2)
+    phi = math.atan2(W50 * l, r)
+    beta = float(extinction_angle(alpha=a, phi=phi))
+    th = np.linspace(a, beta, 400_001)
+    i = vm / z * (np.sin(th - phi) - math.sin(a - phi) * np.exp(-(th - a) / math.tan(phi)))
+    half = math.sqrt(np.trapezoid(i**2, th) / (2 * math.pi))
+    assert float(c["it_rms"]) >= sine * (1 - 1e-9)
+    assert float(c["it_rms"]) >= half * (1 - 1e-5)
+    assert float(c["it_rms"]) == pytest.approx(max(sine, half), rel=1e-5)
