@@ -30,8 +30,9 @@ RULES = (
     "A triac part's `dvdt_c` and `didt_c` come together ((dv/dt)c is rated at that (di/dt)c); "
     "its gate data are per quadrant: `igt_q1`…`igt_q3`, `vgt_q1`…`vgt_q3` required, `_q4` "
     "where the datasheet gives it, and the same names in its `cold` table. Triac stages "
-    "(`triac-phase-control`, `triac-gate`) need an AC supply; a `line-commutation` stage is "
-    "not for a triac (triac.commutation checks its turn-off).",
+    "(`triac-phase-control`, `triac-gate`) need an AC supply, and a `triac-gate` named as a "
+    "stage's `gate` fires that stage's `triac`; a `line-commutation` stage is not for a triac "
+    "(triac.commutation checks its turn-off).",
     'A snubber\'s `step = "dc"` only on a DC supply, `step = "line"` only on an AC supply.',
     "`variant_of` names a `.toml` file in the folder of the file that names it, or below; "
     "circles are refused.",

@@ -43,6 +43,14 @@ def check(project: Project, where: WhereFn) -> None:
             raise ProjectError(f"a {st.kind} stage needs an AC supply (supply kind = \"ac\"): a "
                                "triac turns off only where its current passes through zero",
                                where(table, "kind"))
+        elif st.kind == "triac-phase-control":
+            gate = project.stages.get(st.get("gate", ""))
+            if gate is not None and gate.kind == "triac-gate" \
+                    and gate.get("triac") != st.get("triac"):
+                raise ProjectError(f"the gate drive `{gate.id}` fires triac "
+                                   f"\"{gate.get('triac')}\", but this stage switches "
+                                   f"\"{st.get('triac')}\": name the same part in both",
+                                   where(table, "gate"))
 
 
 def _triac_part(ref: str, params: dict, where: WhereFn) -> None:

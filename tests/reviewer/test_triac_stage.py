@@ -477,3 +477,15 @@ def test_gate_power_bound(r_s, status):
 def test_gate_power_not_applicable_to_an_ac_drive():
     res = run(project(gate={"mode": "ac"}), "triac.gate-power", "gate")
     assert res.status == "not-applicable"
+
+
+def test_gate_and_power_stage_must_name_the_same_triac(tmp_path):
+    text = (DATA / "fan-triac.toml").read_text(encoding="utf-8")
+    path = tmp_path / "bad.toml"
+    extra = '\n[parts.T2]\ntype = "triac"\nvdrm = "600 V"\n' + "".join(
+        f'{k}_q{q} = "{v}"\n' for q in (1, 2, 3) for k, v in (("igt", "10 mA"), ("vgt", "1 V")))
+    path.write_text(text.replace('[stages.gate]\nkind = "triac-gate"\ntriac = "T1"',
+                                 '[stages.gate]\nkind = "triac-gate"\ntriac = "T2"') + extra,
+                    encoding="utf-8")
+    with pytest.raises(ProjectError, match="name the same part in both"):
+        load_project(str(path))
