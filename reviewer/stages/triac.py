@@ -61,6 +61,7 @@ TRIAC_STAGE = register_kind(StageKind("triac-phase-control", {
     "load": Param("table", required=True, fields=LOAD),
     "heatsink": Param("table", fields=HEATSINK),
     "fuse": Param("table", fields=FUSE),
+    "required": Param("required"),
 }, "one triac switching an AC load by firing angle"))
 
 TRIAC_GATE = register_kind(StageKind("triac-gate", {
@@ -166,6 +167,85 @@ def _with_line(core: Any) -> Any:
 
 def _lost_text(r: Reduced) -> str:
     return "; " + LOST if LOST in r.notes else ""
+
+
+# --------------------------------------------------------------------------------------------
+# triac.output
+
+def _bind_output(ctx: Context) -> Bound:
+    b = Bound()
+    _line(ctx, b)
+    _load(ctx, b)
+    if not _firing(ctx, b, sweep=7):
+        return b
+    req = ctx.stage.get("required")
+    path = _sp(ctx, "required")
+    if not isinstance(req, Value):
+        b.options["quantity"] = "power"
+        nan = Value.fixed(float("nan"), "power", "W")
+        b.add("req_hi", path + "#none", nan)
+        b.add("req_lo", path + "#none-min", nan)
+        return b
+    if req.dim == "current":
+        b.not_applicable = ("`required` as a current is for a battery or motor load on an SCR "
+                            "stage; give a power or a voltage (the load's RMS) for a triac")
+        return b
+    b.options["quantity"] = "power" if req.dim == "power" else "voltage"
+    b.add("req_hi", path + "#max", req.at(req.hi))
+    b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
+          else Value.fixed(float("nan"), req.dim, req.unit))
+    return b
+
+
+def _fn_output(**kw: Any) -> Outcome:
+    a, lo, hi = _pop_range(kw)
+    w = _omega(kw)
+    out = power.output_check(topology="ac-switch", freewheel=False, alpha=a, alpha_lo=lo,
+                             alpha_hi=hi, omega=w, **kw)
+    note = _lost_note(kw, a, w)
+    if note:
+        out.notes.append(note)
+    return out
+
+
+def _sum_output(r: Reduced) -> str:
+    q = r.bound.options.get("quantity", "power")
+    unit, name = ("W", "load power") if q == "power" else ("V", "load V_rms")
+    text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
+            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
+    req_hi = r.bound.inputs["req_hi"].value.nom
+    req_lo = r.bound.inputs["req_lo"].value.nom
+    if req_hi != req_hi and req_lo != req_lo:
+        text += "; no `required` range given: reported, not judged"
+    if r.status != "pass":
+        fixes = []
+        if r.lo["output_at_min"] < req_hi:
+            fixes.append(f"full output {eng(r.lo['output_at_min'], unit)} at low line is short of "
+                         f"{eng(req_hi, unit)}: needs a smaller α_min")
+        if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
+            fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is "
+                         f"above {eng(req_lo, unit)}: needs a later α_max")
+        text += "; fails: " + "; ".join(fixes)
+    if r.hi.get("load_angle", 0.0) > 0:
+        text += (f"; current runs on to β = "
+                 f"{span(r.lo['extinction_angle'], r.hi['extinction_angle'], 'deg')}")
+    return text + _lost_text(r)
+
+
+register(CheckDef(
+    id="triac.output", kinds=KIND,
+    question="What does the load get over the firing range, and does it meet `required`?",
+    method="The ac-switch waveform (R: closed form; R–L: i(θ) from α to β): full output "
+           "(α_min, low line) must reach required.max; the least (α_max, high line) must be at "
+           "or below required.min.",
+    source="Rashid 4e §11 (Ex 11.1, 11.2)",
+    fn=_fn_output, bind=_bind_output,
+    units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
+           "conduction_angle": "deg", "shortcut_error": "1", "load_angle": "deg"},
+    summarise=_sum_output,
+    fix="Widen the firing range (smaller α_min for more output, later α_max for less).",
+    optional=frozenset({"shortcut_error"}),
+))
 
 
 # --------------------------------------------------------------------------------------------

@@ -109,7 +109,7 @@ def test_every_triac_check_is_registered_with_later_defaults():
     from reviewer.schema import CATALOGUE
 
     ids = [c for c, kinds in CATALOGUE if c.startswith("triac.")]
-    assert len(ids) == 12
+    assert len(ids) == 13
     for cid in ids:
         assert cid in CHECKS, cid
         assert cid in later_defaults(), cid
@@ -489,3 +489,32 @@ def test_gate_and_power_stage_must_name_the_same_triac(tmp_path):
                     encoding="utf-8")
     with pytest.raises(ProjectError, match="name the same part in both"):
         load_project(str(path))
+
+
+def _output(required: Value | None):
+    power = dict(RESISTIVE)
+    if required is not None:
+        power["required"] = required
+    return run(project(power=power), "triac.output")
+
+
+def test_output_reported_and_judged_against_required():
+    # R load 23 Ω ±10 %: full output at α = 0, low line, R max: 207²/25.3 = 1693.6 W; the
+    # least at α = 150°, high line, R min: V_rms = 253·√((π − α + sin 2α/2)/π) = 42.97 V,
+    # 89.2 W [Rashid 4e §11, the R-load ac-controller formula; recomputed]
+    free = _output(None)
+    assert free.status == "pass" and "reported, not judged" in free.summary
+    vr = 253 * math.sqrt((math.pi / 6 + math.sin(math.radians(300)) / 2) / math.pi)
+    ok = _output(rng(100.0, 1600.0, "power", "W"))
+    assert ok.status == "pass"
+    # the margin is the nearer of the two: min(P_full/req_max, req_min/P_least) − 1
+    assert ok.margin == pytest.approx(207**2 / 25.3 / 1600 - 1, rel=1e-6)
+    ok2 = _output(rng(120.0, 1000.0, "power", "W"))
+    assert ok2.margin == pytest.approx(120 / (vr**2 / 20.7) - 1, rel=1e-6)
+    short = _output(rng(100.0, 1800.0, "power", "W"))
+    assert short.status == "fail" and "needs a smaller α_min" in short.summary
+    high = _output(rng(50.0, 1600.0, "power", "W"))
+    assert high.status == "fail" and "needs a later α_max" in high.summary
+    volts = _output(rng(40.0, 200.0, "voltage", "V"))
+    assert volts.status == "fail"  # the least V_rms 42.97 V is above 40 V
+    assert _output(rng(1.0, 2.0, "current", "A")).status == "not-applicable"
