@@ -1,6 +1,6 @@
 """The vectorised closed forms against scipy ``solve_ivp`` time-stepping the same circuits.
 
-For each of four computations a batch of random circuits is drawn; the closed form is timed on
+For each computation a batch of random circuits is drawn; the closed form is timed on
 the whole batch in one call (best of several runs) and ``solve_ivp`` integrates a subset of the
 same circuits one by one (each to an event). Prints the time per circuit of both, their ratio,
 and the largest relative difference over the integrated subset:
@@ -11,7 +11,8 @@ and the largest relative difference over the integrated subset:
 * R–L–E (battery, motor) extinction angle, per unit with Z = 1:
   sin φ·di/dθ = sin θ − cos φ·i − m from i(max(α, θ1)) = 0 until i = 0 (half-wave);
 * R–C snubber step: L·di/dt = E − R·i − v_C, C·dv_C/dt = i; the peak of v = v_C + R·i and
-  its steepest slope (events where dv/dt and d²v/dt² cross zero).
+  its steepest slope (events where dv/dt and d²v/dt² cross zero);
+* triac commutation step: the same loop with the load's L and R in it, v = v_C + R_s·i.
 
     python -m benchmarks.closed_forms [BATCH] [SUBSET] [RTOL]
 """
@@ -30,6 +31,7 @@ from checks import rle
 from checks.oscillator import divider_ratio, free_running, line_sync_firing_angle
 from checks.rl import extinction_angle
 from checks.snubber import step_max_dvdt, step_peak
+from checks.triac import snubbed_step
 
 RTOL = 1e-8  # the integrator's relative tolerance (a third argument changes it)
 ATOL_REL = 1e-10  # its absolute tolerance, relative to the circuit's scale
@@ -188,6 +190,47 @@ def ivp_snubber(p: dict[str, float]) -> tuple[float, float]:
     return float(v_pk), float(max(slopes))
 
 
+def triac_sets(rng: np.random.Generator, n: int) -> dict[str, np.ndarray]:
+    """The step reapplied across a triac at its current zero: load L (10 mH – 2 H) and R,
+    snubber R_s (ζ 0.05–2 with the load) and C (10–220 nF)."""
+    l_ = 10 ** rng.uniform(-2.0, 0.3, n)
+    c = 10 ** rng.uniform(-8.0, np.log10(220e-9), n)
+    r_load = rng.uniform(0.0, 300.0, n)
+    zeta = rng.uniform(0.05, 2.0, n)
+    r_s = np.maximum(2 * zeta * np.sqrt(l_ / c) - r_load, 10.0)
+    return {"e": rng.uniform(50.0, 360.0, n), "r_load": r_load, "l": l_, "r_s": r_s, "c": c}
+
+
+def ivp_triac(p: dict[str, float]) -> tuple[float, float]:
+    """(V_pk [V], (dv/dt)max [V/s]) of the triac's voltage v = v_C + R_s·i after the zero."""
+    e, rl, l_, rs, c = p["e"], p["r_load"], p["l"], p["r_s"], p["c"]
+    rt = rl + rs
+
+    def rhs(t: float, y: np.ndarray) -> list[float]:
+        vc, i = y
+        return [i / c, (e - rt * i - vc) / l_]
+
+    def dv(t: float, y: np.ndarray) -> float:
+        vc, i = y
+        return i / c + rs * (e - rt * i - vc) / l_
+
+    def d2v(t: float, y: np.ndarray) -> float:
+        vc, i = y
+        di = (e - rt * i - vc) / l_
+        return di / c + rs * (-rt * di - i / c) / l_
+
+    dv.direction = -1  # type: ignore[attr-defined]
+    d2v.direction = -1  # type: ignore[attr-defined]
+    w0 = 1 / math.sqrt(l_ * c)
+    sigma = rt / (2 * l_)
+    t_end = max(40 / w0, 12 / sigma) if sigma > 0 else 40 / w0
+    sol = solve_ivp(rhs, (0.0, min(t_end, 400 / w0)), [0.0, 0.0], events=[dv, d2v],
+                    rtol=RTOL, atol=[ATOL_REL * e, ATOL_REL * e / max(rt, 1.0)])
+    peaks = [vc + rs * i for vc, i in sol.y_events[0]] or [e]
+    slopes = [rs * e / l_] + [dv(0.0, y) for y in sol.y_events[1]]
+    return float(max(max(peaks), e)), float(max(slopes))
+
+
 # ----------------------------------------------------------------------------- the runs
 
 def rel_diff(a: np.ndarray, b: np.ndarray) -> tuple[float, int]:
@@ -264,6 +307,15 @@ def main() -> None:
     d1, m1 = rel_diff(v_pk[:k], refs[:, 0])
     d2, m2 = rel_diff(slope[:k], refs[:, 1])
     row("snubber step: peak and max dv/dt", tc, n, ti, k, max(d1, d2), m1 + m2)
+
+    p = triac_sets(rng, n)
+    tc = best(lambda: snubbed_step(**p))
+    got = snubbed_step(**p)
+    refs, ti = timed(lambda: np.array([ivp_triac({q: float(v[j]) for q, v in p.items()})
+                                       for j in range(k)]))
+    d1, m1 = rel_diff(got["peak_voltage"][:k], refs[:, 0])
+    d2, m2 = rel_diff(got["dvdt_max"][:k], refs[:, 1])
+    row("triac commutation step: peak, dv/dt", tc, n, ti, k, max(d1, d2), m1 + m2)
 
 
 if __name__ == "__main__":

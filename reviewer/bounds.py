@@ -115,6 +115,26 @@ KEY: dict[str, Bounds] = {
     "parts.scr.cold.at": _b(C0 - 100, C0 + 25, C0 - 65, C0 + 0,
                             "the cold table gives the values at the lowest rated temperature, "
                             'below 25 °C, e.g. at = "-40 degC"', hi_open=True),
+    # triac (gate data per quadrant; the commutating ratings)
+    "parts.triac.vdrm": _b(1e-3, 1e5, 10.0, 1e4, "no single thyristor is rated above 100 kV"),
+    "parts.triac.it_rms": _b(1e-6, 1e5, 10e-3, 1e3),
+    "parts.triac.itsm": _b(1e-6, 1e6, 0.1, 1e4),
+    "parts.triac.itsm_duration": _b(1e-6, 1.0, 1e-3, 20e-3),
+    "parts.triac.vt0": _b(0.0, 100.0, 0.0, 3.0),
+    "parts.triac.rt": _b(0.0, 1e3, 0.0, 1.0),
+    "parts.triac.tj_max": _b(C0 + 25, C0 + 250, C0 + 90, C0 + 150,
+                             "it is above the datasheet's 25 °C reference", lo_open=True),
+    **{f"parts.triac.igt_{q}": _b(1e-9, 100.0, 1e-6, 0.2) for q in ("q1", "q2", "q3", "q4")},
+    **{f"parts.triac.vgt_{q}": _b(1e-3, 100.0, 0.1, 5.0) for q in ("q1", "q2", "q3", "q4")},
+    "parts.triac.ih": _b(1e-9, 100.0, 1e-6, 0.2),
+    "parts.triac.il": _b(1e-9, 100.0, 1e-6, 0.5),
+    "parts.triac.tgt": _b(1e-10, 1e-2, 1e-7, 1e-4),
+    # (di/dt)c is quoted in A/ms: 0.1 A/ms … 100 A/µs
+    "parts.triac.didt_c": _b(1e-3, 1e13, 1e2, 1e8),
+    "parts.triac.dvdt_c": _b(1e-3, 1e13, 1e5, 1e10),
+    "parts.triac.cold.at": _b(C0 - 100, C0 + 25, C0 - 65, C0 + 0,
+                              "the cold table gives the values at the lowest rated temperature, "
+                              'below 25 °C, e.g. at = "-40 degC"', hi_open=True),
     # UJT and PUT
     "parts.ujt.eta": _b(0.0, 1.0, 0.4, 0.9, "η is a ratio of resistances, below 1",
                         lo_open=True, hi_open=True),
@@ -139,8 +159,12 @@ KEY: dict[str, Bounds] = {
     # gate drive
     "stages.gate-drive.turns_ratio": _b(1e-3, 1e3, 0.1, 10.0),
     "stages.gate-drive.series_r": _b(1e-6, 1e9, 1.0, 100e3),
+    "stages.triac-gate.series_r": _b(1e-6, 1e9, 1.0, 100e3),
     # power stages
     "stages.phase-control.firing": _b(0.0, math.pi, 0.0, math.pi, _ANGLE_HALF),
+    "stages.triac-phase-control.firing": _b(0.0, math.pi, 0.0, math.pi, _ANGLE_HALF),
+    "stages.triac-gate.drive": _b(1e-3, 1e4, 1.0, 400.0),
+    "stages.triac-gate.drive_drop": _b(0.0, 100.0, 0.0, 5.0),
     "stages.dc-switch.duty": _b(0.0, 1.0, 1e-3, 1.0, "the fraction of the time on",
                                 lo_open=True),
     "stages.*.load.r": _b(1e-6, 1e9, 1e-2, 1e5),

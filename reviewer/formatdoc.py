@@ -27,6 +27,12 @@ RULES = (
     "free-running (its pulses are not tied to the line).",
     "`freewheel` is not for an `ac-switch` (the load sees AC).",
     "A dc-switch stage needs a DC supply.",
+    "A triac part's `dvdt_c` and `didt_c` come together ((dv/dt)c is rated at that (di/dt)c); "
+    "its gate data are per quadrant: `igt_q1`…`igt_q3`, `vgt_q1`…`vgt_q3` required, `_q4` "
+    "where the datasheet gives it, and the same names in its `cold` table. Triac stages "
+    "(`triac-phase-control`, `triac-gate`) need an AC supply, and a `triac-gate` named as a "
+    "stage's `gate` fires that stage's `triac`; a `line-commutation` stage is not for a triac "
+    "(triac.commutation checks its turn-off).",
     'A snubber\'s `step = "dc"` only on a DC supply, `step = "line"` only on an AC supply.',
     "`variant_of` names a `.toml` file in the folder of the file that names it, or below; "
     "circles are refused.",
@@ -124,7 +130,8 @@ def render() -> str:
     for ptype, params in schema.PART_TYPES.items():
         out += _table(f'[parts.ID] type = "{ptype}"', {**schema.PART_COMMON, **params},
                       f"parts.{ptype}")
-    out += _table('[parts.ID] type = "scr" → `cold`', schema.COLD_KEYS, "parts.scr.cold")
+    for ptype, keys in schema.COLD_TABLES.items():
+        out += _table(f'[parts.ID] type = "{ptype}" → `cold`', keys, f"parts.{ptype}.cold")
     out += ["## Stages", ""]
     for name, kind in STAGE_KINDS.items():
         out += _table(f'[stages.ID] kind = "{name}" — {kind.about}', kind.params,

@@ -339,21 +339,23 @@ class _Loader:
             raise ProjectError(f"`{ref}` must be a table [parts.{ref}]", self.where("parts", ref))
         ptype = raw.get("type")
         if ptype not in schema.PART_TYPES:
-            raise ProjectError('needs type = "scr", "ujt" or "put"'
+            raise ProjectError("needs type = " + ", ".join(f'"{t}"' for t in schema.PART_TYPES)
                                + (_did_you_mean(str(ptype), schema.PART_TYPES) if ptype else ""),
                                self.where(table, "type"))
         params = {**schema.PART_COMMON, **schema.PART_TYPES[ptype]}
         cold_raw = raw.get("cold")
         body = {k: v for k, v in raw.items() if k != "cold"}
-        if cold_raw is not None and ptype != "scr":
-            raise ProjectError("only an SCR part has a cold table", self.where(table, "cold"))
+        if cold_raw is not None and ptype not in schema.COLD_TABLES:
+            raise ProjectError("only an SCR or a triac part has a cold table",
+                               self.where(table, "cold"))
         values = self.table(body, params, table, f"parts.{ptype}")
         cold = {}
         if cold_raw is not None:
             if not isinstance(cold_raw, dict):
                 raise ProjectError('cold must be a table, e.g. cold = { at = "-40 degC", '
                                    'igt = "30 mA" }', self.where(table, "cold"))
-            cold = self.table(cold_raw, schema.COLD_KEYS, f"{table}.cold", f"parts.{ptype}.cold")
+            cold = self.table(cold_raw, schema.COLD_TABLES[ptype], f"{table}.cold",
+                              f"parts.{ptype}.cold")
         return Part(ref, ptype, {k: v for k, v in values.items() if k not in ("type",
                     "description")}, values.get("description", ""), cold, self.where(table))
 
@@ -401,9 +403,13 @@ class _Loader:
                         raise ProjectError(f'`{key}` names stage "{val}", which does not exist'
                                            + _did_you_mean(val, project.stages), where)
                     if target.kind not in p.stage_kinds:
+                        hint = ("; a triac turns off by itself at its current's zero, and "
+                                "triac.commutation checks that: remove this stage"
+                                if target.kind == "triac-phase-control" and key == "for"
+                                else "")
                         raise ProjectError(f'`{key}` must name a stage of kind '
                                            + " or ".join(p.stage_kinds)
-                                           + f', but "{val}" is {target.kind}', where)
+                                           + f', but "{val}" is {target.kind}' + hint, where)
                     if target.id == st.id:
                         raise ProjectError(f"`{key}` names the stage itself", where)
             _check_emf_load(st, self.where(f"stages.{st.id}", "load"))

@@ -298,9 +298,13 @@ def gather(path: str | Path, *, plots: bool = True, schematics: bool = True) -> 
 
 
 def _load_types(project: Any) -> list[str]:
-    """The kinds of back-EMF load ("battery", "motor") among the project's stages."""
+    """The kinds of back-EMF load ("battery", "motor") among the project's stages, and
+    "triac" where a stage switches with one (each brings its own cautions)."""
     loads = [st.params.get("load") for st in project.stages.values()]
-    return [str(ld["type"]) for ld in loads if isinstance(ld, dict) and "type" in ld]
+    out = [str(ld["type"]) for ld in loads if isinstance(ld, dict) and "type" in ld]
+    if any(st.kind == "triac-phase-control" for st in project.stages.values()):
+        out.append("triac")
+    return out
 
 
 def outstanding(view: Any, checklist: Any, stages: list[StageBlock]) -> list[str]:

@@ -22,6 +22,9 @@ TRANSFORMER_ONLY = ("turns_ratio", "volt_seconds", "isolation", "required_isolat
 def check(project: Project, where: WhereFn) -> None:
     """Apply every configuration rule to a loaded project (links already checked)."""
     ac = project.supply.get("kind") == "ac"
+    for part in project.parts.values():
+        if part.type == "triac":
+            _triac_part(part.ref, part.params, where)
     for st in project.stages.values():
         table = f"stages.{st.id}"
         if st.kind in ("ujt-oscillator", "put-oscillator"):
@@ -36,6 +39,31 @@ def check(project: Project, where: WhereFn) -> None:
                                '(kind = "phase-control", topology = …)', where(table, "kind"))
         elif st.kind == "rc-snubber":
             _snubber(st, ac, table, where)
+        elif st.kind in ("triac-phase-control", "triac-gate") and not ac:
+            raise ProjectError(f"a {st.kind} stage needs an AC supply (supply kind = \"ac\"): a "
+                               "triac turns off only where its current passes through zero",
+                               where(table, "kind"))
+        elif st.kind == "triac-phase-control":
+            gate = project.stages.get(st.get("gate", ""))
+            if gate is not None and gate.kind == "triac-gate" \
+                    and gate.get("triac") != st.get("triac"):
+                raise ProjectError(f"the gate drive `{gate.id}` fires triac "
+                                   f"\"{gate.get('triac')}\", but this stage switches "
+                                   f"\"{st.get('triac')}\": name the same part in both",
+                                   where(table, "gate"))
+
+
+def _triac_part(ref: str, params: dict, where: WhereFn) -> None:
+    """(dv/dt)c is rated at a rate of fall of current (di/dt)c: one means nothing alone."""
+    table = f"parts.{ref}"
+    if "dvdt_c" in params and "didt_c" not in params:
+        raise ProjectError("`dvdt_c` holds only at the rate of fall of current it is rated at: "
+                           'add didt_c = "…" (the datasheet gives it beside (dv/dt)c, often in '
+                           'A/ms, e.g. didt_c = "1.8 A/ms")', where(table, "dvdt_c"))
+    if "didt_c" in params and "dvdt_c" not in params:
+        raise ProjectError("`didt_c` is the rate of fall of current at which (dv/dt)c is rated: "
+                           'add dvdt_c = "…" beside it (e.g. dvdt_c = "5 V/us"), or remove it',
+                           where(table, "didt_c"))
 
 
 def _oscillator(st: Stage, ac: bool, table: str, where: WhereFn) -> None:

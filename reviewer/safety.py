@@ -63,6 +63,16 @@ LOAD_CAUTIONS: dict[str, tuple[tuple[str, str], ...]] = {
     ),
 }
 
+# Cautions a device kind brings with it (reports add them where a project has that device).
+LOAD_CAUTIONS["triac"] = (
+    ("Triac designs are live throughout",
+     "A triac AC switch has no isolation: the gate, its drive (a DC supply referred to MT1, "
+     "a diac network, an opto-triac's output side) and the control's 'ground' all sit at "
+     "mains potential. The tab of most triac packages is MT2, so a heatsink without an "
+     "insulating pad is live. A triac that fails to commutate on an inductive load, or fails "
+     "short, leaves the load on: a motor or a heater needs an independent cut-out."),
+)
+
 HARMONICS = ("Harmonics are an estimate",
              "The line harmonics, power factor and comparison with the IEC 61000-3-2 table are "
              "an engineering estimate from the ideal waveform that shows where a design "

@@ -1,7 +1,7 @@
 """The v1 project format's tables: project, conditions, supply, parts, and the check catalogue.
 
 Stage kinds live beside their checks in :mod:`reviewer.stages`; this module holds the tables
-every project has, the three part types, and the catalogue of check ids (checks.md) so that a
+every project has, the part types, and the catalogue of check ids (checks.md) so that a
 check not yet built is reported as such rather than silently missing.
 """
 
@@ -61,16 +61,40 @@ PART_TYPES: dict[str, dict[str, Param]] = {
         "vv": Param(V, "voltage", required=True), "vf": Param(V, "voltage", required=True),
         "itrm": Param(V, "current"), "energy": Param(V, "energy"), "pd": Param(V, "power"),
     },
+    # Gate data per quadrant as flat keys (igt_q1 …): each is an ordinary value with its own
+    # path (parts.T1.igt_q3) that sign-offs bind to and the cold table mirrors.
+    "triac": {
+        "vdrm": Param(V, "voltage", required=True), "it_rms": Param(V, "current"),
+        "itsm": Param(V, "current"), "itsm_duration": Param(V, "time"),
+        "i2t": Param(V, "i2t"), "vt0": Param(V, "voltage", allow_zero=True),
+        "rt": Param(V, "resistance", allow_zero=True), "rth_jc": Param(V, "thermal_resistance"),
+        "tj_max": Param(V, "temperature"),
+        **{f"{k}_{q}": Param(V, dim, required=q != "q4")
+           for q in ("q1", "q2", "q3", "q4")
+           for k, dim in (("igt", "current"), ("vgt", "voltage"))},
+        "ih": Param(V, "current"), "il": Param(V, "current"),
+        "dvdt": Param(V, "voltage_rate"), "didt": Param(V, "current_rate"),
+        "dvdt_c": Param(V, "voltage_rate"), "didt_c": Param(V, "current_rate"),
+        "pgm": Param(V, "power"), "pg_av": Param(V, "power"), "tgt": Param(V, "time"),
+    },
 }
 PART_COMMON = {"type": Param("choice", required=True, choices=tuple(PART_TYPES)),
                "description": Param("text")}
 COLD_KEYS = {"at": Param(V, "temperature", required=True, allow_negative=True, allow_zero=True),
              "igt": Param(V, "current"), "vgt": Param(V, "voltage"),
              "ih": Param(V, "current"), "il": Param(V, "current")}
+TRIAC_COLD_KEYS = {**{k: v for k, v in COLD_KEYS.items() if k not in ("igt", "vgt")},
+                   **{f"{k}_{q}": Param(V, dim) for q in ("q1", "q2", "q3", "q4")
+                      for k, dim in (("igt", "current"), ("vgt", "voltage"))}}
+#: The cold table's keys for each part type that has one.
+COLD_TABLES = {"scr": COLD_KEYS, "triac": TRIAC_COLD_KEYS}
 
 OSC = ("ujt-oscillator", "put-oscillator")
 POWER = ("phase-control", "dc-switch")
 TURNOFF = ("line-commutation", "capacitor-commutation", "resonant-commutation")
+TRIAC = ("triac-phase-control",)
+#: Stages a snubber may sit across: the SCR power stages and the triac AC switch.
+ACROSS = POWER + TRIAC
 
 # The check catalogue (checks.md), in its order: id and the stage kinds it applies to.
 CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
@@ -91,6 +115,12 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("turnoff.time", TURNOFF),
     ("turnoff.capacitor", ("capacitor-commutation", "resonant-commutation")),
     ("turnoff.peak-current", ("resonant-commutation",)), ("turnoff.reapplied-dvdt", TURNOFF),
+    ("triac.output", TRIAC), ("triac.blocking", TRIAC), ("triac.rms-current", TRIAC),
+    ("triac.junction", TRIAC),
+    ("triac.surge", TRIAC), ("triac.fuse", TRIAC), ("triac.latching", TRIAC),
+    ("triac.holding", TRIAC), ("triac.didt", TRIAC), ("triac.control", TRIAC),
+    ("triac.commutation", TRIAC), ("triac.gate-trigger", ("triac-gate",)),
+    ("triac.gate-power", ("triac-gate",)),
 ]
 
 
@@ -117,7 +147,7 @@ def dim_of_path(path: str, stage_kind: str = "") -> str:
         return p.dim if p else ""
     if head == "parts" and len(rest) >= 2:
         if rest[1] == "cold" and len(rest) == 3:
-            p = COLD_KEYS.get(rest[2])
+            p = COLD_KEYS.get(rest[2]) or TRIAC_COLD_KEYS.get(rest[2])
             return p.dim if p else ""
         for params in PART_TYPES.values():
             if rest[1] in params:

@@ -338,6 +338,44 @@ def _phase_control(n: Netlist, stage: Stage, project: Project, v: _Values, run: 
     n.prints.append(f"v(line) {probe}")
 
 
+def _triac_phase_control(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
+    """A triac as two antiparallel SCR switches (its IH), fired at α_min in each half-cycle,
+    with the R–C snubber across it when the project has one."""
+    vs, f = v("supply.voltage"), v("supply.frequency")
+    vm, period = math.sqrt(2) * vs, 1.0 / f
+    firing = stage.get("firing")
+    if not isinstance(firing, Value):
+        raise ProjectError(f"stage `{stage.id}` gives no `firing` range to simulate: add "
+                           'firing = { min = "…", max = "…" }')
+    alpha = firing.lo
+    t_fire = alpha / (2 * math.pi * f)
+    width = min(0.5e-3, 0.25 * period)
+    ref = str(stage.get("triac"))
+    n.comment(f"Line {num(vs)} V RMS, {num(f)} Hz; fired at alpha = {math.degrees(alpha):.4g} "
+              f"deg (the earliest firing, full output), t = {num(t_fire)} s after each zero\n"
+              f"  crossing. {ref} is a generic triac: two antiparallel SCR switches. The switch "
+              "model opens at IH whatever the reapplied dv/dt:\n  it cannot show a failed "
+              "commutation (triac.commutation checks that).")
+    if stage.get("fuse"):
+        n.comment("The fuse is not modelled.")
+    n.add(f"V_LINE line 0 SIN(0 {num(vm)} {num(f)})")
+    scr(n, ref, "line", "out", project, v, fire=t_fire, width=width, period=period, suffix="A")
+    scr(n, ref, "out", "line", project, v, fire=t_fire + period / 2, width=width,
+        period=period, suffix="B")
+    snubs = [s for s in project.stages.values()
+             if s.kind == "rc-snubber" and s.get("across") == stage.id]
+    if snubs:
+        sp = f"stages.{snubs[0].id}."
+        n.add(f"R_SN line sn {num(v(sp + 'r'))}", f"{snubs[0].id}.r")
+        n.add(f"C_SN sn out {num(v(sp + 'c'))} IC=0", f"{snubs[0].id}.c")
+    _load(n, stage, v, "out", "0")
+    sp = f"stages.{stage.id}.load."
+    tau = v(sp + "l") / v(sp + "r") if v.has(sp + "l") else 0.0
+    stop = max(2 * period, period * math.ceil((5 * tau) / period) + period)
+    n.tran = (period / 7200, stop)
+    n.prints.append("v(line) v(out) i(V_ILOAD)")
+
+
 def _dc_switch(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
     vbus = v("supply.voltage")
     ref = str(stage.get("scr"))
@@ -527,6 +565,12 @@ def netlist(run: Any, stage_id: str, corner: str = "nominal") -> str:
         _gate(n, stage, project, v)
     elif kind in ("capacitor-commutation", "resonant-commutation"):
         _commutation(n, stage, project, v)
+    elif kind == "triac-phase-control":
+        _triac_phase_control(n, stage, project, v)
+    elif kind == "triac-gate":
+        raise ProjectError(f"no netlist for a triac-gate stage (`{stage.id}`): it is a source "
+                           "and a resistor into the gate; export the triac-phase-control stage "
+                           "it fires instead")
     else:
         raise ProjectError(f"no netlist for a {kind} stage")
     return n.text()

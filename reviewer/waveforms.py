@@ -297,7 +297,8 @@ def _load_point(stage: Stage, p: _Point, project: Project) -> dict[str, Any]:
     if project.supply.get("kind") != "ac":
         raise _Missing("an AC supply (the load waveform is one line cycle)")
     sp = f"stages.{stage.id}."
-    topology = p.options.get("topology") or stage.get("topology")
+    topology = ("ac-switch" if stage.kind == "triac-phase-control"  # both halves, one die
+                else p.options.get("topology") or stage.get("topology"))
     freewheel = bool(p.options.get("freewheel", stage.get("freewheel", False)))
     if topology == "ac-switch":
         freewheel = False  # an ac-switch load sees AC: no freewheeling
@@ -344,8 +345,37 @@ def _cycle_plots(kw: dict[str, Any], angles: list[tuple[str, float]],
             Plot("load current over one cycle", t, amps, marks, [], y_label="load current")]
 
 
+def _triac_commutation(stage: Stage, p: _Point, project: Project) -> list[Plot]:
+    """The voltage reapplied across the triac after the current zero, with its snubber."""
+    from checks.triac import snubbed_waveform
+
+    if "snub_r" not in p.vals:
+        raise _Missing("a snubber across the triac: without one the voltage steps at once")
+    sp = f"stages.{stage.id}."
+    l_load = p.get(("l",), sp + "load.l", default=0.0)
+    if l_load <= 0:
+        raise _Missing("an inductive load: a resistive one's voltage follows the line")
+    from checks.triac import commutation_check
+
+    r_load = p.get(("r",), sp + "load.r")
+    r_s, c = p.vals["snub_r"], p.get(("snub_c",), None)
+    vs = p.get(("vs",), "supply.voltage")
+    omega = 2 * math.pi * p.get(("freq",), "supply.frequency")
+    alpha = p.get(("alpha",), None)
+    out = commutation_check(vs=np.array([vs]), r=r_load, l=l_load, omega=omega, alpha=alpha,
+                            dvdt_c=1.0, didt_c=1.0, limits={}, snub_r=r_s, snub_c=c)
+    e = float(out.values["step_bound"][0])
+    t, v = snubbed_waveform(e=e, r_load=r_load, l=l_load, r_s=r_s, c=c)
+    return [Plot("voltage across the triac after the current zero", t,
+                 [Series("triac voltage", v, "V"), Series("step", np.full_like(t, e), "V",
+                                                          dotted=True)],
+                 [(float(t[int(np.argmax(v))]), "peak")],
+                 ["the step is the largest line value while the snubber rings (a bound)"],
+                 y_label="voltage across the triac")]
+
+
 def _power(stage: Stage, p: _Point, project: Project) -> list[Plot]:
-    if stage.kind != "phase-control":
+    if stage.kind not in ("phase-control", "triac-phase-control"):
         raise _Missing("a line cycle: a DC switch's load sees the bus whenever it conducts")
     kw = _load_point(stage, p, project)
     vm = math.sqrt(2) * kw["vs"]
@@ -403,7 +433,8 @@ _TURN = {"turnoff.time", "turnoff.capacitor", "turnoff.reapplied-dvdt", "turnoff
 
 def has_waveform(check: str) -> bool:
     """True for the checks a picture helps with (every power-stage check: its load waveform)."""
-    return check in _OSC | _SNUB | _TURN or check.startswith("power.")
+    return (check in _OSC | _SNUB | _TURN or check.startswith("power.")
+            or (check.startswith("triac.") and check != "triac.gate-trigger"))
 
 
 def picture(result: Result, project: Project, corner: str = "worst") -> Picture:
@@ -424,6 +455,8 @@ def picture(result: Result, project: Project, corner: str = "worst") -> Picture:
             plots = _snubber(stage, point, project)
         elif result.check in _TURN:
             plots = _turnoff(stage, point, project)
+        elif result.check == "triac.commutation":
+            plots = _triac_commutation(stage, point, project)
         else:
             plots = _power(stage, point, project)
     except _Missing as exc:

@@ -26,7 +26,8 @@ MAX_POINTS = 800
 
 # The checks whose waveform tells the reader what the check computed.
 EXPLAINS = ("osc.timing", "snubber.dvdt", "snubber.peak-voltage", "turnoff.time",
-            "turnoff.peak-current", "power.output")
+            "turnoff.peak-current", "power.output", "triac.output",
+            "triac.commutation")
 _QUANTITY = {"V": "voltage", "A": "current", "W": "power", "s": "time", "Hz": "frequency"}
 
 

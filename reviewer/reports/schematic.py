@@ -268,9 +268,61 @@ def _power(d: Any, stage: Stage, project: Project) -> None:
     d += elm.Ground().at(src.start)
 
 
+def _triac_power(d: Any, stage: Stage, project: Project) -> None:
+    """One triac in series with the load across the line, its gate from the drive stage."""
+    src = _source(d, elm.SourceSin(), _supply_label(project))
+    fuse = stage.get("fuse")
+    d += elm.Line().at(src.end).up(0.5)
+    if isinstance(fuse, dict):
+        d += elm.Fuse().right().label(f"fuse {val(fuse.get('rating'))}")
+    else:
+        d += elm.Line().right(2)
+    d += elm.Line().right(3.5)
+    q = elm.Triac().down().label(_part(project, stage.get("triac"), "triac"), loc="bottom",
+                                 ofst=0.2)
+    d += q
+    gate = f"gate from {x(stage.get('gate'))}" if stage.get("gate") else "gate"
+    d += elm.Line().at(q.gate).left(0.8)
+    d += elm.Dot(open=True).label(gate, loc="left")
+    d.move_from(q.end, 0, 0)
+    _load(d, stage)
+    bottom = d.here
+    d += elm.Line().to((src.start[0], bottom[1]))
+    d += elm.Line().to(src.start)
+    d += elm.Ground().at(src.start)
+
+
+def _triac_gate(d: Any, stage: Stage, project: Project) -> None:
+    """The drive source through R_S (and the driver's drop) into the triac's gate, MT1 common."""
+    mode = str(stage.get("mode", ""))
+    src = _source(d, elm.SourceSin() if mode == "ac" else
+                  elm.SourceV().reverse() if mode == "negative-dc" else elm.SourceV(),
+                  [f"drive {val(stage.get('drive'))}", f"mode: {x(mode)}"])
+    d += elm.Ground().at(src.start)
+    d.move_from(src.end, 0, 0)
+    d += elm.Resistor().right().label(_param(stage, "series_r"))
+    if stage.get("drive_drop") is not None:
+        d += elm.Diode().right().label(_param(stage, "drive_drop"))
+    d += elm.Line().right(1.2)
+    gate_node = d.here
+    q = elm.Triac().up().anchor("gate").label(_part(project, stage.get("triac"), "triac"),
+                                              loc="bottom", ofst=0.4)
+    d += q
+    d += elm.Line().at(q.end).up(0.8)
+    d += elm.Dot(open=True).label("MT2, to the load", loc="right")
+    d += elm.Line().at(q.start).down(0.6)
+    mt1 = d.here
+    d += elm.Ground()
+    if stage.get("gate_cathode_r") is not None:
+        d += elm.Resistor().at(gate_node).down().toy(mt1).label(
+            _param(stage, "gate_cathode_r"), loc="bottom")
+        d += elm.Line().to(mt1)
+
+
 def _snubber(d: Any, stage: Stage, project: Project) -> None:
     power = project.stages.get(str(stage.get("across", "")))
-    ref = power.get("scr") if power is not None else "SCR"
+    is_triac = power is not None and power.kind == "triac-phase-control"
+    ref = (power.get("triac") if is_triac else power.get("scr")) if power is not None else "SCR"
     step = stage.get("step", "line")
     step_text = f"step {val(step)}" if isinstance(step, Value) else f"step: {step}"
     src = _source(d, elm.SourceSquare(), step_text)
@@ -284,7 +336,9 @@ def _snubber(d: Any, stage: Stage, project: Project) -> None:
     d += elm.Resistor().down().label(_param(stage, "r"), loc="bottom")
     d += elm.Capacitor().down().label(_param(stage, "c"), loc="bottom")
     bottom = d.here
-    d += elm.SCR().at(a).down().label(_part(project, ref, "SCR") + ", off", loc="top", ofst=0.2)
+    device = elm.Triac() if is_triac else elm.SCR()
+    d += device.at(a).down().label(_part(project, ref, "triac" if is_triac else "SCR")
+                                   + ", off", loc="top", ofst=0.2)
     d += elm.Line().toy(bottom)
     d += elm.Line().to(bottom)
     d += elm.Line().at(src.start).toy(bottom)
@@ -335,7 +389,8 @@ def _line_commutation(d: Any, stage: Stage, project: Project) -> None:
 DRAW = {"ujt-oscillator": _oscillator, "put-oscillator": _oscillator, "gate-drive": _gate,
         "phase-control": _power, "dc-switch": _power, "rc-snubber": _snubber,
         "capacitor-commutation": _commutation, "resonant-commutation": _commutation,
-        "line-commutation": _line_commutation}
+        "line-commutation": _line_commutation, "triac-phase-control": _triac_power,
+        "triac-gate": _triac_gate}
 
 
 def stage_svg(stage: Stage, project: Project) -> tuple[str, str]:

@@ -12,5 +12,6 @@ from reviewer.stages import (  # noqa: F401
     oscillator,
     power,
     snubber,
+    triac,
     turnoff,
 )

@@ -18,7 +18,7 @@ import numpy as np
 from checks import snubber
 from checks.core import Outcome
 from reviewer.fmt import at_least, at_most, eng
-from reviewer.model import Stage, Value
+from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
     Bound,
     CheckDef,
@@ -29,7 +29,7 @@ from reviewer.registry import (
     register,
     register_kind,
 )
-from reviewer.schema import POWER
+from reviewer.schema import ACROSS
 from reviewer.stages.firing import rt_at_angles
 from reviewer.stages.oscillator import bind_device
 
@@ -40,7 +40,7 @@ HALF_PI = math.pi / 2
 DISCHARGE_SHARE = 0.05
 
 RC_SNUBBER = register_kind(StageKind("rc-snubber", {
-    "across": Param("stage", required=True, stage_kinds=POWER),
+    "across": Param("stage", required=True, stage_kinds=ACROSS),
     "r": Param(V, "resistance", required=True),
     "c": Param(V, "capacitance", required=True),
     "r_power": Param(V, "power"),
@@ -62,6 +62,13 @@ def _power(ctx: Context) -> Stage:
     power = ctx.linked_stage("across")
     assert power is not None  # the loader checks the link
     return power
+
+
+def _device(ctx: Context, power: Stage) -> Part:
+    """The thyristor the snubber protects: the power stage's SCR, or its triac."""
+    part = ctx.part("scr", power) or ctx.part("triac", power)
+    assert part is not None  # the loader checks the link
+    return part
 
 
 def _bind_rc(ctx: Context, b: Bound) -> None:
@@ -100,8 +107,7 @@ def _bind_step(ctx: Context, b: Bound, *, supply_too: bool = False) -> None:
 def _scr_value(ctx: Context, b: Bound, name: str, key: str, what: str) -> bool:
     """Add the SCR's ``key`` (its ``what``) as input ``name``; False (and incomplete) when not
     given."""
-    part = ctx.part("scr", _power(ctx))
-    assert part is not None
+    part = _device(ctx, _power(ctx))
     return ctx.want(b, name, f"parts.{part.ref}.{key}") is not None
 
 
@@ -312,8 +318,7 @@ def _bind_discharge(ctx: Context) -> Bound:
         ctx.need(b, "r_load", _load(ctx, power, "r"))
     if power.kind != "dc-switch":
         _bind_alpha(ctx, b, power)
-    part = ctx.part("scr", power)
-    assert part is not None
+    part = _device(ctx, power)
     if ctx.read(b, "itsm", f"parts.{part.ref}.itsm") is None:
         b.notes.append(f"{part.ref} has no ITSM: the surge limit is not checked")
         b.add("itsm", f"parts.{part.ref}.itsm#none", Value.fixed(float("nan"), "current", "A"))
@@ -407,7 +412,9 @@ def _bind_rpower(ctx: Context) -> Bound:
     if ctx.want(b, "f", "supply.frequency") is None:
         return b
     _bind_alpha(ctx, b, power)
-    b.options["topology"] = str(power.get("topology", "half-wave"))
+    # A triac conducts both half-cycles: the snubber works as across an ac-switch.
+    b.options["topology"] = ("ac-switch" if power.kind == "triac-phase-control"
+                             else str(power.get("topology", "half-wave")))
     b.options["freewheel"] = bool(power.get("freewheel", False))
     lv = ctx.project.lookup(_load(ctx, power, "l"))
     if isinstance(lv, Value) and lv.nom > 0.0 and not b.options["freewheel"]:

@@ -32,6 +32,15 @@ BY_KIND = {
                       "leaves the load on, so heaters and motors need an independent cut-out.",
                       "The heatsink can be live (tab = anode) and hot enough to burn."),
     "dc-switch": ("A shorted SCR leaves the load on; the heatsink can be live and hot.",),
+    "triac-phase-control": ("A triac switch has no isolation: the whole control circuit, gate "
+                            "side included, sits at mains potential.",
+                            "The triac's tab is MT2: a heatsink without an insulating pad is "
+                            "live, and hot enough to burn.",
+                            "A triac that fails to commutate, or fails short, leaves the load "
+                            "on: motors and heaters need an independent cut-out."),
+    "triac-gate": ("The gate drive is referred to MT1, which is joined to the mains: a DC "
+                   "drive's supply and everything on it are live unless an opto-coupler rated "
+                   "for the working voltage separates them.",),
     "rc-snubber": ("The snubber passes V·ω·C in the off state: an 'off' load can still shock. "
                    "Choose resistors that fail open safely.",),
     "line-commutation": ("Line surges reach the thyristor unless clamped below its "

@@ -355,7 +355,7 @@ case("unknown-stage-kind", "configuration", ("needs kind", "did you mean `rc-snu
      kiln(('kind = "rc-snubber"', 'kind = "rc-snuber"')))
 case("unknown-part-type", "configuration", ('needs type = "scr"', "did you mean `scr`"),
      kiln(('type = "scr"', 'type = "scrr"')))
-case("cold-on-ujt", "configuration", "only an SCR part has a cold table",
+case("cold-on-ujt", "configuration", "only an SCR or a triac part has a cold table",
      kiln(('pd = "300 mW"\n', 'pd = "300 mW"\ncold = { at = "-40 degC" }\n')))
 case("cold-not-table", "configuration", "cold must be a table",
      kiln(('cold = { at = "-40 degC", igt = "35 mA", vgt = "2 V" }', 'cold = "-40 degC"')))

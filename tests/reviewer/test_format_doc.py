@@ -30,7 +30,8 @@ def every_key() -> Iterator[tuple[str, str, Param]]:
     yield from walk("supply", schema.SUPPLY)
     for ptype, params in schema.PART_TYPES.items():
         yield from walk(f"parts.{ptype}", params)
-    yield from walk("parts.scr.cold", schema.COLD_KEYS)
+    for ptype, keys in schema.COLD_TABLES.items():
+        yield from walk(f"parts.{ptype}.cold", keys)
     for name, kind in STAGE_KINDS.items():
         yield from walk(f"stages.{name}", kind.params)
 

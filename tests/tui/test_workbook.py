@@ -446,3 +446,34 @@ def test_hangup_leaves_the_edits_in_the_journal_and_the_next_open_offers_them(ki
             assert app.session.project.supply["inductance"].nom == pytest.approx(75e-6)
             app.session.close()
     run(go())
+
+
+def test_a_triac_project_opens_and_shows_its_checks(tmp_path):
+    """A project with triac stages opens at 80×24: its stages, the commutation check's detail
+    and its cautions, with no error."""
+    import shutil
+
+    src = Path(__file__).resolve().parents[1] / "data" / "fan-triac-snubbed.toml"
+    path = tmp_path / "fan.toml"
+    shutil.copyfile(src, path)
+
+    async def go():
+        app = make_app(path)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot, app)
+            text = screen_text(app)
+            for stage in ("gate", "power", "snubber"):
+                assert stage in text
+            assert "error" not in text.lower()
+            await open_stage(pilot, app, "power")
+            assert "triac.commutation" in screen_text(app)
+            app.open_check("power", "triac.commutation")
+            await pilot.pause()
+            body = str(app.screen.query_one("#detail").render())
+            assert "Question" in body and "stages.power.load.l" in body
+            assert "MT2" in body  # the triac's own caution: the tab is live
+            await pilot.press("v")
+            await pilot.pause()
+            assert "Traceback" not in screen_text(app)
+            app.session.close()
+    run(go())

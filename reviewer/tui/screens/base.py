@@ -166,7 +166,7 @@ class WorkbookScreen(Screen[None]):
                     paths += [f"stages.{sid}.{key}.{k}" for k, x in v.items()
                               if isinstance(x, Value)]
             refs = [v for k, v in st.params.items() if isinstance(v, (str, list))
-                    and k in ("ujt", "put", "scr")]
+                    and k in ("ujt", "put", "scr", "triac")]
             for ref in [r for x in refs for r in (x if isinstance(x, list) else [x])]:
                 part = p.parts.get(ref)
                 if part is not None:

@@ -1,0 +1,937 @@
+"""Triac stages (an AC switch with one triac, its gate drive) and the ``triac.*`` checks.
+
+A triac stage is its own kind, not a ``device`` choice on ``phase-control``: its checks read
+different part keys (one VDRM for both polarities, gate data per quadrant, the commutating
+ratings) and carry both half-cycles in one die, so sharing the SCR checks would change their
+inputs and with them every SCR sign-off's inputs hash.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from typing import Any
+
+import numpy as np
+
+from checks import power, triac
+from checks import snubber as snubber_mod
+from checks.core import Outcome, cold_value
+from reviewer.fmt import at_least, at_most, eng, span
+from reviewer.model import Part, Value
+from reviewer.registry import (
+    Bound,
+    CheckDef,
+    Context,
+    Param,
+    Reduced,
+    StageKind,
+    register,
+    register_kind,
+)
+from reviewer.schema import TRIAC
+
+V = "value"
+KIND = TRIAC
+GATE_KIND = ("triac-gate",)
+#: Gate stages that may fire a triac stage: the drive below, or an RC–diac trigger.
+GATE_KINDS = ("triac-gate", "diac-rc")
+
+LOAD = {
+    "r": Param(V, "resistance", required=True),
+    "l": Param(V, "inductance", allow_zero=True),
+    "cold_r": Param(V, "resistance"),
+    "hold_current": Param(V, "current"),
+}
+HEATSINK = {
+    "rth_cs": Param(V, "thermal_resistance", allow_zero=True),
+    "rth_sa": Param(V, "thermal_resistance", required=True),
+    "devices": Param("number"),
+}
+FUSE = {
+    "rating": Param(V, "current", required=True),
+    "i2t": Param(V, "i2t", required=True),
+    "clearing_time": Param(V, "time"),
+}
+
+TRIAC_STAGE = register_kind(StageKind("triac-phase-control", {
+    "triac": Param("part", required=True, part_type="triac"),
+    "gate": Param("stage", stage_kinds=GATE_KINDS),
+    "firing": Param(V, "angle", allow_zero=True),
+    "load": Param("table", required=True, fields=LOAD),
+    "heatsink": Param("table", fields=HEATSINK),
+    "fuse": Param("table", fields=FUSE),
+    "required": Param("required"),
+}, "one triac switching an AC load by firing angle"))
+
+TRIAC_GATE = register_kind(StageKind("triac-gate", {
+    "triac": Param("part", required=True, part_type="triac"),
+    "mode": Param("choice", required=True, choices=tuple(triac.MODES)),
+    "drive": Param(V, "voltage", required=True),
+    "drive_drop": Param(V, "voltage", allow_zero=True),
+    "series_r": Param(V, "resistance", required=True),
+    "gate_cathode_r": Param(V, "resistance"),
+}, "a DC or AC (opto-triac) gate drive for a triac"))
+
+HALF_PI = math.pi / 2
+FIRING_SWEEP = 13  # 15° steps: the commutation step and the latching current peak inside
+
+
+# --------------------------------------------------------------------------------------------
+# Binding helpers
+
+def _part(ctx: Context) -> Part:
+    part = ctx.part("triac")
+    assert part is not None  # the loader checks the link
+    return part
+
+
+def _sp(ctx: Context, key: str) -> str:
+    return ctx.stage_path(key)
+
+
+def _pp(ctx: Context, key: str) -> str:
+    return f"parts.{_part(ctx).ref}.{key}"
+
+
+def _ratings(ctx: Context, b: Bound, names: dict[str, str]) -> bool:
+    """Read part ratings (input name → key); incomplete, naming each missing key."""
+    missing = [k for n, k in names.items() if ctx.want(b, n, _pp(ctx, k)) is None]
+    return not missing
+
+
+def _line(ctx: Context, b: Bound) -> None:
+    ctx.need(b, "vs", "supply.voltage")
+    ctx.need(b, "freq", "supply.frequency")
+
+
+def _load(ctx: Context, b: Bound, *, r_name: str = "r") -> None:
+    ctx.need(b, r_name, _sp(ctx, "load.r"))
+    ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+    b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+
+
+def _firing(ctx: Context, b: Bound, *, sweep: int = 0,
+            extra: tuple[float, ...] = ()) -> bool:
+    """The firing range ``alpha`` (swept) with ``alpha_lo``/``alpha_hi``; incomplete without."""
+    fv = ctx.stage.get("firing")
+    path = _sp(ctx, "firing")
+    if not isinstance(fv, Value):
+        gate = ctx.linked_stage("gate")
+        b.missing.append(path + (f" (the range `{gate.id}` fires over)" if gate else ""))
+        return False
+    b.add("alpha", path, fv, sweep=sweep if fv.varies else 0, extra=extra)
+    b.add("alpha_lo", path + "#min", fv.at(fv.lo))
+    b.add("alpha_hi", path + "#max", fv.at(fv.hi))
+    return True
+
+
+def _snubber(ctx: Context) -> Any:
+    snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
+    return snubs[0] if snubs else None
+
+
+def _omega(kw: dict[str, Any]) -> np.ndarray:
+    return 2 * np.pi * np.asarray(kw.pop("freq"), dtype=float)
+
+
+def _pop_range(kw: dict[str, Any]) -> tuple[Any, Any, Any]:
+    return kw.pop("alpha"), kw.pop("alpha_lo", None), kw.pop("alpha_hi", None)
+
+
+def _deg(x: float) -> str:
+    return eng(x, "deg")
+
+
+LOST = ("α < φ at some corners: control is lost, taken with narrow gate pulses (the worst "
+        "case: one polarity conducts and DC flows in the load; see triac.control)")
+
+
+def _lost_note(kw: Mapping[str, Any], alpha: Any, omega: Any) -> str:
+    phi = np.arctan2(np.asarray(omega) * np.asarray(kw["l"]), np.asarray(kw["r"]))
+    return LOST if np.any(np.asarray(alpha) < phi - 1e-12) else ""
+
+
+def _with_line(core: Any) -> Any:
+    """Wrap a pure check: the firing inputs and the frequency become α and ω."""
+    def fn(**kw: Any) -> Outcome:
+        a, _, _ = _pop_range(kw)
+        w = _omega(kw)
+        out: Outcome = core(alpha=a, omega=w, **kw)
+        note = _lost_note(kw, a, w) if "l" in kw else ""
+        if note:
+            out.notes.append(note)
+        return out
+    return fn
+
+
+def _lost_text(r: Reduced) -> str:
+    return "; " + LOST if LOST in r.notes else ""
+
+
+# --------------------------------------------------------------------------------------------
+# triac.output
+
+def _bind_output(ctx: Context) -> Bound:
+    b = Bound()
+    _line(ctx, b)
+    _load(ctx, b)
+    if not _firing(ctx, b, sweep=7):
+        return b
+    req = ctx.stage.get("required")
+    path = _sp(ctx, "required")
+    if not isinstance(req, Value):
+        b.options["quantity"] = "power"
+        nan = Value.fixed(float("nan"), "power", "W")
+        b.add("req_hi", path + "#none", nan)
+        b.add("req_lo", path + "#none-min", nan)
+        return b
+    if req.dim == "current":
+        b.not_applicable = ("`required` as a current is for a battery or motor load on an SCR "
+                            "stage; give a power or a voltage (the load's RMS) for a triac")
+        return b
+    b.options["quantity"] = "power" if req.dim == "power" else "voltage"
+    b.add("req_hi", path + "#max", req.at(req.hi))
+    b.add("req_lo", path + "#min", req.at(req.lo) if req.varies
+          else Value.fixed(float("nan"), req.dim, req.unit))
+    return b
+
+
+def _fn_output(**kw: Any) -> Outcome:
+    a, lo, hi = _pop_range(kw)
+    w = _omega(kw)
+    out = power.output_check(topology="ac-switch", freewheel=False, alpha=a, alpha_lo=lo,
+                             alpha_hi=hi, omega=w, **kw)
+    note = _lost_note(kw, a, w)
+    if note:
+        out.notes.append(note)
+    return out
+
+
+def _sum_output(r: Reduced) -> str:
+    q = r.bound.options.get("quantity", "power")
+    unit, name = ("W", "load power") if q == "power" else ("V", "load V_rms")
+    text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
+            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
+    req_hi = r.bound.inputs["req_hi"].value.nom
+    req_lo = r.bound.inputs["req_lo"].value.nom
+    if req_hi != req_hi and req_lo != req_lo:
+        text += "; no `required` range given: reported, not judged"
+    if r.status != "pass":
+        fixes = []
+        if r.lo["output_at_min"] < req_hi:
+            fixes.append(f"full output {eng(r.lo['output_at_min'], unit)} at low line is short of "
+                         f"{eng(req_hi, unit)}: needs a smaller α_min")
+        if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
+            fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is "
+                         f"above {eng(req_lo, unit)}: needs a later α_max")
+        text += "; fails: " + "; ".join(fixes)
+    if r.hi.get("load_angle", 0.0) > 0:
+        text += (f"; current runs on to β = "
+                 f"{span(r.lo['extinction_angle'], r.hi['extinction_angle'], 'deg')}")
+    return text + _lost_text(r)
+
+
+register(CheckDef(
+    id="triac.output", kinds=KIND,
+    question="What does the load get over the firing range, and does it meet `required`?",
+    method="The ac-switch waveform (R: closed form; R–L: i(θ) from α to β): full output "
+           "(α_min, low line) must reach required.max; the least (α_max, high line) must be at "
+           "or below required.min.",
+    source="Rashid 4e §11 (Ex 11.1, 11.2)",
+    fn=_fn_output, bind=_bind_output,
+    units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
+           "conduction_angle": "deg", "shortcut_error": "1", "load_angle": "deg"},
+    summarise=_sum_output,
+    fix="Widen the firing range (smaller α_min for more output, later α_max for less).",
+    optional=frozenset({"shortcut_error"}),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.blocking
+
+def _bind_blocking(ctx: Context) -> Bound:
+    b = Bound()
+    ctx.need(b, "vdrm", _pp(ctx, "vdrm"))
+    ctx.need(b, "vs", "supply.voltage")
+    sn = _snubber(ctx)
+    if sn is not None:
+        b.options["snubber"] = sn.id
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+        if ctx.read(b, "snub_l", ctx.stage_path("inductance", sn)) is None:
+            ctx.read(b, "snub_l", "supply.inductance", default=0.0, dim="inductance", unit="H")
+        step = sn.get("step", "line")
+        if isinstance(step, Value):
+            b.add("snub_e", ctx.stage_path("step", sn), step)
+    return b
+
+
+def _fn_blocking(*, vs: Any, vdrm: Any, limits: Mapping[str, float], snubber: str = "",
+                 snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
+                 snub_e: Any = None) -> Outcome:
+    v_line = np.sqrt(2.0) * np.asarray(vs, dtype=float)
+    v = v_line
+    if snubber:
+        e = v_line if snub_e is None else snub_e
+        v_snub, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
+        v = np.maximum(v_line, v_snub)
+    # One VDRM for both polarities: the triac blocks the line's peak each way.
+    out = power.blocking_check(vdrm=vdrm, vrrm=vdrm, v_fwd=v, v_rev=v, limits=limits)
+    out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
+    return out
+
+
+def _sum_blocking(r: Reduced) -> str:
+    vdrm = r.bound.inputs["vdrm"].value.nom
+    sn = r.bound.options.get("snubber")
+    src = f"the larger of √2·V_s and the snubber `{sn}` overshoot" if sn else "√2·V_s"
+    text = (f"VDRM {eng(vdrm, 'V')} against {eng(r.hi['peak_voltage'], 'V')} ({src}, high "
+            f"line), both polarities: ratio {r.worst['blocking_ratio']:.2f}")
+    if r.status != "pass":
+        k = r.limits.get("marginal_below", 2.0)
+        text += (f"; {r.status}: needs VDRM ≥ {at_least(k * r.hi['peak_voltage'], 'V')} for "
+                 f"{k:g}×")
+    return text + "; the overshoot after commutation is in triac.commutation"
+
+
+register(CheckDef(
+    id="triac.blocking", kinds=KIND,
+    question="Is VDRM above the peak off-state voltage in both directions, with margin?",
+    method="blocking_ratio = VDRM/V with V = √2·V_s,max, or the larger snubber overshoot peak "
+           "of the firing-step response when a snubber is across the stage; ≥ 2.0 passes, "
+           "1.5–2.0 marginal.",
+    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6",
+    fn=_fn_blocking, bind=_bind_blocking,
+    units={"peak_voltage": "V", "blocking_ratio": "1", "line_peak": "V"},
+    summarise=_sum_blocking,
+    fix="A higher voltage class, or a better-damped snubber.",
+    cautions=("A triac that breaks over fires itself (it is not damaged by one breakover, but "
+              "the load is switched on unasked): the line's surges need a clamp (a varistor).",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.rms-current, triac.junction
+
+def _bind_rms(ctx: Context) -> Bound:
+    b = Bound()
+    if _ratings(ctx, b, {"it_rms_rating": "it_rms"}):
+        _line(ctx, b)
+        _load(ctx, b)
+        _firing(ctx, b)
+    return b
+
+
+def _sum_rms(r: Reduced) -> str:
+    rating = r.bound.inputs["it_rms_rating"].value.nom
+    text = (f"IT(RMS) {span(r.lo['it_rms'], r.hi['it_rms'], 'A')} (both half-cycles in one "
+            f"triac) against {eng(rating, 'A')}")
+    if r.status != "pass":
+        text += f"; fails: needs IT(RMS) ≥ {at_least(r.hi['it_rms'], 'A')}"
+    return text + _lost_text(r)
+
+
+register(CheckDef(
+    id="triac.rms-current", kinds=KIND,
+    question="Is the triac's RMS current within IT(RMS)?",
+    method="The ac-switch waveform (R: closed form; R–L: i(θ) from α to β) at high line and R "
+           "at its low end; the triac carries both half-cycles: I = √2·I_SCR (one polarity "
+           "only where α < φ, fired with narrow pulses).",
+    source="Rashid 4e §11 (Ex 11.1, 11.2, 11.8)",
+    fn=_with_line(triac.rms_current_check), bind=_bind_rms,
+    units={"it_rms": "A"}, summarise=_sum_rms,
+    fix="A triac with a higher IT(RMS), or a smaller load current.",
+))
+
+
+def _bind_junction(ctx: Context) -> Bound:
+    b = Bound()
+    hs = ctx.stage.get("heatsink")
+    if not isinstance(hs, dict):
+        b.missing.append(_sp(ctx, "heatsink") + " (its rth_sa)")
+        return b
+    if not _ratings(ctx, b, {"vt0": "vt0", "rt": "rt", "rth_jc": "rth_jc", "tj_max": "tj_max"}):
+        return b
+    ctx.need(b, "rth_sa", _sp(ctx, "heatsink.rth_sa"))
+    ctx.read(b, "rth_cs", _sp(ctx, "heatsink.rth_cs"), default=0.0,
+             dim="thermal_resistance", unit="K/W")
+    b.options["devices"] = int(hs.get("devices", 1))
+    ctx.ambient_max(b, "t_max")
+    _line(ctx, b)
+    _load(ctx, b)
+    _firing(ctx, b, sweep=7)
+    return b
+
+
+def _sum_junction(r: Reduced) -> str:
+    tj_max = r.bound.inputs["tj_max"].value.nom
+    n = r.bound.options.get("devices", 1)
+    text = (f"Tj {eng(r.hi['junction_temperature'], 'degC')} at maximum ambient with "
+            f"{eng(r.hi['device_loss'], 'W')} in the triac"
+            + (f" ({n} on the heatsink)" if n > 1 else "") + f", against {eng(tj_max, 'degC')}")
+    if r.status != "pass":
+        h = r.limits.get("headroom_marginal", 25.0)
+        need = r.lo["rth_sa_required"]
+        fix = (f"needs Rth(s-a) ≤ {at_most(need, 'K/W')}" if need > 0 else
+               "no heatsink is enough: less loss or a lower Rth(j-c) + Rth(c-s) is needed")
+        text += f"; {r.status} ({h:g} K headroom wanted): {fix}"
+    else:
+        text += f"; Rth(s-a) up to {at_most(r.lo['rth_sa_required'], 'K/W')} would do"
+    return text + "; steady state only" + _lost_text(r)
+
+
+register(CheckDef(
+    id="triac.junction", kinds=KIND,
+    question="Steady junction temperature at maximum ambient, high line, worst firing angle.",
+    method="P = VT0·mean|i| + rT·I_RMS² (both half-cycles); Tj = Ta,max + ΔT_enc + "
+           "n·P·Rth(s-a) + P·(Rth(j-c) + Rth(c-s)); Tj ≤ tj_max − 25 K passes, ≤ tj_max "
+           "marginal.",
+    source="Rashid 4e §17 (cooling); Bimbhra ch. 4 (thyristor losses)",
+    fn=_with_line(triac.junction_check), bind=_bind_junction,
+    units={"device_loss": "W", "junction_temperature": "degC", "rth_sa_required": "K/W",
+           "it_rms": "A"},
+    summarise=_sum_junction,
+    fix="A heatsink with a lower Rth(s-a), or a triac with less on-state drop.",
+    cautions=("The mounting tab of most plastic triacs is joined to MT2: without an insulating "
+              "pad the heatsink is at line potential.",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.surge, triac.fuse
+
+def _bind_surge(ctx: Context) -> Bound:
+    b = Bound()
+    if not _ratings(ctx, b, {"itsm": "itsm"}):
+        return b
+    ctx.read(b, "t_sm", _pp(ctx, "itsm_duration"), default=0.01, dim="time", unit="s")
+    _line(ctx, b)
+    if ctx.read(b, "r_cold", _sp(ctx, "load.cold_r")) is None:
+        ctx.need(b, "r_cold", _sp(ctx, "load.r"))
+        b.notes.append("cold_r not given: the running load R is used for the inrush")
+    ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+    b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+    _firing(ctx, b, sweep=7, extra=(HALF_PI,))
+    return b
+
+
+def _fn_surge(**kw: Any) -> Outcome:
+    a, _, _ = _pop_range(kw)
+    return power.surge_check(topology="ac-switch", alpha=a, omega=_omega(kw), **kw)
+
+
+def _sum_surge(r: Reduced) -> str:
+    text = (f"cold-load inrush peak {eng(r.hi['inrush_peak'], 'A')} against ITSM "
+            f"{eng(r.lo['itsm_at_line'], 'A')} (at the line's half-cycle)")
+    if r.status != "pass":
+        text += (f"; fails: needs ITSM ≥ {at_least(r.hi['inrush_peak'], 'A')}, a soft start "
+                 "(α_min later), or an inrush limiter")
+    return text
+
+
+register(CheckDef(
+    id="triac.surge", kinds=KIND,
+    question="Is the worst inrush (cold load, first half-cycle at high line) within ITSM?",
+    method="R load: √2·V_s,max/R_cold when the range reaches 90° (else at α_min); R–L: the peak "
+           "of i(θ) with R_cold. ITSM converted to the line's half-cycle by I^N·t = const.",
+    source="Rashid 4e §17; Bimbhra ch. 4 (surge rating)",
+    fn=_fn_surge, bind=_bind_surge,
+    units={"inrush_peak": "A", "itsm_at_line": "A"}, summarise=_sum_surge,
+    fix="A triac with a higher ITSM, a soft start, or an inrush limiter.",
+))
+
+
+def _bind_fuse(ctx: Context) -> Bound:
+    b = Bound()
+    if not isinstance(ctx.stage.get("fuse"), dict):
+        b.not_applicable = "no `fuse` given"
+        return b
+    ctx.need(b, "fuse_i2t", _sp(ctx, "fuse.i2t"))
+    ctx.read(b, "t_sm", _pp(ctx, "itsm_duration"), default=0.01, dim="time", unit="s")
+    if ctx.read(b, "i2t", _pp(ctx, "i2t")) is None:
+        if ctx.read(b, "itsm", _pp(ctx, "itsm")) is None:
+            b.missing.append(_pp(ctx, "i2t") + " (or itsm)")
+            return b
+        b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    if ctx.read(b, "t_base", _sp(ctx, "fuse.clearing_time")) is not None:
+        b.options["base"] = "the fuse's clearing time"
+    else:
+        ctx.need(b, "freq", "supply.frequency")
+        b.options["base"] = "the line's half-cycle"
+    return b
+
+
+def _fn_fuse(*, fuse_i2t: Any, t_sm: Any, limits: Mapping[str, float], base: str = "",
+             i2t: Any = None, itsm: Any = None, t_base: Any = None, freq: Any = None) -> Outcome:
+    t_sm = np.asarray(t_sm, dtype=float)
+    dev = i2t if i2t is not None else np.asarray(itsm, dtype=float) ** 2 * t_sm / 2
+    tb = t_base if t_base is not None else 0.5 / np.asarray(freq, dtype=float)
+    out = power.fuse_check(fuse_i2t=fuse_i2t, i2t=dev, t_sm=t_sm, t_base=tb, limits=limits)
+    out.values["t_base"] = np.asarray(tb, dtype=float) + 0 * out.values["device_i2t"]
+    return out
+
+
+def _sum_fuse(r: Reduced) -> str:
+    text = (f"fuse clearing I²t {eng(r.hi['fuse_i2t'], 'A^2*s')} against the triac's "
+            f"{eng(r.lo['device_i2t'], 'A^2*s')} at {eng(r.worst['t_base'], 's')} "
+            f"({r.bound.options.get('base', '')})")
+    if r.status != "pass":
+        text += (f"; fails: needs a fuse with clearing I²t < "
+                 f"{at_most(r.lo['device_i2t'], 'A^2*s')} or a triac with more I²t")
+    return text
+
+
+register(CheckDef(
+    id="triac.fuse", kinds=KIND,
+    question="Does the fuse clear before the triac's I²t is spent?",
+    method="device I²t converted to the fuse's clearing time (else the line's half-cycle) by "
+           "I²t(t) = I²t(t_sm)·(t/t_sm)^((N−2)/N), N = 4 below t_sm, 2 above; pass when the "
+           "fuse's total clearing I²t is smaller.",
+    source="Rashid 4e §17 (Ex 17.6, fuse coordination); Bimbhra ch. 4",
+    fn=_fn_fuse, bind=_bind_fuse,
+    units={"fuse_i2t": "A^2*s", "device_i2t": "A^2*s", "t_base": "s"}, summarise=_sum_fuse,
+    fix="A faster semiconductor-protection fuse, or a triac with a larger I²t.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.latching, triac.holding
+
+def _bind_cold(ctx: Context, b: Bound, key: str) -> bool:
+    part = _part(ctx)
+    if part.params.get(key) is None:
+        b.missing.append(_pp(ctx, key))
+        return False
+    ctx.cold(b, key, part, key)
+    ctx.ambient_min(b)
+    return True
+
+
+def _cold_of(kw: dict[str, Any], key: str) -> np.ndarray:
+    return cold_value(kw.pop(key), kw.pop("t_min"), v_cold=kw.pop(key + "_cold"),
+                      t_cold=kw.pop(key + "_cold_at"), k=2.0)
+
+
+def _bind_latching(ctx: Context) -> Bound:
+    b = Bound()
+    if _bind_cold(ctx, b, "il"):
+        _line(ctx, b)
+        _load(ctx, b)
+        _firing(ctx, b)
+    return b
+
+
+def _fn_latching(**kw: Any) -> Outcome:
+    il = _cold_of(kw, "il")
+    a, lo, hi = _pop_range(kw)
+    return power.latching_check(kind="ac", il_cold=il, alpha=a, alpha_lo=lo, alpha_hi=hi,
+                                omega=_omega(kw), **kw)
+
+
+def _sum_latching(r: Reduced) -> str:
+    il = r.worst["il"]
+    amax = r.lo["max_firing_angle"]
+    text = (f"load current after firing reaches {eng(r.lo['reach_current'], 'A')} at the ends "
+            f"of the firing range against IL {eng(il, 'A')} (cold, low line)")
+    if amax == amax:
+        text += f"; latest firing that latches {at_most(amax, 'deg')}"
+    if r.status != "pass":
+        text += (f"; fails: needs α_max ≤ {at_most(amax, 'deg')}" if amax == amax else
+                 f"; fails: even full output stays below IL: needs load R ≤ "
+                 f"{at_most(r.bound.inputs['r'].value.lo * r.lo['reach_current'] / il, 'ohm')}")
+    return text + "; the same IL taken for both polarities"
+
+
+register(CheckDef(
+    id="triac.latching", kinds=KIND,
+    question="Does the load current reach IL at the extremes of the firing range (cold IL)?",
+    method="The largest current after firing at α_min and α_max (R: Vm·sin(max(α, 90°))/R; "
+           "R–L: the peak of i(θ)) ≥ IL_c at low line; max_firing_angle = π − asin(IL_c·R/Vm).",
+    source="Rashid 4e §7 (latching current); Bimbhra ch. 4",
+    fn=_fn_latching, bind=_bind_latching,
+    units={"anode_current_at_fire": "A", "il": "A", "max_firing_angle": "deg",
+           "reach_current": "A"},
+    summarise=_sum_latching,
+    fix="Limit α_max, lower the load R, or add a bleeder resistor across the load.",
+    cautions=("IL of a triac differs between quadrants (highest in II): a short gate pulse "
+              "with the largest IL is the case to check on the bench.",),
+    optional=frozenset({"max_firing_angle", "time_to_il", "reach_current"}),
+))
+
+
+def _bind_holding(ctx: Context) -> Bound:
+    b = Bound()
+    if _bind_cold(ctx, b, "ih"):
+        _line(ctx, b)
+        _load(ctx, b)
+        _firing(ctx, b)
+    return b
+
+
+def _fn_holding(**kw: Any) -> Outcome:
+    ih = _cold_of(kw, "ih")
+    a, _, _ = _pop_range(kw)
+    return power.holding_check(kind="ac", ih_cold=ih, alpha=a, omega=_omega(kw), **kw)
+
+
+def _sum_holding(r: Reduced) -> str:
+    text = (f"the load current falls to IH {eng(r.worst['ih'], 'A')} (cold) at "
+            f"{span(r.lo['dropout_angle'], r.hi['dropout_angle'], 'deg')}")
+    if r.status != "pass":
+        text += (f"; fails: the current never reaches IH at some corner (peak "
+                 f"{eng(r.lo['load_current'], 'A')}): needs a lower load R or an earlier α_max")
+    return text + "; the triac as an ideal switch"
+
+
+register(CheckDef(
+    id="triac.holding", kinds=KIND,
+    question="Where in each half-cycle does the load current fall below IH?",
+    method="Dropout angle π − asin(IH_c·R/Vm) (R), or where i(θ) falls to IH_c before β (R–L); "
+           "fails where the current never reaches IH.",
+    source="Rashid 4e §7; Singhal & Gupta, Introduction to Electric Drives ch. 1",
+    fn=_fn_holding, bind=_bind_holding,
+    units={"load_current": "A", "ih": "A", "dropout_angle": "deg"}, summarise=_sum_holding,
+    fix="Lower the load R, or an earlier α_max.",
+    optional=frozenset({"dropout_angle"}),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.didt (at turn-on)
+
+def _bind_didt(ctx: Context) -> Bound:
+    b = Bound()
+    if not _ratings(ctx, b, {"didt_rating": "didt"}):
+        return b
+    ctx.need(b, "vs", "supply.voltage")
+    ls = ctx.read(b, "l_s", "supply.inductance")
+    ll = ctx.read(b, "l", _sp(ctx, "load.l"))
+    if ls is None and ll is None:
+        b.missing.append("supply.inductance (or " + _sp(ctx, "load.l") + ")")
+        return b
+    sn = _snubber(ctx)
+    if sn is not None:
+        b.options["snubber"] = sn.id
+        if ctx.read(b, "snub_ld", ctx.stage_path("discharge_inductance", sn)) is None:
+            ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+            ctx.read(b, "t_on", _pp(ctx, "tgt"), default=1e-6, dim="time", unit="s")
+    _firing(ctx, b, sweep=7, extra=(HALF_PI,))
+    return b
+
+
+def _fn_didt(*, vs: Any, didt_rating: Any, limits: Mapping[str, float], l_s: Any = 0.0,
+             l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
+             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+    a, _, _ = _pop_range(kw)
+    v = np.sqrt(2.0) * np.asarray(vs, dtype=float) * np.sin(a)
+    snub: Any = 0.0
+    if snubber:
+        with np.errstate(divide="ignore"):
+            snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
+    return power.didt_check(kind="ac", vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
+                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+
+
+def _sum_didt(r: Reduced) -> str:
+    rating = r.bound.inputs["didt_rating"].value.nom
+    text = f"di/dt at firing up to {eng(r.hi['didt'], 'A/s')} against {eng(rating, 'A/s')}"
+    sn = r.bound.options.get("snubber")
+    if sn:
+        text += f", with the snubber `{sn}` discharge"
+    if r.status != "pass":
+        ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
+        text += (f"; fails: needs the loop inductance ≥ {at_least(ls * r.hi['didt'] / rating, 'H')}"
+                 " (a series choke), or a larger snubber resistor")
+    return text
+
+
+register(CheckDef(
+    id="triac.didt", kinds=KIND,
+    question="Rate of rise of on-state current at firing, including the snubber's discharge.",
+    method="V_m,max·sin α*/(L_s + L), α* = 90° where the range spans it, else the end nearest "
+           "it; plus the snubber discharge V/L_d, or (V/R_sn)/t_gt without L_d.",
+    source="Rashid 4e §17 (di/dt protection)",
+    fn=_fn_didt, bind=_bind_didt,
+    units={"didt": "A/s"}, summarise=_sum_didt,
+    fix="A series choke L ≥ V_m,max/(di/dt)cr, or a larger snubber resistor.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.control
+
+def _bind_control(ctx: Context) -> Bound:
+    b = Bound()
+    ll = ctx.read(b, "l", _sp(ctx, "load.l"))
+    if ll is None or ll.hi == 0:
+        b.not_applicable = "a resistive load: no load angle"
+        return b
+    ctx.need(b, "r", _sp(ctx, "load.r"))
+    ctx.need(b, "freq", "supply.frequency")
+    _firing(ctx, b)
+    return b
+
+
+def _fn_control(**kw: Any) -> Outcome:
+    _, lo, _ = _pop_range(kw)
+    return triac.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
+
+
+def _sum_control(r: Reduced) -> str:
+    phi = r.hi["load_angle"]
+    text = f"load angle φ up to {_deg(phi)} against the earliest firing {_deg(r.lo['alpha_min'])}"
+    if r.status != "pass":
+        text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or a gate drive that stays "
+                 "on through the half-cycle (a short pulse is missed and DC flows in the load)")
+    return text
+
+
+register(CheckDef(
+    id="triac.control", kinds=KIND,
+    question="Inductive load: is the earliest firing at or after the load angle?",
+    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
+    source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
+    fn=_fn_control, bind=_bind_control,
+    units={"load_angle": "deg", "alpha_min": "deg"}, summarise=_sum_control,
+    fix="Raise α_min to at least φ, or keep the gate driven through each half-cycle.",
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.commutation
+
+def _bind_commutation(ctx: Context) -> Bound:
+    b = Bound()
+    if not _ratings(ctx, b, {"dvdt_c": "dvdt_c", "didt_c": "didt_c", "vdrm": "vdrm"}):
+        return b
+    _line(ctx, b)
+    _load(ctx, b)
+    sn = _snubber(ctx)
+    if sn is not None:
+        b.options["snubber"] = sn.id
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+    _firing(ctx, b, sweep=FIRING_SWEEP)
+    return b
+
+
+def _fn_commutation(*, snubber: str = "", **kw: Any) -> Outcome:
+    a, _, _ = _pop_range(kw)
+    w = _omega(kw)
+    out = triac.commutation_check(alpha=a, omega=w, **kw)
+    note = _lost_note(kw, a, w)
+    if note:
+        out.notes.append(note)
+    return out
+
+
+def _sum_commutation(r: Reduced) -> str:
+    o = r.bound.options
+    rating_dv = r.bound.inputs["dvdt_c"].value.lo
+    rating_di = r.bound.inputs["didt_c"].value.lo
+    inductive = r.hi["load_angle"] > 0
+    text = (f"at the current zero (β up to {_deg(r.hi['commutation_angle'])}) the current falls "
+            f"at up to {eng(r.hi['didt_zero'], 'A/s')} against (di/dt)c "
+            f"{eng(rating_di, 'A/s')}, and the line's {eng(r.hi['step_voltage'], 'V')} is "
+            "reapplied")
+    sn = o.get("snubber")
+    if not inductive:
+        text += (f"; a resistive load: the voltage rises with the line, "
+                 f"{eng(r.hi['dvdt_reapplied'], 'V/s')} against (dv/dt)c {eng(rating_dv, 'V/s')}")
+    elif not sn:
+        text += ("; no snubber across the triac: the voltage steps at once (only the triac's own "
+                 f"capacitance slows it), far above (dv/dt)c {eng(rating_dv, 'V/s')}: the triac "
+                 "does not turn off on an inductive load")
+    else:
+        text += (f"; with the snubber `{sn}` it rises at up to "
+                 f"{eng(r.hi['dvdt_reapplied'], 'V/s')} (ζ down to {r.lo['damping']:.2f}) "
+                 f"against (dv/dt)c {eng(rating_dv, 'V/s')}, ringing to "
+                 f"{eng(r.hi['reapplied_peak'], 'V')}")
+    if r.status == "pass":
+        return text
+    k = float(r.limits.get("marginal_below", 1.5))
+    fixes = []
+    if r.lo["didt_ratio"] < k:
+        need_l = r.bound.inputs["l"].value.lo * r.hi["didt_zero"] * k / rating_di
+        fixes.append(f"the (dv/dt)c rating holds only at or below its (di/dt)c and the current "
+                     f"falls faster: a triac rated for ≥ {at_least(k * r.hi['didt_zero'], 'A/s')}"
+                     f" at commutation, or a load choke raising L to ≥ {at_least(need_l, 'H')}")
+    if r.lo["dvdt_ratio"] < k and inductive:
+        # The step is bounded by the line's peak; with C ≥ L/R_s² the response is damped
+        # (ζ ≥ 0.5, R_s·(R + R_s)·C ≥ L) and dv/dt is largest at once: R_s·E/L.
+        e = math.sqrt(2.0) * r.bound.inputs["vs"].value.hi
+        l_lo, l_hi = r.bound.inputs["l"].value.lo, r.bound.inputs["l"].value.hi
+        allowed = rating_dv / k
+        r_s = allowed * l_lo / e
+        c_s = l_hi / r_s**2 if r_s > 0 else math.inf
+        fixes.append(f"needs dv/dt ≤ {at_most(allowed, 'V/s')}: an R–C snubber across the triac "
+                     f"with R ≤ {at_most(r_s, 'ohm')} and C ≥ {at_least(c_s, 'F')} at their "
+                     f"ends of tolerance (for the load's L of {eng(l_lo, 'H')} – "
+                     f"{eng(l_hi, 'H')}), or a triac with a higher (dv/dt)c")
+    elif r.lo["dvdt_ratio"] < k:
+        fixes.append(f"needs (dv/dt)c ≥ {at_least(k * r.hi['dvdt_reapplied'], 'V/s')}")
+    if r.lo.get("vdrm_ratio", math.inf) < k:
+        fixes.append(f"the ringing peak {eng(r.hi['reapplied_peak'], 'V')} is close to VDRM: "
+                     "more damping (a larger C)")
+    if fixes:
+        text += f"; {r.status}: " + "; ".join(fixes)
+    return text + _lost_text(r)
+
+
+register(CheckDef(
+    id="triac.commutation", kinds=KIND,
+    question="Does the triac turn off at the load current's zero, or fire again in the other "
+             "direction?",
+    method="β = the R–L extinction angle for α (β = π + φ at α = φ); at the zero L·di/dt = "
+           "Vm·sin β, so |di/dt| = Vm·|sin β|/L (ω·Vm/R on a resistive load), and the step "
+           "E = Vm·|sin β| is reapplied. With an rc-snubber across the stage: the R–L–C "
+           "response of the load (L, R) and the snubber (R_s, C_s) to E from rest, "
+           "dv/dt = i/C + R_s·di/dt at its maximum (closed form); without one an inductive "
+           "load's step has no finite rate: fail. Pass when dv/dt ≤ (dv/dt)c/1.5 and |di/dt| ≤ "
+           "(di/dt)c/1.5 and the ringing peak ≤ VDRM/1.5; a di/dt above (di/dt)c fails whatever "
+           "the dv/dt (the rating does not apply). Worst corner over high line, α (swept), L "
+           "and R and the snubber's spread.",
+    source="Rashid 4e §11 (R–L extinction angle), §17.6 (snubber step response); Mohan, "
+           "Undeland & Robbins 3rd ed. ch. 20 (triac commutation)",
+    fn=_fn_commutation, bind=_bind_commutation,
+    units={"commutation_angle": "deg", "step_voltage": "V", "didt_zero": "A/s",
+           "dvdt_reapplied": "V/s", "dvdt_time": "s", "damping": "1", "reapplied_peak": "V",
+           "dvdt_ratio": "1", "didt_ratio": "1", "load_angle": "deg", "vdrm_ratio": "1"},
+    summarise=_sum_commutation,
+    fix="An R–C snubber across the triac (R_s ≈ S·L/E for a rate S, C_s ≈ L/R_s²), a "
+        "triac rated for a higher (dv/dt)c at the circuit's (di/dt)c, or a snubberless triac.",
+    cautions=("(dv/dt)c is rated at Tj,max: a hot triac commutates worst.",
+              "The test takes the load's L alone: supply inductance in series lowers the rate.",
+              "A motor's L falls as it speeds up and its back EMF shifts the zero: check at "
+              "stall and at full speed."),
+    optional=frozenset({"dvdt_reapplied", "dvdt_time", "damping", "reapplied_peak",
+                        "vdrm_ratio"}),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.gate-trigger (on a triac-gate stage)
+
+def _bind_gate_trigger(ctx: Context) -> Bound:
+    b = Bound()
+    mode = str(ctx.stage.get("mode"))
+    used = triac.quadrants(mode)
+    b.options["used"] = used
+    part = _part(ctx)
+    for q in used:
+        for key in (f"igt_{q}", f"vgt_{q}"):
+            if part.params.get(key) is None:
+                b.missing.append(f"parts.{part.ref}.{key} (quadrant {triac.ROMAN[q]}, which a "
+                                 f'mode = "{mode}" drive fires in)')
+    if b.missing:
+        return b
+    nan = Value.fixed(float("nan"), "", "")
+    at = part.cold.get("at")
+    for q in used:
+        for key in (f"igt_{q}", f"vgt_{q}"):
+            ctx.need(b, key, f"parts.{part.ref}.{key}")
+            cv = part.cold.get(key)
+            if cv is not None and at is not None:
+                b.add(key + "_cold", f"parts.{part.ref}.cold.{key}", cv)
+            else:
+                b.add(key + "_cold", f"parts.{part.ref}.cold.{key}#none", nan)
+    if at is not None:
+        b.add("cold_at", f"parts.{part.ref}.cold.at", at)
+    else:
+        b.add("cold_at", f"parts.{part.ref}.cold.at#none", nan)
+    ctx.ambient_min(b)
+    ctx.need(b, "drive", _sp(ctx, "drive"))
+    ctx.read(b, "drop", _sp(ctx, "drive_drop"), default=0.0, dim="voltage", unit="V")
+    b.notes[:] = [n for n in b.notes if not n.startswith("drive_drop not given")]
+    ctx.need(b, "series_r", _sp(ctx, "series_r"))
+    ctx.read(b, "r_gk", _sp(ctx, "gate_cathode_r"))
+    return b
+
+
+def _fn_gate_trigger(*, used: tuple[str, ...], **kw: Any) -> Outcome:
+    per = {k: {q: kw.pop(f"{k}_{q}") for q in used} for k in ("igt", "vgt")}
+    cold = {k: {q: kw.pop(f"{k}_{q}_cold") for q in used} for k in ("igt", "vgt")}
+    return triac.gate_trigger_check(used=used, igt=per["igt"], vgt=per["vgt"],
+                                    igt_cold=cold["igt"], vgt_cold=cold["vgt"], **kw)
+
+
+def _sum_gate_trigger(r: Reduced) -> str:
+    used = r.bound.options["used"]
+    q = used[int(r.worst["quadrant"])]
+    names = " and ".join(triac.ROMAN[u] for u in used)
+    text = (f"gate current {eng(r.lo['gate_current'], 'A')} at the worst corner (lowest drive, "
+            f"highest R_S, coldest) against IGT {eng(r.worst['igt'], 'A')} of quadrant "
+            f"{triac.ROMAN[q]} (cold), the worst of {names} the drive fires in")
+    if r.status != "pass":
+        k = float(r.limits.get("marginal_below", 1.5))
+        rv = r.bound.inputs["series_r"].value
+        need = r.lo["series_r_max"] * (rv.nom / rv.hi if rv.hi else 1.0)
+        text += (f"; {r.status}: needs R_S ≤ {at_most(need, 'ohm')} (nominal) for {k:g}× IGT, "
+                 "a higher drive voltage, or a triac with a lower IGT in that quadrant")
+    if "q4" in used:
+        text += "; quadrant IV is the least sensitive: a negative drive (II, III) is usual"
+    return text
+
+
+register(CheckDef(
+    id="triac.gate-trigger", kinds=GATE_KIND,
+    question="Is the gate current at the worst corner above the cold IGT of the worst quadrant "
+             "the drive fires in?",
+    method="Quadrants from the drive's mode (ac: I, III; negative-dc: II, III; positive-dc: I, "
+           "IV); i_G = (V_drive − V_drop − VGT)/R_S − VGT/R_GK at the lowest drive, highest R_S "
+           "and the cold VGT of the quadrant with the highest cold IGT; pass ≥ 1.5×, marginal "
+           "1–1.5×.",
+    source="Sen, Power Electronics ch. 2 (triac quadrants); Rashid 4e §7 (gate circuit); cold "
+           "factors common practice",
+    fn=_fn_gate_trigger, bind=_bind_gate_trigger,
+    units={"gate_current": "A", "igt": "A", "vgt": "V", "quadrant": "1", "series_r_max": "ohm"},
+    summarise=_sum_gate_trigger,
+    fix="A smaller series R, a higher drive voltage, or a drive that avoids quadrant IV.",
+    cautions=("An AC (opto-triac) drive takes its gate current from the line through R_S: its "
+              "drive voltage is the line's at the firing instant, and the gate circuit is at "
+              "mains potential.",),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.gate-power
+
+def _bind_gate_power(ctx: Context) -> Bound:
+    b = Bound()
+    if ctx.stage.get("mode") == "ac":
+        b.not_applicable = ("an AC drive conducts only until the triac fires (a few µs): its "
+                            "peak current is the driver's own rating, a manual check")
+        return b
+    if not _ratings(ctx, b, {"pg_av": "pg_av"}):
+        return b
+    ctx.need(b, "drive", _sp(ctx, "drive"))
+    ctx.read(b, "drop", _sp(ctx, "drive_drop"), default=0.0, dim="voltage", unit="V")
+    b.notes[:] = [n for n in b.notes if not n.startswith("drive_drop not given")]
+    ctx.need(b, "series_r", _sp(ctx, "series_r"))
+    return b
+
+
+def _sum_gate_power(r: Reduced) -> str:
+    rating = r.bound.inputs["pg_av"].value.lo
+    text = (f"gate dissipation at most {eng(r.hi['gate_power'], 'W')} (V²/4R_S, highest drive, "
+            f"lowest R_S: a bound for any gate) against PG(AV) {eng(rating, 'W')}")
+    if r.status != "pass":
+        v = r.bound.inputs["drive"].value.hi
+        rv = r.bound.inputs["series_r"].value
+        need = v**2 / (4 * rating) * (rv.nom / rv.lo if rv.lo else 1.0)
+        text += f"; fails: needs R_S ≥ {at_least(need, 'ohm')} (nominal), or a pulsed drive"
+    return text + "; a DC drive holds the gate on for as long as it is enabled"
+
+
+register(CheckDef(
+    id="triac.gate-power", kinds=GATE_KIND,
+    question="Can a DC drive, holding the gate on, overheat the gate?",
+    method="P_G ≤ (V_drive − V_drop)²/(4·R_S) at the highest drive and lowest R_S (the most a "
+           "source behind R_S can deliver into any load), against PG(AV).",
+    source="Rashid 4e §7 (gate circuit: the gate power limit); maximum power transfer",
+    fn=triac.gate_power_check, bind=_bind_gate_power,
+    units={"gate_power": "W"}, summarise=_sum_gate_power,
+    fix="A larger R_S (keeping triac.gate-trigger's margin), or pulse the drive.",
+))
