@@ -7,8 +7,10 @@ import math
 _PREFIX = {-15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
 _SYMBOL = {"ohm": "Ω", "degC": "°C", "deg": "°", "A^2*s": "A²s", "1": "", "K/W": "K/W",
            "V*s": "V·s", "1/K": "/K"}
-# Rates are read per microsecond in this trade; temperatures and angles take no prefix.
+# Rates are read per microsecond in this trade, slow ones (a triac's commutating di/dt) per
+# millisecond; temperatures and angles take no prefix.
 _PER_US = {"V/s": "V/µs", "A/s": "A/µs"}
+_PER_MS = {"V/s": "V/ms", "A/s": "A/ms"}
 _NO_PREFIX = {"degC", "deg", "K/W", "K", "1", "%", "A^2*s"}
 
 SI_TO_REPORT = {"deg": (180.0 / math.pi, 0.0), "degC": (1.0, -273.15)}
@@ -45,6 +47,8 @@ def eng(x: float | None, unit: str = "", digits: int = 3, *, si: bool = True,
     '60°'
     >>> eng(2.5e7, "V/s")
     '25 V/µs'
+    >>> eng(321.0, "A/s")
+    '0.321 A/ms'
     >>> eng(318.15, "degC")
     '45 °C'
     >>> eng(2.59e-33, "W")
@@ -61,6 +65,8 @@ def eng(x: float | None, unit: str = "", digits: int = 3, *, si: bool = True,
     if unit == "deg" and rounding != "near":
         return f"{_num(x, digits, rounding, decimals=1)}°"
     if unit in _PER_US:
+        if x != 0 and math.isfinite(x) and abs(x) < 1e4:
+            return f"{_num(x * 1e-3, digits, rounding)} {_PER_MS[unit]}"
         return f"{_num(x * 1e-6, digits, rounding)} {_PER_US[unit]}"
     sym = _SYMBOL.get(unit, unit)
     if unit == "deg":
