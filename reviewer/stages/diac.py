@@ -185,7 +185,7 @@ def _sum_range(r: Reduced) -> str:
             f"{_deg(r.nom['alpha_hi'])} at its high end (running) nominal; at worst "
             f"{span(lo_w, hi_w, 'deg')} against target {span(t_lo, t_hi, 'deg')}")
     fires_up_to = r.lo["fires_up_to"]
-    if not math.isfinite(r.hi["alpha_hi_start"]) or not math.isfinite(lo_w):
+    if not fires_up_to >= pot_hi or not math.isfinite(lo_w):
         where = (f"above a pot setting of {_pot(fires_up_to)}" if math.isfinite(fires_up_to)
                  else "at any pot setting")
         return (f"fails: at some corners the capacitor never reaches VBO {where} (the pot "
