@@ -38,7 +38,7 @@ import numpy as np
 
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 
-_BISECT = 64  # halvings of the log-R bracket (1 Ω … 1 GΩ): far below a part tolerance
+_BISECT = 44  # halvings of the log-R bracket (1 Ω … 1 GΩ): 1e-12 relative
 
 
 def _double(r2: np.ndarray, c2: np.ndarray) -> np.ndarray:
@@ -351,10 +351,22 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
     lo = np.full(shape, 0.0)
     hi = np.full(shape, np.log(1e9))
 
+    th = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+
     def fires(ln_r: np.ndarray) -> np.ndarray:
-        a = firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1, vbo=vbo,
-                         breakback=breakback, running=running, r2=r2, c2=c2)
-        return np.isfinite(a)
+        if not running:
+            return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
+                                            vbo=vbo, r2=r2, c2=c2))
+        # Running: a root exists where the excess is non-negative somewhere on the grid
+        # (the same test as :func:`_first_root`), so the angle itself is not needed.
+        def c(x: np.ndarray | float) -> np.ndarray:
+            return np.broadcast_to(as_array(x), shape)[..., None]
+
+        with np.errstate(all="ignore"):
+            g = running_excess(vm=c(vm), omega=c(omega), r1=c(np.exp(ln_r)), c1=c(c1),
+                               vbo=c(vbo), breakback=c(breakback), alpha=th, r2=c(r2),
+                               c2=c(c2))
+        return (g >= 0).any(axis=-1)
 
     ok_lo = fires(lo)
     for _ in range(_BISECT):  # vectorised: every row halves its bracket at once
