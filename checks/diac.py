@@ -11,14 +11,14 @@ Without firing the diac capacitor follows the sinusoidal steady state vss(θ) = 
 α = ψ + asin(VBO/(Vm·G)), and only when Vm·G > VBO and α < π (a crossing after the line has
 reversed fires in the wrong half-cycle, counted here as no firing).
 
-Each firing drops the diac capacitor by the breakback ΔV. In the periodic state with firing
-in both half-cycles the deviation d from vss obeys d' = A·d between firings, jumps by ∓ΔV·e₂
-at each, and is antisymmetric over a half-cycle: d(θ₁⁻) = (I + M)⁻¹·M·ΔV·e₂ with M = exp(A·π).
-The diac capacitor then sits k·ΔV above vss when the next half-cycle starts its ramp, so the
-firing level seen on vss is VBO − k·ΔV with k = [(I + M)⁻¹·M]₂₂: single section
-k = e/(1 + e), e = exp(−π/(ωR1C1)). The lower level is the snap-on: firing starts where vss
-reaches VBO and then runs at an earlier angle, and stops only where vss no longer reaches
-VBO − k·ΔV. The second section lets C1 restore part of C2's charge, which makes k smaller.
+Once the diac fires, the triac shorts the network's supply until the line's zero (a
+resistive load), and the diac drops its capacitor by the breakback ΔV. The capacitor then
+starts each half-cycle near zero instead of at the steady sine's −Vm·G·sin ψ, so it reaches
+VBO much earlier: the running state. Its periodic solution is in closed form (half-wave
+antisymmetry, :func:`running_excess`) and its firing angle is the first root over the
+half-cycle. The difference is the snap-on: firing starts where vss reaches VBO and then runs
+at an earlier angle, and stops only where the running state no longer reaches VBO. A second
+RC section keeps C1's charge to restore C2 with, which narrows the gap.
 
 References
 ----------
@@ -196,9 +196,11 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
-                 c2: np.ndarray | float = np.nan) -> tuple[np.ndarray, np.ndarray]:
+                 c2: np.ndarray | float = np.nan
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
-    half-cycles; NaN: that half does not fire.
+    half-cycles; NaN: that half does not fire; and a mask of the rows resolved (False: no
+    consistent state was found, the angles are not to be trusted).
 
     From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
     method on the two equations of :func:`pair_excess` (Jacobian by central differences of
@@ -257,10 +259,12 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
             neg_only = np.isfinite(b1) & ~np.isfinite(a_chk) & ~pos_only
             a = np.where(one, np.where(pos_only, a1, np.nan), a)
             b = np.where(one, np.where(neg_only, b1, np.nan), b)
-            bad = one & ~pos_only & ~neg_only & np.isfinite(a1 + b1)
+            bad = one & ~pos_only & ~neg_only & (np.isfinite(a1) | np.isfinite(b1))
             a = np.where(bad, np.nan, a)
             b = np.where(bad, np.nan, b)
-    return a, b
+        else:
+            bad = np.zeros(shape, dtype=bool)
+    return a, b, ~bad
 
 
 _GRID = 96  # bracketing points over the half-cycle for the running firing angle
@@ -309,9 +313,9 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
-    """Firing angle α [rad]: the first crossing of VBO (``running`` False: the diac starts
-    firing) or, with it firing every half-cycle, of VBO − k·ΔV (``running`` True); NaN: no
-    firing in its half-cycle.
+    """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
+    the diac starts firing) or, with it firing every half-cycle, the first root of
+    :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
@@ -417,21 +421,24 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
 
     vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
     vbo [V]; breakback [V]; target_lo/hi [rad]; series_r [Ω] (to express R1 as a pot
-    setting). The earliest angle is the one that starts firing (VBO: later, so the full-output
-    end is not flattered); the latest is the running one (VBO − k·ΔV: earlier, so the dim end
-    is not flattered either). A pot end that cannot start firing fails, and ``fires_up_to``
-    says the pot setting above which the capacitor never reaches VBO. Metric: the smaller of
-    target_lo/α_lo and α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and
-    ``marginal_below``.
+    setting). Both ends are the running angles (the state the load is in while on; the first
+    half-cycle after switching on fires later, at the starting angle, reported as
+    ``alpha_lo_start``/``alpha_hi_start``). Every setting must also start firing from off:
+    a pot end where the capacitor's steady sine never reaches VBO fails, and ``fires_up_to``
+    says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
+    α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
-    a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
+                        running=True, r2=r2, c2=c2)
     a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
                         running=True, r2=r2, c2=c2)
     r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
-    never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo)
+    never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
+        | ~np.isfinite(a_hi)
     with np.errstate(divide="ignore", invalid="ignore"):
         m_lo = np.where(a_lo > 0, as_array(target_lo) / a_lo, np.inf)
         m_hi = a_hi / as_array(target_hi)
@@ -441,7 +448,8 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     margin = np.where(np.isnan(metric), -1.0, metric / fail_below - 1.0)
     status = np.where(~(metric >= fail_below), FAIL,
                       np.where(metric < marginal_below, MARGINAL, PASS)).astype(np.int8)
-    values = {"alpha_lo": a_lo, "alpha_hi": a_hi, "alpha_hi_start": a_hi_start,
+    values = {"alpha_lo": a_lo, "alpha_hi": a_hi, "alpha_lo_start": a_lo_start,
+              "alpha_hi_start": a_hi_start,
               "fires_up_to": r_start - as_array(series_r), "amplitude_hi": vm * network(
                   r1=r_hi, c1=c1, omega=omega, r2=r2, c2=c2)[0]}
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
@@ -453,12 +461,12 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
                   r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> Outcome:
     """``diac.snap-on``: the jump in firing angle where the load snaps on.
 
-    R_on = :func:`limit_r` (starting): there vss just reaches VBO, and at once the running
-    level VBO − k·ΔV applies: the angle jumps from α_start = α(VBO) to α_run. R_off (running)
-    is where it drops out again. ``jump`` = α_start − α_run; ``snap_power`` the fraction of
-    full power a resistive load gets at α_run, 1 − α/π + sin 2α/(2π) [3]; ``pot_on`` and
-    ``pot_off`` the pot settings (R − series_r). Graded against ``max_jump_deg`` (marginal
-    above ``marginal_fraction`` of it).
+    R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
+    running state applies at once: the angle jumps from α_start = α(VBO) to α_run. R_off
+    (running) is where it drops out again. ``jump`` = α_start − α_run; ``snap_power`` the
+    fraction of full power a resistive load gets at α_run, 1 − α/π + sin 2α/(2π) [3];
+    ``pot_on`` and ``pot_off`` the pot settings (R − series_r). Graded against
+    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
@@ -545,14 +553,15 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     """``diac.symmetry``: the DC component a VBO asymmetry puts on the load.
 
     One half-cycle fires at VBO, the other at VBO − asymmetry (the datasheet's largest
-    | +VBO | − | −VBO |), both running (level less k·ΔV, k of the symmetric state: the
-    asymmetry moves the firing instants a little, which moves k only in the second order).
-    The mean load voltage |cos α₊ − cos α₋|/(2π)·Vm is taken at ``points`` pot settings
-    between r_lo and r_hi (log-spaced, both ends included) and its largest value reported:
-    where one half still fires and the other has dropped out it is a half-wave.
+    | +VBO | − | −VBO |), both running, solved together over the whole cycle
+    (:func:`running_pair`: one half's firing sets where the other starts). The mean load
+    voltage |cos α₊ − cos α₋|/(2π)·Vm is taken at ``points`` pot settings between r_lo and
+    r_hi (log-spaced, both ends included) and its largest value reported: where one half
+    still fires and the other has dropped out it is a half-wave.
     ``dc_fraction`` of Vm is graded against ``max_dc_fraction`` (marginal above
     ``marginal_fraction`` of it); ``dc_current`` = V_dc/load_r [A] when the load's DC
-    resistance ``load_r`` is given (a winding or transformer primary).
+    resistance ``load_r`` is given (a winding or transformer primary). A pot setting whose
+    pair of angles could not be resolved gives NaN, which fails (never a pass by default).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
@@ -564,10 +573,10 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     def col(x: np.ndarray | float) -> np.ndarray:
         return as_array(x)[..., None]
 
-    a_pos, a_neg = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
+    a_pos, a_neg, trusted = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
                                 v_pos=col(vbo), v_neg=col(vbo) - np.abs(col(asymmetry)),
                                 breakback=col(breakback), r2=col(r2), c2=col(c2))
-    dc = np.abs(dc_fraction(a_pos, a_neg))
+    dc = np.where(trusted, np.abs(dc_fraction(a_pos, a_neg)), np.nan)
     worst = np.argmax(dc, axis=-1)
     take = np.take_along_axis
     dcw = take(dc, worst[..., None], axis=-1)[..., 0]
@@ -581,3 +590,27 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     limit = float(limits.get("max_dc_fraction", 0.01))
     margin, status = _grade_max(dcw, limit, float(limits.get("marginal_fraction", 0.5)))
     return Outcome(values, margin, status)
+
+
+def angle_curve(*, vm: float, omega: float, pot_lo: float, pot_hi: float, series_r: float,
+                c1: float, vbo: float, breakback: float, r2: float = np.nan,
+                c2: float = np.nan, points: int = 121) -> dict[str, np.ndarray]:
+    """The firing angle over the pot's travel at one design point (for a figure).
+
+    ``pot`` [Ω] from pot_lo to pot_hi (linear); ``starting`` and ``running`` [rad] the two
+    angles of :func:`firing_angle` (NaN where there is no firing); ``pot_on`` / ``pot_off``
+    [Ω] the settings where the load snaps on and drops out (:func:`limit_r` less series_r).
+
+    >>> c = angle_curve(vm=325.0, omega=2 * np.pi * 50, pot_lo=0.0, pot_hi=400e3,
+    ...                 series_r=0.0, c1=100e-9, vbo=32.0, breakback=6.0, points=5)
+    >>> np.isnan(c["starting"][-1]), bool(c["pot_on"] < c["pot_off"])
+    (np.True_, True)
+    """
+    pot = np.linspace(pot_lo, pot_hi, points)
+    r1 = pot + series_r
+    kw = {"vm": vm, "omega": omega, "c1": c1, "vbo": vbo, "r2": r2, "c2": c2}
+    start = firing_angle(r1=r1, **kw)
+    run = firing_angle(r1=r1, breakback=breakback, running=True, **kw)
+    on = limit_r(**kw) - series_r
+    off = limit_r(breakback=breakback, running=True, **kw) - series_r
+    return {"pot": pot, "starting": start, "running": run, "pot_on": on, "pot_off": off}

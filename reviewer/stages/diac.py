@@ -181,9 +181,11 @@ def _sum_range(r: Reduced) -> str:
     t_hi = r.bound.inputs["target_hi"].value.nom
     pot_hi = r.bound.inputs["pot_hi"].value.nom
     lo_w, hi_w = r.hi["alpha_lo"], r.lo["alpha_hi"]
-    text = (f"firing angle {_deg(r.nom['alpha_lo'])} at the pot's low end (starting) to "
-            f"{_deg(r.nom['alpha_hi'])} at its high end (running) nominal; at worst "
-            f"{span(lo_w, hi_w, 'deg')} against target {span(t_lo, t_hi, 'deg')}")
+    text = (f"firing angle {_deg(r.nom['alpha_lo'])} at the pot's low end to "
+            f"{_deg(r.nom['alpha_hi'])} at its high end nominal, running (from off the first "
+            f"half-cycle fires later, {_deg(r.nom['alpha_lo_start'])} to "
+            f"{_deg(r.nom['alpha_hi_start'])}); at worst {span(lo_w, hi_w, 'deg')} against "
+            f"target {span(t_lo, t_hi, 'deg')}")
     fires_up_to = r.lo["fires_up_to"]
     if not fires_up_to >= pot_hi or not math.isfinite(lo_w):
         where = (f"above a pot setting of {_pot(fires_up_to)}" if math.isfinite(fires_up_to)
@@ -215,13 +217,13 @@ register(CheckDef(
            "crossing of VBO, α = ψ + asin(VBO/(Vm·G)). Running (firing every half-cycle, the "
            "network shorted while the triac conducts, the capacitor dropped by ΔV at each "
            "firing) the periodic state is solved in closed form and α found as its first "
-           "root over the half-cycle (grid bracket + bisection). Low end: starting α (later); "
-           "high end: running α (earlier), so neither end is flattered.",
+           "root over the half-cycle (grid bracket + bisection). The ends are the running "
+           "angles (the state the load is in); every setting must also start from off.",
     source="GE SCR Manual 6th ed. ch. 9 (diac–RC phase control) — from memory; Maloney, "
            "Modern Industrial Electronics 5th ed. ch. 7 — from memory; checked against "
            "solve_ivp of the network",
     fn=_fn_range, bind=_bind_range,
-    units={"alpha_lo": "deg", "alpha_hi": "deg", "alpha_hi_start": "deg",
+    units={"alpha_lo": "deg", "alpha_hi": "deg", "alpha_lo_start": "deg", "alpha_hi_start": "deg",
            "fires_up_to": "ohm", "amplitude_hi": "V"},
     summarise=_sum_range,
     cautions=("The RC network, the diac and the pot sit at mains potential: the pot's shaft "
@@ -229,7 +231,8 @@ register(CheckDef(
               "The heatsink tab of most triacs is connected to MT2: it is live."),
     fix="Move the ends with the series R (low end) and the pot's value (high end); C moves "
         "both. A pot setting that never fires is a dead zone: reduce the pot or C.",
-    optional=frozenset({"alpha_hi", "alpha_hi_start", "alpha_lo", "fires_up_to"}),
+    optional=frozenset({"alpha_hi", "alpha_hi_start", "alpha_lo", "alpha_lo_start",
+                        "fires_up_to"}),
 ))
 
 

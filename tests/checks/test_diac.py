@@ -129,8 +129,9 @@ def test_asymmetric_pair_against_solve_ivp(r1, c1, r2, c2, v_neg):
     load waveform over a cycle."""
     ev = simulate(r1, c1, v_pos=32.0, v_neg=v_neg, dv=6.0, r2=r2, c2=c2, cycles=60)
     ref_p, ref_n = _last(ev, 0), _last(ev, 1)
-    a, b = diac.running_pair(vm=VM, omega=W, r1=r1, c1=c1, v_pos=32.0, v_neg=v_neg,
-                             breakback=6.0, r2=_nan(r2), c2=_nan(c2))
+    a, b, ok = diac.running_pair(vm=VM, omega=W, r1=r1, c1=c1, v_pos=32.0, v_neg=v_neg,
+                                 breakback=6.0, r2=_nan(r2), c2=_nan(c2))
+    assert ok
     assert float(a) == pytest.approx(ref_p, rel=5e-3)
     assert float(b) == pytest.approx(ref_n, rel=5e-3)
     th = np.linspace(0, 2 * math.pi, 2_000_001)
@@ -144,9 +145,9 @@ def test_no_state_when_it_dies_out():
     solver finds no running state in either half."""
     ev = simulate(380e3, 100e-9, v_pos=32.0, v_neg=30.0, dv=6.0, cycles=40)
     assert not ev or ev[-1][0] < 20
-    a, b = diac.running_pair(vm=VM, omega=W, r1=380e3, c1=100e-9, v_pos=32.0, v_neg=30.0,
-                             breakback=6.0)
-    assert np.isnan(a) and np.isnan(b)
+    a, b, ok = diac.running_pair(vm=VM, omega=W, r1=380e3, c1=100e-9, v_pos=32.0,
+                                 v_neg=30.0, breakback=6.0)
+    assert np.isnan(a) and np.isnan(b) and ok
 
 
 def test_dc_fraction_half_wave():

@@ -42,7 +42,7 @@ def with_(text: str = DIMMER, **repl: str) -> str:
 
 def test_range_pass_marginal_fail():
     """Worst corners: VBO 28–36 V, C 90–110 nF, line 207–253 V. Pot 0–200 k + 3.3 k: the
-    low end fires at 13.6° at worst (starting), the high end runs down to 72.9° at worst;
+    low end fires at 12.7° at worst, the high end runs down to 72.9° at worst (running);
     a target of 20°–70° is covered, 20°–72° within 2 % (marginal), 30°–120° is not."""
     ok = result(with_(**{TARGET: 'target = { min = "20 deg", max = "70 deg" }'}),
                 "diac.firing-range")
@@ -56,11 +56,17 @@ def test_range_pass_marginal_fail():
 
 
 def test_range_values_are_the_check_functions_at_the_worst_corner():
-    """The reported ends are checks.diac's angles at the corners that set them: the low end
-    at VBO 36 V, C 110 nF, 207 V (latest start); the high end at 28 V, 90 nF, 253 V."""
+    """The reported ends are checks.diac's running angles at the corners that set them: the
+    low end at VBO 36 V, C 110 nF, 207 V (latest); the high end at 28 V, 90 nF, 253 V
+    (earliest). The first half-cycle from off fires later (the starting angle)."""
     r = result(DIMMER, "diac.firing-range")
     lo = diac.firing_angle(vm=207 * 2**0.5, omega=2 * np.pi * 50, r1=3.3e3, c1=110e-9,
-                           vbo=36.0)
+                           vbo=36.0, breakback=6.0, running=True)
+    lo_start = diac.firing_angle(vm=207 * 2**0.5, omega=2 * np.pi * 50, r1=3.3e3, c1=110e-9,
+                                 vbo=36.0)
+    assert r.values["alpha_lo_start"].max == pytest.approx(math.degrees(float(lo_start)),
+                                                           rel=1e-9)
+    assert lo_start > lo
     hi = diac.firing_angle(vm=253 * 2**0.5, omega=2 * np.pi * 50, r1=203.3e3, c1=90e-9,
                            vbo=28.0, breakback=6.0, running=True)
     assert r.values["alpha_lo"].max == pytest.approx(math.degrees(float(lo)), rel=1e-9)
