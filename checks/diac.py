@@ -33,6 +33,7 @@ References
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
+from typing import Any
 
 import numpy as np
 
@@ -112,8 +113,9 @@ def _xss(s: Mapping[str, np.ndarray], th: np.ndarray) -> tuple[np.ndarray, np.nd
 def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                    vbo: np.ndarray, breakback: np.ndarray | float, alpha: np.ndarray,
                    r2: np.ndarray | float = np.nan,
-                   c2: np.ndarray | float = np.nan) -> np.ndarray:
-    """v_diac(α⁻) − VBO [V] in the periodic state that fires at α in every half-cycle.
+                   c2: np.ndarray | float = np.nan, start: bool = False) -> Any:
+    """v_diac(α⁻) − VBO [V] in the periodic state that fires at α in every half-cycle, once
+    (``start``: the state x(0) at the positive zero instead, as two arrays).
 
     The network sits across the triac: it sees Vm·sin θ on [0, α) and nothing while the triac
     conducts, (α, π) (a resistive load's current ends at the line zero). At α the diac drops
@@ -123,7 +125,9 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     x(0) = (I + Φ(π))⁻¹·[Φ(π)·xs(0) − Φ(π − α)·(xs(α) − ΔV·e₂)],
     x(α⁻) = xs(α) + Φ(α)·(x(0) − xs(0)).
 
-    The firing angle of the running state is the first root in α of this excess.
+    The firing angle of the running state is the first root in α of this excess. It holds
+    while the diac fires once per half-cycle; where C1 brings C2 back up to VBO after the
+    breakback (a double section can), :func:`periodic_running` follows the refirings.
     """
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     alpha = as_array(alpha)
@@ -139,6 +143,8 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     det = m11 * m22 - m12 * m21
     x01 = (m22 * w1 - m12 * w2) / det
     x02 = (m11 * w2 - m21 * w1) / det
+    if start:
+        return x01, x02
     p11, p12, p21, p22 = _phi(s, alpha)
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
 
@@ -197,10 +203,12 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
                  c2: np.ndarray | float = np.nan
-                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
-    half-cycles; NaN: that half does not fire; and a mask of the rows resolved (False: no
-    consistent state was found, the angles are not to be trusted).
+    half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
+    consistent state was found, not to be trusted); the mean load voltage over Vm
+    (:func:`dc_fraction`; over the whole pattern where a double section refires in a pattern
+    longer than one cycle).
 
     From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
     method on the two equations of :func:`pair_excess` (Jacobian by central differences of
@@ -264,7 +272,200 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
             b = np.where(bad, np.nan, b)
         else:
             bad = np.zeros(shape, dtype=bool)
-    return a, b, ~bad
+        dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+        live = dbl & (np.isfinite(a) | np.isfinite(b))
+        if live.any():
+            # A double section may refire within a half-cycle: follow it where it does.
+            guess = np.where(np.isfinite(a), a, np.where(np.isfinite(b), b, np.pi / 2))
+            x1, x2 = running_excess(vbo=kw["v_pos"], breakback=kw["breakback"], alpha=guess,
+                                    start=True, **{k: kw[k] for k in ("vm", "omega", "r1",
+                                                                      "c1", "r2", "c2")})
+            s = _system(**{k: kw[k] for k in ("vm", "r1", "c1", "omega", "r2", "c2")})
+            _, m1, m2, n1, _ = _half_map(s, x1, x2, kw["v_pos"], kw["breakback"])
+            _, _, _, n2, _ = _half_map(s, m1, m2, kw["v_neg"], kw["breakback"])
+            redo = live & ((n1 > 0) | (n2 > 0))
+            if redo.any():
+                st = periodic_running(x1=x1, x2=x2, **kw)
+                a = np.where(redo, st["alpha_pos"], a)
+                b = np.where(redo, st["alpha_neg"], b)
+                bad = bad | (redo & ~st["resolved"])
+                dc = np.where(redo, st["dc"], dc_fraction(a, b))
+                return a, b, ~bad, dc
+    return a, b, ~bad, dc_fraction(a, b)
+
+
+_REFIRE_MAX = 16  # refirings within one half-cycle followed at most (then: not trusted)
+
+
+def _root_in(f: Callable[[np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+             grid: int = 32, steps: int = 14) -> np.ndarray:
+    """The first θ in (lo, hi] where f(θ) ≥ 0, per row; NaN without one. ``f`` takes θ with
+    a trailing axis of grid points (or of one point).
+
+    A grid of ``grid`` points brackets the first sign change, then the Illinois variant of
+    false position narrows every row's bracket together (``steps`` steps: superlinear, below
+    1e-12 rad from a bracket of π/32 for these smooth exponentials).
+    """
+    u = np.linspace(0.0, 1.0, grid + 1)[1:]
+    th = lo[..., None] + (hi - lo)[..., None] * u
+    vals = f(th)
+    up = vals >= 0
+    has = up.any(axis=-1)
+    i = np.argmax(up, axis=-1)[..., None]
+    b = np.take_along_axis(th, i, axis=-1)[..., 0]
+    fb = np.take_along_axis(vals, i, axis=-1)[..., 0]
+    first = i[..., 0] == 0
+    a = np.where(first, lo, np.take_along_axis(th, np.maximum(i - 1, 0), axis=-1)[..., 0])
+    fa = np.where(first, f(lo[..., None])[..., 0],
+                  np.take_along_axis(vals, np.maximum(i - 1, 0), axis=-1)[..., 0])
+    fa = np.where(fa >= 0, -1e-300, fa)  # a root at lo itself: keep the bracket's sign
+    side = np.zeros(a.shape, dtype=int)
+    for _ in range(steps):
+        x = np.where(fb != fa, b - fb * (b - a) / (fb - fa), 0.5 * (a + b))
+        x = np.where((x > a) & (x < b), x, 0.5 * (a + b))
+        fx = f(x[..., None])[..., 0]
+        pos = fx >= 0
+        # Illinois: halve the retained end's value when the same end is kept twice.
+        fa = np.where(pos & (side == 1), 0.5 * fa, fa)
+        fb = np.where(~pos & (side == -1), 0.5 * fb, fb)
+        b, fb = np.where(pos, x, b), np.where(pos, fx, fb)
+        a, fa = np.where(pos, a, x), np.where(pos, fa, fx)
+        side = np.where(pos, 1, -1)
+    return np.where(has, b, np.nan)
+
+
+def _half_map(s: Mapping[str, np.ndarray], x1: np.ndarray, x2: np.ndarray,
+              level: np.ndarray, dv: np.ndarray
+              ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """One half-cycle from the state (x1, x2) at its zero, in the frame of its own sign:
+    (α, the next half-cycle's start state mirrored, number of refirings, trusted).
+
+    The line drives the network until the diac capacitor reaches ``level`` at α (NaN: it
+    does not, and the half-cycle runs undriven by the triac to its end); there the capacitor
+    drops by ΔV and the network, shorted by the triac, decays freely — and fires again each
+    time C1 brings C2 back up to the level (a double section can), until the line's zero.
+    """
+    zero = np.zeros_like(x1)
+    s10, s20 = _xss(s, zero)
+
+    def driven(th: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        c = {k: v[..., None] for k, v in s.items()}
+        p11, p12, p21, p22 = _phi(c, th)
+        a1, a2 = _xss(c, th)
+        d1, d2 = (x1 - s10)[..., None], (x2 - s20)[..., None]
+        return a1 + p11 * d1 + p12 * d2, a2 + p21 * d1 + p22 * d2
+
+    lvl = level[..., None]
+    alpha = _root_in(lambda th: driven(th)[1] - lvl, zero, zero + np.pi)
+    fired = np.isfinite(alpha)
+    at = np.where(fired, alpha, np.pi)
+    y1, y2 = (v[..., 0] for v in driven(at[..., None]))
+    y2 = np.where(fired, y2 - dv, y2)
+    t_k = at.copy()
+    n = np.zeros(x1.shape, dtype=int)
+    trusted = np.ones(x1.shape, dtype=bool)
+    for _ in range(_REFIRE_MAX):
+        c = {k: v[..., None] for k, v in s.items()}
+        a, b = y1[..., None], y2[..., None]
+        tk = t_k[..., None]
+
+        def free2(th: np.ndarray, c: dict = c, a: np.ndarray = a, b: np.ndarray = b,
+                  tk: np.ndarray = tk) -> np.ndarray:
+            _, _, p21, p22 = _phi(c, th - tk)
+            return p21 * a + p22 * b - lvl
+
+        again = _root_in(free2, t_k, zero + np.pi) if fired.any() else np.full(x1.shape,
+                                                                                 np.nan)
+        again = np.where(fired & (t_k < np.pi), again, np.nan)
+        hit = np.isfinite(again)
+        if not hit.any():
+            break
+        p11, p12, p21, p22 = _phi(s, np.where(hit, again, t_k) - t_k)
+        y1, y2 = (np.where(hit, p11 * y1 + p12 * y2, y1),
+                  np.where(hit, p21 * y1 + p22 * y2 - dv, y2))
+        t_k = np.where(hit, again, t_k)
+        n = n + hit
+    else:
+        trusted = ~hit
+    p11, p12, p21, p22 = _phi(s, np.pi - t_k)
+    e1, e2 = p11 * y1 + p12 * y2, p21 * y1 + p22 * y2
+    return alpha, -e1, -e2, n, trusted
+
+
+def periodic_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                     v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                     x1: np.ndarray, x2: np.ndarray, r2: np.ndarray | float = np.nan,
+                     c2: np.ndarray | float = np.nan, steps: int = 6, settle: int = 40,
+                     history: int = 24) -> dict[str, np.ndarray]:
+    """The running state with refirings, from a first guess (x1, x2) of the state at the
+    positive zero: ``alpha_pos``, ``alpha_neg`` [rad], ``refires`` (most in a half-cycle),
+    ``periodic`` (one cycle repeats), ``dc`` (the mean load voltage over Vm, per
+    :func:`dc_fraction`) and ``resolved``.
+
+    The cycle map (two :func:`_half_map` in turn, levels v_pos and v_neg) is affine while the
+    firings keep their order, so Newton's method on x − map(x) with a finite-difference
+    Jacobian (steps of 1e-6·VBO) lands on the fixed point once the order has settled. Where
+    it does not converge (residual above 1e-8·VBO) the order of refirings changes from cycle
+    to cycle — the circuit fires in a pattern longer than one cycle: the map itself is then
+    run for ``settle`` cycles and the next ``history`` cycles are kept; ``dc`` is their mean,
+    the angles those of the earliest cycle kept, ``periodic`` False.
+    """
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
+                                                         breakback, x1, x2, r2, c2)))
+
+    def c(x: np.ndarray | float) -> np.ndarray:
+        return np.array(np.broadcast_to(as_array(x), shape), dtype=float).ravel()
+
+    p = {k: c(v) for k, v in (("vm", vm), ("r1", r1), ("c1", c1), ("omega", omega),
+                              ("r2", r2), ("c2", c2))}
+    vp, vn, dv = c(v_pos), c(v_neg), c(breakback)
+    x, y = c(x1), c(x2)
+
+    def cycle(a: np.ndarray, b: np.ndarray, sel: np.ndarray | None = None
+              ) -> tuple[np.ndarray, ...]:
+        q = {k: v if sel is None else v[sel] for k, v in p.items()}
+        lv_p, lv_n, d = (v if sel is None else v[sel] for v in (vp, vn, dv))
+        s = _system(**q)
+        ap, m1, m2, n1, t1 = _half_map(s, a, b, lv_p, d)
+        an, e1, e2, n2, t2 = _half_map(s, m1, m2, lv_n, d)
+        return e1, e2, ap, an, np.maximum(n1, n2), t1 & t2
+
+    with np.errstate(all="ignore"):
+        h = 1e-6 * vp
+        for _ in range(steps):
+            f1, f2, *_ = cycle(x, y)
+            g1, g2 = x - f1, y - f2
+            a1, a2, *_ = cycle(x + h, y)
+            b1, b2, *_ = cycle(x, y + h)
+            j11, j21 = 1 - (a1 - f1) / h, -(a2 - f2) / h
+            j12, j22 = -(b1 - f1) / h, 1 - (b2 - f2) / h
+            det = j11 * j22 - j12 * j21
+            x = x - (j22 * g1 - j12 * g2) / det
+            y = y - (j11 * g2 - j21 * g1) / det
+        f1, f2, ap, an, n, ok = cycle(x, y)
+        periodic = ok & (np.abs(f1 - x) <= 1e-8 * vp) & (np.abs(f2 - y) <= 1e-8 * vp)
+        dc = dc_fraction(ap, an)
+        resolved = periodic.copy()
+        idx = np.flatnonzero(~periodic)
+        if idx.size:
+            u, w = f1[idx], f2[idx]
+            for _ in range(settle):
+                u, w, *_ = cycle(u, w, idx)
+            total = np.zeros(idx.size)
+            good = np.ones(idx.size, dtype=bool)
+            first: tuple[np.ndarray, ...] = ()
+            for k in range(history):
+                u, w, a_p, a_n, nk, tk = cycle(u, w, idx)
+                total += dc_fraction(a_p, a_n)
+                good &= tk & np.isfinite(u) & np.isfinite(w)
+                if k == 0:
+                    first = (a_p, a_n, nk)
+            ap[idx], an[idx], n[idx] = first
+            dc[idx] = total / history
+            resolved[idx] = good
+    out = {"alpha_pos": ap, "alpha_neg": an, "refires": n, "periodic": periodic, "dc": dc,
+           "resolved": resolved}
+    return {k: v.reshape(shape) for k, v in out.items()}
 
 
 _GRID = 96  # bracketing points over the half-cycle for the running firing angle
@@ -336,7 +537,25 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
                                   breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2))
 
         with np.errstate(all="ignore"):
-            return _first_root(g, shape)
+            alpha = _first_root(g, shape)
+            dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if not (dbl & np.isfinite(alpha)).any():
+                return alpha  # a single section never fires twice in a half-cycle
+            kw = {k: np.broadcast_to(as_array(x), shape) for k, x in
+                  (("vm", vm), ("omega", omega), ("r1", r1), ("c1", c1), ("r2", r2),
+                   ("c2", c2))}
+            dv = np.broadcast_to(as_array(breakback), shape)
+            lv = np.broadcast_to(as_array(vbo), shape)
+            x1, x2 = running_excess(vbo=lv, breakback=dv, alpha=np.where(
+                np.isfinite(alpha), alpha, np.pi / 2), start=True, **kw)
+            s = _system(**{k: kw[k] for k in ("vm", "r1", "c1", "omega", "r2", "c2")})
+            _, _, _, n, _ = _half_map(s, x1, x2, lv, dv)
+            redo = dbl & np.isfinite(alpha) & (n > 0)
+            if not redo.any():
+                return alpha
+            st = periodic_running(v_pos=lv, v_neg=lv, breakback=dv, x1=x1, x2=x2, **kw)
+            # A pattern longer than a cycle has no one angle: not trusted (NaN).
+            return np.where(redo, np.where(st["periodic"], st["alpha_pos"], np.nan), alpha)
     g_, psi = network(r1=r1, c1=c1, omega=omega, r2=r2, c2=c2)
     return crossing(vm=vm, gain=g_, lag=psi, level=as_array(vbo))
 
@@ -549,7 +768,7 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
                    c1: np.ndarray, vbo: np.ndarray, asymmetry: np.ndarray,
                    breakback: np.ndarray, limits: Mapping[str, float],
                    r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                   load_r: np.ndarray | float = np.nan, points: int = 49) -> Outcome:
+                   load_r: np.ndarray | float = np.nan, points: int = 0) -> Outcome:
     """``diac.symmetry``: the DC component a VBO asymmetry puts on the load.
 
     One half-cycle fires at VBO, the other at VBO − asymmetry (the datasheet's largest
@@ -565,6 +784,8 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
+    if points <= 0:  # a double section refires: each point costs more, take fewer
+        points = 25 if _double(as_array(r2), as_array(c2)).any() else 49
     t = np.linspace(0.0, 1.0, points)
     rl, rh = as_array(r_lo), as_array(r_hi)
     ln_lo, ln_hi = np.log(np.maximum(rl, 1.0)), np.log(np.maximum(rh, 1.0))
@@ -573,10 +794,11 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     def col(x: np.ndarray | float) -> np.ndarray:
         return as_array(x)[..., None]
 
-    a_pos, a_neg, trusted = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
+    a_pos, a_neg, trusted, dc_mean = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
                                 v_pos=col(vbo), v_neg=col(vbo) - np.abs(col(asymmetry)),
                                 breakback=col(breakback), r2=col(r2), c2=col(c2))
-    dc = np.where(trusted, np.abs(dc_fraction(a_pos, a_neg)), np.nan)
+    dc = np.where(trusted, np.abs(dc_mean), np.nan)
+    grid = np.broadcast_to(grid, dc.shape)
     worst = np.argmax(dc, axis=-1)
     take = np.take_along_axis
     dcw = take(dc, worst[..., None], axis=-1)[..., 0]

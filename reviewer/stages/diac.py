@@ -217,7 +217,9 @@ register(CheckDef(
            "crossing of VBO, α = ψ + asin(VBO/(Vm·G)). Running (firing every half-cycle, the "
            "network shorted while the triac conducts, the capacitor dropped by ΔV at each "
            "firing) the periodic state is solved in closed form and α found as its first "
-           "root over the half-cycle (grid bracket + bisection). The ends are the running "
+           "root over the half-cycle (grid bracket + bisection); a second section that "
+           "brings C2 back to VBO refires within the half-cycle, followed by Newton's method "
+           "on the cycle map. The ends are the running "
            "angles (the state the load is in); every setting must also start from off.",
     source="GE SCR Manual 6th ed. ch. 9 (diac–RC phase control) — from memory; Maloney, "
            "Modern Industrial Electronics 5th ed. ch. 7 — from memory; checked against "
@@ -406,7 +408,9 @@ register(CheckDef(
     method="One half-cycle fires at VBO, the other at VBO − the asymmetry; the running state "
            "over the whole cycle (each half an affine map of its starting state) is solved by "
            "Newton's method for the two angles; mean load voltage (cos α₊ − cos α₋)/(2π)·Vm, "
-           "the largest over 49 pot settings; a half that no longer fires is a half-wave.",
+           "the largest over 49 pot settings (25 with a second section, whose refirings are "
+           "followed, averaged over the pattern where it is longer than a cycle); a half "
+           "that no longer fires is a half-wave.",
     source="Rashid, Power Electronics 4th ed. §10 (AC switch output); GE SCR Manual 6th ed. "
            "ch. 9 (diac symmetry) — from memory; checked against solve_ivp",
     fn=_fn_symmetry, bind=_bind_symmetry,

@@ -19,6 +19,8 @@ from reviewer.errors import ProjectError
 from reviewer.project import load_project_text
 from reviewer.registry import Bound, Context
 from reviewer.stages import diac as diac_stage
+from tests.reviewer.test_spice import needs_ngspice
+from tests.reviewer.test_spice import simulate as spice_run
 
 DIMMER_PATH = Path(__file__).resolve().parents[1] / "projects" / "lamp-dimmer.toml"
 DIMMER = DIMMER_PATH.read_text("utf-8")
@@ -202,12 +204,30 @@ def test_report_html_and_markdown(tmp_path):
     assert "diac.snap-on" in md.read_text("utf-8")
 
 
-def test_spice_export_refuses_clearly(capsys):
-    code = main(["export", "--spice", "trigger", str(DIMMER_PATH)])
-    err = capsys.readouterr().err
-    if code == 0:
-        return
-    assert code == 2 and "diac-rc" in err
+@needs_ngspice
+@pytest.mark.parametrize("second", ["", 'r2 = "15 kohm"\nc2 = "47 nF"'])
+def test_spice_netlist_fires_at_the_running_angle(tmp_path, second):
+    """ngspice (an independent circuit simulator) runs the exported netlist for 10 cycles:
+    the triac turns on, in the last positive half-cycle, at the running angle of
+    checks.diac at the nominal (pot at 100 k of 0–200 k) within 0.5 %; single and double
+    time constant."""
+    text = with_(**{'c = "100 nF +-10%"': 'c = "100 nF +-10%"\n' + second})
+    path = tmp_path / "d.toml"
+    path.write_text(text, "utf-8")
+    out = tmp_path / "d.cir"
+    assert main(["export", "--spice", "trigger", str(path), "-o", str(out)]) == 0
+    deck = out.read_text("utf-8")
+    assert "DIACSW" in deck and "TRIACSW" in deck
+    data = spice_run(deck, "v(line) v(mt2)", tmp_path)
+    t, vl, vm = data[:, 0], data[:, 1], data[:, 2]
+    on = (np.abs(vm) < 5.0) & (vl > 10.0)
+    starts = t[1:][on[1:] & ~on[:-1]]
+    w = 2 * np.pi * 50
+    alpha = float((w * starts[-1]) % (2 * np.pi))
+    kw = {"r2": 15e3, "c2": 47e-9} if second else {}
+    ref = diac.firing_angle(vm=230 * 2**0.5, omega=w, r1=103.3e3, c1=100e-9, vbo=32.0,
+                            breakback=6.0, running=True, **kw)
+    assert alpha == pytest.approx(float(ref), rel=5e-3)
 
 
 def test_workbook_opens_the_project(tmp_path):
