@@ -37,6 +37,7 @@ from typing import Any
 
 import numpy as np
 
+from checks import triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 
 _BISECT = 44  # halvings of the log-R bracket (1 Ω … 1 GΩ): 1e-12 relative
@@ -600,21 +601,6 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
     return np.where(ok_lo, np.exp(0.5 * (lo + hi)), np.nan)
 
 
-def _cold(v: np.ndarray, t_min: np.ndarray, v_cold: np.ndarray, t_cold: np.ndarray,
-          k: float) -> np.ndarray:
-    return cold_value(v, t_min, v_cold=v_cold, t_cold=t_cold, k=k)
-
-
-def worst_igt(*, igt_q1: np.ndarray, igt_q3: np.ndarray) -> np.ndarray:
-    """The IGT a diac drive must supply: the larger of quadrants I and III (a diac's pulse
-    has the sign of the main-terminal voltage, so it fires in I and III only).
-
-    >>> float(worst_igt(igt_q1=10e-3, igt_q3=25e-3))
-    0.025
-    """
-    return np.maximum(as_array(igt_q1), as_array(igt_q3))
-
-
 def _grade_max(value: np.ndarray, limit: np.ndarray | float,
                marginal_fraction: float) -> tuple[np.ndarray, np.ndarray]:
     """Grade a lower-is-better value against a maximum: margin = limit/value − 1; marginal
@@ -706,27 +692,36 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     return Outcome(values, margin, status)
 
 
-def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, vgt: np.ndarray,
-                     r_path: np.ndarray, igt_q1: np.ndarray, igt_q3: np.ndarray,
-                     t_min: np.ndarray, igt_q1_cold: np.ndarray, igt_q1_cold_at: np.ndarray,
-                     igt_q3_cold: np.ndarray, igt_q3_cold_at: np.ndarray,
+def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.ndarray,
+                     igt_q1: np.ndarray, igt_q3: np.ndarray, vgt_q1: np.ndarray,
+                     vgt_q3: np.ndarray, t_min: np.ndarray, igt_q1_cold: np.ndarray,
+                     igt_q3_cold: np.ndarray, vgt_q1_cold: np.ndarray,
+                     vgt_q3_cold: np.ndarray, cold_at: np.ndarray,
                      limits: Mapping[str, float],
                      i_pulse: np.ndarray | float = np.nan) -> Outcome:
     """``diac.gate-pulse``: the pulse the diac's breakback drives into the triac's gate.
 
     The capacitor (c_diac [F]) drops by ΔV (breakback [V]) into the gate: charge C·ΔV, peak
     current I = (ΔV − VGT)/R_path (r_path [Ω]: series resistor plus the diac's on
-    resistance), decaying with R_path·C; its width above IGT is R_path·C·ln(I/IGT). IGT is the
-    worse of quadrants I and III at the coldest ambient (t_min [K]; cold data, else the
-    common-practice factor 2 at −40 °C pro rata). Metric I/IGT_cold graded with
-    ``fail_below``/``marginal_below``; a peak above the diac's pulse rating ``i_pulse`` [A]
-    fails.
+    resistance), decaying with R_path·C; its width above IGT is R_path·C·ln(I/IGT). IGT and
+    VGT are those of the worse of quadrants I and III (a diac's pulse follows MT2's sign:
+    :func:`checks.triac.quadrants` "ac") at the coldest ambient (t_min [K]; the cold table at
+    ``cold_at`` [K], NaN: the common-practice factors at −40 °C pro rata, IGT ×2, VGT ×1.5).
+    Metric I/IGT_cold graded with ``fail_below``/``marginal_below``; a peak above the diac's
+    pulse rating ``i_pulse`` [A] fails.
     """
-    k = float(limits.get("cold_factor", 2.0))
-    igt = worst_igt(igt_q1=_cold(igt_q1, t_min, igt_q1_cold, igt_q1_cold_at, k),
-                    igt_q3=_cold(igt_q3, t_min, igt_q3_cold, igt_q3_cold_at, k))
+    used = triac.quadrants("ac")
+    raw_i = {"q1": igt_q1, "q3": igt_q3}
+    raw_v = {"q1": vgt_q1, "q3": vgt_q3}
+    cold_i = {"q1": igt_q1_cold, "q3": igt_q3_cold}
+    cold_v = {"q1": vgt_q1_cold, "q3": vgt_q3_cold}
+    ic = {q: cold_value(raw_i[q], t_min, v_cold=cold_i[q], t_cold=cold_at, k=triac.K_IGT)
+          for q in used}
+    vc = {q: cold_value(raw_v[q], t_min, v_cold=cold_v[q], t_cold=cold_at, k=triac.K_VGT)
+          for q in used}
+    igt, vgt, idx = triac.worst_igt(used=used, igt=ic, vgt=vc)
     dv = as_array(breakback)
-    drive = np.maximum(dv - as_array(vgt), 0.0)
+    drive = np.maximum(dv - vgt, 0.0)
     with np.errstate(divide="ignore", invalid="ignore"):
         i_pk = drive / as_array(r_path)
         ratio = i_pk / igt
@@ -742,7 +737,8 @@ def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, vgt: np.ndarr
     with np.errstate(divide="ignore", invalid="ignore"):
         margin = np.where(rated, np.minimum(margin, ip / i_pk - 1.0), margin)
     status = np.where(over, FAIL, status).astype(np.int8)
-    values = {"peak_current": i_pk, "igt_cold": igt, "charge": as_array(c_diac) * dv,
+    values = {"peak_current": i_pk, "igt_cold": igt, "vgt_cold": vgt,
+              "quadrant": np.where(idx == 0, 1.0, 3.0), "charge": as_array(c_diac) * dv,
               "width": width, "drive_ratio": ratio}
     if rated.any():
         values["i_pulse"] = np.broadcast_to(ip, np.shape(i_pk))

@@ -149,16 +149,13 @@ KEY: dict[str, Bounds] = {
     "parts.put.offset": _b(1e-3, 100.0, 0.1, 2.0),
     "parts.put.vv": _b(1e-3, 100.0, 0.1, 10.0),
     "parts.put.vf": _b(1e-3, 100.0, 0.3, 5.0),
-    # diac and triac gate data
+    # diac
     "parts.diac.vbo": _b(1e-3, 1e4, 10.0, 100.0),
     "parts.diac.breakback": _b(1e-3, 1e3, 1.0, 30.0),
     "parts.diac.vbo_asymmetry": _b(0.0, 1e3, 0.0, 10.0),
     "parts.diac.ibo": _b(1e-12, 10.0, 1e-9, 1e-3),
     "parts.diac.i_pulse": _b(1e-6, 1e3, 0.1, 10.0),
     "parts.diac.r_on": _b(0.0, 1e6, 0.0, 1e3),
-    "parts.triac.igt_q1": _b(1e-9, 100.0, 1e-6, 1.0),
-    "parts.triac.igt_q3": _b(1e-9, 100.0, 1e-6, 1.0),
-    "parts.triac.vgt": _b(1e-3, 100.0, 0.1, 5.0),
     # diac-RC trigger
     "stages.diac-rc.pot": _b(0.0, 1e10, 0.0, 10e6),
     "stages.diac-rc.series_r": _b(0.0, 1e10, 0.0, 10e6),

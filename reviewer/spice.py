@@ -539,8 +539,8 @@ def _diac_rc(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
     d, t = str(stage.get("diac")), str(stage.get("triac"))
     dp, tp = f"parts.{d}.", f"parts.{t}."
     vbo, dv = v(dp + "vbo"), v(dp + "breakback")
-    igt = max(v(tp + "igt_q1"), v(tp + "igt_q3"))
-    vgt = v(tp + "vgt")
+    q = "q3" if v(tp + "igt_q3") >= v(tp + "igt_q1") else "q1"  # a diac fires I and III
+    igt, vgt = v(tp + f"igt_{q}"), v(tp + f"vgt_{q}")
     ih = v(tp + "ih", 1e-3) if project.parts[t].params.get("ih") is not None else 1e-3
     r1 = v(sp + "pot") + v(sp + "series_r", 0.0)
     r_load = v(sp + "load_r", 100.0)

@@ -263,9 +263,10 @@ def _sum_snap(r: Reduced) -> str:
             f"{_pot(r.nom['pot_off'])}; the largest jump {_deg(r.hi['jump'])} against "
             f"{limit:g}° allowed")
     if r.status != "pass":
-        text += ("; " + r.status + ": " + ("a larger C2 or a smaller R2 share more of C1's "
-                 "charge" if dbl else "a second RC section (R2–C2) restores most of the "
-                 "charge the firing takes") + ", a diac with a smaller breakback helps too")
+        text += ("; " + r.status + ": " + ("a smaller C2 against C1 or a larger R2 narrows "
+                 "it (then check diac.firing-range again)" if dbl else "a second RC section "
+                 "(R2–C2: C1 recharges C2 after each firing) narrows it") + "; a diac with "
+                 "a smaller breakback helps too")
     return text
 
 
@@ -286,7 +287,7 @@ register(CheckDef(
     summarise=_sum_snap,
     cautions=("A lamp or fan that snaps on at a large fraction of its power surprises the "
               "user; a motor load may not start below it either.",),
-    fix="Add a second RC section (R2–C2, C2 at most C1) or use a diac with a smaller "
+    fix="Add a second RC section (R2–C2, C2 below C1) or use a diac with a smaller "
         "breakback.",
     optional=frozenset({"jump", "alpha_start", "alpha_run", "snap_power", "pot_on",
                         "pot_off"}),
@@ -302,12 +303,19 @@ def _bind_pulse(ctx: Context) -> Bound:
     ctx.need(b, "breakback", f"parts.{d.ref}.breakback")
     c_key = "c2" if _double(ctx) else "c"
     ctx.need(b, "c_diac", ctx.stage_path(c_key))
-    ctx.need(b, "vgt", f"parts.{t.ref}.vgt")
-    for q in ("igt_q1", "igt_q3"):
-        ctx.need(b, q, f"parts.{t.ref}.{q}")
-        nan = Value.fixed(math.nan, "", "")
-        b.add(q + "_cold", f"parts.{t.ref}.cold.{q}#none", nan)
-        b.add(q + "_cold_at", f"parts.{t.ref}.cold.at#none", nan)
+    nan = Value.fixed(math.nan, "", "")
+    at = t.cold.get("at")
+    for key in ("igt_q1", "igt_q3", "vgt_q1", "vgt_q3"):
+        ctx.need(b, key, f"parts.{t.ref}.{key}")
+        cv = t.cold.get(key)
+        if cv is not None and at is not None:
+            b.add(key + "_cold", f"parts.{t.ref}.cold.{key}", cv)
+        else:
+            b.add(key + "_cold", f"parts.{t.ref}.cold.{key}#none", nan)
+    if at is not None:
+        b.add("cold_at", f"parts.{t.ref}.cold.at", at)
+    else:
+        b.add("cold_at", f"parts.{t.ref}.cold.at#none", nan)
     ctx.ambient_min(b)
     gr = ctx.read(b, "gate_r", ctx.stage_path("gate_r"))
     ron = ctx.read(b, "r_on", f"parts.{d.ref}.r_on")
@@ -320,8 +328,9 @@ def _bind_pulse(ctx: Context) -> Bound:
         b.notes.append("the diac's r_on not given: the path is the gate resistor alone "
                        "(a higher peak than the real one)")
     ctx.read(b, "i_pulse", f"parts.{d.ref}.i_pulse")
-    b.notes.append("IGT cold: the common-practice factor 2 at −40 °C, pro rata (no cold data "
-                   "for the triac's quadrants)")
+    if at is None:
+        b.notes.append("no cold table for the triac: IGT ×2 and VGT ×1.5 at −40 °C, pro rata "
+                       "(common practice)")
     return b
 
 
@@ -333,8 +342,9 @@ def _fn_pulse(**kw: Any) -> Outcome:
 def _sum_pulse(r: Reduced) -> str:
     text = (f"the breakback drives {eng(r.lo['peak_current'], 'A')} peak into the gate at "
             f"worst (charge {eng(r.lo['charge'], 'C')}, above IGT for "
-            f"{eng(r.lo['width'], 's')}) against IGT {eng(r.hi['igt_cold'], 'A')} (worse of "
-            f"quadrants I and III, cold): {r.lo['drive_ratio']:.3g}×")
+            f"{eng(r.lo['width'], 's')}) against IGT {eng(r.hi['igt_cold'], 'A')} (quadrant "
+            f"{'III' if r.hi['quadrant'] > 2 else 'I'}, the worse of I and III, cold): "
+            f"{r.lo['drive_ratio']:.3g}×")
     if "i_pulse" in r.hi:
         text += f"; the diac's pulse rating {eng(r.lo['i_pulse'], 'A')}"
     if r.status != "pass":
@@ -350,15 +360,17 @@ register(CheckDef(
     id="diac.gate-pulse", kinds=DIAC,
     question="Does the diac's pulse fire the triac in quadrants I and III at the coldest "
              "ambient?",
-    method="ΔV = the breakback; charge C·ΔV; peak I = (ΔV − VGT)/(gate R + the diac's r_on), "
+    method="ΔV = the breakback; charge C·ΔV; peak I = (ΔV − VGT)/(gate R + the diac's r_on) "
+           "with VGT of the quadrant that sets IGT, "
            "decaying with R·C, its width above IGT R·C·ln(I/IGT). IGT: the worse of "
            "quadrants I and III (a diac fires in those), cold. I/IGT graded like a gate "
            "drive; a peak above the diac's pulse rating fails.",
     source="GE SCR Manual 6th ed. ch. 4 and 9 (gate triggering, diac pulse) — from memory; "
-           "the common-practice 2× cold IGT at −40 °C",
+           "P. C. Sen, Power Electronics, ch. 2 (triac gate quadrants); the common-practice "
+           "cold factors at −40 °C (IGT ×2, VGT ×1.5)",
     fn=_fn_pulse, bind=_bind_pulse,
-    units={"peak_current": "A", "igt_cold": "A", "charge": "C", "width": "s",
-           "drive_ratio": "", "i_pulse": "A"},
+    units={"peak_current": "A", "igt_cold": "A", "vgt_cold": "V", "quadrant": "",
+           "charge": "C", "width": "s", "drive_ratio": "", "i_pulse": "A"},
     summarise=_sum_pulse,
     cautions=("The gate circuit is at mains potential: nothing on it may be touched or "
               "probed with an earthed instrument.",),

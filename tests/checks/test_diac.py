@@ -303,24 +303,33 @@ def test_snap_power_is_the_ac_switch_output():
 
 def test_gate_pulse_values():
     """ΔV = 6 V, VGT 1.3 V through 47 Ω: 100 mA peak; the capacitor's RC discharge stays above
-    IGT for R·C·ln(I/IGT) (the exponential decay, checked with solve_ivp)."""
-    kw = {"c_diac": 100e-9, "breakback": 6.0, "vgt": 1.3, "r_path": 47.0,
-          "igt_q1": 10e-3, "igt_q3": 15e-3, "t_min": 298.15, "igt_q1_cold": math.nan,
-          "igt_q1_cold_at": math.nan, "igt_q3_cold": math.nan, "igt_q3_cold_at": math.nan,
+    IGT for R·C·ln(I/IGT) (the exponential decay, checked with solve_ivp). Quadrant III's IGT
+    is the larger, so its VGT is the one taken."""
+    nan = math.nan
+    kw = {"c_diac": 100e-9, "breakback": 6.0, "r_path": 47.0, "igt_q1": 10e-3,
+          "igt_q3": 15e-3, "vgt_q1": 1.0, "vgt_q3": 1.3, "t_min": 298.15, "igt_q1_cold": nan,
+          "igt_q3_cold": nan, "vgt_q1_cold": nan, "vgt_q3_cold": nan, "cold_at": nan,
           "limits": {"fail_below": 1.0, "marginal_below": 2.0}}
     out = diac.gate_pulse_check(**kw)
     assert float(out.values["peak_current"]) == pytest.approx(4.7 / 47.0, rel=1e-12)
-    assert float(out.values["igt_cold"]) == 15e-3  # quadrant III is the worse at 25 °C
+    assert float(out.values["igt_cold"]) == 15e-3 and float(out.values["quadrant"]) == 3.0
     assert float(out.values["charge"]) == pytest.approx(0.6e-6, rel=1e-12)
     s = solve_ivp(lambda t, i: [-i[0] / (47.0 * 100e-9)], (0, 1e-4), [0.1], rtol=1e-12,
                   atol=1e-15, dense_output=True,
                   events=lambda t, i: i[0] - 15e-3)
     assert float(out.values["width"]) == pytest.approx(s.t_events[0][0], rel=1e-6)
     assert out.status.item() == 0
-    # −40 °C: IGT doubled; 4.7 V/100 Ω = 47 mA against 30 mA is 1.57×: marginal
+    # −40 °C: IGT ×2, VGT ×1.5 (common practice): (6 − 1.95) V/100 Ω = 40.5 mA against
+    # 30 mA is 1.35×: marginal
     cold = diac.gate_pulse_check(**{**kw, "t_min": 233.15, "r_path": 100.0})
     assert float(cold.values["igt_cold"]) == pytest.approx(30e-3)
+    assert float(cold.values["peak_current"]) == pytest.approx((6 - 1.95) / 100.0)
     assert cold.status.item() == 1
+    # A cold table at −40 °C is used instead of the factors.
+    table = diac.gate_pulse_check(**{**kw, "t_min": 233.15, "igt_q3_cold": 60e-3,
+                                     "vgt_q3_cold": 2.0, "cold_at": 233.15})
+    assert float(table.values["igt_cold"]) == pytest.approx(60e-3)
+    assert float(table.values["peak_current"]) == pytest.approx(4.0 / 47.0)
     weak = diac.gate_pulse_check(**{**kw, "r_path": 470.0})
     assert weak.status.item() == 2
     over = diac.gate_pulse_check(**{**kw, "r_path": 1.0, "i_pulse": 2.0})

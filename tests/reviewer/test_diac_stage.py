@@ -114,9 +114,10 @@ def test_snap_on_fail_single_pass_double():
 # ---------------------------------------------------------------------------- gate pulse
 
 def test_gate_pulse_pass_marginal_fail_and_incomplete():
-    """(6 − 1.3) V through 47 Ω is 100 mA against IGT(III) 15 mA × 1.54 at −10 °C = 23 mA:
-    pass; 120 Ω gives 39 mA, 1.7×: marginal; 330 Ω 14 mA: fail. No gate_r and no r_on:
-    incomplete."""
+    """At −10 °C IGT(III) 15 mA × 1.54 = 23 mA and VGT 1.3 V × 1.27 = 1.65 V (the common-
+    practice factors, pro rata): (6 − 1.65) V through 47 Ω is 92.6 mA: pass; 120 Ω gives
+    36 mA, 1.57×: marginal; 330 Ω 13 mA: fail. No gate_r and no r_on: incomplete. A cold
+    table for the triac replaces the factors."""
     assert result(DIMMER, "diac.gate-pulse").status == "pass"
     m = result(with_(**{'gate_r = "47 ohm"': 'gate_r = "120 ohm"'}), "diac.gate-pulse")
     assert m.status == "marginal", m.summary
@@ -126,6 +127,13 @@ def test_gate_pulse_pass_marginal_fail_and_incomplete():
     assert i.status == "incomplete" and "gate_r" in i.summary
     over = result(with_(**{'gate_r = "47 ohm"': 'gate_r = "1 ohm"'}), "diac.gate-pulse")
     assert over.status == "fail" and "pulse rating" in over.summary
+    r = result(DIMMER, "diac.gate-pulse")
+    assert r.values["peak_current"].min == pytest.approx((6 - 1.3 * (1 + 0.5 * 35 / 65)) / 47)
+    cold = with_(**{'vgt_q4 = "1.5 V"': 'vgt_q4 = "1.5 V"\n'
+                    'cold = { at = "-40 degC", igt_q3 = "45 mA", vgt_q3 = "1.6 V" }'})
+    c = result(cold, "diac.gate-pulse")
+    # 15 mA at 25 °C to 45 mA at −40 °C: 35/65 of the way at −10 °C is 31.2 mA
+    assert c.values["igt_cold"].max == pytest.approx(15e-3 + 30e-3 * 35 / 65)
 
 
 # ---------------------------------------------------------------------------- symmetry
