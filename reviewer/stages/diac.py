@@ -107,28 +107,71 @@ def _net(kw: dict[str, Any], prefix: str = "") -> dict[str, Any]:
     return out
 
 
-def bind_firing(ctx: Context, b: Bound, stage: Stage, *, sweep: int = 0) -> None:
+def bind_firing(ctx: Context, b: Bound, stage: Stage, *, sweep: int = 0,
+                extra: tuple[float, ...] = ()) -> None:
     """Add the inputs of the firing range a power stage takes from diac-rc ``stage``.
 
-    The pot is swept (``sweep`` points, for a per-row angle) besides its ends; the inputs are
-    prefixed ``dt_`` (and ``vs``, ``freq``); option ``diac_trigger`` marks them for
-    :func:`firing_from`. The stage's own diac.firing-range is the premise.
+    The pot is swept (``sweep`` points, for a per-row angle) besides its ends, and where
+    ``extra`` angles [rad] are asked for (α = 90°, where currents and losses peak) the pot
+    settings that fire there at each combination of the other inputs' ends are added to the
+    sweep. The inputs are prefixed ``dt_`` (the line is ``vs``/``freq``); option
+    ``diac_trigger`` marks them for :func:`firing_from`. The angles are the running state's.
+    A corner that does not fire gives NaN angles, which no check passes.
     """
-    b.depends.append((stage.id, "diac.firing-range"))
+    had_vs, had_f = "vs" in b.inputs, "freq" in b.inputs
     _bind_network(ctx, b, stage, prefix="dt_", pot="swept", sweep=max(sweep, 2) if sweep
                   else 0)
-    if "dt_freq" in b.inputs:
+    if not had_vs:
+        b.options["firing_vs_only"] = True
+    if not had_f:
         b.options["firing_freq_only"] = True
     b.options["diac_trigger"] = True
     b.notes.append(f"firing range from the diac-RC trigger `{stage.id}` (the running state)")
+    pot = b.inputs["dt_pot"].value
+    if sweep and extra and pot.varies:
+        b.inputs["dt_pot"].extra = _pot_at_angles(b, extra)
+
+
+def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
+    """The pot settings inside its range that fire at ``angles`` (running), for every
+    combination of the other inputs' ends: vectorised bisection (the angle rises with R)."""
+    fixed = ("dt_pot", "dt_pot_lo", "dt_pot_hi")
+    names = [n for n in b.inputs if n.startswith("dt_") and n not in fixed] + ["vs"]
+    if "freq" in b.inputs:
+        names.append("freq")
+    ends = [np.unique([b.inputs[n].value.lo, b.inputs[n].value.hi]) for n in names]
+    grid = dict(zip(names, (g.ravel() for g in np.meshgrid(*ends, indexing="ij")),
+                    strict=True))
+    f = grid.get("freq", grid.get("dt_freq"))
+    pot = b.inputs["dt_pot"].value
+    out: list[float] = []
+    for target in angles:
+        lo = np.full(grid["vs"].shape, pot.lo)
+        hi = np.full(grid["vs"].shape, pot.hi)
+        for _ in range(40):
+            mid = 0.5 * (lo + hi)
+            with np.errstate(all="ignore"):
+                a = diac.firing_angle(
+                    vm=np.sqrt(2.0) * grid["vs"], omega=2 * np.pi * f,
+                    r1=mid + grid["dt_series_r"], c1=grid["dt_c1"], vbo=grid["dt_vbo"],
+                    breakback=grid["dt_breakback"], running=True,
+                    r2=grid.get("dt_r2", np.nan), c2=grid.get("dt_c2", np.nan))
+            late = ~(a < target)
+            hi = np.where(late, mid, hi)
+            lo = np.where(late, lo, mid)
+        x = 0.5 * (lo + hi)
+        inside = (x > pot.lo + 1e-9 * pot.hi) & (x < pot.hi * (1 - 1e-9))
+        out += [float(v) for v in x[inside]]
+    return tuple(sorted(set(out)))
 
 
 def firing_from(kw: dict[str, Any]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Pop :func:`bind_firing`'s inputs from ``kw``: (α per row, α at the pot's low end, α at
     its high end) [rad], the running firing angles (NaN: no firing there)."""
     kw.pop("diac_trigger")
+    vs = kw.pop("vs") if kw.pop("firing_vs_only", False) else kw["vs"]
     freq = kw.pop("dt_freq") if kw.pop("firing_freq_only", False) else kw["freq"]
-    vm = np.sqrt(2.0) * np.asarray(kw["vs"], dtype=float)
+    vm = np.sqrt(2.0) * np.asarray(vs, dtype=float)
     omega = 2 * np.pi * np.asarray(freq, dtype=float)
     net = _net(kw, "dt_")
     vbo, dv = kw.pop("dt_vbo"), kw.pop("dt_breakback")
