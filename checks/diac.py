@@ -200,23 +200,12 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
     return sa2 + p21 * (x1 - s10) + p22 * (x2 - s20) - as_array(v_pos if which == 0 else v_neg)
 
 
-def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
                  c2: np.ndarray | float = np.nan
                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
-    half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
-    consistent state was found, not to be trusted); the mean load voltage over Vm
-    (:func:`dc_fraction`; over the whole pattern where a double section refires in a pattern
-    longer than one cycle).
-
-    From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
-    method on the two equations of :func:`pair_excess` (Jacobian by central differences of
-    1e-7 rad, steps kept inside (0, π)), 8 steps for every row at once; a row whose residual
-    is then above 1e-9·VBO is NaN (not trusted). Where only one half fires at its own level,
-    that half is solved with the other not firing (the first root over its half-cycle).
-    """
+    """running_pair: see there (one block of rows)."""
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
                                                          breakback, r2, c2)))
 
@@ -299,12 +288,12 @@ _REFIRE_MAX = 16  # refirings within one half-cycle followed at most (then: not 
 
 
 def _root_in(f: Callable[[np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
-             grid: int = 32, steps: int = 14) -> np.ndarray:
+             grid: int = 32, steps: int = 20) -> np.ndarray:
     """The first θ in (lo, hi] where f(θ) ≥ 0, per row; NaN without one. ``f`` takes θ with
     a trailing axis of grid points (or of one point).
 
     A grid of ``grid`` points brackets the first sign change, then the Illinois variant of
-    false position narrows every row's bracket together (``steps`` steps: superlinear, below
+    false position narrows every row's bracket together (``steps`` steps: superlinear, about
     1e-12 rad from a bracket of π/32 for these smooth exponentials).
     """
     u = np.linspace(0.0, 1.0, grid + 1)[1:]
@@ -475,23 +464,82 @@ _GRID = 96  # bracketing points over the half-cycle for the running firing angle
 def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...]) -> np.ndarray:
     """The first α in (0, π) where g(α) turns non-negative, per row; NaN without one.
 
-    A grid of _GRID angles brackets the first sign change, then bisection narrows every row's
-    bracket together (60 halvings: below 1e-15 rad).
+    A grid of _GRID angles brackets the first sign change, then false position (Illinois)
+    narrows every row's bracket together (:func:`_root_in`).
     """
-    th = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
-    vals = g(np.broadcast_to(th, shape + th.shape))
-    up = vals >= 0
-    has = up.any(axis=-1)
-    i = np.argmax(up, axis=-1)
-    step = th[1] - th[0]
-    hi = th[i]
-    lo = np.where(i > 0, hi - step, 0.0)
-    for _ in range(60):
-        mid = 0.5 * (lo + hi)
-        pos = g(mid[..., None])[..., 0] >= 0
-        hi = np.where(pos, mid, hi)
-        lo = np.where(pos, lo, mid)
-    return np.where(has, 0.5 * (lo + hi), np.nan)
+    return _root_in(g, np.zeros(shape), np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+
+
+_BLOCK = 2048  # elements per block where a half-cycle grid rides on every row
+
+
+def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any]) -> Any:
+    """Call ``fn(**kw)`` on blocks of at most _BLOCK elements of the broadcast arrays
+    ``names`` (the rest passed as they are), so that the grid each row carries stays in
+    memory (a Monte Carlo chunk is thousands of rows); results are joined back in shape.
+    A loop over blocks, not rows."""
+    arrays = {n: as_array(kw[n]) for n in names if n in kw}
+    shape = np.broadcast_shapes(*(a.shape for a in arrays.values()))
+    size = int(np.prod(shape)) if shape else 1
+    if size <= _BLOCK:
+        return fn(**kw)
+    flat = {n: np.broadcast_to(a, shape).ravel() for n, a in arrays.items()}
+    parts = []
+    for start in range(0, size, _BLOCK):
+        sl = slice(start, start + _BLOCK)
+        parts.append(fn(**{**kw, **{n: a[sl] for n, a in flat.items()}}))
+    if isinstance(parts[0], tuple):
+        return tuple(np.concatenate([p[k] for p in parts]).reshape(shape)
+                     for k in range(len(parts[0])))
+    return np.concatenate(parts).reshape(shape)
+
+
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2")
+
+
+def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+    """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
+    the diac starts firing) or, with it firing every half-cycle, the first root of
+    :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
+
+    vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
+    the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
+
+    >>> round(float(np.degrees(firing_angle(vm=325.0, omega=2 * np.pi * 50, r1=100e3,
+    ...                                     c1=100e-9, vbo=32.0))), 2)
+    91.29
+    """
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
+          "running": running, "r2": r2, "c2": c2}
+    if not running:
+        return _firing_angle(**kw)
+    return _blocked(_firing_angle, _ANGLE_ARGS, kw)
+
+
+def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                 r2: np.ndarray | float = np.nan,
+                 c2: np.ndarray | float = np.nan
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
+    half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
+    consistent state was found, not to be trusted); the mean load voltage over Vm
+    (:func:`dc_fraction`; over the whole pattern where a double section refires in a pattern
+    longer than one cycle).
+
+    From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
+    method on the two equations of :func:`pair_excess` (Jacobian by central differences of
+    1e-7 rad, steps kept inside (0, π)), 8 steps for every row at once; a row whose residual
+    is then above 1e-9·VBO is NaN (not trusted). Where only one half fires at its own level,
+    that half is solved with the other not firing (the first root over its half-cycle). A
+    double section that refires within a half-cycle is then solved by
+    :func:`periodic_running` from that state. Rows are taken in blocks (:func:`_blocked`).
+    """
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "v_pos": v_pos, "v_neg": v_neg,
+          "breakback": breakback, "r2": r2, "c2": c2}
+    return _blocked(_running_pair, tuple(kw), kw)
 
 
 def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
@@ -512,20 +560,10 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
     return np.where((amp > level) & (a < np.pi), a, np.nan)
 
 
-def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
-    """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
-    the diac starts firing) or, with it firing every half-cycle, the first root of
-    :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
-
-    vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
-    the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
-
-    >>> round(float(np.degrees(firing_angle(vm=325.0, omega=2 * np.pi * 50, r1=100e3,
-    ...                                     c1=100e-9, vbo=32.0))), 2)
-    91.29
-    """
+    """firing_angle: see there (one block of rows)."""
     if running:
         shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
                                                              r2, c2)))
