@@ -285,11 +285,13 @@ register(CheckDef(
 
 def _bind_snap(ctx: Context) -> Bound:
     b = Bound()
-    _bind_network(ctx, b, pot="none")
+    _bind_network(ctx, b)  # the pot's ends only say whether its travel reaches the snap
     return b
 
 
 def _fn_snap(**kw: Any) -> Outcome:
+    kw.pop("pot_lo")
+    kw.pop("pot_hi")
     net = _net(kw)
     return diac.snap_on_check(vs=kw["vs"], freq=kw["freq"], c1=net["c1"], vbo=kw["vbo"],
                               breakback=kw["breakback"], series_r=net["series_r"],
@@ -305,6 +307,10 @@ def _sum_snap(r: Reduced) -> str:
             f"{r.nom['snap_power'] * 100:.3g} % of full power at once); it drops out only at "
             f"{_pot(r.nom['pot_off'])}; the largest jump {_deg(r.hi['jump'])} against "
             f"{limit:g}° allowed")
+    pot_hi = r.bound.inputs["pot_hi"].value.nom
+    if r.lo["pot_on"] > pot_hi:
+        text += (f"; the pot's travel (to {_pot(pot_hi)}) ends before it at every corner: "
+                 "turned to its end the load stays on (it needs a switch to go off)")
     if r.status != "pass":
         text += ("; " + r.status + ": " + ("a smaller C2 against C1 or a larger R2 narrows "
                  "it (then check diac.firing-range again)" if dbl else "a second RC section "
@@ -445,6 +451,10 @@ def _fn_symmetry(**kw: Any) -> Outcome:
 
 def _sum_symmetry(r: Reduced) -> str:
     limit = r.limits.get("max_dc_fraction", 0.01)
+    if not math.isfinite(r.hi["dc_fraction"]):
+        return ("fails: at some corners and pot settings no steady firing pattern was found, "
+                "so the DC component is not known; simulate the netlist (latchbook export "
+                "--spice) at those settings")
     text = (f"the VBO asymmetry fires the half-cycles up to "
             f"{_deg(abs(r.hi['alpha_pos'] - r.hi['alpha_neg']))} apart: a DC component of "
             f"{r.hi['dc_fraction'] * 100:.3g} % of Vm ({eng(r.hi['dc_voltage'], 'V')}) at "

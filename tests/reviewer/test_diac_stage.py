@@ -102,6 +102,10 @@ def test_snap_on_fail_single_pass_double():
     larger than C1 shares less) jumps 31.6° at worst, above 80 % of the limit: marginal."""
     single = result(DIMMER, "diac.snap-on")
     assert single.status == "fail" and "second RC section" in single.summary
+    # R_on is above 200 k at every corner: the pot never turns the lamp off.
+    assert single.values["pot_on"].min > 200e3 and "stays on" in single.summary
+    reach = result(with_(**{POT: 'pot = { min = "0 ohm", max = "400 kohm" }'}), "diac.snap-on")
+    assert "stays on" not in reach.summary
     double = with_(**{'c = "100 nF +-10%"': 'c = "100 nF +-10%"\nr2 = "15 kohm"\nc2 = "47 nF"'})
     r = result(double, "diac.snap-on")
     assert r.status == "pass", r.summary
@@ -307,6 +311,10 @@ def test_workbook_opens_the_project(tmp_path):
                 assert "Question" in body and "Method" in body
                 await pilot.press("v")
                 await pilot.pause()
+                if check == "diac.firing-range":  # the firing angle over the pot's travel
+                    text = screen_text(app)
+                    assert any(0x2801 <= ord(ch) <= 0x28FF for ch in text)
+                    assert "pot" in text
                 await pilot.press("escape")
                 await pilot.pause()
             app.session.close()
