@@ -77,6 +77,7 @@ def _system(*, vm: np.ndarray, r1: np.ndarray, c1: np.ndarray, omega: np.ndarray
     eigenvalues, so exp(A·θ) has Sylvester's closed form per row.
     """
     r1, c1, omega, r2, c2 = (as_array(x) for x in (r1, c1, omega, r2, c2))
+    r1 = np.maximum(r1, 1.0)  # a pot at 0 Ω with no series R: 1 Ω keeps exp(A·θ) finite
     dbl = _double(r2, c2)
     r2s, c2s = np.where(dbl, r2, 1.0), np.where(dbl, c2, 1.0)
     t1 = 1 / (omega * r1 * c1)

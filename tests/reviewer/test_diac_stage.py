@@ -89,6 +89,15 @@ def test_pot_setting_that_never_fires_is_not_a_pass():
     assert "needs pot max ≤" in r.summary
 
 
+def test_pot_at_zero_without_series_r():
+    """Pot from 0 Ω and no series R: the low end fires where the line itself reaches VBO
+    (the capacitor follows the line), not a failure to fire."""
+    r = result(with_(**{'series_r = "3.3 kohm"\n': ""}), "diac.firing-range")
+    assert "never reaches VBO" not in r.summary
+    assert r.values["alpha_lo_start"].min == pytest.approx(
+        math.degrees(math.asin(28.0 / (253 * 2**0.5))), abs=0.05)
+
+
 def test_range_without_target_is_incomplete():
     r = result(with_(**{TARGET + "\n": ""}), "diac.firing-range")
     assert r.status == "incomplete" and "stages.trigger.target" in r.summary
