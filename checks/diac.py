@@ -709,7 +709,9 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     running state applies at once: the angle jumps from α_start = α(VBO) to α_run. R_off
     (running) is where it drops out again. ``jump`` = α_start − α_run; ``snap_power`` the
     fraction of full power a resistive load gets at α_run, 1 − α/π + sin 2α/(2π) [3];
-    ``pot_on`` and ``pot_off`` the pot settings (R − series_r). Graded against
+    ``pot_on`` and ``pot_off`` the pot settings (R − series_r); ``charge_removed`` the
+    ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
+    which with the triac's short of the network sets the running state. Graded against
     ``max_jump_deg`` (marginal above ``marginal_fraction`` of it).
     """
     vm = np.sqrt(2.0) * as_array(vs)
@@ -726,7 +728,10 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
     limit = np.radians(float(limits.get("max_jump_deg", 35.0)))
     margin, status = _grade_max(jump, limit, float(limits.get("marginal_fraction", 0.8)))
+    dbl = _double(as_array(r2), as_array(c2))
+    dq = np.where(dbl, as_array(c2), as_array(c1)) * as_array(breakback)
     values = {"jump": jump, "alpha_start": a_start, "alpha_run": a_run, "snap_power": p,
+              "charge_removed": dq,
               "pot_on": r_on - as_array(series_r), "pot_off": r_off - as_array(series_r)}
     return Outcome(values, margin, status)
 

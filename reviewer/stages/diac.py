@@ -305,8 +305,10 @@ def _sum_snap(r: Reduced) -> str:
             f"firing angle jumping by {_deg(r.nom['jump'])} "
             f"({_deg(r.nom['alpha_start'])} → {_deg(r.nom['alpha_run'])}, "
             f"{r.nom['snap_power'] * 100:.3g} % of full power at once); it drops out only at "
-            f"{_pot(r.nom['pot_off'])}; the largest jump {_deg(r.hi['jump'])} against "
-            f"{limit:g}° allowed")
+            f"{_pot(r.nom['pot_off'])} (each firing takes ΔQ = C·ΔV = "
+            f"{eng(r.nom['charge_removed'], 'C')} from the diac's capacitor, and the triac "
+            f"shorts the network to the line's zero); the largest jump {_deg(r.hi['jump'])} "
+            f"against {limit:g}° allowed")
     pot_hi = r.bound.inputs["pot_hi"].value.nom
     if r.lo["pot_on"] > pot_hi:
         text += (f"; the pot's travel (to {_pot(pot_hi)}) ends before it at every corner: "
@@ -332,7 +334,7 @@ register(CheckDef(
            "solve_ivp of the network with the diac and triac switching",
     fn=_fn_snap, bind=_bind_snap,
     units={"jump": "deg", "alpha_start": "deg", "alpha_run": "deg", "snap_power": "",
-           "pot_on": "ohm", "pot_off": "ohm"},
+           "pot_on": "ohm", "pot_off": "ohm", "charge_removed": "C"},
     summarise=_sum_snap,
     cautions=("A lamp or fan that snaps on at a large fraction of its power surprises the "
               "user; a motor load may not start below it either.",),

@@ -113,6 +113,7 @@ def test_snap_on_fail_single_pass_double():
     assert single.status == "fail" and "second RC section" in single.summary
     # R_on is above 200 k at every corner: the pot never turns the lamp off.
     assert single.values["pot_on"].min > 200e3 and "stays on" in single.summary
+    assert single.values["charge_removed"].max == pytest.approx(110e-9 * 6.0)  # C·ΔV
     reach = result(with_(**{POT: 'pot = { min = "0 ohm", max = "400 kohm" }'}), "diac.snap-on")
     assert "stays on" not in reach.summary
     double = with_(**{'c = "100 nF +-10%"': 'c = "100 nF +-10%"\nr2 = "15 kohm"\nc2 = "47 nF"'})
