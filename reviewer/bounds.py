@@ -149,6 +149,21 @@ KEY: dict[str, Bounds] = {
     "parts.put.offset": _b(1e-3, 100.0, 0.1, 2.0),
     "parts.put.vv": _b(1e-3, 100.0, 0.1, 10.0),
     "parts.put.vf": _b(1e-3, 100.0, 0.3, 5.0),
+    # diac
+    "parts.diac.vbo": _b(1e-3, 1e4, 10.0, 100.0),
+    "parts.diac.breakback": _b(1e-3, 1e3, 1.0, 30.0),
+    "parts.diac.vbo_asymmetry": _b(0.0, 1e3, 0.0, 10.0),
+    "parts.diac.ibo": _b(1e-12, 10.0, 1e-9, 1e-3),
+    "parts.diac.i_pulse": _b(1e-6, 1e3, 0.1, 10.0),
+    "parts.diac.r_on": _b(0.0, 1e6, 0.0, 1e3),
+    # diac-RC trigger
+    "stages.diac-rc.pot": _b(0.0, 1e10, 0.0, 10e6),
+    "stages.diac-rc.series_r": _b(0.0, 1e10, 0.0, 10e6),
+    "stages.diac-rc.c": _b(1e-12, 1e-2, 1e-9, 10e-6),
+    "stages.diac-rc.r2": _b(1.0, 1e10, 100.0, 10e6),
+    "stages.diac-rc.c2": _b(1e-12, 1e-2, 1e-9, 10e-6),
+    "stages.diac-rc.gate_r": _b(0.0, 1e6, 0.0, 10e3),
+    "stages.diac-rc.load_r": _b(1e-6, 1e9, 1e-2, 1e5),
     # oscillators
     "stages.*.supply": _b(1e-3, 1e4, 1.0, 100.0),
     "stages.*.zener": _b(1e-3, 1e4, 3.0, 60.0),

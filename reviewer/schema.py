@@ -61,6 +61,15 @@ PART_TYPES: dict[str, dict[str, Param]] = {
         "vv": Param(V, "voltage", required=True), "vf": Param(V, "voltage", required=True),
         "itrm": Param(V, "current"), "energy": Param(V, "energy"), "pd": Param(V, "power"),
     },
+    "diac": {
+        "vbo": Param(V, "voltage", required=True, help='vbo = "32 V +-4 V"'),
+        "vbo_asymmetry": Param(V, "voltage", allow_zero=True,
+                               help='the largest | +VBO | - | -VBO |, e.g. "2 V"'),
+        "breakback": Param(V, "voltage", required=True,
+                           help='the drop from VBO when it fires, e.g. "6 V"'),
+        "ibo": Param(V, "current"), "i_pulse": Param(V, "current"),
+        "r_on": Param(V, "resistance", allow_zero=True),
+    },
     # Gate data per quadrant as flat keys (igt_q1 …): each is an ordinary value with its own
     # path (parts.T1.igt_q3) that sign-offs bind to and the cold table mirrors.
     "triac": {
@@ -95,6 +104,7 @@ TURNOFF = ("line-commutation", "capacitor-commutation", "resonant-commutation")
 TRIAC = ("triac-phase-control",)
 #: Stages a snubber may sit across: the SCR power stages and the triac AC switch.
 ACROSS = POWER + TRIAC
+DIAC = ("diac-rc",)
 
 # The check catalogue (checks.md), in its order: id and the stage kinds it applies to.
 CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
@@ -121,6 +131,8 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("triac.holding", TRIAC), ("triac.didt", TRIAC), ("triac.control", TRIAC),
     ("triac.commutation", TRIAC), ("triac.gate-trigger", ("triac-gate",)),
     ("triac.gate-power", ("triac-gate",)),
+    ("diac.firing-range", DIAC), ("diac.snap-on", DIAC), ("diac.gate-pulse", DIAC),
+    ("diac.symmetry", DIAC),
 ]
 
 

@@ -15,6 +15,9 @@ reads, the nominal for the rest). The devices are generic models, each described
   the emitter rises VD above it (the peak point) and opens when the emitter falls to VV.
 * PUT: the same switch from anode to cathode, closing when the anode rises ``offset`` above
   the gate divider and opening at VV.
+* Diac: two switches with hysteresis controlled by the capacitor voltage, on at VBO and off
+  once the capacitor has fallen by the breakback; triac: a switch whose control is the gate
+  current over IGT plus the main current (either sign) over IH.
 
 A line-synchronised oscillator's supply, the full-wave rectified line clipped at the Zener,
 is a behavioural source (B element). Nothing here runs a simulator.
@@ -76,6 +79,8 @@ class Netlist:
     prints: list[str] = field(default_factory=list)
     tran: tuple[float, float] = (1e-6, 1e-3)
     uic: bool = False
+    #: The largest internal step (0: the output step).
+    tmax: float = 0.0
 
     def add(self, line: str, note: str = "") -> None:
         """An element line, with a trailing comment when ``note`` is given."""
@@ -90,7 +95,8 @@ class Netlist:
         """The whole netlist: title, elements, models, analysis, prints, ``.end``."""
         step, stop = self.tran
         out = [f"* {' '.join(self.title.split())}", *self.lines, "*", *self.models,
-               f".tran {num(step)} {num(stop)} 0 {num(step)}" + (" uic" if self.uic else "")]
+               f".tran {num(step)} {num(stop)} 0 {num(self.tmax or step)}"
+               + (" uic" if self.uic else "")]
         out += [f".print tran {p}" for p in self.prints]
         return "\n".join(ascii_text(line) for line in out + [".end", ""])
 
@@ -524,6 +530,59 @@ def _commutation(n: Netlist, stage: Stage, project: Project, v: _Values) -> None
     n.prints.append("v(a)")
 
 
+# ------------------------------------------------------------------------------ diac-RC
+
+def _diac_rc(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
+    sp = f"stages.{stage.id}."
+    vs, f = v("supply.voltage"), v("supply.frequency")
+    vm, period = math.sqrt(2) * vs, 1.0 / f
+    d, t = str(stage.get("diac")), str(stage.get("triac"))
+    dp, tp = f"parts.{d}.", f"parts.{t}."
+    vbo, dv = v(dp + "vbo"), v(dp + "breakback")
+    q = "q3" if v(tp + "igt_q3") >= v(tp + "igt_q1") else "q1"  # a diac fires I and III
+    igt, vgt = v(tp + f"igt_{q}"), v(tp + f"vgt_{q}")
+    ih = v(tp + "ih", 1e-3) if project.parts[t].params.get("ih") is not None else 1e-3
+    r1 = v(sp + "pot") + v(sp + "series_r", 0.0)
+    r_load = v(sp + "load_r", 100.0)
+    r_path = max(v(sp + "gate_r", 0.0) + v(dp + "r_on", 0.0), 1.0)
+    n.comment(f"Line {num(vs)} V RMS, {num(f)} Hz, through the load into the triac (MT2 node "
+              "mt2, MT1 node 0);\nthe RC network across the triac, pot at the value shown "
+              "(change R_1 to move it).")
+    n.add(f"V_LINE line 0 SIN(0 {num(vm)} {num(f)})")
+    n.add(f"R_LOAD line mt2 {num(r_load)}",
+          "load_r" if v.has(sp + "load_r") else "a stand-in load (no load_r given)")
+    n.comment(f"{ident(t)}: triac as a switch with hysteresis, on above 0.9 V of control, off "
+              f"below 0.1 V; gate current at IGT = {num(igt)} A\n  (worse of quadrants I, "
+              f"III) gives 1 V, the main current holds it on above IH = {num(ih)} A, in "
+              "either direction. On-state drop not modelled.")
+    n.add(f"VS_{ident(t)} mt2 mt2s DC 0", "senses the main current")
+    n.add(f"S_{ident(t)} mt2s 0 tctl 0 TRIACSW")
+    n.add(f"B_{ident(t)} tctl 0 V = abs(i(V_GATE))*{num(1 / igt)} + "
+          f"abs(i(VS_{ident(t)}))*{num(0.1 / ih)}", "gate and latching control")
+    n.add(f"R_1 mt2 n1 {num(r1)}", "pot + series_r")
+    n.add(f"C_1 n1 0 {num(v(sp + 'c'))} IC=0", "c")
+    cap = "n1"
+    if v.has(sp + "r2"):
+        n.add(f"R_2 n1 n2 {num(v(sp + 'r2'))}", "r2")
+        n.add(f"C_2 n2 0 {num(v(sp + 'c2'))} IC=0", "c2")
+        cap = "n2"
+    n.comment(f"{ident(d)}: diac as two switches with hysteresis controlled by the capacitor "
+              f"voltage: on at VBO = {num(vbo)} V,\n  off once the capacitor has fallen by "
+              f"the breakback {num(dv)} V; the gate as VGT/IGT = {num(vgt / igt)} ohm.")
+    n.add(f"S_{ident(d)}P {cap} g {cap} 0 DIACSW", "positive half-cycles")
+    n.add(f"S_{ident(d)}N g {cap} 0 {cap} DIACSW", "negative half-cycles")
+    n.add(f"R_GATE g gk {num(r_path)}", "gate_r + the diac's r_on (at least 1 ohm)")
+    n.add(f"R_GK gk gx {num(vgt / igt)}", "the gate at its trigger point")
+    n.add("V_GATE gx 0 DC 0", "senses the gate current")
+    n.models.append(f".model DIACSW SW(VT={num(vbo - dv / 2)} VH={num(dv / 2)} RON=1 "
+                    "ROFF=1e12)")
+    n.models.append(".model TRIACSW SW(VT=0.5 VH=0.4 RON=0.001 ROFF=1e9)")
+    n.uic = True
+    n.tran = (period / 10000, 10 * period)
+    n.tmax = period / 100000  # the diac's discharge lasts microseconds
+    n.prints.append(f"v(line) v(mt2) v({cap})")
+
+
 # ----------------------------------------------------------------------------- entry point
 
 def netlist(run: Any, stage_id: str, corner: str = "nominal") -> str:
@@ -571,6 +630,8 @@ def netlist(run: Any, stage_id: str, corner: str = "nominal") -> str:
         raise ProjectError(f"no netlist for a triac-gate stage (`{stage.id}`): it is a source "
                            "and a resistor into the gate; export the triac-phase-control stage "
                            "it fires instead")
+    elif kind == "diac-rc":
+        _diac_rc(n, stage, project, v)
     else:
         raise ProjectError(f"no netlist for a {kind} stage")
     return n.text()

@@ -426,6 +426,39 @@ def _line_commutation(stage: Stage, p: _Point, project: Project) -> list[Plot]:
     return _cycle_plots(kw, angles, marks, notes)
 
 
+# ------------------------------------------------------------------------------ diac-RC
+
+def _diac(stage: Stage, p: _Point) -> list[Plot]:
+    """The firing angle over the pot's travel: starting (from off) and running (once on)."""
+    from checks.diac import angle_curve
+
+    sp = f"stages.{stage.id}."
+    pp = f"parts.{stage.get('diac')}."
+    two = isinstance(stage.get("r2"), Value)
+    c = angle_curve(
+        vm=math.sqrt(2) * p.get(("vs",), "supply.voltage"),
+        omega=2 * math.pi * p.get(("freq",), "supply.frequency"),
+        pot_lo=p.end(("pot_lo",), sp + "pot", "lo"), pot_hi=p.end(("pot_hi",), sp + "pot", "hi"),
+        series_r=p.get(("series_r",), sp + "series_r", default=0.0),
+        c1=p.get(("c1",), sp + "c"), vbo=p.get(("vbo",), pp + "vbo"),
+        breakback=p.get(("breakback",), pp + "breakback"),
+        r2=p.get(("r2",), sp + "r2") if two else math.nan,
+        c2=p.get(("c2",), sp + "c2") if two else math.nan)
+    pot_k = c["pot"] / 1e3
+    marks = []
+    for key, label in (("pot_on", "snaps on"), ("pot_off", "drops out")):
+        x = float(c[key]) / 1e3
+        if math.isfinite(x) and pot_k[0] <= x <= pot_k[-1]:
+            marks.append((x, label))
+    series = [Series("starting (from off)", np.degrees(c["starting"]), "deg"),
+              Series("running (once on)", np.degrees(c["running"]), "deg", dotted=True)]
+    notes = [] if np.isfinite(c["starting"]).all() else [
+        "no firing from off where the starting curve is missing"]
+    return [Plot("firing angle over the pot's travel", pot_k, series, marks, notes,
+                 x_unit="kohm", y_label="firing angle")]
+
+
+_DIAC = {"diac.firing-range", "diac.snap-on"}
 _OSC = {"osc.window", "osc.timing", "osc.idle-gate", "osc.discharge", "osc.leakage"}
 _SNUB = {"snubber.dvdt", "snubber.peak-voltage", "snubber.capacitor", "snubber.discharge"}
 _TURN = {"turnoff.time", "turnoff.capacitor", "turnoff.reapplied-dvdt", "turnoff.peak-current"}
@@ -433,7 +466,7 @@ _TURN = {"turnoff.time", "turnoff.capacitor", "turnoff.reapplied-dvdt", "turnoff
 
 def has_waveform(check: str) -> bool:
     """True for the checks a picture helps with (every power-stage check: its load waveform)."""
-    return (check in _OSC | _SNUB | _TURN or check.startswith("power.")
+    return (check in _OSC | _SNUB | _TURN | _DIAC or check.startswith("power.")
             or (check.startswith("triac.") and check != "triac.gate-trigger"))
 
 
@@ -457,6 +490,8 @@ def picture(result: Result, project: Project, corner: str = "worst") -> Picture:
             plots = _turnoff(stage, point, project)
         elif result.check == "triac.commutation":
             plots = _triac_commutation(stage, point, project)
+        elif result.check in _DIAC:
+            plots = _diac(stage, point)
         else:
             plots = _power(stage, point, project)
     except _Missing as exc:

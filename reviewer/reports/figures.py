@@ -2,10 +2,11 @@
 
 A plot stands beside the check it explains, at that check's own corner: the timing capacitor
 beside ``osc.timing``, the step across the SCR beside the snubber's dv/dt and peak checks, the
-commutation waveforms beside ``turnoff.time``, the load waveform beside ``power.output``, and
-any failing or marginal check that has a waveform. A picture identical to one already shown in
-the stage is not drawn twice; the check says where it is. Axes name the quantity and its unit
-("capacitor voltage [V]"); marker labels sit inside the figure's bounding box.
+commutation waveforms beside ``turnoff.time``, the load waveform beside ``power.output``, the
+firing angle over the pot's travel beside ``diac.firing-range``, and any failing or marginal
+check that has a waveform. A picture identical to one already shown in the stage is not drawn
+twice; the check says where it is. Axes name the quantity and its unit ("capacitor voltage
+[V]"); marker labels sit inside the figure's bounding box.
 """
 
 from __future__ import annotations
@@ -27,7 +28,7 @@ MAX_POINTS = 800
 # The checks whose waveform tells the reader what the check computed.
 EXPLAINS = ("osc.timing", "snubber.dvdt", "snubber.peak-voltage", "turnoff.time",
             "turnoff.peak-current", "power.output", "triac.output",
-            "triac.commutation")
+            "triac.commutation", "diac.firing-range")
 _QUANTITY = {"V": "voltage", "A": "current", "W": "power", "s": "time", "Hz": "frequency"}
 
 

@@ -386,11 +386,52 @@ def _line_commutation(d: Any, stage: Stage, project: Project) -> None:
     _power(d, target, project)
 
 
+def _diac_rc(d: Any, stage: Stage, project: Project) -> None:
+    """The line through the load to MT2; the RC network (pot + series R, C, optionally R2–C2)
+    across the triac; the diac from the network's capacitor through the gate resistor."""
+    src = _source(d, elm.SourceSin(), _supply_label(project))
+    d += elm.Ground().at(src.start)
+    d += elm.Line().at(src.end).up(0.5)
+    d += elm.Resistor().right().label("load")
+    mt2 = d.here
+    d += elm.Dot()
+    label = f"pot {val(stage.get('pot'))}"
+    d += elm.Potentiometer().right().label(label)
+    if stage.get("series_r") is not None:
+        d += elm.Resistor().right().label(_param(stage, "series_r"))
+    node = d.here
+    d += elm.Dot()
+    d += elm.Capacitor().down().label(_param(stage, "c"), loc="bottom")
+    d += elm.Ground()
+    if stage.get("r2") is not None:
+        d.move_from(node, 0, 0)
+        d += elm.Line().right(1.6)  # room for the capacitors' labels
+        d += elm.Resistor().right().label(_param(stage, "r2"))
+        node = d.here
+        d += elm.Dot()
+        d += elm.Capacitor().down().label(_param(stage, "c2"), loc="bottom")
+        d += elm.Ground()
+    d.move_from(node, 0, 0)
+    d += elm.Line().right(1.6)
+    d += elm.Diac().right().label(_part(project, stage.get("diac"), "diac"))
+    if stage.get("gate_r") is not None:
+        d += elm.Resistor().right().label(_param(stage, "gate_r"))
+    d += elm.Line().right(0.6)
+    q = elm.Triac().up().anchor("gate").label(_part(project, stage.get("triac"), "triac"),
+                                              loc="bottom", ofst=0.4)
+    d += q
+    d += elm.Ground().at(q.start)
+    top = (q.end[0], mt2[1] + 1.2)
+    d += elm.Line().at(q.end).toy(top[1])
+    d += elm.Line().tox(mt2[0])
+    d += elm.Line().toy(mt2[1])
+
+
 DRAW = {"ujt-oscillator": _oscillator, "put-oscillator": _oscillator, "gate-drive": _gate,
         "phase-control": _power, "dc-switch": _power, "rc-snubber": _snubber,
         "capacitor-commutation": _commutation, "resonant-commutation": _commutation,
         "line-commutation": _line_commutation, "triac-phase-control": _triac_power,
-        "triac-gate": _triac_gate}
+        "triac-gate": _triac_gate, "diac-rc": _diac_rc}
 
 
 def stage_svg(stage: Stage, project: Project) -> tuple[str, str]:

@@ -6,6 +6,7 @@ module declares its :class:`~reviewer.registry.StageKind` parameters and its
 """
 
 from reviewer.stages import (  # noqa: F401
+    diac,
     fault,
     gate,
     harmonics,

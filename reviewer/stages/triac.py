@@ -30,6 +30,7 @@ from reviewer.registry import (
     register_kind,
 )
 from reviewer.schema import TRIAC
+from reviewer.stages import diac as diac_stage
 
 V = "value"
 KIND = TRIAC
@@ -118,6 +119,9 @@ def _firing(ctx: Context, b: Bound, *, sweep: int = 0,
     path = _sp(ctx, "firing")
     if not isinstance(fv, Value):
         gate = ctx.linked_stage("gate")
+        if gate is not None and gate.kind == "diac-rc":
+            diac_stage.bind_firing(ctx, b, gate, sweep=sweep, extra=extra)
+            return True
         b.missing.append(path + (f" (the range `{gate.id}` fires over)" if gate else ""))
         return False
     b.add("alpha", path, fv, sweep=sweep if fv.varies else 0, extra=extra)
@@ -136,6 +140,8 @@ def _omega(kw: dict[str, Any]) -> np.ndarray:
 
 
 def _pop_range(kw: dict[str, Any]) -> tuple[Any, Any, Any]:
+    if "diac_trigger" in kw:  # the running firing range of a diac-rc gate stage
+        return diac_stage.firing_from(kw)
     return kw.pop("alpha"), kw.pop("alpha_lo", None), kw.pop("alpha_hi", None)
 
 

@@ -1,0 +1,880 @@
+"""A diac fired from an RC phase-shift network on the line: firing angle, snap-on, gate pulse,
+half-cycle symmetry.
+
+The network is fed from the line through the load, the load's drop neglected while the triac
+is off (its resistance is far below the network's). Single time constant: R1 (pot + series R)
+charges C1, the diac sits across C1. Double time constant: R1–C1, then R2–C2, the diac across
+C2. Angles are in radians from the line's zero crossing; θ = ωt.
+
+Without firing the diac capacitor follows the sinusoidal steady state vss(θ) = Vm·G·sin(θ − ψ)
+(phasor, transient-free; G the gain, ψ the lag). It fires at the first crossing of VBO,
+α = ψ + asin(VBO/(Vm·G)), and only when Vm·G > VBO and α < π (a crossing after the line has
+reversed fires in the wrong half-cycle, counted here as no firing).
+
+Once the diac fires, the triac shorts the network's supply until the line's zero (a
+resistive load), and the diac drops its capacitor by the breakback ΔV. The capacitor then
+starts each half-cycle near zero instead of at the steady sine's −Vm·G·sin ψ, so it reaches
+VBO much earlier: the running state. Its periodic solution is in closed form (half-wave
+antisymmetry, :func:`running_excess`) and its firing angle is the first root over the
+half-cycle. The difference is the snap-on: firing starts where vss reaches VBO and then runs
+at an earlier angle, and stops only where the running state no longer reaches VBO. A second
+RC section keeps C1's charge to restore C2 with, which narrows the gap.
+
+References
+----------
+[1] General Electric, *SCR Manual*, 6th ed. (1979), ch. 9 (phase control with a diac and an RC
+    network; the hysteresis and the double time constant) — from memory.
+[2] T. J. Maloney, *Modern Industrial Electronics*, 5th ed., ch. 7 (triacs, diac triggering,
+    RC phase shift) — from memory.
+[3] M. H. Rashid, *Power Electronics*, 4th ed., §10 (AC voltage controllers: output of a
+    phase-controlled AC switch).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Mapping
+from typing import Any
+
+import numpy as np
+
+from checks import triac
+from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
+
+_BISECT = 44  # halvings of the log-R bracket (1 Ω … 1 GΩ): 1e-12 relative
+
+
+def _double(r2: np.ndarray, c2: np.ndarray) -> np.ndarray:
+    return np.isfinite(r2) & np.isfinite(c2) & (r2 > 0) & (c2 > 0)
+
+
+def network(*, r1: np.ndarray, c1: np.ndarray, omega: np.ndarray, r2: np.ndarray | float = np.nan,
+            c2: np.ndarray | float = np.nan) -> tuple[np.ndarray, np.ndarray]:
+    """Gain G and lag ψ [rad] from the line to the diac capacitor (sinusoidal steady state).
+
+    Single (r2 or c2 NaN): H = 1/(1 + jωR1C1). Double: node equations of R1–C1–R2–C2 give
+    H = 1/[(1 + jωR1C1)(1 + jωR2C2) + jωR1C2]. r [Ω], c [F], omega [rad/s].
+
+    >>> g, psi = network(r1=100e3, c1=100e-9, omega=2 * np.pi * 50)
+    >>> round(float(g), 4), round(float(np.degrees(psi)), 2)
+    (0.3033, 72.34)
+    """
+    r1, c1, omega, r2, c2 = (as_array(x) for x in (r1, c1, omega, r2, c2))
+    dbl = _double(r2, c2)
+    jw = 1j * omega
+    r2s, c2s = np.where(dbl, r2, 0.0), np.where(dbl, c2, 0.0)
+    den = (1 + jw * r1 * c1) * (1 + jw * r2s * c2s) + jw * r1 * c2s
+    h = 1.0 / den
+    return np.abs(h), -np.angle(h) % (2 * np.pi)
+
+
+def _system(*, vm: np.ndarray, r1: np.ndarray, c1: np.ndarray, omega: np.ndarray,
+            r2: np.ndarray, c2: np.ndarray) -> dict[str, np.ndarray]:
+    """The network as x' = A·x + b·v(θ) in θ = ωt, x = (v_C1, v_diac), with the eigenvalues
+    of A and the steady-state phasors of x under Vm·sin θ.
+
+    Single section: the diac capacitor is state 2 and state 1 a decoupled, undriven dummy
+    (eigenvalue a22 − 1, so the two stay distinct). RC ladders have real, negative, distinct
+    eigenvalues, so exp(A·θ) has Sylvester's closed form per row.
+    """
+    r1, c1, omega, r2, c2 = (as_array(x) for x in (r1, c1, omega, r2, c2))
+    r1 = np.maximum(r1, 1.0)  # a pot at 0 Ω with no series R: 1 Ω keeps exp(A·θ) finite
+    dbl = _double(r2, c2)
+    r2s, c2s = np.where(dbl, r2, 1.0), np.where(dbl, c2, 1.0)
+    t1 = 1 / (omega * r1 * c1)
+    a22 = np.where(dbl, -1 / (omega * r2s * c2s), -t1)
+    a11 = np.where(dbl, -(1 / r1 + 1 / r2s) / (omega * c1), a22 - 1.0)
+    a12 = np.where(dbl, 1 / (omega * r2s * c1), 0.0)
+    a21 = np.where(dbl, 1 / (omega * r2s * c2s), 0.0)
+    tr, det = a11 + a22, a11 * a22 - a12 * a21
+    root = np.sqrt(np.maximum(tr * tr - 4 * det, 0.0))
+    g, psi = network(r1=r1, c1=c1, omega=omega, r2=r2, c2=c2)
+    x2 = as_array(vm) * g * np.exp(-1j * psi)
+    x1 = np.where(dbl, x2 * (1 + 1j * omega * r2s * c2s), 0.0)
+    return {"a11": a11, "a12": a12, "a21": a21, "a22": a22, "l1": 0.5 * (tr + root),
+            "l2": 0.5 * (tr - root), "x1": x1, "x2": x2}
+
+
+def _phi(s: Mapping[str, np.ndarray], th: np.ndarray) -> tuple[np.ndarray, ...]:
+    """exp(A·θ) as (φ11, φ12, φ21, φ22) (Sylvester, distinct eigenvalues)."""
+    l1, l2 = s["l1"], s["l2"]
+    e1, e2 = np.exp(l1 * th), np.exp(l2 * th)
+    d = l1 - l2
+    p11 = (e1 * (s["a11"] - l2) - e2 * (s["a11"] - l1)) / d
+    p22 = (e1 * (s["a22"] - l2) - e2 * (s["a22"] - l1)) / d
+    p12 = (e1 - e2) * s["a12"] / d
+    p21 = (e1 - e2) * s["a21"] / d
+    return p11, p12, p21, p22
+
+
+def _xss(s: Mapping[str, np.ndarray], th: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The steady state under the unclamped sine at θ: Im(X·e^(jθ)) per state."""
+    rot = np.exp(1j * th)
+    return np.imag(s["x1"] * rot), np.imag(s["x2"] * rot)
+
+
+def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                   vbo: np.ndarray, breakback: np.ndarray | float, alpha: np.ndarray,
+                   r2: np.ndarray | float = np.nan,
+                   c2: np.ndarray | float = np.nan, start: bool = False) -> Any:
+    """v_diac(α⁻) − VBO [V] in the periodic state that fires at α in every half-cycle, once
+    (``start``: the state x(0) at the positive zero instead, as two arrays).
+
+    The network sits across the triac: it sees Vm·sin θ on [0, α) and nothing while the triac
+    conducts, (α, π) (a resistive load's current ends at the line zero). At α the diac drops
+    its capacitor by ΔV. Half-wave antisymmetry x(π) = −x(0) gives the start of the
+    half-cycle in closed form, with Φ(θ) = exp(A·θ) and xs the sinusoidal steady state:
+
+    x(0) = (I + Φ(π))⁻¹·[Φ(π)·xs(0) − Φ(π − α)·(xs(α) − ΔV·e₂)],
+    x(α⁻) = xs(α) + Φ(α)·(x(0) − xs(0)).
+
+    The firing angle of the running state is the first root in α of this excess. It holds
+    while the diac fires once per half-cycle; where C1 brings C2 back up to VBO after the
+    breakback (a double section can), :func:`periodic_running` follows the refirings.
+    """
+    s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
+    alpha = as_array(alpha)
+    dv = as_array(breakback)
+    s10, s20 = _xss(s, np.zeros_like(alpha))
+    s1a, s2a = _xss(s, alpha)
+    q11, q12, q21, q22 = _phi(s, np.full_like(alpha, np.pi))
+    r11, r12, r21, r22 = _phi(s, np.pi - alpha)
+    u1, u2 = s1a, s2a - dv
+    w1 = q11 * s10 + q12 * s20 - (r11 * u1 + r12 * u2)
+    w2 = q21 * s10 + q22 * s20 - (r21 * u1 + r22 * u2)
+    m11, m12, m21, m22 = 1 + q11, q12, q21, 1 + q22
+    det = m11 * m22 - m12 * m21
+    x01 = (m22 * w1 - m12 * w2) / det
+    x02 = (m11 * w2 - m21 * w1) / det
+    if start:
+        return x01, x02
+    p11, p12, p21, p22 = _phi(s, alpha)
+    return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
+
+
+def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                a: np.ndarray, b: np.ndarray, which: int, r2: np.ndarray | float = np.nan,
+                c2: np.ndarray | float = np.nan) -> np.ndarray:
+    """The periodic state over a whole cycle that fires at a in the positive half-cycle (level
+    v_pos) and at b after the negative one starts (level v_neg; NaN: that half does not
+    fire): v_diac − level at the firing of half ``which`` (0: positive, 1: negative).
+
+    Each half-cycle is an affine map of its starting state, x ↦ Φ(π)·x + q (in the frame of
+    that half's sign), q = Φ(π − a)·(xs(a) − Φ(a)·xs(0) − ΔV·e₂); the cycle closes with
+    x(0) = (I − Φ(π)²)⁻¹·(Φ(π)·q₊ − q₋). With v_pos = v_neg this is :func:`running_excess`.
+    """
+    s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
+    a, b = np.broadcast_arrays(as_array(a), as_array(b))
+    dv = as_array(breakback)
+    z = np.zeros_like(a)
+    s10, s20 = _xss(s, z)
+    q11, q12, q21, q22 = _phi(s, np.full_like(a, np.pi))
+
+    def q(ang: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        fired = np.isfinite(ang)
+        ang = np.where(fired, ang, np.pi)
+        d = np.where(fired, dv, 0.0)
+        sa1, sa2 = _xss(s, ang)
+        p11, p12, p21, p22 = _phi(s, ang)
+        u1 = sa1 - (p11 * s10 + p12 * s20)
+        u2 = sa2 - (p21 * s10 + p22 * s20) - d
+        r11, r12, r21, r22 = _phi(s, np.pi - ang)
+        return r11 * u1 + r12 * u2, r21 * u1 + r22 * u2, ang, d
+
+    qa1, qa2, _, _ = q(a)
+    qb1, qb2, _, _ = q(b)
+    w1 = q11 * qa1 + q12 * qa2 - qb1
+    w2 = q21 * qa1 + q22 * qa2 - qb2
+    # I − Φ(π)²
+    m11 = 1 - (q11 * q11 + q12 * q21)
+    m12 = -(q11 * q12 + q12 * q22)
+    m21 = -(q21 * q11 + q22 * q21)
+    m22 = 1 - (q21 * q12 + q22 * q22)
+    det = m11 * m22 - m12 * m21
+    x1 = (m22 * w1 - m12 * w2) / det
+    x2 = (m11 * w2 - m21 * w1) / det
+    if which == 1:  # the negative half's start, mirrored: −(Φ(π)·x + q₊)
+        x1, x2 = -(q11 * x1 + q12 * x2 + qa1), -(q21 * x1 + q22 * x2 + qa2)
+    ang = a if which == 0 else b
+    sa1, sa2 = _xss(s, ang)
+    p11, p12, p21, p22 = _phi(s, ang)
+    return sa2 + p21 * (x1 - s10) + p22 * (x2 - s20) - as_array(v_pos if which == 0 else v_neg)
+
+
+def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                 r2: np.ndarray | float = np.nan,
+                 c2: np.ndarray | float = np.nan
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """running_pair: see there (one block of rows)."""
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
+                                                         breakback, r2, c2)))
+
+    def c(x: np.ndarray | float) -> np.ndarray:
+        return np.broadcast_to(as_array(x), shape)
+
+    kw = {"vm": c(vm), "omega": c(omega), "r1": c(r1), "c1": c(c1), "v_pos": c(v_pos),
+          "v_neg": c(v_neg), "breakback": c(breakback), "r2": c(r2), "c2": c(c2)}
+    base = {k: kw[k] for k in ("vm", "omega", "r1", "c1", "breakback", "r2", "c2")}
+    with np.errstate(all="ignore"):
+        a = firing_angle(vbo=kw["v_pos"], running=True, **base)
+        b = firing_angle(vbo=kw["v_neg"], running=True, **base)
+        both = np.isfinite(a) | np.isfinite(b)
+        a, b = np.where(np.isfinite(a), a, b), np.where(np.isfinite(b), b, a)
+        h = 1e-7
+
+        def f(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            return (pair_excess(a=x, b=y, which=0, **kw), pair_excess(a=x, b=y, which=1, **kw))
+
+        for _ in range(8):
+            f0, g0 = f(a, b)
+            fa1, ga1 = f(a + h, b)
+            fa0, ga0 = f(a - h, b)
+            fb1, gb1 = f(a, b + h)
+            fb0, gb0 = f(a, b - h)
+            j11, j21 = (fa1 - fa0) / (2 * h), (ga1 - ga0) / (2 * h)
+            j12, j22 = (fb1 - fb0) / (2 * h), (gb1 - gb0) / (2 * h)
+            det = j11 * j22 - j12 * j21
+            da = (j22 * f0 - j12 * g0) / det
+            db = (j11 * g0 - j21 * f0) / det
+            a = np.clip(a - np.where(both, da, 0.0), 1e-9, np.pi - 1e-9)
+            b = np.clip(b - np.where(both, db, 0.0), 1e-9, np.pi - 1e-9)
+        f0, g0 = f(a, b)
+        ok = (np.abs(f0) <= 1e-9 * kw["v_pos"]) & (np.abs(g0) <= 1e-9 * kw["v_pos"])
+        a = np.where(both, np.where(ok, a, np.nan), a)
+        b = np.where(both, np.where(ok, b, np.nan), b)
+        one = both & ~ok  # no state firing in both halves: try one half alone
+        if one.any():
+            nan = np.full(shape, np.nan)[..., None]
+            kc = {k: v[..., None] for k, v in kw.items()}
+            a1 = _first_root(lambda x: pair_excess(a=x, b=nan + 0 * x, which=0, **kc), shape)
+            b1 = _first_root(lambda x: pair_excess(a=nan + 0 * x, b=x, which=1, **kc), shape)
+            # The other half must then indeed not fire; where it would, nothing is trusted.
+            b_chk = _first_root(lambda x: pair_excess(a=a1[..., None] + 0 * x, b=x, which=1,
+                                                      **kc), shape)
+            a_chk = _first_root(lambda x: pair_excess(a=x, b=b1[..., None] + 0 * x, which=0,
+                                                      **kc), shape)
+            pos_only = np.isfinite(a1) & ~np.isfinite(b_chk)
+            neg_only = np.isfinite(b1) & ~np.isfinite(a_chk) & ~pos_only
+            a = np.where(one, np.where(pos_only, a1, np.nan), a)
+            b = np.where(one, np.where(neg_only, b1, np.nan), b)
+            bad = one & ~pos_only & ~neg_only & (np.isfinite(a1) | np.isfinite(b1))
+            a = np.where(bad, np.nan, a)
+            b = np.where(bad, np.nan, b)
+        else:
+            bad = np.zeros(shape, dtype=bool)
+        dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+        live = dbl & (np.isfinite(a) | np.isfinite(b))
+        if live.any():
+            # A double section may refire within a half-cycle: follow it where it does.
+            guess = np.where(np.isfinite(a), a, np.where(np.isfinite(b), b, np.pi / 2))
+            x1, x2 = running_excess(vbo=kw["v_pos"], breakback=kw["breakback"], alpha=guess,
+                                    start=True, **{k: kw[k] for k in ("vm", "omega", "r1",
+                                                                      "c1", "r2", "c2")})
+            s = _system(**{k: kw[k] for k in ("vm", "r1", "c1", "omega", "r2", "c2")})
+            _, m1, m2, n1, _ = _half_map(s, x1, x2, kw["v_pos"], kw["breakback"])
+            _, _, _, n2, _ = _half_map(s, m1, m2, kw["v_neg"], kw["breakback"])
+            redo = live & ((n1 > 0) | (n2 > 0))
+            if redo.any():
+                st = periodic_running(x1=x1, x2=x2, **kw)
+                a = np.where(redo, st["alpha_pos"], a)
+                b = np.where(redo, st["alpha_neg"], b)
+                bad = bad | (redo & ~st["resolved"])
+                dc = np.where(redo, st["dc"], dc_fraction(a, b))
+                return a, b, ~bad, dc
+    return a, b, ~bad, dc_fraction(a, b)
+
+
+_REFIRE_MAX = 16  # refirings within one half-cycle followed at most (then: not trusted)
+
+
+def _root_in(f: Callable[[np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+             grid: int = 32, steps: int = 20) -> np.ndarray:
+    """The first θ in (lo, hi] where f(θ) ≥ 0, per row; NaN without one. ``f`` takes θ with
+    a trailing axis of grid points (or of one point).
+
+    A grid of ``grid`` points brackets the first sign change, then the Illinois variant of
+    false position narrows every row's bracket together (``steps`` steps: superlinear, about
+    1e-12 rad from a bracket of π/32 for these smooth exponentials).
+    """
+    u = np.linspace(0.0, 1.0, grid + 1)[1:]
+    th = lo[..., None] + (hi - lo)[..., None] * u
+    vals = f(th)
+    up = vals >= 0
+    has = up.any(axis=-1)
+    i = np.argmax(up, axis=-1)[..., None]
+    b = np.take_along_axis(th, i, axis=-1)[..., 0]
+    fb = np.take_along_axis(vals, i, axis=-1)[..., 0]
+    first = i[..., 0] == 0
+    a = np.where(first, lo, np.take_along_axis(th, np.maximum(i - 1, 0), axis=-1)[..., 0])
+    fa = np.where(first, f(lo[..., None])[..., 0],
+                  np.take_along_axis(vals, np.maximum(i - 1, 0), axis=-1)[..., 0])
+    fa = np.where(fa >= 0, -1e-300, fa)  # a root at lo itself: keep the bracket's sign
+    side = np.zeros(a.shape, dtype=int)
+    for _ in range(steps):
+        x = np.where(fb != fa, b - fb * (b - a) / (fb - fa), 0.5 * (a + b))
+        x = np.where((x > a) & (x < b), x, 0.5 * (a + b))
+        fx = f(x[..., None])[..., 0]
+        pos = fx >= 0
+        # Illinois: halve the retained end's value when the same end is kept twice.
+        fa = np.where(pos & (side == 1), 0.5 * fa, fa)
+        fb = np.where(~pos & (side == -1), 0.5 * fb, fb)
+        b, fb = np.where(pos, x, b), np.where(pos, fx, fb)
+        a, fa = np.where(pos, a, x), np.where(pos, fa, fx)
+        side = np.where(pos, 1, -1)
+    return np.where(has, b, np.nan)
+
+
+def _half_map(s: Mapping[str, np.ndarray], x1: np.ndarray, x2: np.ndarray,
+              level: np.ndarray, dv: np.ndarray
+              ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """One half-cycle from the state (x1, x2) at its zero, in the frame of its own sign:
+    (α, the next half-cycle's start state mirrored, number of refirings, trusted).
+
+    The line drives the network until the diac capacitor reaches ``level`` at α (NaN: it
+    does not, and the half-cycle runs undriven by the triac to its end); there the capacitor
+    drops by ΔV and the network, shorted by the triac, decays freely — and fires again each
+    time C1 brings C2 back up to the level (a double section can), until the line's zero.
+    """
+    zero = np.zeros_like(x1)
+    s10, s20 = _xss(s, zero)
+
+    def driven(th: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        c = {k: v[..., None] for k, v in s.items()}
+        p11, p12, p21, p22 = _phi(c, th)
+        a1, a2 = _xss(c, th)
+        d1, d2 = (x1 - s10)[..., None], (x2 - s20)[..., None]
+        return a1 + p11 * d1 + p12 * d2, a2 + p21 * d1 + p22 * d2
+
+    lvl = level[..., None]
+    alpha = _root_in(lambda th: driven(th)[1] - lvl, zero, zero + np.pi)
+    fired = np.isfinite(alpha)
+    at = np.where(fired, alpha, np.pi)
+    y1, y2 = (v[..., 0] for v in driven(at[..., None]))
+    y2 = np.where(fired, y2 - dv, y2)
+    t_k = at.copy()
+    n = np.zeros(x1.shape, dtype=int)
+    trusted = np.ones(x1.shape, dtype=bool)
+    for _ in range(_REFIRE_MAX):
+        c = {k: v[..., None] for k, v in s.items()}
+        a, b = y1[..., None], y2[..., None]
+        tk = t_k[..., None]
+
+        def free2(th: np.ndarray, c: dict = c, a: np.ndarray = a, b: np.ndarray = b,
+                  tk: np.ndarray = tk) -> np.ndarray:
+            _, _, p21, p22 = _phi(c, th - tk)
+            return p21 * a + p22 * b - lvl
+
+        again = _root_in(free2, t_k, zero + np.pi) if fired.any() else np.full(x1.shape,
+                                                                                 np.nan)
+        again = np.where(fired & (t_k < np.pi), again, np.nan)
+        hit = np.isfinite(again)
+        if not hit.any():
+            break
+        p11, p12, p21, p22 = _phi(s, np.where(hit, again, t_k) - t_k)
+        y1, y2 = (np.where(hit, p11 * y1 + p12 * y2, y1),
+                  np.where(hit, p21 * y1 + p22 * y2 - dv, y2))
+        t_k = np.where(hit, again, t_k)
+        n = n + hit
+    else:
+        trusted = ~hit
+    p11, p12, p21, p22 = _phi(s, np.pi - t_k)
+    e1, e2 = p11 * y1 + p12 * y2, p21 * y1 + p22 * y2
+    return alpha, -e1, -e2, n, trusted
+
+
+def periodic_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                     v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                     x1: np.ndarray, x2: np.ndarray, r2: np.ndarray | float = np.nan,
+                     c2: np.ndarray | float = np.nan, steps: int = 6, settle: int = 40,
+                     history: int = 24) -> dict[str, np.ndarray]:
+    """The running state with refirings, from a first guess (x1, x2) of the state at the
+    positive zero: ``alpha_pos``, ``alpha_neg`` [rad], ``refires`` (most in a half-cycle),
+    ``periodic`` (one cycle repeats), ``dc`` (the mean load voltage over Vm, per
+    :func:`dc_fraction`) and ``resolved``.
+
+    The cycle map (two :func:`_half_map` in turn, levels v_pos and v_neg) is affine while the
+    firings keep their order, so Newton's method on x − map(x) with a finite-difference
+    Jacobian (steps of 1e-6·VBO) lands on the fixed point once the order has settled. Where
+    it does not converge (residual above 1e-8·VBO) the order of refirings changes from cycle
+    to cycle — the circuit fires in a pattern longer than one cycle: the map itself is then
+    run for ``settle`` cycles and the next ``history`` cycles are kept; ``dc`` is their mean,
+    the angles those of the earliest cycle kept, ``periodic`` False.
+    """
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
+                                                         breakback, x1, x2, r2, c2)))
+
+    def c(x: np.ndarray | float) -> np.ndarray:
+        return np.array(np.broadcast_to(as_array(x), shape), dtype=float).ravel()
+
+    p = {k: c(v) for k, v in (("vm", vm), ("r1", r1), ("c1", c1), ("omega", omega),
+                              ("r2", r2), ("c2", c2))}
+    vp, vn, dv = c(v_pos), c(v_neg), c(breakback)
+    x, y = c(x1), c(x2)
+
+    def cycle(a: np.ndarray, b: np.ndarray, sel: np.ndarray | None = None
+              ) -> tuple[np.ndarray, ...]:
+        q = {k: v if sel is None else v[sel] for k, v in p.items()}
+        lv_p, lv_n, d = (v if sel is None else v[sel] for v in (vp, vn, dv))
+        s = _system(**q)
+        ap, m1, m2, n1, t1 = _half_map(s, a, b, lv_p, d)
+        an, e1, e2, n2, t2 = _half_map(s, m1, m2, lv_n, d)
+        return e1, e2, ap, an, np.maximum(n1, n2), t1 & t2
+
+    with np.errstate(all="ignore"):
+        h = 1e-6 * vp
+        for _ in range(steps):
+            f1, f2, *_ = cycle(x, y)
+            g1, g2 = x - f1, y - f2
+            if ((np.abs(g1) <= 1e-10 * vp) & (np.abs(g2) <= 1e-10 * vp)).all():
+                break  # every row has landed: no Jacobian needed
+            a1, a2, *_ = cycle(x + h, y)
+            b1, b2, *_ = cycle(x, y + h)
+            j11, j21 = 1 - (a1 - f1) / h, -(a2 - f2) / h
+            j12, j22 = -(b1 - f1) / h, 1 - (b2 - f2) / h
+            det = j11 * j22 - j12 * j21
+            x = x - (j22 * g1 - j12 * g2) / det
+            y = y - (j11 * g2 - j21 * g1) / det
+        f1, f2, ap, an, n, ok = cycle(x, y)
+        periodic = ok & (np.abs(f1 - x) <= 1e-8 * vp) & (np.abs(f2 - y) <= 1e-8 * vp)
+        dc = dc_fraction(ap, an)
+        resolved = periodic.copy()
+        idx = np.flatnonzero(~periodic)
+        if idx.size:
+            u, w = f1[idx], f2[idx]
+            for _ in range(settle):
+                u, w, *_ = cycle(u, w, idx)
+            total = np.zeros(idx.size)
+            good = np.ones(idx.size, dtype=bool)
+            first: tuple[np.ndarray, ...] = ()
+            for k in range(history):
+                u, w, a_p, a_n, nk, tk = cycle(u, w, idx)
+                total += dc_fraction(a_p, a_n)
+                good &= tk & np.isfinite(u) & np.isfinite(w)
+                if k == 0:
+                    first = (a_p, a_n, nk)
+            ap[idx], an[idx], n[idx] = first
+            dc[idx] = total / history
+            resolved[idx] = good
+    out = {"alpha_pos": ap, "alpha_neg": an, "refires": n, "periodic": periodic, "dc": dc,
+           "resolved": resolved}
+    return {k: v.reshape(shape) for k, v in out.items()}
+
+
+_GRID = 96  # bracketing points over the half-cycle for the running firing angle
+
+
+def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...]) -> np.ndarray:
+    """The first α in (0, π) where g(α) turns non-negative, per row; NaN without one.
+
+    A grid of _GRID angles brackets the first sign change, then false position (Illinois)
+    narrows every row's bracket together (:func:`_root_in`).
+    """
+    return _root_in(g, np.zeros(shape), np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+
+
+_BLOCK = 2048  # elements per block where a half-cycle grid rides on every row
+
+
+def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any]) -> Any:
+    """Call ``fn(**kw)`` on blocks of at most _BLOCK elements of the broadcast arrays
+    ``names`` (the rest passed as they are), so that the grid each row carries stays in
+    memory (a Monte Carlo chunk is thousands of rows); results are joined back in shape.
+    A loop over blocks, not rows."""
+    arrays = {n: as_array(kw[n]) for n in names if n in kw}
+    shape = np.broadcast_shapes(*(a.shape for a in arrays.values()))
+    size = int(np.prod(shape)) if shape else 1
+    if size <= _BLOCK:
+        return fn(**kw)
+    flat = {n: np.broadcast_to(a, shape).ravel() for n, a in arrays.items()}
+    parts = []
+    for start in range(0, size, _BLOCK):
+        sl = slice(start, start + _BLOCK)
+        parts.append(fn(**{**kw, **{n: a[sl] for n, a in flat.items()}}))
+    if isinstance(parts[0], tuple):
+        return tuple(np.concatenate([p[k] for p in parts]).reshape(shape)
+                     for k in range(len(parts[0])))
+    return np.concatenate(parts).reshape(shape)
+
+
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2")
+
+
+def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+    """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
+    the diac starts firing) or, with it firing every half-cycle, the first root of
+    :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
+
+    vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
+    the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
+
+    >>> round(float(np.degrees(firing_angle(vm=325.0, omega=2 * np.pi * 50, r1=100e3,
+    ...                                     c1=100e-9, vbo=32.0))), 2)
+    91.29
+    """
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
+          "running": running, "r2": r2, "c2": c2}
+    if not running:
+        return _firing_angle(**kw)
+    return _blocked(_firing_angle, _ANGLE_ARGS, kw)
+
+
+def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
+                 r2: np.ndarray | float = np.nan,
+                 c2: np.ndarray | float = np.nan
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
+    half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
+    consistent state was found, not to be trusted); the mean load voltage over Vm
+    (:func:`dc_fraction`; over the whole pattern where a double section refires in a pattern
+    longer than one cycle).
+
+    From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
+    method on the two equations of :func:`pair_excess` (Jacobian by central differences of
+    1e-7 rad, steps kept inside (0, π)), 8 steps for every row at once; a row whose residual
+    is then above 1e-9·VBO is NaN (not trusted). Where only one half fires at its own level,
+    that half is solved with the other not firing (the first root over its half-cycle). A
+    double section that refires within a half-cycle is then solved by
+    :func:`periodic_running` from that state. Rows are taken in blocks (:func:`_blocked`).
+    """
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "v_pos": v_pos, "v_neg": v_neg,
+          "breakback": breakback, "r2": r2, "c2": c2}
+    return _blocked(_running_pair, tuple(kw), kw)
+
+
+def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
+             level: np.ndarray) -> np.ndarray:
+    """First crossing of ``level`` [V] by vss = Vm·G·sin(θ − ψ) after the line's zero [rad];
+    NaN when vss never reaches it or reaches it only after π (the line has reversed).
+
+    vss rises from θ = ψ − π/2 to its crest at ψ + π/2, and is negative at θ = 0 (0 < ψ < π),
+    so the first crossing of a positive level is ψ + asin(level/(Vm·G)).
+
+    >>> round(float(np.degrees(crossing(vm=325.0, gain=0.3033, lag=np.radians(72.34),
+    ...                                 level=32.0))), 2)
+    91.28
+    """
+    amp = as_array(vm) * as_array(gain)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        a = as_array(lag) + np.arcsin(as_array(level) / amp)
+    return np.where((amp > level) & (a < np.pi), a, np.nan)
+
+
+def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                 vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+    """firing_angle: see there (one block of rows)."""
+    if running:
+        shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
+                                                             r2, c2)))
+
+        def g(a: np.ndarray) -> np.ndarray:
+            def c(x: np.ndarray | float) -> np.ndarray:
+                return np.broadcast_to(as_array(x), shape)[..., None]
+
+            return running_excess(vm=c(vm), omega=c(omega), r1=c(r1), c1=c(c1), vbo=c(vbo),
+                                  breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2))
+
+        with np.errstate(all="ignore"):
+            alpha = _first_root(g, shape)
+            dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if not (dbl & np.isfinite(alpha)).any():
+                return alpha  # a single section never fires twice in a half-cycle
+            kw = {k: np.broadcast_to(as_array(x), shape) for k, x in
+                  (("vm", vm), ("omega", omega), ("r1", r1), ("c1", c1), ("r2", r2),
+                   ("c2", c2))}
+            dv = np.broadcast_to(as_array(breakback), shape)
+            lv = np.broadcast_to(as_array(vbo), shape)
+            x1, x2 = running_excess(vbo=lv, breakback=dv, alpha=np.where(
+                np.isfinite(alpha), alpha, np.pi / 2), start=True, **kw)
+            s = _system(**{k: kw[k] for k in ("vm", "r1", "c1", "omega", "r2", "c2")})
+            _, _, _, n, _ = _half_map(s, x1, x2, lv, dv)
+            redo = dbl & np.isfinite(alpha) & (n > 0)
+            if not redo.any():
+                return alpha
+            st = periodic_running(v_pos=lv, v_neg=lv, breakback=dv, x1=x1, x2=x2, **kw)
+            # A pattern longer than a cycle has no one angle: not trusted (NaN).
+            return np.where(redo, np.where(st["periodic"], st["alpha_pos"], np.nan), alpha)
+    g_, psi = network(r1=r1, c1=c1, omega=omega, r2=r2, c2=c2)
+    return crossing(vm=vm, gain=g_, lag=psi, level=as_array(vbo))
+
+
+def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
+            breakback: np.ndarray | float = 0.0, running: bool = False,
+            r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+    """The largest R1 [Ω] that still fires (starting, or ``running``), solved per row by
+    bisection in log R over 1 Ω … 1 GΩ (firing stops once as R1 rises: G falls and ψ grows);
+    NaN where even 1 Ω does not fire. Single section, starting: ωR1C1 = √((Vm/VBO)² − 1).
+
+    >>> round(float(limit_r(vm=325.0, omega=2 * np.pi * 50, c1=100e-9, vbo=32.0)))
+    321713
+    """
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2)))
+    lo = np.full(shape, 0.0)
+    hi = np.full(shape, np.log(1e9))
+
+    th = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+
+    def fires(ln_r: np.ndarray) -> np.ndarray:
+        if not running:
+            return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
+                                            vbo=vbo, r2=r2, c2=c2))
+        # Running: a root exists where the excess is non-negative somewhere on the grid
+        # (the same test as :func:`_first_root`), so the angle itself is not needed.
+        def c(x: np.ndarray | float) -> np.ndarray:
+            return np.broadcast_to(as_array(x), shape)[..., None]
+
+        with np.errstate(all="ignore"):
+            g = running_excess(vm=c(vm), omega=c(omega), r1=c(np.exp(ln_r)), c1=c(c1),
+                               vbo=c(vbo), breakback=c(breakback), alpha=th, r2=c(r2),
+                               c2=c(c2))
+        return (g >= 0).any(axis=-1)
+
+    ok_lo = fires(lo)
+    for _ in range(_BISECT):  # vectorised: every row halves its bracket at once
+        mid = 0.5 * (lo + hi)
+        f = fires(mid)
+        lo = np.where(f, mid, lo)
+        hi = np.where(f, hi, mid)
+    return np.where(ok_lo, np.exp(0.5 * (lo + hi)), np.nan)
+
+
+def _grade_max(value: np.ndarray, limit: np.ndarray | float,
+               marginal_fraction: float) -> tuple[np.ndarray, np.ndarray]:
+    """Grade a lower-is-better value against a maximum: margin = limit/value − 1; marginal
+    above ``marginal_fraction`` of the limit; NaN fails."""
+    value = as_array(value)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(value > 0, limit / value, np.inf)
+    margin = np.where(np.isnan(value), -1.0, np.minimum(ratio - 1.0, 9.0))
+    status = np.where(~(value <= limit), FAIL,
+                      np.where(value > marginal_fraction * limit, MARGINAL, PASS))
+    return margin, status.astype(np.int8)
+
+
+# ------------------------------------------------------------------------------- the checks
+
+def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: np.ndarray,
+                       c1: np.ndarray, vbo: np.ndarray, breakback: np.ndarray,
+                       target_lo: np.ndarray | float, target_hi: np.ndarray | float,
+                       series_r: np.ndarray, limits: Mapping[str, float],
+                       r2: np.ndarray | float = np.nan,
+                       c2: np.ndarray | float = np.nan) -> Outcome:
+    """``diac.firing-range``: the firing angles at the ends of the pot, against the target.
+
+    vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
+    vbo [V]; breakback [V]; target_lo/hi [rad]; series_r [Ω] (to express R1 as a pot
+    setting). Both ends are the running angles (the state the load is in while on; the first
+    half-cycle after switching on fires later, at the starting angle, reported as
+    ``alpha_lo_start``/``alpha_hi_start``). Every setting must also start firing from off:
+    a pot end where the capacitor's steady sine never reaches VBO fails, and ``fires_up_to``
+    says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
+    α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
+    """
+    vm = np.sqrt(2.0) * as_array(vs)
+    omega = 2 * np.pi * as_array(freq)
+    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
+                        running=True, r2=r2, c2=c2)
+    a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
+                        running=True, r2=r2, c2=c2)
+    r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
+        | ~np.isfinite(a_hi)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        m_lo = np.where(a_lo > 0, as_array(target_lo) / a_lo, np.inf)
+        m_hi = a_hi / as_array(target_hi)
+    metric = np.where(never, np.nan, np.minimum(m_lo, m_hi))
+    fail_below = float(limits.get("fail_below", 1.0))
+    marginal_below = float(limits.get("marginal_below", fail_below))
+    margin = np.where(np.isnan(metric), -1.0, metric / fail_below - 1.0)
+    status = np.where(~(metric >= fail_below), FAIL,
+                      np.where(metric < marginal_below, MARGINAL, PASS)).astype(np.int8)
+    values = {"alpha_lo": a_lo, "alpha_hi": a_hi, "alpha_lo_start": a_lo_start,
+              "alpha_hi_start": a_hi_start,
+              "fires_up_to": r_start - as_array(series_r), "amplitude_hi": vm * network(
+                  r1=r_hi, c1=c1, omega=omega, r2=r2, c2=c2)[0]}
+    notes = ["no firing at the pot's top end at some corners"] if never.any() else []
+    return Outcome(values, margin, status, notes)
+
+
+def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
+                  breakback: np.ndarray, series_r: np.ndarray, limits: Mapping[str, float],
+                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> Outcome:
+    """``diac.snap-on``: the jump in firing angle where the load snaps on.
+
+    R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
+    running state applies at once: the angle jumps from α_start = α(VBO) to α_run. R_off
+    (running) is where it drops out again. ``jump`` = α_start − α_run; ``snap_power`` the
+    fraction of full power a resistive load gets at α_run, 1 − α/π + sin 2α/(2π) [3];
+    ``pot_on`` and ``pot_off`` the pot settings (R − series_r); ``charge_removed`` the
+    ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
+    which with the triac's short of the network sets the running state. Graded against
+    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it).
+    """
+    vm = np.sqrt(2.0) * as_array(vs)
+    omega = 2 * np.pi * as_array(freq)
+    r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    r_off = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=breakback, running=True,
+                    r2=r2, c2=c2)
+    # Just inside the starting limit (the angle there is the limit of α as R → R_on⁻).
+    r_at = r_on * (1 - 1e-9)
+    a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_run = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, breakback=breakback,
+                         running=True, r2=r2, c2=c2)
+    jump = a_start - a_run
+    p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
+    limit = np.radians(float(limits.get("max_jump_deg", 35.0)))
+    margin, status = _grade_max(jump, limit, float(limits.get("marginal_fraction", 0.8)))
+    dbl = _double(as_array(r2), as_array(c2))
+    dq = np.where(dbl, as_array(c2), as_array(c1)) * as_array(breakback)
+    values = {"jump": jump, "alpha_start": a_start, "alpha_run": a_run, "snap_power": p,
+              "charge_removed": dq,
+              "pot_on": r_on - as_array(series_r), "pot_off": r_off - as_array(series_r)}
+    return Outcome(values, margin, status)
+
+
+def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.ndarray,
+                     igt_q1: np.ndarray, igt_q3: np.ndarray, vgt_q1: np.ndarray,
+                     vgt_q3: np.ndarray, t_min: np.ndarray, igt_q1_cold: np.ndarray,
+                     igt_q3_cold: np.ndarray, vgt_q1_cold: np.ndarray,
+                     vgt_q3_cold: np.ndarray, cold_at: np.ndarray,
+                     limits: Mapping[str, float],
+                     i_pulse: np.ndarray | float = np.nan) -> Outcome:
+    """``diac.gate-pulse``: the pulse the diac's breakback drives into the triac's gate.
+
+    The capacitor (c_diac [F]) drops by ΔV (breakback [V]) into the gate: charge C·ΔV, peak
+    current I = (ΔV − VGT)/R_path (r_path [Ω]: series resistor plus the diac's on
+    resistance), decaying with R_path·C; its width above IGT is R_path·C·ln(I/IGT). IGT and
+    VGT are those of the worse of quadrants I and III (a diac's pulse follows MT2's sign:
+    :func:`checks.triac.quadrants` "ac") at the coldest ambient (t_min [K]; the cold table at
+    ``cold_at`` [K], NaN: the common-practice factors at −40 °C pro rata, IGT ×2, VGT ×1.5).
+    Metric I/IGT_cold graded with ``fail_below``/``marginal_below``; a peak above the diac's
+    pulse rating ``i_pulse`` [A] fails.
+    """
+    used = triac.quadrants("ac")
+    raw_i = {"q1": igt_q1, "q3": igt_q3}
+    raw_v = {"q1": vgt_q1, "q3": vgt_q3}
+    cold_i = {"q1": igt_q1_cold, "q3": igt_q3_cold}
+    cold_v = {"q1": vgt_q1_cold, "q3": vgt_q3_cold}
+    ic = {q: cold_value(raw_i[q], t_min, v_cold=cold_i[q], t_cold=cold_at, k=triac.K_IGT)
+          for q in used}
+    vc = {q: cold_value(raw_v[q], t_min, v_cold=cold_v[q], t_cold=cold_at, k=triac.K_VGT)
+          for q in used}
+    igt, vgt, idx = triac.worst_igt(used=used, igt=ic, vgt=vc)
+    dv = as_array(breakback)
+    drive = np.maximum(dv - vgt, 0.0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        i_pk = drive / as_array(r_path)
+        ratio = i_pk / igt
+        width = np.where(ratio > 1, as_array(r_path) * as_array(c_diac) * np.log(ratio), 0.0)
+    fail_below = float(limits.get("fail_below", 1.0))
+    marginal_below = float(limits.get("marginal_below", fail_below))
+    margin = ratio / fail_below - 1.0
+    status = np.where(~(ratio >= fail_below), FAIL,
+                      np.where(ratio < marginal_below, MARGINAL, PASS)).astype(np.int8)
+    ip = as_array(i_pulse)
+    rated = np.isfinite(ip)
+    over = rated & ~(i_pk <= ip)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        margin = np.where(rated, np.minimum(margin, ip / i_pk - 1.0), margin)
+    status = np.where(over, FAIL, status).astype(np.int8)
+    values = {"peak_current": i_pk, "igt_cold": igt, "vgt_cold": vgt,
+              "quadrant": np.where(idx == 0, 1.0, 3.0), "charge": as_array(c_diac) * dv,
+              "width": width, "drive_ratio": ratio}
+    if rated.any():
+        values["i_pulse"] = np.broadcast_to(ip, np.shape(i_pk))
+    return Outcome(values, margin, status)
+
+
+def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray) -> np.ndarray:
+    """Mean of the load voltage over a cycle as a fraction of Vm, positive half fired at
+    α₊ and negative at α₋ (NaN: that half does not fire) [3]:
+    (cos α₊ − cos α₋)/(2π), each missing half counting as α = π.
+
+    >>> round(float(dc_fraction(np.radians(90.0), np.radians(100.0))), 5)
+    0.02764
+    >>> round(float(dc_fraction(np.radians(90.0), np.nan)), 5)
+    0.15915
+    """
+    cp = np.where(np.isfinite(a_pos), np.cos(a_pos), -1.0)
+    cn = np.where(np.isfinite(a_neg), np.cos(a_neg), -1.0)
+    return (cp - cn) / (2 * np.pi)
+
+
+def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: np.ndarray,
+                   c1: np.ndarray, vbo: np.ndarray, asymmetry: np.ndarray,
+                   breakback: np.ndarray, limits: Mapping[str, float],
+                   r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                   load_r: np.ndarray | float = np.nan, points: int = 0) -> Outcome:
+    """``diac.symmetry``: the DC component a VBO asymmetry puts on the load.
+
+    One half-cycle fires at VBO, the other at VBO − asymmetry (the datasheet's largest
+    | +VBO | − | −VBO |), both running, solved together over the whole cycle
+    (:func:`running_pair`: one half's firing sets where the other starts). The mean load
+    voltage |cos α₊ − cos α₋|/(2π)·Vm is taken at ``points`` pot settings between r_lo and
+    r_hi (log-spaced, both ends included) and its largest value reported: where one half
+    still fires and the other has dropped out it is a half-wave.
+    ``dc_fraction`` of Vm is graded against ``max_dc_fraction`` (marginal above
+    ``marginal_fraction`` of it); ``dc_current`` = V_dc/load_r [A] when the load's DC
+    resistance ``load_r`` is given (a winding or transformer primary). A pot setting whose
+    pair of angles could not be resolved gives NaN, which fails (never a pass by default).
+    """
+    vm = np.sqrt(2.0) * as_array(vs)
+    omega = 2 * np.pi * as_array(freq)
+    if points <= 0:  # a double section refires: each point costs more, take fewer
+        points = 25 if _double(as_array(r2), as_array(c2)).any() else 49
+    t = np.linspace(0.0, 1.0, points)
+    rl, rh = as_array(r_lo), as_array(r_hi)
+    ln_lo, ln_hi = np.log(np.maximum(rl, 1.0)), np.log(np.maximum(rh, 1.0))
+    grid = np.exp(ln_lo[..., None] + (ln_hi - ln_lo)[..., None] * t)  # rows × points
+
+    def col(x: np.ndarray | float) -> np.ndarray:
+        return as_array(x)[..., None]
+
+    a_pos, a_neg, trusted, dc_mean = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
+                                v_pos=col(vbo), v_neg=col(vbo) - np.abs(col(asymmetry)),
+                                breakback=col(breakback), r2=col(r2), c2=col(c2))
+    dc = np.where(trusted, np.abs(dc_mean), np.nan)
+    grid = np.broadcast_to(grid, dc.shape)
+    worst = np.argmax(dc, axis=-1)
+    take = np.take_along_axis
+    dcw = take(dc, worst[..., None], axis=-1)[..., 0]
+    values = {"dc_fraction": dcw, "dc_voltage": vm * dcw,
+              "at_r": take(grid, worst[..., None], axis=-1)[..., 0],
+              "alpha_pos": take(a_pos, worst[..., None], axis=-1)[..., 0],
+              "alpha_neg": take(a_neg, worst[..., None], axis=-1)[..., 0]}
+    lr = as_array(load_r)
+    if np.isfinite(lr).any():
+        values["dc_current"] = vm * dcw / lr
+    limit = float(limits.get("max_dc_fraction", 0.01))
+    margin, status = _grade_max(dcw, limit, float(limits.get("marginal_fraction", 0.5)))
+    return Outcome(values, margin, status)
+
+
+def angle_curve(*, vm: float, omega: float, pot_lo: float, pot_hi: float, series_r: float,
+                c1: float, vbo: float, breakback: float, r2: float = np.nan,
+                c2: float = np.nan, points: int = 121) -> dict[str, np.ndarray]:
+    """The firing angle over the pot's travel at one design point (for a figure).
+
+    ``pot`` [Ω] from pot_lo to pot_hi (linear); ``starting`` and ``running`` [rad] the two
+    angles of :func:`firing_angle` (NaN where there is no firing); ``pot_on`` / ``pot_off``
+    [Ω] the settings where the load snaps on and drops out (:func:`limit_r` less series_r).
+
+    >>> c = angle_curve(vm=325.0, omega=2 * np.pi * 50, pot_lo=0.0, pot_hi=400e3,
+    ...                 series_r=0.0, c1=100e-9, vbo=32.0, breakback=6.0, points=5)
+    >>> np.isnan(c["starting"][-1]), bool(c["pot_on"] < c["pot_off"])
+    (np.True_, True)
+    """
+    pot = np.linspace(pot_lo, pot_hi, points)
+    r1 = pot + series_r
+    kw = {"vm": vm, "omega": omega, "c1": c1, "vbo": vbo, "r2": r2, "c2": c2}
+    start = firing_angle(r1=r1, **kw)
+    run = firing_angle(r1=r1, breakback=breakback, running=True, **kw)
+    on = limit_r(**kw) - series_r
+    off = limit_r(breakback=breakback, running=True, **kw) - series_r
+    return {"pot": pot, "starting": start, "running": run, "pot_on": on, "pot_off": off}
