@@ -39,6 +39,7 @@ import numpy as np
 
 from checks import triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
+from checks.memo import memoised
 
 _BISECT = 44  # halvings of the log-R bracket (1 Ω … 1 GΩ): 1e-12 relative
 
@@ -500,6 +501,7 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
 _ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2")
 
 
+@memoised  # every triac check fired from this trigger asks for the same angles
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:

@@ -518,3 +518,14 @@ def test_output_reported_and_judged_against_required():
     volts = _output(rng(40.0, 200.0, "voltage", "V"))
     assert volts.status == "fail"  # the least V_rms 42.97 V is above 40 V
     assert _output(rng(1.0, 2.0, "current", "A")).status == "not-applicable"
+
+
+def test_a_diac_trigger_feeds_every_triac_check_without_an_error():
+    """A triac stage whose firing range comes from a diac-rc trigger (no `firing` key) runs
+    every check: none raises (triac.didt once read the line twice and failed with KeyError)."""
+    for name in ("fan-230-bare.toml", "fan-230.toml"):
+        run = run_project(Path(__file__).parents[2] / "projects" / name)
+        power = [r for r in run.results if r.stage == "power"]
+        assert len(power) >= 11, name
+        errors = [(r.check, r.summary) for r in run.results if r.status == "error"]
+        assert not errors, (name, errors)
