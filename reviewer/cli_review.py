@@ -54,11 +54,16 @@ def _say(text: str) -> None:
 def _lock_args(args: argparse.Namespace, project: Path) -> dict[str, Any]:
     """``wait``/``on_wait`` for an action, after breaking the lock if the user asked."""
     if getattr(args, "break_lock", False):
-        from reviewer.store import break_lock
+        from reviewer import store
 
-        holder = break_lock(project)
-        _say(f"broke the lock held by {holder.text()} ({holder.what})" if holder else
-             "there was no lock to break")
+        holder = store.break_lock(project)
+        if holder is None:
+            _say("there was no lock to break")
+        elif holder.pid == 0:
+            _say(f"removed the lock file {store.lock_path(project)} (it was damaged or not "
+                 "Latchbook's)")
+        else:
+            _say(f"broke the lock held by {holder.text()} ({holder.what})")
     return {"wait": args.wait, "on_wait": _say}
 
 

@@ -26,15 +26,25 @@ def _kind(mode: int) -> str:
     return "not a regular file"
 
 
+def _link_text(path: str | Path) -> str:
+    try:
+        return f"a symbolic link (to {os.readlink(path)})"
+    except OSError:
+        return "a symbolic link"
+
+
 def read_regular(path: str | Path, limit: int,
-                 error: type[LatchbookError] = ProjectError, what: str = "file") -> bytes:
+                 error: type[LatchbookError] = ProjectError, what: str = "file", *,
+                 follow: bool = True) -> bytes:
     """The bytes of the regular file at ``path``; ``error`` for anything else or a too-big file.
 
-    FileNotFoundError and IsADirectoryError pass through for the caller's own wording.
+    With ``follow=False`` a symbolic link is refused too (for files only Latchbook writes, such
+    as its lock: a link there was put by someone else). FileNotFoundError and
+    IsADirectoryError pass through for the caller's own wording.
     """
     where = Where(str(path))
     try:
-        st = os.stat(path)
+        st = os.stat(path) if follow else os.lstat(path)
     except FileNotFoundError:
         raise
     except OSError as exc:
@@ -44,12 +54,19 @@ def read_regular(path: str | Path, limit: int,
         raise error(f"cannot read the file: {exc.strerror}", where) from None
     if stat.S_ISDIR(st.st_mode):
         raise IsADirectoryError(str(path))
+    if stat.S_ISLNK(st.st_mode):
+        raise error(f"this is {_link_text(path)}, not a file; give a regular file", where)
     if not stat.S_ISREG(st.st_mode):
         raise error(f"this is {_kind(st.st_mode)}, not a file; give a regular file", where)
     flags = os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0)
+    if not follow:
+        flags |= getattr(os, "O_NOFOLLOW", 0)
     try:
         fd = os.open(path, flags)
     except OSError as exc:
+        if exc.errno == errno.ELOOP:  # swapped for a link since the lstat
+            raise error(f"this is {_link_text(path)}, not a file; give a regular file",
+                        where) from None
         raise error(f"cannot read the file: {exc.strerror}", where) from None
     try:
         st = os.fstat(fd)
@@ -73,6 +90,24 @@ def read_regular(path: str | Path, limit: int,
         raise error(f"the file is larger than {most}; a {what} is at most {most} (is this the "
                     "right file?)", where)
     return data
+
+
+def kind_of(path: str | Path) -> str | None:
+    """What ``path`` itself is when it is not a regular file (a link is not followed), in words
+    such as "a named pipe (FIFO)"; None for a regular file or nothing at all. Never opens it."""
+    try:
+        st = os.lstat(path)
+    except FileNotFoundError:
+        return None
+    except OSError as exc:
+        return f"unreadable ({exc.strerror})"
+    if stat.S_ISREG(st.st_mode):
+        return None
+    if stat.S_ISLNK(st.st_mode):
+        return _link_text(path)
+    if stat.S_ISDIR(st.st_mode):
+        return "a folder"
+    return _kind(st.st_mode)
 
 
 def refusal(path: str | Path) -> str | None:

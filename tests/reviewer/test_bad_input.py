@@ -520,6 +520,38 @@ case("sign-unknown-stage", "records", ("no stage `pwr`", "the stages are"),
 case("waive-unknown-stage", "records", "no stage `pwr`", setup=_record(lambda p: None),
      command=("waive", "--stage", "pwr", "--check", "power.blocking", "--note",
               "the lid switch opens both poles of the element"))
+
+
+def _lock(make: Callable[[Path], None]) -> Setup:
+    def setup(d: Path) -> list[str]:
+        (d / "k.toml").write_text(KILN, encoding="utf-8")
+        make(d / "k.lock")
+        return [str(d / "k.toml")]
+    return setup
+
+
+def _lock_other(p: Path) -> None:
+    (p.parent / "other.toml").write_text(FLASH)
+    p.symlink_to("other.toml")
+
+
+def _lock_huge(p: Path) -> None:
+    p.write_text("{" + " " * 100_000 + "}")
+
+
+_LOCK_CMDS = {"sign": ("sign", "--stage", "power", "--note", "looked at it"),
+              "waive": ("waive", "--stage", "power", "--check", "power.blocking", "--note",
+                        "the lid switch opens both poles of the element"),
+              "check": ("check", "--record")}
+for name, make, what in (("fifo", os.mkfifo, "named pipe"),
+                         ("zero", lambda p: p.symlink_to("/dev/zero"), "symbolic link"),
+                         ("link", _lock_other, "symbolic link (to other.toml)"),
+                         ("dangling", lambda p: p.symlink_to("gone"), "symbolic link"),
+                         ("dir", lambda p: p.mkdir(), "folder"),
+                         ("huge", _lock_huge, "100002 bytes")):
+    for tag, cmd in _LOCK_CMDS.items():
+        case(f"lock-{name}-{tag}", "records", ("k.lock", what, "--break-lock"),
+             setup=_lock(make), command=cmd)
 case("project-link-write", "records", "symbolic link",
      setup=lambda d: (_rec_link(d / "k.review.toml"), (d / "k.toml").write_text(KILN),
                       [str(d / "k.toml")])[2], command=("check", "--record"))
