@@ -1,9 +1,11 @@
-"""Reading a user's file without trusting it: regular files only, at most a limit of bytes.
+"""Reading a user's file without trusting it: regular files only, at most a limit of bytes,
+TOML nested no deeper than a limit.
 
 A named pipe would block a reader forever, ``/dev/zero`` never ends, a symlink loop raises
 inside ``pathlib``. :func:`read_regular` looks at what the path is *before* opening it, opens
 without blocking, checks again on the open descriptor (the path may have been swapped in
-between), and reads at most ``limit + 1`` bytes.
+between), and reads at most ``limit + 1`` bytes. :func:`load_toml` refuses thousands of nested
+arrays or inline tables (the parser would exhaust the stack) with the file and the line.
 """
 
 from __future__ import annotations
@@ -11,7 +13,9 @@ from __future__ import annotations
 import errno
 import os
 import stat
+import tomllib
 from pathlib import Path
+from typing import Any
 
 from reviewer.errors import LatchbookError, ProjectError, Where
 
@@ -126,3 +130,66 @@ def refusal(path: str | Path) -> str | None:
     if not stat.S_ISREG(st.st_mode):
         return f"this is {_kind(st.st_mode)}, not a file; give a regular file"
     return None
+
+
+def nesting(doc: Any, stop: int) -> int:
+    """How deep tables and arrays nest in ``doc``, counted up to ``stop`` (iterative: a parsed
+    document of any depth is measured without recursion)."""
+    deepest, stack = 0, [(doc, 1)]
+    while stack:
+        node, d = stack.pop()
+        deepest = max(deepest, d)
+        if d > stop:
+            break
+        items = node.values() if isinstance(node, dict) else node
+        stack.extend((v, d + 1) for v in items if isinstance(v, (dict, list)))
+    return deepest
+
+
+def deep_line(text: str, limit: int) -> int | None:
+    """The line where brackets and braces in ``text`` first nest deeper than ``limit`` (strings
+    and comments skipped), or None. For the message only: the parser has already refused."""
+    depth, line, quote, i, n = 0, 1, "", 0, len(text)
+    while i < n:
+        c = text[i]
+        if c == "\n":
+            line += 1
+        elif quote:
+            if c == "\\" and quote == '"':
+                i += 1
+            elif c == quote:
+                quote = ""
+        elif c in "\"'":
+            quote = c
+        elif c == "#":
+            j = text.find("\n", i)
+            i = n if j < 0 else j
+            continue
+        elif c in "[{":
+            depth += 1
+            if depth > limit:
+                return line
+        elif c in "]}":
+            depth = max(0, depth - 1)
+        i += 1
+    return None
+
+
+def load_toml(text: str, path: str | Path, *, limit: int, error: type[LatchbookError],
+              what: str, fix: str) -> dict[str, Any]:
+    """``text`` parsed as TOML, with tables and arrays nested at most ``limit`` deep.
+
+    Nesting too deep for the parser (thousands of levels) or deeper than ``limit`` is
+    ``error`` naming the file and, where it can be found, the line, saying that ``what`` needs
+    at most ``limit`` levels, then ``fix``. A syntax error passes through as
+    :class:`tomllib.TOMLDecodeError` for the caller's own wording.
+    """
+    try:
+        doc = tomllib.loads(text)
+    except RecursionError:
+        doc = None
+    if doc is None or nesting(doc, limit) > limit:
+        how = "too deep to read" if doc is None else f"more than {limit} levels deep"
+        raise error(f"tables or arrays are nested {how}; {what} needs at most {limit} levels: "
+                    f"{fix}", Where(str(path), line=deep_line(text, limit)))
+    return doc

@@ -131,11 +131,14 @@ case("duplicate-key", "syntax", "not valid TOML", kiln(('vdrm = "800 V"',
 case("duplicate-stage", "syntax", "not valid TOML", KILN + '\n[stages.power]\nkind = "x"\n')
 case("unterminated-string", "syntax", "not valid TOML", kiln(('"Bench kiln', '"Bench kiln\n')))
 case("bare-word", "syntax", "not valid TOML", kiln(('vrrm = "800 V"', "vrrm = 800 volts")))
-case("deep-arrays", "syntax", "nested too deep",
+case("deep-arrays", "syntax", ("p.toml:2", "nested too deep", "remove the extra brackets"),
      "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n")
-case("deep-inline", "syntax", "nested too deep",
+case("deep-inline", "syntax", ("p.toml:2", "nested too deep", "remove the extra brackets"),
      "[project]\nname = " + "{a = " * 5000 + "1" + "}" * 5000 + "\n")
-case("nesting-20", "syntax", "nested more than 16",
+case("deep-inline-strings", "syntax", ("p.toml:4", "nested too deep"),
+     '[project]\nname = "[[[[[[[[[[[[[[[[[[[[[[[["  # [[[[[[[[[[[[[[[[[[[[[\n\nx = '
+     + "{a = " * 5000 + "1" + "}" * 5000 + "\n")
+case("nesting-20", "syntax", ("p.toml:2", "nested more than 16"),
      "[project]\nname = " + "[" * 20 + "1" + "]" * 20 + "\n")
 case("deep-tables", "syntax", "nested more than 16", "[" + ".".join(["t"] * 40) + "]\nx = 1\n")
 case("unknown-table", "syntax", ("unknown table `suply`", "did you mean `supply`"),
@@ -511,6 +514,22 @@ for name, make, words in (("link", _rec_link, ("symbolic link", "other.toml")),
          command=("sign", "--stage", "power", "--note", "looked at it"))
 case("record-dir-check", "records", "cannot", setup=_record(_rec_dir), command=("check",
                                                                              "--record"))
+_DEEP_RECORD = '[review]\nproject = "k.toml"\nx = ' + "[" * 5000 + "]" * 5000 + "\n"
+for cmd in (("check", "--record"), ("sign", "--stage", "power", "--note", "looked at it"),
+            ("waive", "--stage", "power", "--check", "power.blocking", "--note",
+             "the lid switch opens both poles of the element"),
+            ("revoke", "--entry", "1", "--note", "signed the wrong revision"), ("verify",),
+            ("status",), ("report", "--format", "md")):
+    case(f"record-deep-{cmd[0]}", "records",
+         ("k.review.toml:3", "nested too deep", "restore it from version control"),
+         setup=_record(lambda p: p.write_text(_DEEP_RECORD)), command=cmd)
+case("record-deep-diff", "records", ("k.review.toml:3", "nested too deep"),
+     setup=lambda d: (_record(lambda p: p.write_text(_DEEP_RECORD))(d),
+                      [str(d / "k.review.toml"), str(d / "k.review.toml")])[1],
+     command=("diff",))
+case("record-nesting-40", "records", ("k.review.toml:3", "nested more than 32"),
+     setup=_record(lambda p: p.write_text('[review]\nproject = "k.toml"\nx = ' + "[" * 40
+                                          + "]" * 40 + "\n")), command=("verify",))
 case("record-not-utf8", "records", "not UTF-8",
      setup=_record(lambda p: p.write_bytes(b"\xff\xfe[review]")), command=("check", "--record"))
 case("record-not-toml", "records", "not valid TOML",
