@@ -54,7 +54,8 @@ class OverviewScreen(WorkbookScreen):
             if s.approvals_open:
                 note.append(" — values cannot change; an approver approves a stage with "
                             "the a key", style="bold")
-        elif s.review_error:
+        if s.review_error:  # a record that cannot be read is named in every view
+            note.append("\n" if note else "")
             note.append(s.review_error, style="dim")
         if not s.computed:
             note.append("  computing the checks…" if note else "computing the checks…",

@@ -1,0 +1,154 @@
+"""Hostile files met by the workbook at 80×24: a project or review record nested thousands of
+levels deep, and something other than a lock file at the lock's name. Each gives a notice or
+exit 2 naming the file, never a traceback, and writes nothing."""
+
+from __future__ import annotations
+
+import asyncio
+import hashlib
+import os
+import stat
+from pathlib import Path
+
+import pytest
+
+from reviewer.cli import main
+from reviewer.tui.app import Workbook, run_app
+from reviewer.tui.palette import commands
+from reviewer.tui.screens.overview import OverviewScreen
+from reviewer.tui.session import Session
+from tests.tui.conftest import screen_text, settle
+
+SIZE = (80, 24)
+DEEP_RECORD = '[review]\nproject = "kiln-230.toml"\nx = ' + "[" * 5000 + "]" * 5000 + "\n"
+DEEP_PROJECT = '[project]\nname = ' + "{a = " * 5000 + "1" + "}" * 5000 + "\n"
+
+
+def run(coro):
+    return asyncio.run(coro)
+
+
+def folder_state(folder: Path) -> dict[str, tuple[object, ...]]:
+    """Every entry of ``folder``: kind and content hash (pipes are never opened)."""
+    out: dict[str, tuple[object, ...]] = {}
+    for p in sorted(folder.iterdir()):
+        st = os.lstat(p)
+        if stat.S_ISREG(st.st_mode):
+            out[p.name] = ("file", hashlib.sha256(p.read_bytes()).hexdigest(), st.st_mode)
+        else:
+            out[p.name] = ("other", st.st_mode)
+    return out
+
+
+def notices(app: Workbook) -> str:
+    return "\n".join(str(n.message) for n in app._notifications)
+
+
+def test_a_deeply_nested_record_is_named_on_the_overview_and_nothing_is_written(kiln):
+    """The project opens and computes; the record's problem (file, line, what to do) is shown;
+    signing is refused with the same words; the folder is as it was."""
+    record = kiln.with_name("kiln-230.review.toml")
+    record.write_text(DEEP_RECORD)
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln))
+        async with app.run_test(size=SIZE, notifications=True) as pilot:
+            await settle(pilot, app)
+            text = "".join(screen_text(app).split())  # the path wraps at the screen's edge
+            assert "kiln-230.review.toml:3" in text and "nestedtoodeep" in text, text
+            app.open_stage("power")
+            await pilot.pause()
+            await pilot.press("s")
+            await pilot.pause()
+            shown = "".join((screen_text(app) + notices(app)).split()).replace("┃", "")
+            assert "cannotsign" in shown and "kiln-230.review.toml:3" in shown and \
+                "nestedtoodeep" in shown, shown
+            await pilot.press("escape")
+            assert "Traceback" not in shown
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
+
+
+def test_a_deeply_nested_record_in_the_leads_view_is_named(kiln):
+    """Opened from the record (read-only), the record's problem is shown, not hidden behind
+    the read-only note."""
+    record = kiln.with_name("kiln-230.review.toml")
+    record.write_text('[review]\nproject = "kiln-230.toml"\n[[result]]\nx = ' + "[" * 40
+                      + "]" * 40 + "\n")
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln, read_only=True))
+        async with app.run_test(size=SIZE, notifications=True) as pilot:
+            await settle(pilot, app)
+            text = "".join(screen_text(app).split())
+            assert "read-only" in text and "kiln-230.review.toml:4" in text and \
+                "nestedmorethan32" in text, text
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
+
+
+def test_open_on_a_deeply_nested_record_exits_2_naming_it(kiln, capsys):
+    record = kiln.with_name("kiln-230.review.toml")
+    record.write_text(DEEP_RECORD)
+    before = folder_state(kiln.parent)
+    assert main(["open", str(record)]) == 2
+    err = capsys.readouterr().err
+    assert "kiln-230.review.toml:3" in err and "nested too deep" in err and \
+        "restore it from version control" in err and "Traceback" not in err
+    assert folder_state(kiln.parent) == before
+
+
+def test_open_on_a_deeply_nested_project_exits_2_naming_it(workdir, capsys):
+    deep = workdir / "deep.toml"
+    deep.write_text(DEEP_PROJECT)
+    before = folder_state(workdir)
+    assert run_app(str(deep), headless=True) == 2
+    err = capsys.readouterr().err
+    assert "deep.toml:2" in err and "nested too deep" in err and "Traceback" not in err
+    assert folder_state(workdir) == before
+
+
+def test_switching_to_a_deeply_nested_project_is_a_notice(kiln):
+    """The palette's other projects include a broken one: choosing it says why, in place."""
+    deep = kiln.with_name("deep.toml")
+    deep.write_text(DEEP_PROJECT)
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln))
+        async with app.run_test(size=SIZE, notifications=True) as pilot:
+            await settle(pilot, app)
+            cmd = next(c for c in commands(app.screen, app) if c.text == "Open project deep.toml")
+            cmd.run()
+            await pilot.pause()
+            assert app.session.path == kiln and isinstance(app.screen, OverviewScreen)
+            said = notices(app)
+            assert "deep.toml:2" in said and "nested too deep" in said, said
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
+
+
+@pytest.mark.parametrize("kind", ["fifo", "zero", "folder"])
+def test_something_else_at_the_locks_name_opens_read_only_naming_it(kiln, kind):
+    """A pipe would block the open, /dev/zero never ends: the workbook opens read-only and
+    says what is at the lock's name and what to do."""
+    lp = kiln.with_name("kiln-230.lock")
+    {"fifo": os.mkfifo, "zero": lambda p: p.symlink_to("/dev/zero"),
+     "folder": os.mkdir}[kind](lp)
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln))
+        async with app.run_test(size=(100, 30), notifications=True) as pilot:
+            await settle(pilot, app)
+            assert app.session.read_only
+            text = " ".join(screen_text(app).split())
+            assert "kiln-230.lock" in text and "--break-lock" in text, text
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
