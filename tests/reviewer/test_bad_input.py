@@ -571,6 +571,26 @@ for name, make, what in (("fifo", os.mkfifo, "named pipe"),
     for tag, cmd in _LOCK_CMDS.items():
         case(f"lock-{name}-{tag}", "records", ("k.lock", what, "--break-lock"),
              setup=_lock(make), command=cmd)
+
+
+def _signed(d: Path) -> list[str]:
+    (d / "k.toml").write_text(KILN, encoding="utf-8")
+    assert main(["sign", str(d / "k.toml"), "--stage", "power", "--note", "looked at it"]) == 0
+    assert main(["revoke", str(d / "k.toml"), "--entry", "1", "--note",
+                 "signed against the wrong drawing revision"]) == 0
+    assert main(["sign", str(d / "k.toml"), "--stage", "gate"]) == 0
+    return [str(d / "k.toml")]
+
+
+for tag, cmd in (("short-note", ("--note", "x")), ("no-note", ()),
+                 ("long-note", ("--note", "x" * 5000))):
+    case(f"revoke-no-entry-{tag}", "records",
+         ("there is no entry #9", "Entries that can be revoked: #3 signoff of stage gate"),
+         setup=_signed, command=("revoke", "--entry", "9", *cmd))
+case("revoke-a-revocation", "records", ("entry #2 is a revoke", "can be revoked: #3"),
+     setup=_signed, command=("revoke", "--entry", "2", "--note", "x"))
+case("revoke-without-note", "records", ("say why entry #3 no longer holds", "--note TEXT"),
+     setup=_signed, command=("revoke", "--entry", "3"))
 case("project-link-write", "records", "symbolic link",
      setup=lambda d: (_rec_link(d / "k.review.toml"), (d / "k.toml").write_text(KILN),
                       [str(d / "k.toml")])[2], command=("check", "--record"))
@@ -681,6 +701,8 @@ def test_bad_input(c: Case, tmp_path: Path, capsys: pytest.CaptureFixture[str],
     assert "Traceback" not in text
     for word in c.words:
         assert word in text, f"{word!r} not in {text!r}"
+    if c.id.startswith("revoke-no-entry") or c.id == "revoke-a-revocation":
+        assert "too short" not in text and "reason" not in text
     for raw in RAW:
         assert raw not in text
     assert snapshot(tmp_path) == before
