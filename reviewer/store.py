@@ -164,7 +164,6 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
     Returns the real path written.
     """
     target = _refuse_unsafe_target(Path(path))
-    folder = target.parent
     if check:
         on_disk = file_sha256(target)
         if on_disk != expected_sha256:
@@ -172,8 +171,21 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
                               "written. Reload it and apply your change again",
                               Where(str(target)))
     data = text.encode("utf-8")
+    with _replacing(target, binary=True) as fh:
+        fh.write(data)
+    _clean_orphans(target)
+    return target
+
+
+@contextlib.contextmanager
+def _replacing(target: Path, *, binary: bool) -> Iterator[Any]:
+    """The one way a file is replaced: what the block writes to the yielded temp file (in
+    ``target``'s folder) becomes ``target`` whole, with the old file's permissions (and owner
+    and group where allowed), or — if the block or a step raises — the temp file is removed
+    and the old file stays as it was. An OS error is a :class:`RecordError` naming the file."""
+    folder = target.parent
     try:
-        old = target.stat()
+        old: os.stat_result | None = target.stat()
     except FileNotFoundError:
         old = None
     try:
@@ -182,8 +194,9 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
         raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
                           "permissions", Where(str(target))) from None
     try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
+        with (os.fdopen(fd, "wb") if binary else
+              os.fdopen(fd, "w", encoding="utf-8", newline="")) as fh:
+            yield fh
             fh.flush()
             os.fsync(fh.fileno())
         if old is not None:
@@ -203,8 +216,6 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
                               Where(str(target))) from None
         raise
     _fsync_dir(folder)
-    _clean_orphans(target)
-    return target
 
 
 def _refuse_unsafe_target(path: Path) -> Path:
@@ -254,30 +265,8 @@ def atomic_stream(path: str | Path) -> Iterator[Any]:
         raise RecordError(f"the folder {folder} does not exist; create it or give another path",
                           Where(str(target)))
     target = _refuse_unsafe_target(target)  # never through a link, never over a read-only file
-    try:
-        old: os.stat_result | None = target.stat()
-    except FileNotFoundError:
-        old = None
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
-                          "permissions", Where(str(target))) from None
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            yield fh
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, stat.S_IMODE(old.st_mode) if old is not None else 0o666 & ~_umask())
-        os.replace(tmp, target)
-    except BaseException as exc:
-        with contextlib.suppress(OSError):
-            os.unlink(tmp)
-        if isinstance(exc, OSError):
-            raise RecordError(f"cannot write the file: {exc.strerror}",
-                              Where(str(target))) from None
-        raise
-    _fsync_dir(folder)
+    with _replacing(target, binary=False) as fh:
+        yield fh
 
 
 ORPHAN_AGE = 600.0  # s: no save takes this long, so an older temp file is a killed writer's
