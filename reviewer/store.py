@@ -582,8 +582,7 @@ class ProjectLock:
                 fd, tmp = tempfile.mkstemp(prefix=f".{self.path.name}.{os.getpid()}.",
                                            suffix=".tmp", dir=self.path.parent)
             except OSError as exc:
-                raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                  f"{os_fault(exc)}", Where(str(self.project))) from None
+                raise self._cannot_create(exc) from None
             try:
                 try:
                     with os.fdopen(fd, "w", encoding="utf-8") as fh:
@@ -592,8 +591,7 @@ class ProjectLock:
                         os.fsync(fh.fileno())
                     os.chmod(tmp, 0o644)
                 except OSError as exc:
-                    raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                      f"{os_fault(exc)}", Where(str(self.project))) from None
+                    raise self._cannot_create(exc) from None
                 try:
                     os.link(tmp, self.path)
                 except FileExistsError:
@@ -603,8 +601,7 @@ class ProjectLock:
                     raise self._locked(holder) from None
                 except OSError as exc:
                     if exc.errno not in (errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP):
-                        raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                          f"{os_fault(exc)}", Where(str(self.project))) from None
+                        raise self._cannot_create(exc) from None
                     if not self._create_exclusive(body):  # no hard links on this file system
                         holder = self._break_if_stale()
                         if holder is None:
@@ -620,6 +617,10 @@ class ProjectLock:
             return
         holder = read_lock(self.project) or LockInfo("?", "?", 0, "?")
         raise self._locked(holder)
+
+    def _cannot_create(self, exc: OSError) -> RecordError:
+        return RecordError(f"cannot create the lock file {self.path.name}: {os_fault(exc)}",
+                           Where(str(self.project)))
 
     def _create_exclusive(self, body: str) -> bool:
         """Create the lock with O_EXCL (for file systems without hard links)."""
