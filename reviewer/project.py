@@ -320,7 +320,7 @@ class _Loader:
         if not isinstance(raw, dict):
             raise ProjectError(f"`{ref}` must be a table [parts.{ref}]", self.where("parts", ref))
         ptype = raw.get("type")
-        if ptype not in schema.PART_TYPES:
+        if not isinstance(ptype, str) or ptype not in schema.PART_TYPES:
             raise ProjectError("needs type = " + ", ".join(f'"{t}"' for t in schema.PART_TYPES)
                                + (_did_you_mean(str(ptype), schema.PART_TYPES) if ptype else ""),
                                self.where(table, "type"))
@@ -347,7 +347,7 @@ class _Loader:
             raise ProjectError(f"`{sid}` must be a table [stages.{sid}]",
                                self.where("stages", sid))
         kind = raw.get("kind")
-        if kind not in STAGE_KINDS:
+        if not isinstance(kind, str) or kind not in STAGE_KINDS:  # a list or table: unhashable
             said = f'kind = "{kind}" is not a stage kind; ' if isinstance(kind, str) else ""
             raise ProjectError(said + "needs kind = one of "
                                + ", ".join(f'"{k}"' for k in STAGE_KINDS)

@@ -60,6 +60,9 @@ def verify(project_path: str | Path, *, head: str | None = None) -> VerifyReport
                              any(c not in "0123456789abcdef" for c in head.lower())):
         raise ProjectError(f"--head takes a head hash (at least {MIN_ANCHOR} hex digits, as "
                            "status and reports print it)", Where(str(project_path)))
+    from reviewer.project import load_project
+
+    load_project(project_path)  # a project that cannot be read is bad input, record or not
     try:
         rec = load_record(project_path)
     except UnsafeFileError:

@@ -371,6 +371,15 @@ case("heatsink-no-rth-sa", "configuration", "needs `rth_sa`",
            'heatsink = { rth_cs = "0.5 K/W" }')))
 case("fuse-no-i2t", "configuration", "needs `i2t`",
      kiln(('fuse = { rating = "10 A", i2t = "80 A^2*s" }', 'fuse = { rating = "10 A" }')))
+case("kind-list", "syntax", "needs kind = one of", kiln(('kind = "rc-snubber"', "kind = []")))
+case("kind-table", "syntax", "needs kind = one of", kiln(('kind = "rc-snubber"',
+                                                         "kind = { a = 1 }")))
+case("type-list", "syntax", 'needs type = "scr"', kiln(('type = "scr"', 'type = ["scr"]')))
+case("huge-verify", "file", ("1024 KiB", "project is at most"),
+     setup=_write("p.toml", "# padding\n" * 120_000), command=("verify",))
+case("deep-verify", "file", ("p.toml:2", "nested too deep"),
+     setup=_write("p.toml", "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n"),
+     command=("verify",))
 case("load-not-table", "configuration", "must be a table",
      kiln(('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }', 'load = "26.5 ohm"')))
 case("load-unknown-key", "configuration", ("unknown key `rr`", "did you mean `r`"),
