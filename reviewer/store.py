@@ -250,6 +250,12 @@ def _refuse_unsafe_target(path: Path) -> Path:
     return target
 
 
+def writable_target(path: str | Path) -> Path:
+    """The real path :func:`atomic_write` would replace, or its refusal (a symlink, a file
+    without write permission) raised now: for a writer that makes other files first."""
+    return _refuse_unsafe_target(Path(path))
+
+
 @contextlib.contextmanager
 def atomic_stream(path: str | Path) -> Iterator[Any]:
     """A text file to write piece by piece that appears at ``path`` whole, or not at all.
@@ -954,4 +960,5 @@ __all__ = ["DEFAULT_WAIT", "Edit", "Journal", "LockInfo", "LockTimeout", "Locked
            "clean_leftovers", "clear_journal", "current_person", "file_sha256",
            "hangup_saves", "install_hangup_handler", "journal_path", "lock_path", "lock_project",
            "mine_path", "os_fault", "pending_journal", "read_lock", "read_with_hash",
-           "save_checked", "sha256_bytes", "stamp", "utc_now", "write_journal"]
+           "save_checked", "sha256_bytes", "stamp", "utc_now", "writable_target",
+           "write_journal"]

@@ -141,8 +141,9 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
 def write_markdown(d: ReportData, out: str | Path) -> Path:
     """Write the figures into ``NAME.figures/`` (atomically, stale SVGs removed), then the
     report at ``out``; returns the report's path."""
-    from reviewer.store import atomic_write
+    from reviewer.store import atomic_write, writable_target
 
+    writable_target(out)  # a link or a read-only file at `out`: refused before any figure
     folder = figures_dir(out)
     files: dict[str, str] = {}
     for s in d.stages:

@@ -600,6 +600,25 @@ case("revoke-a-revocation", "records", ("entry #2 is a revoke", "can be revoked:
      setup=_signed, command=("revoke", "--entry", "2", "--note", "x"))
 case("revoke-without-note", "records", ("say why entry #3 no longer holds", "--note TEXT"),
      setup=_signed, command=("revoke", "--entry", "3"))
+
+
+def _report_to(make: Callable[[Path], None]) -> Setup:
+    def setup(d: Path) -> list[str]:
+        (d / "k.toml").write_text(KILN, encoding="utf-8")
+        make(d / "out.md")
+        return [str(d / "k.toml"), "-o", str(d / "out.md")]
+    return setup
+
+
+case("report-to-link", "records", ("out.md", "symbolic link", "Nothing was written"),
+     setup=_report_to(lambda p: p.symlink_to(p.parent / "elsewhere.md")),
+     command=("report", "--format", "md"))
+case("report-to-read-only", "records", ("out.md", "read-only"),
+     setup=_report_to(lambda p: (p.write_text("old"), os.chmod(p, 0o444))),
+     command=("report", "--format", "md"))
+case("report-html-to-link", "records", ("out.md", "symbolic link"),
+     setup=_report_to(lambda p: p.symlink_to(p.parent / "elsewhere.md")),
+     command=("report", "--format", "html"))
 case("project-link-write", "records", "symbolic link",
      setup=lambda d: (_rec_link(d / "k.review.toml"), (d / "k.toml").write_text(KILN),
                       [str(d / "k.toml")])[2], command=("check", "--record"))
