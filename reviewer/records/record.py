@@ -29,8 +29,10 @@ _ENTRY_HEADER = re.compile(r"^\[\[entry\]\][ \t]*$", re.MULTILINE)
 
 def parse_record(text: str, path: str | Path) -> dict[str, Any]:
     """A record's text as TOML, refusing nesting far deeper than Latchbook writes (an
-    :class:`UnsafeFileError` naming the file and line; a syntax error passes through)."""
-    return load_toml(text, path, limit=RECORD_MAX_DEPTH, error=UnsafeFileError,
+    :class:`UnsafeFileError` naming the file and line; a syntax error passes through). A
+    byte-order mark an editor put in front is accepted (the next write leaves it out)."""
+    return load_toml(text.removeprefix("\ufeff"), path, limit=RECORD_MAX_DEPTH,
+                     error=UnsafeFileError,
                      what="a review record",
                      fix="records are written only by Latchbook, so restore it from version "
                          "control")

@@ -772,3 +772,19 @@ def test_a_byte_order_mark_is_accepted(tmp_path: Path, capsys: pytest.CaptureFix
                                      "flasher-dc.toml").read_bytes())
     assert main(["check", str(p), "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["projects"][0]["name"] == "Beacon flasher, 24 V"
+
+
+def test_a_byte_order_mark_on_a_review_record_is_accepted(tmp_path: Path,
+                                                        capsys: pytest.CaptureFixture[str]):
+    """An editor that saves with a BOM does not make the history unreadable; the next
+    entry is appended and the history still verifies."""
+    p = tmp_path / "k.toml"
+    p.write_text(KILN, encoding="utf-8")
+    assert main(["sign", str(p), "--stage", "power", "--note", "looked at it"]) == 0
+    rec = tmp_path / "k.review.toml"
+    rec.write_bytes(b"\xef\xbb\xbf" + rec.read_bytes())
+    assert main(["verify", str(p)]) == 0
+    assert main(["sign", str(p), "--stage", "gate", "--note", "looked at it too"]) == 0
+    assert main(["verify", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "history verifies: 2 entries" in out
