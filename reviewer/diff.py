@@ -22,8 +22,9 @@ from pathlib import Path
 from types import SimpleNamespace
 from typing import Any, TextIO
 
+from reviewer import fmt
 from reviewer.errors import ProjectError, Where
-from reviewer.fmt import eng, pct, show
+from reviewer.fmt import eng, show
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.textsafe import safe_console
 
@@ -465,7 +466,7 @@ def diff_paths(old: str | Path, new: str | Path) -> Diff:
 # ------------------------------------------------------------------------------- rendering
 
 def _margin(x: float | None) -> str:
-    return "—" if x is None else pct(x)
+    return fmt.margin(x) or "—"  # as the workbook, the command line and the reports write it
 
 
 def render_diff(d: Diff, out: TextIO | None = None, *, width: int | None = None) -> None:
