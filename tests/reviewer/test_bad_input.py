@@ -521,6 +521,12 @@ for name, make, words in (("link", _rec_link, ("symbolic link", "other.toml")),
          command=("check", "--record"))
     case(f"record-{name}-sign", "records", words, setup=_record(make),
          command=("sign", "--stage", "power", "--note", "looked at it"))
+    case(f"record-{name}-waive", "records", words, setup=_record(make),
+         command=("waive", "--stage", "power", "--check", "power.blocking", "--note",
+                  "the lid switch opens both poles of the element"))
+    if name in ("fifo", "loop"):  # reading through a link, or a read-only file, is fine
+        case(f"record-{name}-verify", "records", words, setup=_record(make),
+             command=("verify",))
 case("record-dir-check", "records", "cannot", setup=_record(_rec_dir), command=("check",
                                                                              "--record"))
 _DEEP_RECORD = '[review]\nproject = "k.toml"\nx = ' + "[" * 5000 + "]" * 5000 + "\n"
