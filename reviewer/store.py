@@ -894,8 +894,9 @@ def pending_journal(project_path: str | Path) -> Journal | None:
             if not isinstance(d.get("path"), str) or not isinstance(d.get("text"), str):
                 raise ValueError("an edit needs `path` and `text` strings")
             edits.append(Edit(d["path"], d["text"]))
-    except (ValueError, AttributeError) as exc:
-        raise RecordError(f"the unsaved-edits journal is damaged ({exc}); move it aside to "
+    except (ValueError, AttributeError, RecursionError) as exc:
+        why = "nested too deep to read" if isinstance(exc, RecursionError) else str(exc)
+        raise RecordError(f"the unsaved-edits journal is damaged ({why}); move it aside to "
                           "open the project without it", Where(str(jp))) from None
     if not edits:
         return None

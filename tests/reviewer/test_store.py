@@ -441,6 +441,9 @@ def test_damaged_journal_is_an_error_naming_it(tmp_path):
     journal_path(proj).write_text("{not json\n")
     with pytest.raises(RecordError, match=r"kiln\.journal.*damaged"):
         pending_journal(proj)
+    journal_path(proj).write_text('{"format": "latchbook.journal/1"}\n' + "[" * 100_000 + "\n")
+    with pytest.raises(RecordError, match=r"kiln\.journal.*nested too deep.*move it aside"):
+        pending_journal(proj)
 
 
 HANGUP = """

@@ -152,3 +152,22 @@ def test_something_else_at_the_locks_name_opens_read_only_naming_it(kiln, kind):
             app.session.close()
     run(go())
     assert folder_state(kiln.parent) == before
+
+
+def test_a_deeply_nested_journal_is_a_notice_and_is_kept(kiln):
+    """The unsaved-edits journal is read on open: one nested too deep says so, naming it,
+    and stays where it is for the user to look at (never silently dropped)."""
+    journal = kiln.with_name("kiln-230.journal")
+    journal.write_text('{"format": "latchbook.journal/1"}\n' + "[" * 100_000 + "\n")
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln))
+        async with app.run_test(size=SIZE, notifications=True) as pilot:
+            await settle(pilot, app)
+            said = notices(app)
+            assert "kiln-230.journal" in said and "nested too deep" in said, said
+            assert isinstance(app.screen, OverviewScreen)
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
