@@ -464,7 +464,7 @@ def _parse_lock(raw: str) -> LockInfo:
         d = json.loads(raw)
         return LockInfo(str(d["login"]), str(d["host"]), int(d["pid"]), str(d["started"]),
                         str(d.get("token", "")), str(d.get("what", "session")))
-    except (ValueError, KeyError, TypeError):
+    except (ValueError, KeyError, TypeError, RecursionError):  # damaged: an unknown holder
         return LockInfo("?", "?", 0, "?")
 
 

@@ -309,6 +309,10 @@ def test_damaged_lock_file_is_reported_not_ignored(tmp_path):
     lock_path(proj).write_text("garbage")
     with pytest.raises(LockedError, match="damaged"):
         ProjectLock(proj).acquire()
+    lock_path(proj).write_text("[" * 4000)  # within the size limit, too deep for json
+    with pytest.raises(LockedError, match="damaged"):
+        ProjectLock(proj).acquire()
+    assert read_lock(proj).pid == 0
 
 
 def _odd_lock(kind: str, lp: Path) -> None:
