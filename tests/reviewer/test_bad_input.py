@@ -794,3 +794,22 @@ def test_a_byte_order_mark_on_a_review_record_is_accepted(tmp_path: Path,
     assert main(["verify", str(p)]) == 0
     out = capsys.readouterr().out
     assert "history verifies: 2 entries" in out
+
+
+def test_listing_a_folder_reads_no_more_than_a_project_may_hold(tmp_path: Path):
+    """Which files of a folder are projects is judged without reading a huge file whole (its
+    own load then says it is too large)."""
+    import tracemalloc
+
+    import reviewer.project  # noqa: F401  (imported first: its import is not the read)
+    from reviewer.batch import skip_reason
+
+    huge = tmp_path / "huge.toml"
+    huge.write_text("#" * (20 << 20))
+    tracemalloc.start()
+    try:
+        assert skip_reason(huge) is None
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    assert peak < 4 << 20, peak
