@@ -18,6 +18,7 @@ from reviewer.tui.palette import commands
 from reviewer.tui.screens.overview import OverviewScreen
 from reviewer.tui.session import Session
 from tests.tui.conftest import screen_text, settle
+from tests.tui.test_workbook import open_stage, type_into_edit
 
 SIZE = (80, 24)
 DEEP_RECORD = '[review]\nproject = "kiln-230.toml"\nx = ' + "[" * 5000 + "]" * 5000 + "\n"
@@ -178,27 +179,14 @@ def test_a_deeply_nested_journal_is_a_notice_and_is_kept(kiln):
 def test_a_value_nested_too_deep_is_refused_in_the_edit_dialog(kiln, typed):
     """Typed into the editor, thousands of brackets are a message under the field (the same
     parser the files use), never a crash; the project and its file stay as they were."""
-    from reviewer.tui.dialogs.edit_value import EditValueDialog
-    from reviewer.tui.screens.stage import StageScreen
-    from reviewer.tui.widgets.tables import StageTable
-
     before = folder_state(kiln.parent)
 
     async def go():
         app = Workbook(Session(kiln))
         async with app.run_test(size=SIZE) as pilot:
             await settle(pilot, app)
-            app.screen.query_one(StageTable).select_key("trigger")
-            await pilot.press("enter")
-            await pilot.pause()
-            assert isinstance(app.screen, StageScreen)
-            app.screen.edit_path("stages.trigger.timing_c")
-            await pilot.pause()
-            dialog = app.screen
-            assert isinstance(dialog, EditValueDialog)
-            dialog.query_one("#edit-input").value = typed
-            await pilot.press("enter")
-            await pilot.pause()
+            await open_stage(pilot, app, "trigger")
+            dialog = await type_into_edit(pilot, app, "stages.trigger.timing_c", typed)
             assert app.screen is dialog
             err = str(dialog.query_one("#edit-error").render())
             assert "nested" in err or "cannot read" in err, err
