@@ -457,9 +457,12 @@ def diff_paths(old: str | Path, new: str | Path) -> Diff:
     if ra != rb:
         raise ProjectError("give two project files (NAME.toml) or two review records "
                            "(NAME.review.toml), not one of each", Where(str(new)))
+    from reviewer.safeio import refusal
+
     for p in (old, new):
-        if not Path(p).is_file():
-            raise ProjectError("no such file; check the path", Where(str(p)))
+        why = refusal(p)  # a pipe, a device or a link loop is named as what it is
+        if why is not None:
+            raise ProjectError(why, Where(str(p)))
     return diff_records(old, new) if ra else diff_projects(old, new)
 
 

@@ -103,7 +103,10 @@ def _folder(d: Path) -> list[str]:
 
 
 for cmd in (("check",), ("report", "--format", "md"), ("status",), ("sign", "--stage", "*"),
-            ("verify",)):
+            ("verify",), ("open",), ("diff", "/dev/null"), ("waive", "--stage", "power",
+                                                        "--check", "power.blocking", "--note",
+                                                        "the lid switch opens both poles"),
+            ("export", "--spice", "power")):
     tag = cmd[0]
     case(f"fifo-{tag}", "file", ("named pipe", "regular file"), setup=_fifo, command=cmd)
     case(f"dev-zero-{tag}", "file", ("device", "regular file"),
@@ -377,6 +380,11 @@ case("kind-table", "syntax", "needs kind = one of", kiln(('kind = "rc-snubber"',
 case("type-list", "syntax", 'needs type = "scr"', kiln(('type = "scr"', 'type = ["scr"]')))
 case("huge-verify", "file", ("1024 KiB", "project is at most"),
      setup=_write("p.toml", "# padding\n" * 120_000), command=("verify",))
+case("deep-open", "file", ("p.toml:2", "nested too deep"),
+     setup=_write("p.toml", "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n"),
+     command=("open",))
+case("huge-open", "file", ("1024 KiB", "project is at most"),
+     setup=_write("p.toml", "# padding\n" * 120_000), command=("open",))
 case("deep-verify", "file", ("p.toml:2", "nested too deep"),
      setup=_write("p.toml", "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n"),
      command=("verify",))
