@@ -112,6 +112,18 @@ for cmd in (("check",), ("report", "--format", "md"), ("status",), ("sign", "--s
     case(f"dev-zero-{tag}", "file", ("device", "regular file"),
          setup=lambda d: ["/dev/zero"], command=cmd)
     case(f"symlink-loop-{tag}", "file", "loops", setup=_loop, command=cmd)
+
+
+def _odd_folder(d: Path) -> list[str]:
+    (d / "k.toml").write_text(KILN, encoding="utf-8")
+    _loop(d)
+    _fifo(d)
+    return [str(d)]
+
+
+for cmd in (("status", "--matrix"), ("status",), ("status", "--matrix", "--json")):
+    case(f"folder-odd-{'-'.join(c.strip('-') for c in cmd)}", "file",
+         ("a.toml", "loops", "pipe.toml", "named pipe"), setup=_odd_folder, command=cmd)
 case("missing", "file", "no such file", setup=lambda d: [str(d / "nope.toml")])
 case("dangling-link", "file", "no such file", setup=_dangling)
 case("folder", "file", "folder", setup=_folder)
