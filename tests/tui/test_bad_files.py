@@ -196,3 +196,30 @@ def test_a_value_nested_too_deep_is_refused_in_the_edit_dialog(kiln, typed):
             app.session.close()
     run(go())
     assert folder_state(kiln.parent) == before
+
+
+def test_the_palette_lists_a_folder_holding_a_pipe_and_a_link_loop(kiln):
+    """ctrl+p offers the folder's projects; a pipe and a link that loops among them are
+    offered (their load names them) and never hang or crash the listing."""
+    os.mkfifo(kiln.with_name("pipe.toml"))
+    kiln.with_name("a.toml").symlink_to(kiln.with_name("b.toml"))
+    kiln.with_name("b.toml").symlink_to(kiln.with_name("a.toml"))
+    before = folder_state(kiln.parent)
+
+    async def go():
+        app = Workbook(Session(kiln))
+        async with app.run_test(size=SIZE, notifications=True) as pilot:
+            await settle(pilot, app)
+            texts = [c.text for c in commands(app.screen, app)]
+            assert "Open project kiln-120.toml" in texts
+            for name in ("pipe.toml", "a.toml"):
+                cmd = next(c for c in commands(app.screen, app)
+                           if c.text == f"Open project {name}")
+                cmd.run()
+                await pilot.pause()
+                assert app.session.path == kiln
+            said = notices(app)
+            assert "named pipe" in said and "loops" in said, said
+            app.session.close()
+    run(go())
+    assert folder_state(kiln.parent) == before
