@@ -86,9 +86,13 @@ def skip_reason(path: Path) -> str | None:
         return "not a TOML file"
     if name == "pyproject.toml":
         return "a Python package file"
-    try:
-        doc = tomllib.loads(path.read_text("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError):
+    from reviewer.project import MAX_BYTES
+    from reviewer.safeio import read_regular
+
+    try:  # never more than a project may hold: a huge file is named by its load, not read
+        doc = tomllib.loads(read_regular(path, MAX_BYTES).decode("utf-8-sig"))
+    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError, RecursionError,
+            LatchbookError):
         return None  # a broken project: loading it gives the message with the line
     if isinstance(doc.get("project"), dict):
         return None

@@ -33,9 +33,10 @@ from typing import Any
 
 from reviewer.errors import ProjectError, Where
 from reviewer.reasons import reason_problem
-from reviewer.safeio import read_regular
+from reviewer.safeio import load_toml, read_regular
 
 TOP_KEYS = ("checklist", "limits", "off", "manual")
+CHECKLIST_MAX_DEPTH = 16  # a checklist uses three levels
 HEAD_KEYS = ("name", "version", "extends", "approvers", "description", "sign_with_ssh",
              "allowed_signers", "self_approval")
 MANUAL_KEYS = ("id", "stage_kind", "question")
@@ -273,13 +274,12 @@ def _load_file(path: Path, seen: tuple[str, ...]) -> Checklist:
     text = _read(path)
     f = _File(path, text)
     try:
-        doc = tomllib.loads(text)
+        doc = load_toml(text, path, limit=CHECKLIST_MAX_DEPTH, error=ProjectError,
+                        what="a checklist", fix="remove the extra brackets or braces")
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"line (\d+)", str(exc))
         raise ProjectError(f"not a readable TOML checklist: {exc}",
                            Where(key, line=int(m.group(1)) if m else None)) from None
-    except RecursionError:
-        raise ProjectError("tables or arrays are nested too deep to read", Where(key)) from None
     for k in doc:
         if k not in TOP_KEYS:
             raise ProjectError(f"unknown table `{k}`{_near(k, TOP_KEYS)} (a checklist has "

@@ -262,7 +262,14 @@ def main(argv: Sequence[str] | None = None) -> int:
         code = report_error(exc)  # what reaches here is the user's input (2), or busy (3)
         return 2 if code == 1 else code
     except RecursionError:
-        print("latchbook: a file nests tables or arrays too deep to read", file=sys.stderr)
+        # Every reader of a user's TOML refuses deep nesting itself, naming the file; this is
+        # the last guard for a path that does not, and says what was being read.
+        from reviewer.textsafe import visible
+
+        what = getattr(args, "project", None) or getattr(args, "paths", None) or "a file"
+        print(f"latchbook: {visible(str(what))}: a file nests tables or arrays too deep to "
+              "read; check the project and its review record (and please report this "
+              "command: its reader should have named the file)", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130

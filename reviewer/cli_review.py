@@ -54,11 +54,16 @@ def _say(text: str) -> None:
 def _lock_args(args: argparse.Namespace, project: Path) -> dict[str, Any]:
     """``wait``/``on_wait`` for an action, after breaking the lock if the user asked."""
     if getattr(args, "break_lock", False):
-        from reviewer.store import break_lock
+        from reviewer import store
 
-        holder = break_lock(project)
-        _say(f"broke the lock held by {holder.text()} ({holder.what})" if holder else
-             "there was no lock to break")
+        holder = store.break_lock(project)
+        if holder is None:
+            _say("there was no lock to break")
+        elif holder.pid == 0:
+            _say(f"removed the lock file {store.lock_path(project)} (it was damaged or not "
+                 "Latchbook's)")
+        else:
+            _say(f"broke the lock held by {holder.text()} ({holder.what})")
     return {"wait": args.wait, "on_wait": _say}
 
 
@@ -122,14 +127,21 @@ def cmd_revoke(args: argparse.Namespace) -> int:
     """Revoke an earlier entry by its seq (an entry that does not exist is named first, before
     anything is said about the note)."""
     from reviewer.records import load_record, revoke
+    from reviewer.records.actions import revocable_text
+    from reviewer.records.chain import COVERING
 
     try:
         rec = load_record(_project(args.project))
-        if not any(e.seq == args.entry for e in rec.entries):
-            have = (f"the history has entries #1 to #{len(rec.entries)}" if rec.entries
-                    else "there is no review history yet")
-            raise ProjectError(f"there is no entry #{args.entry}: {have} (each [[entry]] in "
-                               f"{rec.path.name} has its number as seq)", _where(rec.path))
+        target = next((e for e in rec.entries if e.seq == args.entry), None)
+        if target is None or target.kind not in COVERING:
+            what = (f"there is no entry #{args.entry}" if target is None else
+                    f"entry #{args.entry} is a {target.kind}, which cannot be revoked")
+            raise ProjectError(f"{what} (each [[entry]] in {rec.path.name} has its number as "
+                               f"seq). {revocable_text(rec.entries)}", _where(rec.path))
+        if args.note is None:
+            raise ProjectError(f"say why entry #{args.entry} no longer holds: --note TEXT "
+                               "(at least 20 characters, three different words)",
+                               _where(rec.path))
         p = _project(args.project)
         e = revoke(p, seq=args.entry, note=args.note, ssh_key=args.ssh_key,
                    **_lock_args(args, p))
@@ -347,9 +359,9 @@ def register(sub: Any) -> None:
     p.add_argument("--entry", required=True, type=int, metavar="SEQ",
                    help="the entry's number in the history: the seq of its [[entry]] in "
                    "NAME.review.toml")
-    p.add_argument("--note", required=True, metavar="TEXT",
+    p.add_argument("--note", metavar="TEXT",
                    help="why it no longer holds (at least 20 characters, three different "
-                   "words)")
+                   "words); needed, but asked for only once the entry is known to exist")
     _writer_args(p)
     p.set_defaults(func=cmd_revoke)
 

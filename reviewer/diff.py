@@ -22,8 +22,9 @@ from pathlib import Path
 from types import SimpleNamespace
 from typing import Any, TextIO
 
+from reviewer import fmt
 from reviewer.errors import ProjectError, Where
-from reviewer.fmt import eng, pct, show
+from reviewer.fmt import eng, show
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.textsafe import safe_console
 
@@ -456,16 +457,19 @@ def diff_paths(old: str | Path, new: str | Path) -> Diff:
     if ra != rb:
         raise ProjectError("give two project files (NAME.toml) or two review records "
                            "(NAME.review.toml), not one of each", Where(str(new)))
+    from reviewer.safeio import refusal
+
     for p in (old, new):
-        if not Path(p).is_file():
-            raise ProjectError("no such file; check the path", Where(str(p)))
+        why = refusal(p)  # a pipe, a device or a link loop is named as what it is
+        if why is not None:
+            raise ProjectError(why, Where(str(p)))
     return diff_records(old, new) if ra else diff_projects(old, new)
 
 
 # ------------------------------------------------------------------------------- rendering
 
 def _margin(x: float | None) -> str:
-    return "—" if x is None else pct(x)
+    return fmt.margin(x) or "—"  # as the workbook, the command line and the reports write it
 
 
 def render_diff(d: Diff, out: TextIO | None = None, *, width: int | None = None) -> None:

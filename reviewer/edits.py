@@ -54,6 +54,10 @@ def parse_typed(text: str, key: str = "") -> Any:
                                 '{ min = "10 kohm", max = "110 kohm" }', Where(key=key))
     try:
         doc = tomllib.loads(f"v = {stripped}")
+    except RecursionError:
+        raise ValueGrammarError("brackets or braces nested too deep to read; a value is a "
+                                'number with its unit, or { min = "…", max = "…" }',
+                                Where(key=key)) from None
     except tomllib.TOMLDecodeError:
         if stripped.startswith("{") or stripped.startswith("["):
             raise ValueGrammarError(

@@ -134,6 +134,18 @@ def _num(x: float, digits: int, rounding: str = "near", *, decimals: int | None 
     return text.replace("-", "−")
 
 
+def number(x: float, digits: int = 3, rounding: str = "near") -> str:
+    """A plain number (a ratio, a limit) to ``digits`` significant digits, rounded to the
+    nearest or "down"/"up" toward the safe side; a minus sign, never a hyphen.
+
+    >>> number(5.6942), number(0.28517, rounding="down"), number(1.8), number(-0.5)
+    ('5.69', '0.285', '1.8', '−0.5')
+    """
+    if math.isnan(x):
+        return "—"
+    return _num(x, digits, rounding)
+
+
 def span(lo: float, hi: float, unit: str) -> str:
     """A range for summaries: ``10–110 kΩ`` style (both ends formatted)."""
     a, b = eng(lo, unit), eng(hi, unit)

@@ -19,6 +19,7 @@ unverified, or a history does not verify, else 0.
 
 from __future__ import annotations
 
+import os
 import sys
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
@@ -223,7 +224,8 @@ def row_words(row: Row) -> tuple[str, str]:
 
 def _sort_key(row: Row) -> tuple[str, int, str]:
     root = row.chain[-1] if row.chain else row.path
-    return (str(Path(root).resolve()), len(row.chain), row.path)
+    # realpath, unlike Path.resolve, never raises: a link that loops is sorted by its name
+    return (os.path.realpath(root), len(row.chain), row.path)
 
 
 class MatrixBuilder:

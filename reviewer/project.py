@@ -21,7 +21,7 @@ from reviewer import bounds, rules, schema
 from reviewer.errors import LatchbookError, ProjectError, Where
 from reviewer.model import Part, Project, Stage, Value
 from reviewer.registry import STAGE_KINDS, Param
-from reviewer.safeio import read_regular, refusal
+from reviewer.safeio import load_toml, read_regular, refusal
 from reviewer.units import parse_value
 
 MAX_BYTES = 1 << 20
@@ -64,31 +64,13 @@ def parse_toml(text: str, path: Path) -> dict[str, Any]:
     if text.startswith("\ufeff"):
         text = text[1:]
     try:
-        doc = tomllib.loads(text)
+        return load_toml(text, path, limit=MAX_DEPTH, error=ProjectError, what="a project",
+                         fix="it uses five at most, so remove the extra brackets or braces "
+                             "(is this the right file?)")
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"line (\d+)", str(exc))
         raise ProjectError(f"not valid TOML: {exc}", Where(str(path),
                            line=int(m.group(1)) if m else None)) from None
-    except RecursionError:
-        raise ProjectError(f"tables or arrays are nested too deep to read (a project needs at "
-                           f"most {MAX_DEPTH} levels)", Where(str(path))) from None
-    if _depth(doc) > MAX_DEPTH:
-        raise ProjectError(f"tables or arrays are nested more than {MAX_DEPTH} levels deep; a "
-                           "project needs five at most", Where(str(path)))
-    return doc
-
-
-def _depth(doc: Any) -> int:
-    """How deep tables and arrays nest in ``doc`` (iterative: no recursion limit)."""
-    deepest, stack = 0, [(doc, 1)]
-    while stack:
-        node, d = stack.pop()
-        deepest = max(deepest, d)
-        if d > MAX_DEPTH:
-            break
-        items = node.values() if isinstance(node, dict) else node
-        stack.extend((v, d + 1) for v in items if isinstance(v, (dict, list)))
-    return deepest
 
 
 _HEADER = re.compile(r"^\s*\[+\s*([^\]]+?)\s*\]+")
@@ -338,7 +320,7 @@ class _Loader:
         if not isinstance(raw, dict):
             raise ProjectError(f"`{ref}` must be a table [parts.{ref}]", self.where("parts", ref))
         ptype = raw.get("type")
-        if ptype not in schema.PART_TYPES:
+        if not isinstance(ptype, str) or ptype not in schema.PART_TYPES:
             raise ProjectError("needs type = " + ", ".join(f'"{t}"' for t in schema.PART_TYPES)
                                + (_did_you_mean(str(ptype), schema.PART_TYPES) if ptype else ""),
                                self.where(table, "type"))
@@ -365,7 +347,7 @@ class _Loader:
             raise ProjectError(f"`{sid}` must be a table [stages.{sid}]",
                                self.where("stages", sid))
         kind = raw.get("kind")
-        if kind not in STAGE_KINDS:
+        if not isinstance(kind, str) or kind not in STAGE_KINDS:  # a list or table: unhashable
             said = f'kind = "{kind}" is not a stage kind; ' if isinstance(kind, str) else ""
             raise ProjectError(said + "needs kind = one of "
                                + ", ".join(f'"{k}"' for k in STAGE_KINDS)

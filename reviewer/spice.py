@@ -191,6 +191,17 @@ def _osc_supply(n: Netlist, stage: Stage, project: Project, v: _Values) -> tuple
     return v1, 0.0
 
 
+def _switch(n: Netlist, ref: str, model: str, *, close: str, to: str, above: str, on: float,
+            off: float, note: str) -> None:
+    """A UJT or PUT as a comparator-controlled switch from node ``close`` to ``to``: it closes
+    when ``close`` rises ``on`` volts above node ``above`` and opens when it falls to ``off``
+    above it (the valley), by a voltage switch with that hysteresis."""
+    n.add(f"E_{ident(ref)} ctl_{ident(ref)} 0 {close} {above} 1", note)
+    n.add(f"S_{ident(ref)} {close} {to} ctl_{ident(ref)} 0 {model}")
+    n.models.append(f".model {model} SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
+                    "RON=0.001 ROFF=1e12)")
+
+
 def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
     sp = f"stages.{stage.id}."
     v1, half = _osc_supply(n, stage, project, v)
@@ -215,12 +226,9 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
         n.add(f"R_B1 b1 0 {num(r1)}", "base1_r: the pulse is taken here")
         n.add(f"R_X2 vcc xi {num(max(r2, 1e-3) + (1 - eta) * rbb)}", "reference divider copy")
         n.add(f"R_X1 xi 0 {num(eta * rbb + r1)}", "reference divider copy")
-        n.add(f"E_{ident(ref)} ctl_{ident(ref)} 0 e xi 1", "emitter above the reference")
-        n.add(f"S_{ident(ref)} e eb1 ctl_{ident(ref)} 0 UJTSW")
+        _switch(n, ref, "UJTSW", close="e", to="eb1", above="xi", on=vd, off=vv - ref_v,
+                note="emitter above the reference")
         n.add(f"R_ON eb1 b1 {num(max(ron, 1e-3))}", "rb1_on")
-        on, off = vd, vv - ref_v
-        n.models.append(f".model UJTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
-                        "RON=0.001 ROFF=1e12)")
         n.prints.append("v(e) v(b1)")
         r_dis = max(ron, 1e-3) + r1
     else:
@@ -236,12 +244,9 @@ def _oscillator(n: Netlist, stage: Stage, project: Project, v: _Values) -> None:
                   "gate current is not modelled.")
         n.add(f"R_GA vcc g {num(ra)}", "gate_r_upper")
         n.add(f"R_GK g 0 {num(rk_)}", "gate_r_lower")
-        n.add(f"E_{ident(ref)} ctl_{ident(ref)} 0 e g 1", "anode above the gate")
-        n.add(f"S_{ident(ref)} e k ctl_{ident(ref)} 0 PUTSW")
+        _switch(n, ref, "PUTSW", close="e", to="k", above="g", on=offset, off=vv - vg,
+                note="anode above the gate")
         n.add(f"R_K k 0 {num(rk)}", "cathode_r: the pulse is taken here")
-        on, off = offset, vv - vg
-        n.models.append(f".model PUTSW SW(VT={num((on + off) / 2)} VH={num((on - off) / 2)} "
-                        "RON=0.001 ROFF=1e12)")
         n.prints.append("v(e) v(k)")
         r_dis = rk
     tau = rt * ct

@@ -40,11 +40,12 @@ from types import FrameType
 from typing import Any
 
 from reviewer.errors import RecordError, UnsafeFileError, Where
-from reviewer.safeio import read_regular
+from reviewer.safeio import kind_of, read_regular
 
 JOURNAL_FORMAT = "latchbook.journal/1"
 LOCK_FORMAT = "latchbook.lock/1"
 RECORD_MAX_BYTES = 64 << 20  # a record of thousands of entries stays far below this
+LOCK_MAX_BYTES = 4096  # a lock is one JSON line of a few hundred bytes
 
 
 # --------------------------------------------------------------------------------------------
@@ -163,7 +164,6 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
     Returns the real path written.
     """
     target = _refuse_unsafe_target(Path(path))
-    folder = target.parent
     if check:
         on_disk = file_sha256(target)
         if on_disk != expected_sha256:
@@ -171,8 +171,21 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
                               "written. Reload it and apply your change again",
                               Where(str(target)))
     data = text.encode("utf-8")
+    with _replacing(target, binary=True) as fh:
+        fh.write(data)
+    _clean_orphans(target)
+    return target
+
+
+@contextlib.contextmanager
+def _replacing(target: Path, *, binary: bool) -> Iterator[Any]:
+    """The one way a file is replaced: what the block writes to the yielded temp file (in
+    ``target``'s folder) becomes ``target`` whole, with the old file's permissions (and owner
+    and group where allowed), or — if the block or a step raises — the temp file is removed
+    and the old file stays as it was. An OS error is a :class:`RecordError` naming the file."""
+    folder = target.parent
     try:
-        old = target.stat()
+        old: os.stat_result | None = target.stat()
     except FileNotFoundError:
         old = None
     try:
@@ -181,8 +194,9 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
         raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
                           "permissions", Where(str(target))) from None
     try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
+        with (os.fdopen(fd, "wb") if binary else
+              os.fdopen(fd, "w", encoding="utf-8", newline="")) as fh:
+            yield fh
             fh.flush()
             os.fsync(fh.fileno())
         if old is not None:
@@ -202,8 +216,6 @@ def atomic_write(path: str | Path, text: str, *, expected_sha256: str | None = N
                               Where(str(target))) from None
         raise
     _fsync_dir(folder)
-    _clean_orphans(target)
-    return target
 
 
 def _refuse_unsafe_target(path: Path) -> Path:
@@ -238,6 +250,12 @@ def _refuse_unsafe_target(path: Path) -> Path:
     return target
 
 
+def writable_target(path: str | Path) -> Path:
+    """The real path :func:`atomic_write` would replace, or its refusal (a symlink, a file
+    without write permission) raised now: for a writer that makes other files first."""
+    return _refuse_unsafe_target(Path(path))
+
+
 @contextlib.contextmanager
 def atomic_stream(path: str | Path) -> Iterator[Any]:
     """A text file to write piece by piece that appears at ``path`` whole, or not at all.
@@ -253,30 +271,8 @@ def atomic_stream(path: str | Path) -> Iterator[Any]:
         raise RecordError(f"the folder {folder} does not exist; create it or give another path",
                           Where(str(target)))
     target = _refuse_unsafe_target(target)  # never through a link, never over a read-only file
-    try:
-        old: os.stat_result | None = target.stat()
-    except FileNotFoundError:
-        old = None
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise RecordError(f"cannot write in {folder}: {exc.strerror}; check the folder's "
-                          "permissions", Where(str(target))) from None
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            yield fh
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, stat.S_IMODE(old.st_mode) if old is not None else 0o666 & ~_umask())
-        os.replace(tmp, target)
-    except BaseException as exc:
-        with contextlib.suppress(OSError):
-            os.unlink(tmp)
-        if isinstance(exc, OSError):
-            raise RecordError(f"cannot write the file: {exc.strerror}",
-                              Where(str(target))) from None
-        raise
-    _fsync_dir(folder)
+    with _replacing(target, binary=False) as fh:
+        yield fh
 
 
 ORPHAN_AGE = 600.0  # s: no save takes this long, so an older temp file is a killed writer's
@@ -363,6 +359,8 @@ class LockInfo:
 
     def text(self) -> str:
         """``alice on buildhost since 2026-12-01 17:40 UTC (pid 4242)``."""
+        if self.pid == 0:
+            return "an unknown holder (the lock file was damaged or not Latchbook's)"
         return f"{self.login} on {self.host} since {self.started} (pid {self.pid})"
 
     def doing(self) -> str:
@@ -387,19 +385,78 @@ def _pid_alive(pid: int) -> bool:
     return True
 
 
+def _not_a_lock(lp: Path, project: str | Path, what: str) -> UnsafeFileError:
+    return UnsafeFileError(
+        f"the lock file {lp} is {what}, not a lock Latchbook wrote (a lock is a small regular "
+        "file); nothing was changed. If no session has this project open, run the command "
+        f"again with --break-lock, which removes the name {lp.name} only (never what it "
+        "points to), or move it aside by hand", Where(str(project)))
+
+
+def _lock_text(lp: Path, project: str | Path) -> str | None:
+    """The lock file's text, read without following a link, opening a pipe or device, or
+    reading more than :data:`LOCK_MAX_BYTES`; None when there is no lock. Something else at the
+    lock's name is an :class:`UnsafeFileError` naming it; an unreadable file gives ``""``."""
+    kind = kind_of(lp)
+    if kind is not None:
+        raise _not_a_lock(lp, project, kind)
+    try:
+        size = os.lstat(lp).st_size
+    except FileNotFoundError:
+        return None
+    except OSError:
+        return ""
+    if size > LOCK_MAX_BYTES:
+        raise _not_a_lock(lp, project, f"a file of {size} bytes")
+    try:
+        data = read_regular(lp, LOCK_MAX_BYTES, UnsafeFileError, "lock file", follow=False)
+    except FileNotFoundError:
+        return None
+    except (IsADirectoryError, UnsafeFileError):
+        kind = kind_of(lp)  # swapped for something else since we looked
+        if kind is not None:
+            raise _not_a_lock(lp, project, kind) from None
+        return ""
+    return data.decode("utf-8", "replace")
+
+
 def read_lock(project_path: str | Path) -> LockInfo | None:
     """The holder of the project's lock, or None when it is not locked.
 
-    An unreadable lock file is reported with an unknown holder rather than ignored.
+    An unreadable or damaged lock file is reported with an unknown holder (pid 0) rather than
+    ignored; something that is not a file at all (a pipe, a device, a link, a folder, a huge
+    file) is an :class:`UnsafeFileError` naming the lock and ``--break-lock``.
     """
-    lp = lock_path(project_path)
+    raw = _lock_text(lock_path(project_path), project_path)
+    return None if raw is None else _parse_lock(raw)
+
+
+def _open_lock(path: Path, project: str | Path) -> int | None:
+    """A descriptor on the lock file at ``path`` (None when there is none), opened without
+    following a link or blocking on a pipe, and checked to be a regular file of at most
+    :data:`LOCK_MAX_BYTES`; else :class:`UnsafeFileError` (see :func:`_not_a_lock`)."""
+    kind = kind_of(path)
+    if kind is not None:
+        raise _not_a_lock(path, project, kind)
+    flags = (os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOFOLLOW", 0)
+             | getattr(os, "O_NOCTTY", 0))
     try:
-        raw = lp.read_text("utf-8")
+        fd = os.open(path, flags)
     except FileNotFoundError:
         return None
-    except (OSError, UnicodeDecodeError):
-        return LockInfo("?", "?", 0, "?")
-    return _parse_lock(raw)
+    except OSError as exc:
+        raise _not_a_lock(path, project, kind_of(path) or f"unreadable ({exc.strerror})") \
+            from None
+    st = os.fstat(fd)
+    if not stat.S_ISREG(st.st_mode) or st.st_size > LOCK_MAX_BYTES:
+        os.close(fd)
+        raise _not_a_lock(path, project, kind_of(path) or f"a file of {st.st_size} bytes")
+    return fd
+
+
+def _lock_of(fd: int) -> LockInfo:
+    """The holder written in an open lock file (at most :data:`LOCK_MAX_BYTES` read)."""
+    return _parse_lock(os.read(fd, LOCK_MAX_BYTES).decode("utf-8", "replace"))
 
 
 def _parse_lock(raw: str) -> LockInfo:
@@ -407,7 +464,7 @@ def _parse_lock(raw: str) -> LockInfo:
         d = json.loads(raw)
         return LockInfo(str(d["login"]), str(d["host"]), int(d["pid"]), str(d["started"]),
                         str(d.get("token", "")), str(d.get("what", "session")))
-    except (ValueError, KeyError, TypeError):
+    except (ValueError, KeyError, TypeError, RecursionError):  # damaged: an unknown holder
         return LockInfo("?", "?", 0, "?")
 
 
@@ -531,8 +588,7 @@ class ProjectLock:
                 fd, tmp = tempfile.mkstemp(prefix=f".{self.path.name}.{os.getpid()}.",
                                            suffix=".tmp", dir=self.path.parent)
             except OSError as exc:
-                raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                  f"{os_fault(exc)}", Where(str(self.project))) from None
+                raise self._cannot_create(exc) from None
             try:
                 try:
                     with os.fdopen(fd, "w", encoding="utf-8") as fh:
@@ -541,8 +597,7 @@ class ProjectLock:
                         os.fsync(fh.fileno())
                     os.chmod(tmp, 0o644)
                 except OSError as exc:
-                    raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                      f"{os_fault(exc)}", Where(str(self.project))) from None
+                    raise self._cannot_create(exc) from None
                 try:
                     os.link(tmp, self.path)
                 except FileExistsError:
@@ -552,8 +607,7 @@ class ProjectLock:
                     raise self._locked(holder) from None
                 except OSError as exc:
                     if exc.errno not in (errno.EPERM, errno.ENOTSUP, errno.EOPNOTSUPP):
-                        raise RecordError(f"cannot create the lock file {self.path.name}: "
-                                          f"{os_fault(exc)}", Where(str(self.project))) from None
+                        raise self._cannot_create(exc) from None
                     if not self._create_exclusive(body):  # no hard links on this file system
                         holder = self._break_if_stale()
                         if holder is None:
@@ -570,6 +624,10 @@ class ProjectLock:
         holder = read_lock(self.project) or LockInfo("?", "?", 0, "?")
         raise self._locked(holder)
 
+    def _cannot_create(self, exc: OSError) -> RecordError:
+        return RecordError(f"cannot create the lock file {self.path.name}: {os_fault(exc)}",
+                           Where(str(self.project)))
+
     def _create_exclusive(self, body: str) -> bool:
         """Create the lock with O_EXCL (for file systems without hard links)."""
         try:
@@ -585,7 +643,7 @@ class ProjectLock:
     def _locked(self, holder: LockInfo) -> LockedError:
         me = current_person()
         if holder.pid == 0:
-            return LockedError(f"the lock file {self.path.name} is damaged or not ours: if no "
+            return LockedError(f"the lock file {self.path} is damaged or not ours: if no "
                                "session has this project open, run again with --break-lock "
                                "(or delete it by hand)", Where(str(self.project)), holder)
         if holder.host != me.host:
@@ -620,15 +678,16 @@ class ProjectLock:
                 return
             del _HELD[key]
         try:
-            fd = os.open(self.path, os.O_RDONLY)
-        except FileNotFoundError:
+            fd = _open_lock(self.path, self.project)
+        except UnsafeFileError:
+            return  # something else took the lock's name: not ours to remove
+        if fd is None:
             return
         try:
             fcntl.flock(fd, fcntl.LOCK_EX)
             with contextlib.suppress(FileNotFoundError):
                 same = os.stat(self.path).st_ino == os.fstat(fd).st_ino
-                if same and _parse_lock(os.read(fd, 4096).decode("utf-8", "replace")).token \
-                        == self_info.token:
+                if same and _lock_of(fd).token == self_info.token:
                     os.unlink(self.path)
         finally:
             os.close(fd)
@@ -643,11 +702,18 @@ class ProjectLock:
 def _break(path: Path, project: Path, *, force: bool) -> LockInfo | None:
     """Remove the lock at ``path`` when its holder is a dead process here (or ``force``).
 
-    Returns the holder that was kept (None when the lock is gone or was removed).
+    Returns the holder that was kept (None when the lock is gone or was removed). Something
+    at the lock's name that is not a lock file is refused (:func:`_not_a_lock`), or with
+    ``force`` its name removed.
     """
     try:
-        fd = os.open(path, os.O_RDONLY)
-    except FileNotFoundError:
+        fd = _open_lock(path, project)
+    except UnsafeFileError:
+        if not force:
+            raise
+        _remove_name(path, project)
+        return None
+    if fd is None:
         return None
     try:
         try:
@@ -660,7 +726,7 @@ def _break(path: Path, project: Path, *, force: bool) -> LockInfo | None:
                 return None  # replaced meanwhile: look again
         except FileNotFoundError:
             return None
-        holder = _parse_lock(os.read(fd, 4096).decode("utf-8", "replace"))
+        holder = _lock_of(fd)
         if not force and (holder.host != socket.gethostname() or _pid_alive(holder.pid)):
             return holder
         os.unlink(path)
@@ -669,13 +735,29 @@ def _break(path: Path, project: Path, *, force: bool) -> LockInfo | None:
         os.close(fd)
 
 
+def _remove_name(path: Path, project: str | Path) -> None:
+    """Remove whatever is at the lock's name: a link itself, never its target."""
+    try:
+        os.unlink(path)
+    except FileNotFoundError:
+        pass
+    except OSError as exc:
+        raise UnsafeFileError(f"the lock file {path} is {kind_of(path) or 'not a file'} and "
+                              f"cannot be removed ({exc.strerror}); move it aside by hand",
+                              Where(str(project))) from None
+
+
 def break_lock(project_path: str | Path) -> LockInfo | None:
     """Remove the project's lock whoever holds it (a deliberate act: the user asked for it).
 
-    For a holder that is stopped, or whose pid now belongs to another program. Returns the
-    holder that was removed (None when there was no lock).
+    For a holder that is stopped, or whose pid now belongs to another program, or a lock file
+    that is damaged or not a lock at all (only its name is removed). Returns the holder that
+    was removed (pid 0 when unknown; None when there was no lock).
     """
-    holder = read_lock(project_path)
+    try:
+        holder = read_lock(project_path)
+    except UnsafeFileError:
+        holder = LockInfo("?", "?", 0, "?")
     if holder is None:
         return None
     _break(lock_path(project_path), Path(project_path), force=True)
@@ -812,8 +894,9 @@ def pending_journal(project_path: str | Path) -> Journal | None:
             if not isinstance(d.get("path"), str) or not isinstance(d.get("text"), str):
                 raise ValueError("an edit needs `path` and `text` strings")
             edits.append(Edit(d["path"], d["text"]))
-    except (ValueError, AttributeError) as exc:
-        raise RecordError(f"the unsaved-edits journal is damaged ({exc}); move it aside to "
+    except (ValueError, AttributeError, RecursionError) as exc:
+        why = "nested too deep to read" if isinstance(exc, RecursionError) else str(exc)
+        raise RecordError(f"the unsaved-edits journal is damaged ({why}); move it aside to "
                           "open the project without it", Where(str(jp))) from None
     if not edits:
         return None
@@ -878,4 +961,5 @@ __all__ = ["DEFAULT_WAIT", "Edit", "Journal", "LockInfo", "LockTimeout", "Locked
            "clean_leftovers", "clear_journal", "current_person", "file_sha256",
            "hangup_saves", "install_hangup_handler", "journal_path", "lock_path", "lock_project",
            "mine_path", "os_fault", "pending_journal", "read_lock", "read_with_hash",
-           "save_checked", "sha256_bytes", "stamp", "utc_now", "write_journal"]
+           "save_checked", "sha256_bytes", "stamp", "utc_now", "writable_target",
+           "write_journal"]

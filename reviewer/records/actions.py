@@ -452,17 +452,20 @@ def _append_plain(project_path: Path, *, kind: str, stage: str, checks: list[str
 def revoke(project_path: str | Path, *, seq: int, note: str,
            ssh_key: str | Path | None = None, wait: float = DEFAULT_WAIT,
            on_wait: OnWait = None) -> Entry:
-    """Withdraw an earlier sign-off, approval or waiver (by its seq), with a reason."""
+    """Withdraw an earlier sign-off, approval or waiver (by its seq), with a reason.
+
+    The entry is judged before the note: one that does not exist, or cannot be revoked, is
+    named with the list of entries that can be.
+    """
     project_path = Path(project_path)
     with writing(project_path, "revoke", wait, on_wait):
         rec = verified_for_write(project_path)
         target = next((e for e in rec.entries if e.seq == seq), None)
-        if target is None:
-            raise RecordError(f"there is no entry #{seq} (the history has {len(rec.entries)})",
-                              Where(str(rec.path)))
-        if target.kind not in COVERING:
-            raise RecordError(f"entry #{seq} is a {target.kind}; only sign-offs, approvals and "
-                              "waivers can be revoked", Where(str(rec.path)))
+        if target is None or target.kind not in COVERING:
+            what = (f"there is no entry #{seq}" if target is None else
+                    f"entry #{seq} is a {target.kind}; only sign-offs, approvals and waivers "
+                    "can be revoked")
+            raise RecordError(f"{what}. {revocable_text(rec.entries)}", Where(str(rec.path)))
         problem = reason_problem(note)
         if problem:
             raise RecordError(f"not revoked: {problem}. Say why entry #{seq} no longer holds",
@@ -477,6 +480,20 @@ def revoke(project_path: str | Path, *, seq: int, note: str,
         return _append_plain(project_path, kind="revoke", stage=target.stage,
                              checks=list(target.checks), note=note, revokes=seq,
                              ssh_key=ssh_key, rec=rec)
+
+
+def revocable_text(entries: Sequence[Entry]) -> str:
+    """The entries that can still be revoked, in words (for a refusal that names the choice)."""
+    gone = {e.revokes for e in entries if e.kind == "revoke"}
+    able = [e for e in entries if e.kind in COVERING and e.seq not in gone]
+    if not entries:
+        return "There is no review history yet: nothing to revoke"
+    if not able:
+        return f"None of the {len(entries)} entries can be revoked (none is a standing " \
+            "sign-off, approval or waiver)"
+    shown = "; ".join(e.title() for e in able[:8])
+    more = f"; and {len(able) - 8} more" if len(able) > 8 else ""
+    return f"Entries that can be revoked: {shown}{more}"
 
 
 def add_note(project_path: str | Path, *, note: str, stage: str = "*",

@@ -15,12 +15,27 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from reviewer.errors import LatchbookError, RecordError, Where
+from reviewer.errors import LatchbookError, RecordError, UnsafeFileError, Where
 from reviewer.records.chain import ChainCheck, Entry, check_chain
 from reviewer.records.trust import Trust, verify_history
+from reviewer.safeio import load_toml
 from reviewer.store import base_name, read_with_hash
 
+#: How deep a record's tables and arrays may nest (Latchbook writes eight levels).
+RECORD_MAX_DEPTH = 32
+
 _ENTRY_HEADER = re.compile(r"^\[\[entry\]\][ \t]*$", re.MULTILINE)
+
+
+def parse_record(text: str, path: str | Path) -> dict[str, Any]:
+    """A record's text as TOML, refusing nesting far deeper than Latchbook writes (an
+    :class:`UnsafeFileError` naming the file and line; a syntax error passes through). A
+    byte-order mark an editor put in front is accepted (the next write leaves it out)."""
+    return load_toml(text.removeprefix("\ufeff"), path, limit=RECORD_MAX_DEPTH,
+                     error=UnsafeFileError,
+                     what="a review record",
+                     fix="records are written only by Latchbook, so restore it from version "
+                         "control")
 
 
 def record_path(project_path: str | Path) -> Path:
@@ -103,7 +118,7 @@ def load_record(project_path: str | Path, checklist: Any = None) -> Record:
         return Record(path, project_path, False, None, {}, [], [], "", ChainCheck(), trust,
                       checklist)
     try:
-        doc = tomllib.loads(text)
+        doc = parse_record(text, path)
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"line (\d+)", str(exc))
         raise RecordError(f"the review record is not valid TOML ({exc}); it is written only by "
@@ -128,4 +143,5 @@ def load_record(project_path: str | Path, checklist: Any = None) -> Record:
                   trust, checklist)
 
 
-__all__ = ["Record", "checklist_of", "load_record", "record_path", "split_history"]
+__all__ = ["Record", "checklist_of", "load_record", "parse_record", "record_path",
+           "split_history"]

@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from reviewer.errors import LatchbookError, ProjectError, RecordError, Where
+from reviewer.errors import LatchbookError, ProjectError, RecordError, UnsafeFileError, Where
 from reviewer.records.actions import fresh_run
 from reviewer.records.record import load_record
 from reviewer.records.staleness import stale_entries
@@ -60,8 +60,13 @@ def verify(project_path: str | Path, *, head: str | None = None) -> VerifyReport
                              any(c not in "0123456789abcdef" for c in head.lower())):
         raise ProjectError(f"--head takes a head hash (at least {MIN_ANCHOR} hex digits, as "
                            "status and reports print it)", Where(str(project_path)))
+    from reviewer.project import load_project
+
+    load_project(project_path)  # a project that cannot be read is bad input, record or not
     try:
         rec = load_record(project_path)
+    except UnsafeFileError:
+        raise  # a file not to be read as it is (a pipe, a link loop, nesting): bad input
     except RecordError as exc:
         return VerifyReport(False, None, [str(exc)], history_ok=False)
     t = rec.trust

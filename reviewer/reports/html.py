@@ -11,6 +11,7 @@ from __future__ import annotations
 import html
 from typing import TYPE_CHECKING, Any
 
+from reviewer import fmt
 from reviewer.safety import CAUTIONS, FOOTER
 from reviewer.textsafe import visible
 
@@ -87,12 +88,6 @@ def cls(state: str) -> str:
     return {"not-applicable": "na", "n/a": "na"}.get(word, word)
 
 
-def _margin(x: float | None) -> str:
-    from reviewer.fmt import pct
-
-    return "" if x is None else pct(x)
-
-
 def _table(head: list[str], rows: list[str], keep: bool = False) -> str:
     th = "".join(f"<th>{_e(h)}</th>" for h in head)
     return (f'<table{" class=keep" if keep else ""}><thead><tr>{th}</tr></thead><tbody>'
@@ -156,7 +151,7 @@ def to_html(d: ReportData) -> str:
             h.append(f'<p class="small">{_e(s.schematic_note)}.</p>')
         h.append(_table(["check", "result", "margin", "limits", "summary"],
                         [f'<tr><td>{_e(r.check)}</td><td class="st {cls(r.label)}">'
-                         f'{_e(r.label)}</td><td class="num">{_e(_margin(r.margin))}</td>'
+                         f'{_e(r.label)}</td><td class="num">{_e(fmt.margin(r.margin))}</td>'
                          f"<td>{_e(r.limit_text)}</td><td>{_e(r.summary)}</td></tr>"
                          for r in s.checks]))
         for r in s.checks:

@@ -10,6 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+from reviewer import fmt
 from reviewer.reports.figures import standalone_svg
 from reviewer.safety import CAUTIONS, FOOTER
 from reviewer.textsafe import markdown, visible
@@ -34,12 +35,6 @@ def _code(text: Any) -> str:
 def _alt(text: str) -> str:
     """Text for an image's alt text: as :func:`_md`, without brackets that could end it."""
     return _md(text).replace("\\[", "(").replace("\\]", ")")
-
-
-def _margin(x: float | None) -> str:
-    from reviewer.fmt import pct
-
-    return "" if x is None else pct(x)
 
 
 def figures_dir(out: str | Path) -> Path:
@@ -89,7 +84,7 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
             out += [f"![schematic of {_alt(s.id)}]({_link(figures, s.schematic_name)})", ""]
         out += ["| check | result | margin | limits | summary |", "|---|---|---|---|---|"]
         for r in s.checks:
-            out.append(f"| {_md(r.check)} | {_md(r.label)} | {_margin(r.margin)} | "
+            out.append(f"| {_md(r.check)} | {_md(r.label)} | {fmt.margin(r.margin)} | "
                        f"{_md(r.limit_text)} | {_md(r.summary)} |")
         for r in s.checks:
             if not (r.values or r.waiver or r.changed or r.worst or r.figures):
@@ -141,8 +136,9 @@ def to_markdown(d: ReportData, figures: str = "") -> str:
 def write_markdown(d: ReportData, out: str | Path) -> Path:
     """Write the figures into ``NAME.figures/`` (atomically, stale SVGs removed), then the
     report at ``out``; returns the report's path."""
-    from reviewer.store import atomic_write
+    from reviewer.store import atomic_write, writable_target
 
+    writable_target(out)  # a link or a read-only file at `out`: refused before any figure
     folder = figures_dir(out)
     files: dict[str, str] = {}
     for s in d.stages:

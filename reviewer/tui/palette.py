@@ -9,6 +9,7 @@ or through the host (reviewer.tui.host).
 
 from __future__ import annotations
 
+import os
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
@@ -46,7 +47,8 @@ def projects_beside(path: Path) -> list[Path]:
         files = sorted(path.parent.glob("*.toml"))
     except OSError:
         return []
-    return [p for p in files if p.resolve() != path.resolve() and is_project_file(p)]
+    here = os.path.realpath(path)  # realpath: a link that loops in the folder never raises
+    return [p for p in files if os.path.realpath(p) != here and is_project_file(p)]
 
 
 def commands(screen: Any, host: Any) -> list[Command]:

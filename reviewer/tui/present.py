@@ -10,6 +10,7 @@ from collections.abc import Mapping
 
 from rich.text import Text
 
+from reviewer import fmt
 from reviewer.engine import Result
 from reviewer.tolerance import Yield
 
@@ -68,43 +69,37 @@ def state_text(status: str, review: str) -> Text:
     return out
 
 
-def margin_text(margin: float | None, *, compact: bool = False, status: str = "") -> Text:
-    """The margin as people read it: a signed percentage below ten times the limit
-    (``+96 %``, ``−12 %``), a multiple of the limit from there (``9028×``; ``compact``, the
-    checklist's narrow column, writes ``>10k×`` past 9999×, the detail ``more than 10 000×``).
+def margin_text(margin: float | None, *, status: str = "") -> Text:
+    """The margin as :func:`reviewer.fmt.margin` writes it everywhere (``+4.1 %``, ``12×``,
+    ``> 100×``, ``needs 3.6×``); ``—`` when there is none.
 
-    The engine's margin is metric/limit − 1 (checks.core.grade): the multiple is 1 + margin.
     A negative margin is red, except on an advisory check graded marginal (``status``), which
     past its level reads marginal, never fail: yellow, like its result.
 
-    >>> [margin_text(m, compact=True).plain for m in (0.05, -0.5, 9026.9, 2e5)]
-    ['+5 %', '−50 %', '9028×', '>10k×']
+    >>> [margin_text(m).plain for m in (0.05, -0.4, 9026.9, -0.715, None)]
+    ['+5.0 %', '−40 %', '> 100×', 'needs 3.6×', '—']
     """
-    if margin is None or not math.isfinite(margin):
+    text = fmt.margin(margin)
+    if not text:
         return Text("—", style="dim")
-    style = ("yellow" if status == "marginal" else "bold red") if margin < 0 else ""
-    ratio = 1 + margin
-    if ratio >= 10:
-        if ratio < 9999.5:
-            text = f"{ratio:.0f}×" if compact else f"{ratio:.0f}× the limit"
-        else:
-            text = ">10k×" if compact else "more than 10 000× the limit"
-        return Text(text, style=style)
-    return Text(f"{margin * 100:+.0f} %".replace("-", "−"), style=style)
+    style = ("yellow" if status == "marginal" else "bold red") if margin is not None and \
+        margin < 0 else ""
+    return Text(text, style=style)
 
 
 def worst_vs_limit(result: Result, limits: Mapping[str, float]) -> Text:
-    """The checked ratio at the worst corner against the limit it must meet: ``1.96 ≥ 1.20``.
+    """The checked ratio at the worst corner against the limit it must meet: ``1.96 ≥ 1.2``.
 
     The engine's margin is ratio/limit − 1 (checks.core.grade), so the ratio is
-    (1 + margin)·limit; checks with other limits show the margin only.
+    (1 + margin)·limit; checks with other limits show the margin only. The ratio is rounded
+    down (never shown better than it is), the limit as the checklist gives it.
     """
     k = limits.get("fail_below")
     if result.margin is None or k is None or not math.isfinite(result.margin):
         return Text("—", style="dim")
     ratio = (1 + result.margin) * k
     op = "≥" if ratio >= k else "<"
-    text = f"{ratio:.3g} {op} {k:.3g}".replace("e+0", "e").replace("e+", "e")
+    text = f"{fmt.number(ratio, rounding='down')} {op} {fmt.number(k)}"
     return Text(text, style="bold red" if ratio < k else "")
 
 
@@ -127,31 +122,22 @@ def short_hash(h: str) -> str:
     return h[:12] if h else "—"
 
 
-def _pct(x: float, decimals: int) -> str:
-    return f"{x * 100:.{decimals}f}"
-
-
 def yield_cell(y: Yield | None) -> Text:
-    """The fail fraction of a Monte Carlo run in percent, with its 95 % interval: ``39.1±0.7``;
-    ``none`` when no sample failed, ``all`` when every one did (the detail gives the bound)."""
+    """The fail fraction of a Monte Carlo run as :func:`reviewer.fmt.share` writes it (the
+    command line's ``MC fail`` column too): ``39 %``; ``< 0.004 %`` when no sample failed (the
+    95 % bound), ``> 99.99 %`` when every one did. Red once any sample failed."""
     if y is None:
         return Text("—", style="dim")
-    p, (lo, hi) = y.fail_fraction, y.fail_interval
-    if p == 0:
-        return Text("none", style="green")
-    if p == 1:
-        return Text("all", style="bold red")
-    half = max(hi - p, p - lo) * 100
-    decimals = max(0, min(3, -math.floor(math.log10(half)))) if half > 0 else 1
-    return Text(f"{_pct(p, decimals)}±{half:.{decimals}f}", style="bold red")
+    text = fmt.share(y.fail_fraction, y.fail_interval)
+    return Text(text, style="green" if y.fail_fraction == 0 else "bold red")
 
 
-def _share(p: float, iv: tuple[float, float], n: int, what: str) -> str:
+def _share(p: float, iv: tuple[float, float], what: str) -> str:
     if p == 0:
-        return f"no sample {what} (fewer than {iv[1] * 100:.2g} % at 95 % confidence)"
+        return f"no sample {what} ({fmt.share(p, iv)} at 95 % confidence)"
     if p == 1:
-        return (f"every sample {what} (at least {iv[0] * 100:.4g} % at 95 % confidence)")
-    return f"{p * 100:.2f} % {what} ({iv[0] * 100:.2f}–{iv[1] * 100:.2f})"
+        return f"every sample {what} ({fmt.share(p, iv)} at 95 % confidence)"
+    return f"{fmt.share(p)} {what} (95 % interval {fmt.share(iv[0])} – {fmt.share(iv[1])})"
 
 
 def yield_line(y: Yield) -> str:
@@ -159,8 +145,8 @@ def yield_line(y: Yield) -> str:
 
     A fraction of 0 or 100 % is said in words with its 95 % bound; an "every sample
     marginal" is explained by :func:`yield_caveat`."""
-    return (f"{y.samples} samples: {_share(y.fail_fraction, y.fail_interval, y.samples, 'failed')}"
-            f"; {_share(y.marginal_fraction, y.marginal_interval, y.samples, 'marginal')}")
+    return (f"{y.samples} samples: {_share(y.fail_fraction, y.fail_interval, 'failed')}"
+            f"; {_share(y.marginal_fraction, y.marginal_interval, 'marginal')}")
 
 
 def yield_caveat(y: Yield, status: str) -> str:

@@ -88,8 +88,10 @@ def project_of_record(record: str | Path) -> Path:
     if text is None:
         raise RecordError("no such review record; check the path (records are "
                           "NAME.review.toml)", where)
+    from reviewer.records.record import parse_record  # records load lazily (startup time)
+
     try:
-        doc = tomllib.loads(text)
+        doc = parse_record(text, record)
     except tomllib.TOMLDecodeError as exc:
         raise RecordError(f"the review record is not valid TOML ({exc}); restore it from "
                           "version control", where) from None

@@ -103,12 +103,27 @@ def _folder(d: Path) -> list[str]:
 
 
 for cmd in (("check",), ("report", "--format", "md"), ("status",), ("sign", "--stage", "*"),
-            ("verify",)):
+            ("verify",), ("open",), ("diff", "/dev/null"), ("waive", "--stage", "power",
+                                                        "--check", "power.blocking", "--note",
+                                                        "the lid switch opens both poles"),
+            ("export", "--spice", "power")):
     tag = cmd[0]
     case(f"fifo-{tag}", "file", ("named pipe", "regular file"), setup=_fifo, command=cmd)
     case(f"dev-zero-{tag}", "file", ("device", "regular file"),
          setup=lambda d: ["/dev/zero"], command=cmd)
     case(f"symlink-loop-{tag}", "file", "loops", setup=_loop, command=cmd)
+
+
+def _odd_folder(d: Path) -> list[str]:
+    (d / "k.toml").write_text(KILN, encoding="utf-8")
+    _loop(d)
+    _fifo(d)
+    return [str(d)]
+
+
+for cmd in (("status", "--matrix"), ("status",), ("status", "--matrix", "--json")):
+    case(f"folder-odd-{'-'.join(c.strip('-') for c in cmd)}", "file",
+         ("a.toml", "loops", "pipe.toml", "named pipe"), setup=_odd_folder, command=cmd)
 case("missing", "file", "no such file", setup=lambda d: [str(d / "nope.toml")])
 case("dangling-link", "file", "no such file", setup=_dangling)
 case("folder", "file", "folder", setup=_folder)
@@ -131,11 +146,14 @@ case("duplicate-key", "syntax", "not valid TOML", kiln(('vdrm = "800 V"',
 case("duplicate-stage", "syntax", "not valid TOML", KILN + '\n[stages.power]\nkind = "x"\n')
 case("unterminated-string", "syntax", "not valid TOML", kiln(('"Bench kiln', '"Bench kiln\n')))
 case("bare-word", "syntax", "not valid TOML", kiln(('vrrm = "800 V"', "vrrm = 800 volts")))
-case("deep-arrays", "syntax", "nested too deep",
+case("deep-arrays", "syntax", ("p.toml:2", "nested too deep", "remove the extra brackets"),
      "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n")
-case("deep-inline", "syntax", "nested too deep",
+case("deep-inline", "syntax", ("p.toml:2", "nested too deep", "remove the extra brackets"),
      "[project]\nname = " + "{a = " * 5000 + "1" + "}" * 5000 + "\n")
-case("nesting-20", "syntax", "nested more than 16",
+case("deep-inline-strings", "syntax", ("p.toml:4", "nested too deep"),
+     '[project]\nname = "[[[[[[[[[[[[[[[[[[[[[[[["  # [[[[[[[[[[[[[[[[[[[[[\n\nx = '
+     + "{a = " * 5000 + "1" + "}" * 5000 + "\n")
+case("nesting-20", "syntax", ("p.toml:2", "nested more than 16"),
      "[project]\nname = " + "[" * 20 + "1" + "]" * 20 + "\n")
 case("deep-tables", "syntax", "nested more than 16", "[" + ".".join(["t"] * 40) + "]\nx = 1\n")
 case("unknown-table", "syntax", ("unknown table `suply`", "did you mean `supply`"),
@@ -368,6 +386,20 @@ case("heatsink-no-rth-sa", "configuration", "needs `rth_sa`",
            'heatsink = { rth_cs = "0.5 K/W" }')))
 case("fuse-no-i2t", "configuration", "needs `i2t`",
      kiln(('fuse = { rating = "10 A", i2t = "80 A^2*s" }', 'fuse = { rating = "10 A" }')))
+case("kind-list", "syntax", "needs kind = one of", kiln(('kind = "rc-snubber"', "kind = []")))
+case("kind-table", "syntax", "needs kind = one of", kiln(('kind = "rc-snubber"',
+                                                         "kind = { a = 1 }")))
+case("type-list", "syntax", 'needs type = "scr"', kiln(('type = "scr"', 'type = ["scr"]')))
+case("huge-verify", "file", ("1024 KiB", "project is at most"),
+     setup=_write("p.toml", "# padding\n" * 120_000), command=("verify",))
+case("deep-open", "file", ("p.toml:2", "nested too deep"),
+     setup=_write("p.toml", "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n"),
+     command=("open",))
+case("huge-open", "file", ("1024 KiB", "project is at most"),
+     setup=_write("p.toml", "# padding\n" * 120_000), command=("open",))
+case("deep-verify", "file", ("p.toml:2", "nested too deep"),
+     setup=_write("p.toml", "[project]\nname = " + "[" * 5000 + "]" * 5000 + "\n"),
+     command=("verify",))
 case("load-not-table", "configuration", "must be a table",
      kiln(('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }', 'load = "26.5 ohm"')))
 case("load-unknown-key", "configuration", ("unknown key `rr`", "did you mean `r`"),
@@ -509,8 +541,30 @@ for name, make, words in (("link", _rec_link, ("symbolic link", "other.toml")),
          command=("check", "--record"))
     case(f"record-{name}-sign", "records", words, setup=_record(make),
          command=("sign", "--stage", "power", "--note", "looked at it"))
+    case(f"record-{name}-waive", "records", words, setup=_record(make),
+         command=("waive", "--stage", "power", "--check", "power.blocking", "--note",
+                  "the lid switch opens both poles of the element"))
+    if name in ("fifo", "loop"):  # reading through a link, or a read-only file, is fine
+        case(f"record-{name}-verify", "records", words, setup=_record(make),
+             command=("verify",))
 case("record-dir-check", "records", "cannot", setup=_record(_rec_dir), command=("check",
                                                                              "--record"))
+_DEEP_RECORD = '[review]\nproject = "k.toml"\nx = ' + "[" * 5000 + "]" * 5000 + "\n"
+for cmd in (("check", "--record"), ("sign", "--stage", "power", "--note", "looked at it"),
+            ("waive", "--stage", "power", "--check", "power.blocking", "--note",
+             "the lid switch opens both poles of the element"),
+            ("revoke", "--entry", "1", "--note", "signed the wrong revision"), ("verify",),
+            ("status",), ("report", "--format", "md")):
+    case(f"record-deep-{cmd[0]}", "records",
+         ("k.review.toml:3", "nested too deep", "restore it from version control"),
+         setup=_record(lambda p: p.write_text(_DEEP_RECORD)), command=cmd)
+case("record-deep-diff", "records", ("k.review.toml:3", "nested too deep"),
+     setup=lambda d: (_record(lambda p: p.write_text(_DEEP_RECORD))(d),
+                      [str(d / "k.review.toml"), str(d / "k.review.toml")])[1],
+     command=("diff",))
+case("record-nesting-40", "records", ("k.review.toml:3", "nested more than 32"),
+     setup=_record(lambda p: p.write_text('[review]\nproject = "k.toml"\nx = ' + "[" * 40
+                                          + "]" * 40 + "\n")), command=("verify",))
 case("record-not-utf8", "records", "not UTF-8",
      setup=_record(lambda p: p.write_bytes(b"\xff\xfe[review]")), command=("check", "--record"))
 case("record-not-toml", "records", "not valid TOML",
@@ -520,6 +574,77 @@ case("sign-unknown-stage", "records", ("no stage `pwr`", "the stages are"),
 case("waive-unknown-stage", "records", "no stage `pwr`", setup=_record(lambda p: None),
      command=("waive", "--stage", "pwr", "--check", "power.blocking", "--note",
               "the lid switch opens both poles of the element"))
+
+
+def _lock(make: Callable[[Path], None]) -> Setup:
+    def setup(d: Path) -> list[str]:
+        (d / "k.toml").write_text(KILN, encoding="utf-8")
+        make(d / "k.lock")
+        return [str(d / "k.toml")]
+    return setup
+
+
+def _lock_other(p: Path) -> None:
+    (p.parent / "other.toml").write_text(FLASH)
+    p.symlink_to("other.toml")
+
+
+def _lock_huge(p: Path) -> None:
+    p.write_text("{" + " " * 100_000 + "}")
+
+
+_LOCK_CMDS = {"sign": ("sign", "--stage", "power", "--note", "looked at it"),
+              "waive": ("waive", "--stage", "power", "--check", "power.blocking", "--note",
+                        "the lid switch opens both poles of the element"),
+              "check": ("check", "--record")}
+for name, make, what in (("fifo", os.mkfifo, "named pipe"),
+                         ("zero", lambda p: p.symlink_to("/dev/zero"), "symbolic link"),
+                         ("link", _lock_other, "symbolic link (to other.toml)"),
+                         ("dangling", lambda p: p.symlink_to("gone"), "symbolic link"),
+                         ("dir", lambda p: p.mkdir(), "folder"),
+                         ("huge", _lock_huge, "100002 bytes")):
+    for tag, cmd in _LOCK_CMDS.items():
+        case(f"lock-{name}-{tag}", "records", ("k.lock", what, "--break-lock"),
+             setup=_lock(make), command=cmd)
+
+
+def _signed(d: Path) -> list[str]:
+    (d / "k.toml").write_text(KILN, encoding="utf-8")
+    assert main(["sign", str(d / "k.toml"), "--stage", "power", "--note", "looked at it"]) == 0
+    assert main(["revoke", str(d / "k.toml"), "--entry", "1", "--note",
+                 "signed against the wrong drawing revision"]) == 0
+    assert main(["sign", str(d / "k.toml"), "--stage", "gate"]) == 0
+    return [str(d / "k.toml")]
+
+
+for tag, cmd in (("short-note", ("--note", "x")), ("no-note", ()),
+                 ("long-note", ("--note", "x" * 5000))):
+    case(f"revoke-no-entry-{tag}", "records",
+         ("there is no entry #9", "Entries that can be revoked: #3 signoff of stage gate"),
+         setup=_signed, command=("revoke", "--entry", "9", *cmd))
+case("revoke-a-revocation", "records", ("entry #2 is a revoke", "can be revoked: #3"),
+     setup=_signed, command=("revoke", "--entry", "2", "--note", "x"))
+case("revoke-without-note", "records", ("say why entry #3 no longer holds", "--note TEXT"),
+     setup=_signed, command=("revoke", "--entry", "3"))
+
+
+def _report_to(make: Callable[[Path], None]) -> Setup:
+    def setup(d: Path) -> list[str]:
+        (d / "k.toml").write_text(KILN, encoding="utf-8")
+        make(d / "out.md")
+        return [str(d / "k.toml"), "-o", str(d / "out.md")]
+    return setup
+
+
+case("report-to-link", "records", ("out.md", "symbolic link", "Nothing was written"),
+     setup=_report_to(lambda p: p.symlink_to(p.parent / "elsewhere.md")),
+     command=("report", "--format", "md"))
+case("report-to-read-only", "records", ("out.md", "read-only"),
+     setup=_report_to(lambda p: (p.write_text("old"), os.chmod(p, 0o444))),
+     command=("report", "--format", "md"))
+case("report-html-to-link", "records", ("out.md", "symbolic link"),
+     setup=_report_to(lambda p: p.symlink_to(p.parent / "elsewhere.md")),
+     command=("report", "--format", "html"))
 case("project-link-write", "records", "symbolic link",
      setup=lambda d: (_rec_link(d / "k.review.toml"), (d / "k.toml").write_text(KILN),
                       [str(d / "k.toml")])[2], command=("check", "--record"))
@@ -630,6 +755,8 @@ def test_bad_input(c: Case, tmp_path: Path, capsys: pytest.CaptureFixture[str],
     assert "Traceback" not in text
     for word in c.words:
         assert word in text, f"{word!r} not in {text!r}"
+    if c.id.startswith("revoke-no-entry") or c.id == "revoke-a-revocation":
+        assert "too short" not in text and "reason" not in text
     for raw in RAW:
         assert raw not in text
     assert snapshot(tmp_path) == before
@@ -671,3 +798,38 @@ def test_a_byte_order_mark_is_accepted(tmp_path: Path, capsys: pytest.CaptureFix
                                      "flasher-dc.toml").read_bytes())
     assert main(["check", str(p), "--json"]) == 0
     assert json.loads(capsys.readouterr().out)["projects"][0]["name"] == "Beacon flasher, 24 V"
+
+
+def test_a_byte_order_mark_on_a_review_record_is_accepted(tmp_path: Path,
+                                                        capsys: pytest.CaptureFixture[str]):
+    """An editor that saves with a BOM does not make the history unreadable; the next
+    entry is appended and the history still verifies."""
+    p = tmp_path / "k.toml"
+    p.write_text(KILN, encoding="utf-8")
+    assert main(["sign", str(p), "--stage", "power", "--note", "looked at it"]) == 0
+    rec = tmp_path / "k.review.toml"
+    rec.write_bytes(b"\xef\xbb\xbf" + rec.read_bytes())
+    assert main(["verify", str(p)]) == 0
+    assert main(["sign", str(p), "--stage", "gate", "--note", "looked at it too"]) == 0
+    assert main(["verify", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "history verifies: 2 entries" in out
+
+
+def test_listing_a_folder_reads_no_more_than_a_project_may_hold(tmp_path: Path):
+    """Which files of a folder are projects is judged without reading a huge file whole (its
+    own load then says it is too large)."""
+    import tracemalloc
+
+    import reviewer.project  # noqa: F401  (imported first: its import is not the read)
+    from reviewer.batch import skip_reason
+
+    huge = tmp_path / "huge.toml"
+    huge.write_text("#" * (20 << 20))
+    tracemalloc.start()
+    try:
+        assert skip_reason(huge) is None
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    assert peak < 4 << 20, peak

@@ -114,3 +114,58 @@ def test_mutated_demo_never_gives_a_traceback(demo, ops):
     assert code in (0, 1, 2), err.getvalue()
     if code == 2:
         assert err.getvalue().startswith("latchbook: ") and "Traceback" not in err.getvalue()
+
+
+# ------------------------------------------------- every command, and the review records
+
+LINE = PROJECTS / "kiln-line"
+COMMANDS = [("check", "--record"), ("report", "--format", "md"), ("status",),
+            ("status", "--matrix"), ("verify",), ("sign", "--stage", "power", "--note",
+                                                  "looked at the power stage"),
+            ("waive", "--stage", "power", "--check", "power.blocking", "--note",
+             "the lid switch opens both poles of the element"),
+            ("revoke", "--entry", "1", "--note", "signed against the wrong drawing"),
+            ("diff", "<other>"), ("export", "--spice", "power")]
+
+
+def _run(argv: list[str]) -> tuple[int, str]:
+    out, err = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        code = main(argv)
+    return code, out.getvalue() + err.getvalue()
+
+
+def _argv(cmd: tuple[str, ...], project: Path, other: Path) -> list[str]:
+    rest = [str(other) if a == "<other>" else a for a in cmd[1:]]
+    return [cmd[0], str(project), *rest]
+
+
+@settings(FAST, max_examples=60)
+@given(demo=st.sampled_from(sorted(DEMOS)), ops=OPS, cmd=st.sampled_from(COMMANDS))
+def test_every_command_on_a_mutated_demo_never_gives_a_traceback(demo, ops, cmd):
+    with tempfile.TemporaryDirectory() as d:
+        p = Path(d) / demo
+        p.write_text(_mutate(DEMOS[demo], ops), encoding="utf-8")
+        other = Path(d) / "other.toml"
+        other.write_text(DEMOS[demo], encoding="utf-8")
+        code, text = _run(_argv(cmd, p, other))
+    assert code in (0, 1, 2), text
+    assert "Traceback" not in text
+
+
+@settings(FAST, max_examples=60)
+@given(ops=OPS, cmd=st.sampled_from(COMMANDS))
+def test_every_command_on_a_mutated_review_record_never_gives_a_traceback(ops, cmd):
+    """A record is written only by Latchbook, but a hand edit, a bad merge or a truncated copy
+    reaches every command that reads it: exit 0, 1 or 2, never a traceback."""
+    record = (LINE / "kiln-120-1k.review.toml").read_text(encoding="utf-8")
+    with tempfile.TemporaryDirectory() as d:
+        folder = Path(d)
+        for name in ("kiln-120-1k.toml", "kiln-base.toml", "kiln-line.checklist.toml"):
+            (folder / name).write_text((LINE / name).read_text(encoding="utf-8"),
+                                       encoding="utf-8")
+        (folder / "kiln-120-1k.review.toml").write_text(_mutate(record, ops), encoding="utf-8")
+        p = folder / "kiln-120-1k.toml"
+        code, text = _run(_argv(cmd, p, folder / "kiln-base.toml"))
+    assert code in (0, 1, 2), text
+    assert "Traceback" not in text

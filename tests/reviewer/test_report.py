@@ -151,3 +151,26 @@ def test_cli_writes_file(tmp_path, capsys):
     assert text.startswith("<!DOCTYPE html>") and text.rstrip().endswith("</html>")
     assert "No sign-offs yet." in text
     assert main(["report", str(tmp_path / "none.toml"), "--format", "md"]) == 2
+
+
+def test_margins_read_as_in_the_workbook_and_the_command_line(tmp_path, capsys):
+    """One formatting of margins: each check's margin in the Markdown and HTML reports is the
+    one `latchbook check` prints (reviewer.fmt.margin: "12×", "> 100×", "needs 2×"), never
+    a percentage in the tens of thousands."""
+    import json
+
+    from reviewer.fmt import margin
+
+    project = Path(__file__).resolve().parents[2] / "projects" / "kiln-120.toml"
+    assert main(["check", str(project), "--json"]) in (0, 1)
+    checks = json.loads(capsys.readouterr().out)["projects"][0]["checks"]
+    md, page = render(project, "md"), render(project, "html")
+    shown = [margin(c["margin"]) for c in checks if c["margin"] is not None]
+    assert any("×" in s for s in shown) and all("%" not in s or len(s) <= 7 for s in shown)
+    for c in checks:
+        if c["margin"] is None:
+            continue
+        text = margin(c["margin"])
+        assert re.search(rf"\| {re.escape(c['check'])} \| [^|]* \| {re.escape(text)} \|", md), \
+            (c["check"], text)
+        assert f'<td class="num">{html.escape(text)}</td>' in page, (c["check"], text)

@@ -364,6 +364,14 @@ def test_revoke_withdraws_and_the_earlier_sign_off_is_in_force_again(tmp_path):
         revoke(p, seq=2, note="wrong")
     with pytest.raises(RecordError, match="no entry #9"):
         revoke(p, seq=9, note="there is no such entry in this history")
+    with pytest.raises(RecordError, match=r"no entry #9\. None of the 4 entries can be "
+                       "revoked") as err:
+        revoke(p, seq=9, note="x")  # the entry is judged before the note
+    assert "reason" not in str(err.value)
+    sign(p, stage="trigger", checks=WINDOW, note="third look")
+    with pytest.raises(RecordError, match=r"no entry #9\. Entries that can be revoked: #5 "
+                       "signoff of stage trigger by [^;]*$"):
+        revoke(p, seq=9, note="x")
     assert verify(p).ok
 
 

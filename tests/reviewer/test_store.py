@@ -19,7 +19,7 @@ from pathlib import Path
 
 import pytest
 
-from reviewer.errors import RecordError
+from reviewer.errors import RecordError, UnsafeFileError
 from reviewer.store import (
     Edit,
     LockedError,
@@ -309,6 +309,71 @@ def test_damaged_lock_file_is_reported_not_ignored(tmp_path):
     lock_path(proj).write_text("garbage")
     with pytest.raises(LockedError, match="damaged"):
         ProjectLock(proj).acquire()
+    lock_path(proj).write_text("[" * 4000)  # within the size limit, too deep for json
+    with pytest.raises(LockedError, match="damaged"):
+        ProjectLock(proj).acquire()
+    assert read_lock(proj).pid == 0
+
+
+def _odd_lock(kind: str, lp: Path) -> None:
+    if kind == "fifo":
+        os.mkfifo(lp)
+    elif kind == "zero":
+        lp.symlink_to("/dev/zero")
+    elif kind == "link":
+        (lp.parent / "other.txt").write_text('{"login": "x"}')
+        lp.symlink_to("other.txt")
+    elif kind == "dangling":
+        lp.symlink_to("nowhere")
+    elif kind == "huge":
+        lp.write_text("{" + " " * (1 << 20) + "}")
+
+
+ODD_LOCKS = ("fifo", "zero", "link", "dangling", "huge")
+
+
+@pytest.mark.parametrize("kind", ODD_LOCKS)
+def test_a_lock_that_is_not_a_lock_file_is_named_never_opened_or_read_whole(
+        tmp_path: Path, kind: str, monkeypatch: pytest.MonkeyPatch):
+    """A pipe would block the open, /dev/zero never ends, a link is someone else's: the lock's
+    name is looked at first, opened without following or blocking, and read only so far."""
+    proj = tmp_path / "kiln.toml"
+    lp = lock_path(proj)
+    _odd_lock(kind, lp)
+    reads: list[int] = []
+    real = os.read
+    monkeypatch.setattr(os, "read", lambda fd, n: (reads.append(n), real(fd, n))[1])
+    with pytest.raises(UnsafeFileError, match="--break-lock") as err:
+        read_lock(proj)
+    assert str(lp) in str(err.value) and "not a lock Latchbook wrote" in str(err.value)
+    with pytest.raises(UnsafeFileError, match=str(lp)):
+        ProjectLock(proj).acquire()
+    assert sum(reads) <= 4097
+    assert os.path.lexists(lp)
+
+
+@pytest.mark.parametrize("kind", ODD_LOCKS)
+def test_break_lock_removes_only_the_name(tmp_path: Path, kind: str):
+    proj = tmp_path / "kiln.toml"
+    lp = lock_path(proj)
+    _odd_lock(kind, lp)
+    holder = break_lock(proj)
+    assert holder is not None and holder.pid == 0
+    assert not os.path.lexists(lp)
+    if kind == "link":
+        assert (tmp_path / "other.txt").read_text() == '{"login": "x"}'
+    with ProjectLock(proj):
+        assert read_lock(proj).pid == os.getpid()
+
+
+def test_release_leaves_alone_what_took_the_locks_name(tmp_path: Path):
+    proj = tmp_path / "kiln.toml"
+    lock = ProjectLock(proj).acquire()
+    lp = lock_path(proj)
+    lp.unlink()
+    os.mkfifo(lp)
+    lock.release()  # must neither hang on the pipe nor remove it
+    assert stat.S_ISFIFO(os.lstat(lp).st_mode)
 
 
 CONTENDER = """
@@ -379,6 +444,9 @@ def test_damaged_journal_is_an_error_naming_it(tmp_path):
     proj = tmp_path / "kiln.toml"
     journal_path(proj).write_text("{not json\n")
     with pytest.raises(RecordError, match=r"kiln\.journal.*damaged"):
+        pending_journal(proj)
+    journal_path(proj).write_text('{"format": "latchbook.journal/1"}\n' + "[" * 100_000 + "\n")
+    with pytest.raises(RecordError, match=r"kiln\.journal.*nested too deep.*move it aside"):
         pending_journal(proj)
 
 

@@ -200,16 +200,17 @@ def test_stage_kinds_questions_and_summaries_wrap_at_80x24(workdir):
 
 
 def test_numbers_people_can_read():
-    """Margins past ten times the limit are a multiple ("9028×"), never "+902689 %"; a
-    Monte Carlo with no failing sample says "none"; a yield where every sample is marginal
+    """Margins past ten times the limit are a multiple ("12×", "> 100×"), never "+902689 %";
+    far below the limit they say what it would take ("needs 25×"), never "−96 %"; a Monte
+    Carlo with no failing sample gives its 95 % bound; a yield where every sample is marginal
     says, in words, that the conditions are held at the worst corner."""
-    assert present.margin_text(9026.89, compact=True).plain == "9028×"
-    assert present.margin_text(9026.89).plain == "9028× the limit"
-    assert present.margin_text(0.05).plain == "+5 %"
-    assert "%" not in present.margin_text(2e5, compact=True).plain
+    assert present.margin_text(9026.89).plain == "> 100×"
+    assert present.margin_text(11.128).plain == "12×"
+    assert present.margin_text(0.05).plain == "+5.0 %"
+    assert present.margin_text(-0.96).plain == "needs 25×"
     none = Yield(20000, 0.0, 0.0, (0.0, 1.9e-4), (0.0, 1.9e-4), [])
-    assert present.yield_cell(none).plain == "none"
-    assert "no sample failed" in present.yield_line(none)
+    assert present.yield_cell(none).plain == "< 0.02 %"
+    assert "no sample failed (< 0.02 % at 95 % confidence)" in present.yield_line(none)
     allm = Yield(20000, 0.0, 1.0, (0.0, 1.9e-4), (0.9998, 1.0), [])
     assert "every sample marginal" in present.yield_line(allm)
     caveat = present.yield_caveat(allm, "marginal")
@@ -217,6 +218,25 @@ def test_numbers_people_can_read():
     assert present.yield_caveat(Yield(100, 0.3, 0.2, (0.2, 0.4), (0.1, 0.3), []),
                                 "fail") == ""
     assert not math.isnan(present.margin_text(-0.5).plain.count("−"))
+
+
+def test_the_workbook_writes_numbers_as_the_command_line_does():
+    """One formatting of margins and Monte Carlo shares (reviewer.fmt) in the workbook's
+    cells, the command line's columns and the reports; the ratio against its limit is
+    rounded toward the worse side, never shown better than it is."""
+    from reviewer import fmt
+    from reviewer.engine import Result
+
+    for m in (-0.999, -0.96, -0.715, -0.5, -0.12, -0.0004, 0.0, 0.0417, 1.6, 9.4, 11.128,
+              99.0, 9026.89, 2e5):
+        assert present.margin_text(m).plain == fmt.margin(m), m
+    for p, iv in ((0.0, (0.0, 3.84e-5)), (0.1234, (0.11, 0.13)), (1.0, (0.99996, 1.0)),
+                  (0.0012, (0.001, 0.0015))):
+        y = Yield(100000, p, 0.0, iv, (0.0, 1e-4), [])
+        assert present.yield_cell(y).plain == fmt.share(p, iv)
+    r = Result(stage="s", check="c", kind="k", status="pass", margin=1.9999 / 1.8 - 1,
+               summary="")
+    assert present.worst_vs_limit(r, {"fail_below": 1.8}).plain == "1.99 ≥ 1.8"
 
 
 def test_every_word_of_both_vocabularies_has_a_look():

@@ -282,6 +282,8 @@ class WorkbookScreen(Screen[None]):
             return f"read-only ({s.read_only_reason})"
         if not s.review_available:
             return "sign-off not available in this version"
+        if s.review_error and s.record is None:
+            return f"the review record cannot be read: {s.review_error}"
         if s.dirty:
             return "there are unsaved edits: save them (ctrl+s) or undo them first"
         if not s.computed:

@@ -11,6 +11,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.widgets import Static
 
+from reviewer import fmt
 from reviewer.engine import status_counts
 from reviewer.tui import attention
 from reviewer.tui.screens.base import WorkbookScreen
@@ -54,7 +55,8 @@ class OverviewScreen(WorkbookScreen):
             if s.approvals_open:
                 note.append(" — values cannot change; an approver approves a stage with "
                             "the a key", style="bold")
-        elif s.review_error:
+        if s.review_error:  # a record that cannot be read is named in every view
+            note.append("\n" if note else "")
             note.append(s.review_error, style="dim")
         if not s.computed:
             note.append("  computing the checks…" if note else "computing the checks…",
@@ -81,7 +83,7 @@ class OverviewScreen(WorkbookScreen):
         if sampled:
             worst, r = max(sampled, key=lambda x: x[0])
             if worst > 0:
-                tot.append(f"  · Monte Carlo on {len(sampled)}: worst {worst * 100:.2f} % fail "
+                tot.append(f"  · Monte Carlo on {len(sampled)}: worst {fmt.share(worst)} fail "
                            f"({r.stage} · {r.check})", style="bold")
             else:
                 tot.append(f"  · Monte Carlo on {len(sampled)}: no sample failed")

@@ -76,7 +76,7 @@ class StageScreen(WorkbookScreen):
         table.show(shown, results, order=every,
                    review=lambda c: s.review(self.stage, c),
                    changed={c for st, c in s.changed if st == self.stage},
-                   limits=s.checklist.limits_for, signing=s.review_available,
+                   signing=s.review_available,
                    yields=lambda c: s.yield_of(self.stage, c))
         self.check = table.current_key
         self._summary(len(shown), len(every))
@@ -99,7 +99,7 @@ class StageScreen(WorkbookScreen):
             if y is not None:
                 out.append("  Monte Carlo: ", style="bold")
                 out.append_text(present.yield_cell(y))
-                out.append(" % fail" if 0 < y.fail_fraction < 1 else " failed", style="bold")
+                out.append(" of the samples fail", style="bold")
             out.append(f"  {visible(r.summary)}")
         elif self.check:
             out.append(f"{self.check}: computing…", style="italic")

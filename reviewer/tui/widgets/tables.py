@@ -166,9 +166,10 @@ class ChecklistTable(KeyedTable):
     and the review state in a column of its own; a check whose result changed with the last
     edit is marked Δ."""
 
-    COLUMNS = (("check", "check", 23), ("result", "result", 12),
-               ("vs limit", "worst", 10), ("margin", "margin", 6),
-               ("MC fail", "yield", 7), ("review", "sign", 10))
+    # The margin column is wide enough for every form reviewer.fmt.margin writes ("needs
+    # > 100×"); the worst ratio against its limit is in the detail and the stage's summary.
+    COLUMNS = (("check", "check", 25), ("result", "result", 12), ("margin", "margin", 12),
+               ("MC fail", "yield", 9), ("review", "sign", 10))
 
     class CheckHighlighted(Message):
         """The cursor moved to a check."""
@@ -186,7 +187,7 @@ class ChecklistTable(KeyedTable):
 
     def show(self, checks: list[str], results: Mapping[str, Result], *,
              review: Callable[[str], str], changed: set[str],
-             limits: Callable[[str], Mapping[str, float]], signing: bool,
+             signing: bool,
              yields: Callable[[str], Yield | None] = lambda c: None,
              order: list[str] | None = None) -> None:
         """Show the checks of a stage (a check without a result yet shows "computing");
@@ -201,9 +202,7 @@ class ChecklistTable(KeyedTable):
                 name.append("Δ", style="bold yellow")
             rows.append(Row(cid, (
                 name, present.status_text(status),
-                present.worst_vs_limit(r, limits(cid)) if r else Text(""),
-                present.margin_text(r.margin if r else None, compact=True,
-                                    status=r.status if r else ""),
+                present.margin_text(r.margin if r else None, status=r.status if r else ""),
                 present.yield_cell(yields(cid)),
                 present.sign_text(st, signing))))
         self.show_rows(rows, order=order)
