@@ -65,10 +65,11 @@ def class_a_limits() -> np.ndarray:
     return lim
 
 
-def _f(m: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """∫_a^b e^(jmθ) dθ for integer m (b − a where m = 0)."""
+def _f(em_b: np.ndarray, em_a: np.ndarray, m: np.ndarray, a: np.ndarray,
+       b: np.ndarray) -> np.ndarray:
+    """∫_a^b e^(jmθ) dθ for integer m, from e^(jmb) and e^(jma) (b − a where m = 0)."""
     with np.errstate(divide="ignore", invalid="ignore"):
-        val = (np.exp(1j * m * b) - np.exp(1j * m * a)) / (1j * m)
+        val = (em_b - em_a) / (1j * m)
     return np.where(m == 0, (b - a) + 0j, val)
 
 
@@ -81,7 +82,8 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     [e^(−jφ)·F(1 − n) − e^(jφ)·F(−1 − n)]/2j with F(m) = ∫_a^b e^(jmθ) dθ; the constant gives
     −k·F(−n); the exponential C·e^(−jna)·τ·(1 − e^(−L/τ)·e^(−jnL))/(1 + jnτ), τ = tan φ,
     L = b − a (0 for τ = 0). a, b, phi [rad]; c, k [per unit]; rows broadcast against orders
-    on a new last axis.
+    on a new last axis. Every e^(jmθ) above is e^(±jθ)·e^(−jnθ): two complex exponentials per
+    row and order (at a and at b) serve all of them.
 
     >>> co = segment_coefficients(a=0.0, b=np.pi, c=0.0, phi=0.0, orders=np.array([1]))
     >>> np.round(co / np.pi, 12).tolist()  # half a sine: c_1 = −j/2 per cycle-π
@@ -91,13 +93,18 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     n = np.asarray(orders)
     tau = np.tan(np.clip(phi, 0.0, np.arctan(1e12)))
     length = np.maximum(b - a, 0.0)
-    sin_part = (np.exp(-1j * phi) * _f(1 - n, a, b) - np.exp(1j * phi) * _f(-1 - n, a, b)) / 2j
-    const = -k * _f(-n, a, b)
+    ea, eb = np.exp(-1j * n * a), np.exp(-1j * n * b)  # e^(−jna), e^(−jnb)
+    ja, jb = np.exp(1j * a), np.exp(1j * b)  # e^(ja), e^(jb): one per row
+    f_up = _f(jb * eb, ja * ea, 1 - n, a, b)  # F(1 − n)
+    f_down = _f(eb / jb, ea / ja, -1 - n, a, b)  # F(−1 − n)
+    sin_part = (np.exp(-1j * phi) * f_up - np.exp(1j * phi) * f_down) / 2j
+    const = -k * _f(eb, ea, -n, a, b)
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         safe = np.where(tau > 1e-12, tau, 1.0)
         decay = np.exp(-length / safe)
-        ex = c * np.exp(-1j * n * a) * safe * (1 - decay * np.exp(-1j * n * length)) / (
-            1 + 1j * n * safe)
+        # e^(−jnL) = e^(−jnb)·e^(jna) where b ≥ a; L = 0 (so 1) elsewhere
+        turn = np.where(b >= a, eb * ea.conj(), 1.0)
+        ex = c * ea * safe * (1 - decay * turn) / (1 + 1j * n * safe)
     ex = np.where(tau > 1e-12, ex, 0.0)
     return sin_part + const + ex
 
