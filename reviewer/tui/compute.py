@@ -17,7 +17,7 @@ from textual.worker import Worker, WorkerState, get_current_worker
 
 from reviewer.aids import Aid, passing_range
 from reviewer.engine import Result
-from reviewer.tolerance import Yield, monte_carlo
+from reviewer.tolerance import Yield, monte_carlo_all
 from reviewer.tui.analysis import DISTRIBUTION, SAMPLES, SEED
 from reviewer.tui.messages import AnalysisChanged, ResultsChanged
 from reviewer.tui.session import Session
@@ -93,8 +93,11 @@ class Computer:
 class Analyst:
     """Monte Carlo yield and design aids in thread workers, delivered to the top screen.
 
-    Monte Carlo goes check by check, so the banner can count them; a new run replaces a
-    running one (exclusive). A design aid is computed once per (check, inputs hash, input).
+    Monte Carlo samples every check together through :func:`reviewer.tolerance.monte_carlo_all`
+    (as ``latchbook check --monte-carlo`` does: each part's draws and the firing angle shared
+    among the checks, chunk by chunk); the banner counts the samples, and the yields arrive in
+    one delivery. A new run replaces a running one (exclusive). A design aid is computed once
+    per (check, inputs hash, input).
     """
 
     YIELD = "yield"
@@ -123,16 +126,23 @@ class Analyst:
             self.app.notify("no computed check to sample here", markup=False)
             return None
         n, seed, dist = self.samples, self.seed, self.distribution
-        s.yield_progress = (0, len(results))
+        s.yield_progress = (0, n)
         self._tell()
 
         def work() -> None:
             me = get_current_worker()
-            for k, r in enumerate(results):
+
+            def progress(done: int) -> bool:
                 if me.is_cancelled:
-                    return
-                y = monte_carlo(r, n, seed=seed, distribution=dist, keep_values=True)
-                self.app.call_from_thread(self._yield_done, r, y, k + 1, len(results))
+                    return False
+                if done < n:
+                    self.app.call_from_thread(self._yield_progress, done, n)
+                return True
+
+            yields = monte_carlo_all(results, n, seed=seed, distribution=dist,
+                                     keep_values=True, progress=progress)
+            if not me.is_cancelled:
+                self.app.call_from_thread(self._yields_done, results, yields)
 
         where = f"stage {stage}" if stage else "the whole project"
         self.app.notify(f"Monte Carlo on {where}: {len(results)} checks × {n} samples "
@@ -141,9 +151,15 @@ class Analyst:
                                    exit_on_error=False, exclusive=True,
                                    description=f"Monte Carlo on {where}")
 
-    def _yield_done(self, result: Result, y: Yield | None, done: int, total: int) -> None:
-        self.session.store_yield(result, y)
-        self.session.yield_progress = None if done >= total else (done, total)
+    def _yield_progress(self, done: int, total: int) -> None:
+        if self.session.yield_progress is not None:  # not after the yields arrived
+            self.session.yield_progress = (done, total)
+            self._tell()
+
+    def _yields_done(self, results: list[Result], yields: dict[tuple[str, str], Yield]) -> None:
+        for r in results:
+            self.session.store_yield(r, yields.get((r.stage, r.check)))
+        self.session.yield_progress = None
         self._tell()
 
     def start_aid(self, result: Result, name: str) -> None:
