@@ -15,7 +15,9 @@ halving to the same width takes 48.
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Iterable, Mapping
+import threading
+from collections import OrderedDict
+from collections.abc import Callable, Hashable, Iterable, Mapping
 
 import numpy as np
 
@@ -69,21 +71,53 @@ def solve_log_r(angle_at: Callable[[np.ndarray], np.ndarray], lo: float, hi: flo
     return np.where(nearer_b, b, a), inside
 
 
+#: Solved points by (the caller's name for its angle function, every input's ends, the R
+#: range, the angles): several checks bind the same oscillator, and an edit elsewhere in the
+#: project rebinds them all with the same values.
+_SOLVED: OrderedDict[Hashable, tuple[float, ...]] = OrderedDict()
+_KEEP = 512
+_LOCK = threading.Lock()  # the workbook binds in worker threads
+
+
 def rt_at_angles(b: Bound, rt_name: str, others: Iterable[str],
                  angle_of: Callable[[Mapping[str, np.ndarray], np.ndarray], np.ndarray],
-                 angles: Iterable[float]) -> tuple[float, ...]:
+                 angles: Iterable[float], *, key: Hashable = None) -> tuple[float, ...]:
     """The timing R values inside the range of input ``rt_name`` that fire at ``angles``.
 
     ``others`` are the inputs the angle depends on besides R; ``angle_of(grid, rt)`` gives the
     angle [rad] for rows of their values, rising with R (NaN: no firing in the half-cycle).
+    ``key`` (optional) names ``angle_of`` with everything it depends on besides the inputs
+    (device, option values): calls with the same key and the same inputs' values are solved
+    once.
     """
     names = list(others)
+    angles = tuple(angles)
     ends = [sorted({b.inputs[n].value.lo, b.inputs[n].value.hi}) for n in names]
+    rt = b.inputs[rt_name].value
+    memo_key = None
+    if key is not None:
+        memo_key = (key, tuple(names), tuple(tuple(e) for e in ends), rt.lo, rt.hi, angles)
+        with _LOCK:
+            hit = _SOLVED.get(memo_key)
+            if hit is not None:
+                _SOLVED.move_to_end(memo_key)
+                return hit
+    found = _solve_points(names, ends, rt.lo, rt.hi, angle_of, angles)
+    if memo_key is not None:
+        with _LOCK:
+            _SOLVED[memo_key] = found
+            while len(_SOLVED) > _KEEP:
+                _SOLVED.popitem(last=False)
+    return found
+
+
+def _solve_points(names: list[str], ends: list[list[float]], rt_lo: float, rt_hi: float,
+                  angle_of: Callable[[Mapping[str, np.ndarray], np.ndarray], np.ndarray],
+                  angles: tuple[float, ...]) -> tuple[float, ...]:
     grid = dict(zip(names, (g.ravel() for g in np.meshgrid(*ends, indexing="ij")),
                     strict=True))
-    rt = b.inputs[rt_name].value
     rows = next(iter(grid.values())).size if grid else 1
-    log_lo, log_hi = math.log(rt.lo), math.log(rt.hi)
+    log_lo, log_hi = math.log(rt_lo), math.log(rt_hi)
     out: list[float] = []
     for target in angles:
         root, inside = solve_log_r(lambda r: angle_of(grid, r), log_lo, log_hi, target, rows)

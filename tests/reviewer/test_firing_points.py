@@ -55,9 +55,9 @@ def demo_calls() -> list[tuple[tuple[float, ...], tuple[float, ...], Angle, dict
     original = firing.rt_at_angles
 
     def both(b: Bound, rt_name: str, others: list[str], angle_of: Angle,
-             angles: tuple[float, ...]) -> tuple[float, ...]:
+             angles: tuple[float, ...], key: object = None) -> tuple[float, ...]:
         others, angles = list(others), list(angles)
-        got = original(b, rt_name, others, angle_of, angles)
+        got = original(b, rt_name, others, angle_of, angles)  # solved here, not remembered
         ends = {n: (b.inputs[n].value.lo, b.inputs[n].value.hi) for n in others}
         calls.append((got, bisected(b, rt_name, others, angle_of, angles), angle_of, ends))
         return got
@@ -155,3 +155,32 @@ def test_fewer_angle_solutions_than_bisection() -> None:
     assert inside.all()
     assert np.exp(root) == pytest.approx(r0, rel=1e-12)
     assert calls[0] <= 20  # bisection to the same width needs 48
+
+
+def test_same_key_and_values_solved_once() -> None:
+    """Points are remembered by (key, the inputs' ends, R range, angles): the same again costs
+    no angle solution; another value of an input is solved afresh."""
+    calls = [0]
+
+    def angle_of(g: Mapping[str, np.ndarray], r: np.ndarray) -> np.ndarray:
+        calls[0] += 1
+        return math.pi * r / (r + g["r0"])
+
+    def bound(r0_hi: float) -> Bound:
+        b = Bound()
+        b.add("rt", "stages.t.timing_r", Value(47e3, 10e3, 100e3, "resistance", "ohm"))
+        b.add("r0", "stages.t.other", Value(30e3, 25e3, r0_hi, "resistance", "ohm"))
+        return b
+
+    key = ("test angle", "ujt")
+    first = firing.rt_at_angles(bound(35e3), "rt", ["r0"], angle_of, [math.pi / 2], key=key)
+    assert first == pytest.approx((25e3, 35e3), rel=1e-12)
+    n = calls[0]
+    again = firing.rt_at_angles(bound(35e3), "rt", ["r0"], angle_of, [math.pi / 2], key=key)
+    assert again == first and calls[0] == n
+    other = firing.rt_at_angles(bound(40e3), "rt", ["r0"], angle_of, [math.pi / 2], key=key)
+    assert other == pytest.approx((25e3, 40e3), rel=1e-12) and calls[0] > n
+    # without a key nothing is remembered
+    m = calls[0]
+    firing.rt_at_angles(bound(35e3), "rt", ["r0"], angle_of, [math.pi / 2])
+    assert calls[0] > m
