@@ -29,7 +29,9 @@ class Computer:
     A small recomputation (an edit's dependents, expected under :attr:`INLINE` seconds from
     the measured cost per check) runs on the UI thread and the caller repaints: the screen
     then repaints once, with the new results, instead of once for the edit and again when a
-    worker hands them over.
+    worker hands them over. The cost per check is the computing thread's own CPU time, so a
+    first run that shared the processor with the first paint (or a busy machine) does not
+    make every later edit look too big to run inline.
     Anything larger runs in a worker and the screen stays responsive.
     """
 
@@ -51,25 +53,27 @@ class Computer:
         session = self.session
         if paths is not None and self.per_check is not None and \
                 len(keys) * self.per_check < self.INLINE:
+            cpu = time.thread_time()
             results = session.compute(project, keys) if keys else []
-            self._measure(len(keys))
+            self._measure(len(keys), time.thread_time() - cpu)
             # The caller (an edit, undo or redo) repaints right after: no message, so the
             # screen is not refreshed a second time for the same results.
             self._deliver(gen, results, True, tell=False)
             return None
 
         def work() -> None:
+            cpu = time.thread_time()
             results = session.compute(project, keys) if keys else []
-            self._measure(len(keys))
+            self._measure(len(keys), time.thread_time() - cpu)
             self.app.call_from_thread(self._deliver, gen, results, True)
 
         return self.app.run_worker(work, name="engine", group=self.GROUP, thread=True,
                                    exit_on_error=False, exclusive=True,
                                    description="recompute the checks")
 
-    def _measure(self, n: int) -> None:
+    def _measure(self, n: int, cpu: float) -> None:
         if n:
-            self.per_check = (time.perf_counter() - self.started) / n
+            self.per_check = cpu / n
 
     def _deliver(self, gen: int, results: list[Any], done: bool, *, tell: bool = True) -> None:
         changed = self.session.accept(gen, results, done=done)
