@@ -93,12 +93,13 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     n = np.asarray(orders)
     tau = np.tan(np.clip(phi, 0.0, np.arctan(1e12)))
     length = np.maximum(b - a, 0.0)
-    ea, eb = np.exp(-1j * n * a), np.exp(-1j * n * b)  # e^(−jna), e^(−jnb)
-    ja, jb = np.exp(1j * a), np.exp(1j * b)  # e^(ja), e^(jb): one per row
-    f_up = _f(jb * eb, ja * ea, 1 - n, a, b)  # F(1 − n)
-    f_down = _f(eb / jb, ea / ja, -1 - n, a, b)  # F(−1 − n)
-    sin_part = (np.exp(-1j * phi) * f_up - np.exp(1j * phi) * f_down) / 2j
-    const = -k * _f(eb, ea, -n, a, b)
+    with np.errstate(invalid="ignore"):  # a non-finite end gives NaN, judged by the engine
+        ea, eb = np.exp(-1j * n * a), np.exp(-1j * n * b)  # e^(−jna), e^(−jnb)
+        ja, jb = np.exp(1j * a), np.exp(1j * b)  # e^(ja), e^(jb): one per row
+        f_up = _f(jb * eb, ja * ea, 1 - n, a, b)  # F(1 − n)
+        f_down = _f(eb / jb, ea / ja, -1 - n, a, b)  # F(−1 − n)
+        sin_part = (np.exp(-1j * phi) * f_up - np.exp(1j * phi) * f_down) / 2j
+        const = -k * _f(eb, ea, -n, a, b)
     with np.errstate(over="ignore", under="ignore", invalid="ignore"):
         safe = np.where(tau > 1e-12, tau, 1.0)
         decay = np.exp(-length / safe)
@@ -107,6 +108,32 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
         ex = c * ea * safe * (1 - decay * turn) / (1 + 1j * n * safe)
     ex = np.where(tau > 1e-12, ex, 0.0)
     return sin_part + const + ex
+
+
+def _distinct_rows(*arrays: np.ndarray | float) -> tuple[list[np.ndarray], np.ndarray]:
+    """The distinct rows of broadcast ``arrays`` (columns of the distinct rows) and, per
+    original row, the index of its distinct row; the original shape is kept by the index.
+
+    Corner tables repeat a segment many times over (inputs the waveform does not read), and
+    its coefficients cost 41 complex exponentials per row: each distinct one is worked once.
+
+    >>> cols, back = _distinct_rows(np.array([1.0, 2.0, 1.0]), 0.5)
+    >>> [c.tolist() for c in cols], back.tolist()
+    ([[1.0, 2.0], [0.5, 0.5]], [0, 1, 0])
+    """
+    full = np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in arrays))
+    shape = full[0].shape
+    flat = [x.ravel() for x in full]
+    if flat[0].size <= 1:
+        return flat, np.zeros(shape, dtype=np.intp)
+    order = np.lexsort(flat[::-1])
+    ranked = [x[order] for x in flat]
+    # rows differ where any column differs (NaN rows are never merged: NaN != NaN)
+    new = np.ones(order.size, dtype=bool)
+    new[1:] = np.any(np.stack([r[1:] != r[:-1] for r in ranked]), axis=0)
+    back = np.empty(order.size, dtype=np.intp)
+    back[order] = np.cumsum(new) - 1
+    return [r[new] for r in ranked], back.reshape(shape)
 
 
 def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np.ndarray,
@@ -124,7 +151,9 @@ def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np
     [0.3183, 0.1061]
     """
     n = np.asarray(orders)
-    co = segment_coefficients(a=seg_a, b=seg_b, c=seg_c, phi=phi, k=offset, orders=n)
+    cols, back = _distinct_rows(seg_a, seg_b, seg_c, phi, offset)
+    a, b, c, p, k = cols
+    co = segment_coefficients(a=a, b=b, c=c, phi=p, k=k, orders=n)[back]
     if symmetric:
         co = co * (1 - np.exp(-1j * np.pi * n))
     return co * np.asarray(amplitude, dtype=float)[..., None] / np.pi

@@ -33,11 +33,15 @@ class Computer:
     worker hands them over. The cost per check is the computing thread's own CPU time, so a
     first run that shared the processor with the first paint (or a busy machine) does not
     make every later edit look too big to run inline.
-    Anything larger runs in a worker and the screen stays responsive.
+    Anything larger runs in a worker and the screen stays responsive; a run of the whole
+    project (opening it) hands over what it has every :attr:`PARTIAL` seconds, so a large
+    project's table fills stage by stage instead of all at the end. The first run starts
+    after the first paint: the table is on the screen before the engine competes with it.
     """
 
     GROUP = "compute"
     INLINE = 0.06
+    PARTIAL = 0.25
 
     def __init__(self, app: App[Any], session: Session) -> None:
         self.app = app
@@ -65,7 +69,18 @@ class Computer:
 
         def work() -> None:
             cpu = time.thread_time()
-            results = session.compute(project, keys) if keys else []
+            batch: list[Result] = []
+            last = time.perf_counter()
+
+            def arrived(r: Result) -> None:
+                nonlocal last
+                batch.append(r)
+                if paths is None and time.perf_counter() - last >= self.PARTIAL:
+                    self.app.call_from_thread(self._deliver, gen, batch.copy(), False)
+                    batch.clear()
+                    last = time.perf_counter()
+
+            results = session.compute(project, keys, arrived) if keys else []
             self._measure(len(keys), time.thread_time() - cpu)
             self.app.call_from_thread(self._deliver, gen, results, True)
 

@@ -320,9 +320,11 @@ class Session:
         self.computed = not groups
         return self.generation, self.project, list(groups.values())
 
-    def compute(self, project: Project, keys: list[Key]) -> list[Result]:
-        """Run the engine on some checks of ``project`` (safe in a worker thread)."""
-        return evaluate(project, self.checklist, only=keys).results
+    def compute(self, project: Project, keys: list[Key],
+                on_result: Callable[[Result], None] | None = None) -> list[Result]:
+        """Run the engine on some checks of ``project`` (safe in a worker thread);
+        ``on_result`` sees each result as it comes (:func:`reviewer.engine.evaluate`)."""
+        return evaluate(project, self.checklist, only=keys, on_result=on_result).results
 
     def accept(self, gen: int, results: list[Result], *, done: bool) -> set[Key] | None:
         """Take results unless the project changed meanwhile; return the rows that changed.

@@ -37,3 +37,42 @@ def test_one_load_and_the_same_verdict(tmp_path: Path, monkeypatch) -> None:
         assert len(s.record.entries) == len(fresh.entries) > 0
     finally:
         s.close()
+
+
+def test_opening_fills_the_table_as_results_arrive(tmp_path: Path, monkeypatch) -> None:
+    """The whole-project run hands over what it has as it goes (every PARTIAL seconds; 0
+    here, so after each check) before the final delivery of everything, and the final
+    results are those of one plain run."""
+    import asyncio
+
+    from reviewer.tui.app import Workbook
+    from reviewer.tui.compute import Computer
+    from tests.tui.conftest import settle
+
+    shutil.copyfile(LINE.parent / "kiln-230.toml", tmp_path / "kiln-230.toml")
+    path = tmp_path / "kiln-230.toml"
+    monkeypatch.setattr(Computer, "PARTIAL", 0.0)
+    deliveries: list[tuple[int, bool]] = []
+    real = Computer._deliver
+
+    def seen(self, gen, results, done, *, tell=True):
+        deliveries.append((len(results), done))
+        return real(self, gen, results, done, tell=tell)
+
+    monkeypatch.setattr(Computer, "_deliver", seen)
+    plain = Session(path, lock=False)
+    plain.compute_all()
+    expected = {(r.stage, r.check): (r.status, r.summary) for r in plain.run.results}
+    plain.close()
+
+    async def go() -> None:
+        app = Workbook(Session(path))
+        async with app.run_test(size=(80, 24)) as pilot:
+            await settle(pilot, app)
+            got = {(r.stage, r.check): (r.status, r.summary) for r in app.session.run.results}
+            assert got == expected
+            app.session.close()
+    asyncio.run(go())
+    partial = [n for n, done in deliveries if not done]
+    assert len(partial) >= 3 and deliveries[-1] == (len(expected), True)
+    assert sum(partial) <= len(expected)
