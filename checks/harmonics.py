@@ -65,11 +65,10 @@ def class_a_limits() -> np.ndarray:
     return lim
 
 
-def _f(em_b: np.ndarray, em_a: np.ndarray, m: np.ndarray, a: np.ndarray,
-       b: np.ndarray) -> np.ndarray:
-    """∫_a^b e^(jmθ) dθ for integer m, from e^(jmb) and e^(jma) (b − a where m = 0)."""
+def _f(m: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """∫_a^b e^(jmθ) dθ for integer m (b − a where m = 0)."""
     with np.errstate(divide="ignore", invalid="ignore"):
-        val = (em_b - em_a) / (1j * m)
+        val = (np.exp(1j * m * b) - np.exp(1j * m * a)) / (1j * m)
     return np.where(m == 0, (b - a) + 0j, val)
 
 
@@ -78,12 +77,13 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
                          orders: np.ndarray = ORDERS) -> np.ndarray:
     """∫_a^b [sin(θ − φ) − k + C·e^(−(θ − a)/tan φ)]·e^(−jnθ) dθ for every order n [per unit].
 
-    Closed form: sin(θ − φ) = [e^(j(θ−φ)) − e^(−j(θ−φ))]/2j gives
-    [e^(−jφ)·F(1 − n) − e^(jφ)·F(−1 − n)]/2j with F(m) = ∫_a^b e^(jmθ) dθ; the constant gives
-    −k·F(−n); the exponential C·e^(−jna)·τ·(1 − e^(−L/τ)·e^(−jnL))/(1 + jnτ), τ = tan φ,
-    L = b − a (0 for τ = 0). a, b, phi [rad]; c, k [per unit]; rows broadcast against orders
-    on a new last axis. Every e^(jmθ) above is e^(±jθ)·e^(−jnθ): two complex exponentials per
-    row and order (at a and at b) serve all of them.
+    Closed form, with E(θ) = e^(−jnθ): the sine gives E(b)·G(b − φ) − E(a)·G(a − φ),
+    G(u) = −(cos u + j·n·sin u)/(1 − n²) (for n = ±1 the term with F(0) = b − a instead, from
+    sin(θ − φ) = [e^(j(θ−φ)) − e^(−j(θ−φ))]/2j and F(m) = ∫_a^b e^(jmθ) dθ); the constant gives
+    −k·(E(b) − E(a))/(−jn) (−k·(b − a) for n = 0); the exponential
+    C·τ·(E(a) − e^(−L/τ)·E(b))/(1 + jnτ), τ = tan φ, L = b − a (0 for τ = 0 or b ≤ a).
+    a, b, phi [rad]; c, k [per unit]; rows broadcast against orders on a new last axis. Two
+    complex exponentials per row and order (E at a and at b) serve every term.
 
     >>> co = segment_coefficients(a=0.0, b=np.pi, c=0.0, phi=0.0, orders=np.array([1]))
     >>> np.round(co / np.pi, 12).tolist()  # half a sine: c_1 = −j/2 per cycle-π
@@ -91,23 +91,33 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     """
     a, b, c, phi, k = (np.asarray(x, dtype=float)[..., None] for x in (a, b, c, phi, k))
     n = np.asarray(orders)
+    nf = n.astype(float)
     tau = np.tan(np.clip(phi, 0.0, np.arctan(1e12)))
-    length = np.maximum(b - a, 0.0)
-    with np.errstate(invalid="ignore"):  # a non-finite end gives NaN, judged by the engine
-        ea, eb = np.exp(-1j * n * a), np.exp(-1j * n * b)  # e^(−jna), e^(−jnb)
-        ja, jb = np.exp(1j * a), np.exp(1j * b)  # e^(ja), e^(jb): one per row
-        f_up = _f(jb * eb, ja * ea, 1 - n, a, b)  # F(1 − n)
-        f_down = _f(eb / jb, ea / ja, -1 - n, a, b)  # F(−1 − n)
-        sin_part = (np.exp(-1j * phi) * f_up - np.exp(1j * phi) * f_down) / 2j
-        const = -k * _f(eb, ea, -n, a, b)
-    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
-        safe = np.where(tau > 1e-12, tau, 1.0)
-        decay = np.exp(-length / safe)
-        # e^(−jnL) = e^(−jnb)·e^(jna) where b ≥ a; L = 0 (so 1) elsewhere
-        turn = np.where(b >= a, eb * ea.conj(), 1.0)
-        ex = c * ea * safe * (1 - decay * turn) / (1 + 1j * n * safe)
-    ex = np.where(tau > 1e-12, ex, 0.0)
-    return sin_part + const + ex
+    unit = np.abs(n) == 1  # 1 − n² = 0: those orders take the F(0) form below
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore", under="ignore"):
+        ea, eb = np.exp(-1j * nf * a), np.exp(-1j * nf * b)  # E(a), E(b)
+        g = np.where(unit, 0.0, -1.0 / (1.0 - nf * nf))
+        gn = g * nf
+        ua, ub = a - phi, b - phi
+        total = eb * (np.cos(ub) * g + 1j * (np.sin(ub) * gn))
+        total -= ea * (np.cos(ua) * g + 1j * (np.sin(ua) * gn))
+        # the constant: −k·(E(b) − E(a))/(−jn) = −j·k·(E(b) − E(a))/n
+        zero = n == 0
+        kn = np.where(zero, 0.0, k / np.where(zero, 1.0, nf))
+        total -= 1j * kn * (eb - ea)
+        if zero.any():
+            total[..., zero] -= k * (b - a)
+        # the exponential, only where τ > 0 and the segment has a length
+        live = (tau > 1e-12) & (b > a)
+        safe = np.where(live, tau, 1.0)
+        decay = np.exp(-np.where(live, b - a, 0.0) / safe)
+        weight = np.where(live, c * safe, 0.0)
+        total += weight * (ea - decay * eb) / (1.0 + 1j * nf * safe)
+        if unit.any():
+            m = n[unit]
+            total[..., unit] += (np.exp(-1j * phi) * _f(1 - m, a, b)
+                                 - np.exp(1j * phi) * _f(-1 - m, a, b)) / 2j
+    return total
 
 
 def _distinct_rows(*arrays: np.ndarray | float) -> tuple[list[np.ndarray], np.ndarray]:
