@@ -170,6 +170,11 @@ async def time_yield(path: Path, samples: int) -> tuple[float, int, float]:
 
 # -- through a real terminal (tmux) ----------------------------------------------------------
 
+#: tmux on a server of this script's own (not the default socket other tmux users share: a
+#: session ending there, or a server restarted by someone else, must not disturb a timing).
+TMUX = ["tmux", "-L", f"latchbook-bench-{os.getpid()}"]
+
+
 class Pane:
     """A tmux session of 80×24 running the workbook on one project."""
 
@@ -179,18 +184,18 @@ class Pane:
                "'import sys; from reviewer.cli import main; sys.exit(main())' "
                f"open {project.name}")
         env = {**os.environ, "PYTHONPATH": str(ROOT), "TERM": "xterm-256color"}
-        subprocess.run(["tmux", "kill-session", "-t", name], capture_output=True)
+        subprocess.run([*TMUX, "kill-session", "-t", name], capture_output=True)
         self.started = time.perf_counter()
-        subprocess.run(["tmux", "new-session", "-d", "-s", name, "-x", str(width), "-y",
+        subprocess.run([*TMUX, "new-session", "-d", "-s", name, "-x", str(width), "-y",
                         str(height), cmd], check=True, env=env)
 
     def text(self) -> str:
-        out = subprocess.run(["tmux", "capture-pane", "-p", "-t", self.name],
+        out = subprocess.run([*TMUX, "capture-pane", "-p", "-t", self.name],
                              capture_output=True, text=True)
         return out.stdout
 
     def keys(self, *keys: str, literal: bool = False) -> None:
-        subprocess.run(["tmux", "send-keys", "-t", self.name, *(["-l"] if literal else []),
+        subprocess.run([*TMUX, "send-keys", "-t", self.name, *(["-l"] if literal else []),
                         *keys], check=True)
 
     def type_into(self, text: str, tries: int = 5) -> None:
@@ -217,7 +222,22 @@ class Pane:
         raise TimeoutError(f"the pane never showed what was waited for:\n{self.text()}")
 
     def close(self) -> None:
-        subprocess.run(["tmux", "kill-session", "-t", self.name], capture_output=True)
+        subprocess.run([*TMUX, "kill-session", "-t", self.name], capture_output=True)
+
+
+_LISTED = re.compile(r"(?:stages|parts|supply|conditions)\.[\w.-]+")
+
+
+def first_listed(text: str) -> str | None:
+    """The first value path listed in the pick dialog (inside its ┃ border; the filter's input
+    line left out)."""
+    for line in text.splitlines():
+        if "┃" not in line or "▊" in line:
+            continue
+        m = _LISTED.search(line)
+        if m:
+            return m.group(0)
+    return None
 
 
 def full_screen(text: str) -> bool:
@@ -259,8 +279,10 @@ def tmux_edits(path: Path, stage: str, key: str, values: list[str], n: int) -> l
             pane.keys("e")
             pane.wait(lambda t: "type to narrow" in t)
             pane.type_into(key)
-            time.sleep(0.3)  # untimed: let the list narrow before Enter takes its first
-            pane.keys("Enter")  # a path typed in full is the first of the list
+            # untimed: Enter takes the first of the list, so wait until the list has narrowed
+            # to the typed path (a path typed in full comes first)
+            pane.wait(lambda t: first_listed(t) == key, timeout=10.0)
+            pane.keys("Enter")
             pane.wait(lambda t: f"Change {key}" in t)
             for _ in range(5):
                 pane.type_into(value)
