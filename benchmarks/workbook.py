@@ -225,18 +225,17 @@ class Pane:
         subprocess.run([*TMUX, "kill-session", "-t", self.name], capture_output=True)
 
 
-_LISTED = re.compile(r"(?:stages|parts|supply|conditions)\.[\w.-]+")
+#: A row of the pick dialog's list: "▊ • path" or "▊   path" (the filter's input line is
+#: "▊  typed", one space fewer, and is not matched).
+_LISTED = re.compile(r"▊ [• ] ((?:stages|parts|supply|conditions)\.[\w.-]+)")
 
 
 def first_listed(text: str) -> str | None:
-    """The first value path listed in the pick dialog (inside its ┃ border; the filter's input
-    line left out)."""
+    """The first value path listed in the pick dialog."""
     for line in text.splitlines():
-        if "┃" not in line or "▊" in line:
-            continue
         m = _LISTED.search(line)
         if m:
-            return m.group(0)
+            return m.group(1)
     return None
 
 
