@@ -185,9 +185,15 @@ class Pane:
                f"open {project.name}")
         env = {**os.environ, "PYTHONPATH": str(ROOT), "TERM": "xterm-256color"}
         subprocess.run([*TMUX, "kill-session", "-t", name], capture_output=True)
-        self.started = time.perf_counter()
-        subprocess.run([*TMUX, "new-session", "-d", "-s", name, "-x", str(width), "-y",
-                        str(height), cmd], check=True, env=env)
+        for _ in range(5):  # the last session's end stops the server: it may be exiting
+            self.started = time.perf_counter()
+            done = subprocess.run([*TMUX, "new-session", "-d", "-s", name, "-x", str(width),
+                                   "-y", str(height), cmd], env=env, capture_output=True)
+            if done.returncode == 0:
+                break
+            time.sleep(0.2)
+        else:
+            raise RuntimeError(f"tmux could not start: {done.stderr.decode().strip()}")
 
     def text(self) -> str:
         out = subprocess.run([*TMUX, "capture-pane", "-p", "-t", self.name],
