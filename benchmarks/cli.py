@@ -14,7 +14,10 @@ was ever written, every run then compiles every module from source).
 tar -x -C DIR``: ``-m reviewer.cli`` then imports that checkout's code), alternating the two
 run by run so both see the same machine load, and prints the ratio of the medians.
 
-    python -m benchmarks.cli [--repeat N] [--no-bytecode] [--against DIR]
+``--only TEXT`` times only the commands whose label contains TEXT. The load average is printed
+before and after: on a shared machine trust the CPU column and the ratios.
+
+    python -m benchmarks.cli [--repeat N] [--no-bytecode] [--against DIR] [--only TEXT]
 """
 
 from __future__ import annotations
@@ -83,7 +86,9 @@ def main() -> None:
                     help="keep PYTHONDONTWRITEBYTECODE as set (compile every run)")
     ap.add_argument("--against", type=Path, metavar="DIR",
                     help="another checkout to time the same commands in, alternately")
+    ap.add_argument("--only", metavar="TEXT", help="only the commands whose label has TEXT")
     args = ap.parse_args()
+    print("load average (1, 5, 15 min): " + ", ".join(f"{x:.2f}" for x in os.getloadavg()))
     if not args.no_bytecode:
         print("children run from compiled bytecode (caches written by a warm-up run)")
     roots = (ROOT,) if args.against is None else (ROOT, args.against.resolve())
@@ -92,12 +97,15 @@ def main() -> None:
         head += f"   | against: {'fastest':>9} {'median':>9} {'CPU':>9}  ratio (median, CPU)"
     print(head + "   (wall, wall, user+sys)")
     for label, cmd in COMMANDS:
+        if args.only and args.only not in label:
+            continue
         res = run(cmd, args.repeat, not args.no_bytecode, roots)
         line = f"{label:40} " + " ".join(f"{x * 1e3:7.0f} ms" for x in res[0])
         if args.against:
             line += "   |          " + " ".join(f"{x * 1e3:7.0f} ms" for x in res[1])
             line += f"  {res[1][1] / res[0][1]:5.2f}× {res[1][2] / res[0][2]:5.2f}×"
         print(line)
+    print("load average (1, 5, 15 min): " + ", ".join(f"{x:.2f}" for x in os.getloadavg()))
 
 
 if __name__ == "__main__":

@@ -13,7 +13,8 @@ Targets: first full screen < 1 s (50 stages too), edit → table < 50 ms median.
 asserts nothing. Without tmux (``apt-get install -y tmux``) the terminal part says so and is
 skipped.
 
-    python -m benchmarks.workbook [--stages 50] [--edits 15] [--no-yield]
+    python -m benchmarks.workbook [--stages 50] [--edits 15] [--no-yield] [--only TEXT]
+                                  [--no-tmux]
 
 Works on copies in a temp folder (never writes into projects/). ``--stages N`` also times a
 generated project of N stages (copies of the kiln's stages).
@@ -34,6 +35,51 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+
+
+#: The edits the earlier figures were measured with; any other project gets one chosen by
+#: :func:`choose_edit`.
+KNOWN_EDITS = {
+    "kiln-230.toml": ("snubber", "stages.snubber.r",
+                      ["56 ohm ±5%", "68 ohm ±5%", "82 ohm ±5%", "39 ohm ±5%"]),
+    "kiln-120.toml": ("snubber", "stages.snubber.r",
+                      ["56 ohm ±5%", "68 ohm ±5%", "82 ohm ±5%", "39 ohm ±5%"]),
+    "flasher-dc.toml": ("blink", "stages.blink.timing_c",
+                        ["0.82 uF ±10%", "0.68 uF ±10%", "1.2 uF ±10%", "0.56 uF ±10%"]),
+}
+_UNIT = {"resistance": ("ohm", 1.0), "capacitance": ("uF", 1e-6)}
+
+
+def choose_edit(path: Path) -> tuple[str, str, list[str]]:
+    """A value a designer chooses, for timing edits: the first resistor (else capacitor) of a
+    stage that varies, with four values around it (each differs from the one before).
+
+    Returns (stage, path of the value, values to type). Works on any project: the stage and
+    key come from the loaded file, not from names a demo happens to use.
+    """
+    from reviewer.model import Value
+    from reviewer.project import load_project
+
+    if path.name in KNOWN_EDITS:
+        return KNOWN_EDITS[path.name]
+    if path.name.startswith("big-"):  # copies of the kiln: its first snubber, as before
+        return ("snubber0", "stages.snubber0.r", KNOWN_EDITS["kiln-230.toml"][2])
+    project = load_project(path)
+    for dim in _UNIT:
+        for sid, stage in project.stages.items():
+            todo = [(f"stages.{sid}.{k}", v) for k, v in stage.params.items()]
+            while todo:
+                key, v = todo.pop(0)
+                if isinstance(v, dict) and key.count(".") == 2:  # one level, as the picker
+                    todo += [(f"{key}.{k}", x) for k, x in v.items()]
+                elif isinstance(v, Value) and v.dim == dim and v.nom > 0 and not v.is_range:
+                    unit, scale = _UNIT[dim]
+                    tol = re.search(r"±\s*[\d.]+\s*%", v.text or "")
+                    tail = f" {tol.group(0)}" if tol else ""
+                    vals = [f"{v.nom * f / scale:.3g} {unit}{tail}"
+                            for f in (0.82, 0.68, 1.2, 0.56)]
+                    return sid, key, vals
+    raise SystemExit(f"{path.name}: no resistor or capacitor value to edit in any stage")
 
 
 def big_project(src: Path, n: int, dest: Path) -> Path:
@@ -124,6 +170,11 @@ async def time_yield(path: Path, samples: int) -> tuple[float, int, float]:
 
 # -- through a real terminal (tmux) ----------------------------------------------------------
 
+#: tmux on a server of this script's own (not the default socket other tmux users share: a
+#: session ending there, or a server restarted by someone else, must not disturb a timing).
+TMUX = ["tmux", "-L", f"latchbook-bench-{os.getpid()}"]
+
+
 class Pane:
     """A tmux session of 80×24 running the workbook on one project."""
 
@@ -133,18 +184,24 @@ class Pane:
                "'import sys; from reviewer.cli import main; sys.exit(main())' "
                f"open {project.name}")
         env = {**os.environ, "PYTHONPATH": str(ROOT), "TERM": "xterm-256color"}
-        subprocess.run(["tmux", "kill-session", "-t", name], capture_output=True)
-        self.started = time.perf_counter()
-        subprocess.run(["tmux", "new-session", "-d", "-s", name, "-x", str(width), "-y",
-                        str(height), cmd], check=True, env=env)
+        subprocess.run([*TMUX, "kill-session", "-t", name], capture_output=True)
+        for _ in range(5):  # the last session's end stops the server: it may be exiting
+            self.started = time.perf_counter()
+            done = subprocess.run([*TMUX, "new-session", "-d", "-s", name, "-x", str(width),
+                                   "-y", str(height), cmd], env=env, capture_output=True)
+            if done.returncode == 0:
+                break
+            time.sleep(0.2)
+        else:
+            raise RuntimeError(f"tmux could not start: {done.stderr.decode().strip()}")
 
     def text(self) -> str:
-        out = subprocess.run(["tmux", "capture-pane", "-p", "-t", self.name],
+        out = subprocess.run([*TMUX, "capture-pane", "-p", "-t", self.name],
                              capture_output=True, text=True)
         return out.stdout
 
     def keys(self, *keys: str, literal: bool = False) -> None:
-        subprocess.run(["tmux", "send-keys", "-t", self.name, *(["-l"] if literal else []),
+        subprocess.run([*TMUX, "send-keys", "-t", self.name, *(["-l"] if literal else []),
                         *keys], check=True)
 
     def type_into(self, text: str, tries: int = 5) -> None:
@@ -171,7 +228,21 @@ class Pane:
         raise TimeoutError(f"the pane never showed what was waited for:\n{self.text()}")
 
     def close(self) -> None:
-        subprocess.run(["tmux", "kill-session", "-t", self.name], capture_output=True)
+        subprocess.run([*TMUX, "kill-session", "-t", self.name], capture_output=True)
+
+
+#: A row of the pick dialog's list: "▊ • path" or "▊   path" (the filter's input line is
+#: "▊  typed", one space fewer, and is not matched).
+_LISTED = re.compile(r"▊ [• ] ((?:stages|parts|supply|conditions)\.[\w.-]+)")
+
+
+def first_listed(text: str) -> str | None:
+    """The first value path listed in the pick dialog."""
+    for line in text.splitlines():
+        m = _LISTED.search(line)
+        if m:
+            return m.group(1)
+    return None
 
 
 def full_screen(text: str) -> bool:
@@ -213,8 +284,10 @@ def tmux_edits(path: Path, stage: str, key: str, values: list[str], n: int) -> l
             pane.keys("e")
             pane.wait(lambda t: "type to narrow" in t)
             pane.type_into(key)
-            time.sleep(0.3)  # untimed: let the list narrow before Enter takes its first
-            pane.keys("Enter")  # a path typed in full is the first of the list
+            # untimed: Enter takes the first of the list, so wait until the list has narrowed
+            # to the typed path (a path typed in full comes first)
+            pane.wait(lambda t: first_listed(t) == key, timeout=10.0)
+            pane.keys("Enter")
             pane.wait(lambda t: f"Change {key}" in t)
             for _ in range(5):
                 pane.type_into(value)
@@ -244,28 +317,33 @@ def main() -> None:
     parser.add_argument("--samples", type=int, default=20_000,
                         help="Monte Carlo samples per check (the workbook's default)")
     parser.add_argument("--no-yield", action="store_true", help="skip the Monte Carlo part")
+    parser.add_argument("--only", metavar="TEXT", help="only the projects whose file name has TEXT")
+    parser.add_argument("--no-tmux", action="store_true", help="skip the terminal part")
     args = parser.parse_args()
-    values = ["56 ohm ±5%", "68 ohm ±5%", "82 ohm ±5%", "39 ohm ±5%"]
     with tempfile.TemporaryDirectory(prefix="latchbook-bench-", ignore_cleanup_errors=True) as tmp:
         work = Path(tmp)
         for p in (ROOT / "projects").glob("*.toml"):
             shutil.copyfile(p, work / p.name)
-        edits = {"kiln-230.toml": ("snubber", "stages.snubber.r"),
-                 "kiln-120.toml": ("snubber", "stages.snubber.r"),
-                 "flasher-dc.toml": ("blink", "stages.blink.timing_c")}
-        flasher_values = ["0.82 uF ±10%", "0.68 uF ±10%", "1.2 uF ±10%", "0.56 uF ±10%"]
         paths = sorted(work.glob("*.toml"))
         if args.stages:
             paths.append(big_project(work / "kiln-230.toml", args.stages, work))
+        if args.only:
+            paths = [p for p in paths if args.only in p.name]
+        edits = {p.name: choose_edit(p) for p in paths}
+        print("load average (1, 5, 15 min): " + ", ".join(f"{x:.2f}" for x in os.getloadavg()))
+        for p in paths:
+            stage, key, vals = edits[p.name]
+            print(f"  {p.name}: edits {key} ({', '.join(vals)})")
         print("through a real terminal (tmux, 80×24, the workbook as its own process)")
-        if not has_tmux():
+        if args.no_tmux:
+            print("  skipped (--no-tmux)")
+        elif not has_tmux():
             print("  tmux is not installed (apt-get install -y tmux): skipped")
         else:
             print(f"{'project':<18} {'first full screen':>17} {'edit→table median':>18} "
                   f"{'min':>6} {'max':>6}  (n)")
             for path in paths:
-                stage, key = edits.get(path.name, ("snubber0", "stages.snubber0.r"))
-                vals = flasher_values if path.name.startswith("flasher") else values
+                stage, key, vals = edits[path.name]
                 opened = statistics.median(tmux_open(path) for _ in range(3))
                 # Each run edits a fresh copy, so every edit is a new unsaved one.
                 copy = path.with_name(f"t-{path.name}")
@@ -285,8 +363,7 @@ def main() -> None:
               f"{'rerun':>6}")
         for path in paths:
             first, full = asyncio.run(time_open(path))
-            stage, key = edits.get(path.name, ("snubber0", "stages.snubber0.r"))
-            vals = flasher_values if path.name.startswith("flasher") else values
+            stage, key, vals = edits[path.name]
             took, rerun = asyncio.run(time_edit(path, (key, vals[0])))
             print(f"{path.name:<18} {first:>10.3f} s {full:>10.3f} s {took * 1000:>8.0f} ms "
                   f"{rerun:>6}")

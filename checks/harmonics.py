@@ -77,11 +77,13 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
                          orders: np.ndarray = ORDERS) -> np.ndarray:
     """∫_a^b [sin(θ − φ) − k + C·e^(−(θ − a)/tan φ)]·e^(−jnθ) dθ for every order n [per unit].
 
-    Closed form: sin(θ − φ) = [e^(j(θ−φ)) − e^(−j(θ−φ))]/2j gives
-    [e^(−jφ)·F(1 − n) − e^(jφ)·F(−1 − n)]/2j with F(m) = ∫_a^b e^(jmθ) dθ; the constant gives
-    −k·F(−n); the exponential C·e^(−jna)·τ·(1 − e^(−L/τ)·e^(−jnL))/(1 + jnτ), τ = tan φ,
-    L = b − a (0 for τ = 0). a, b, phi [rad]; c, k [per unit]; rows broadcast against orders
-    on a new last axis.
+    Closed form, with E(θ) = e^(−jnθ): the sine gives E(b)·G(b − φ) − E(a)·G(a − φ),
+    G(u) = −(cos u + j·n·sin u)/(1 − n²) (for n = ±1 the term with F(0) = b − a instead, from
+    sin(θ − φ) = [e^(j(θ−φ)) − e^(−j(θ−φ))]/2j and F(m) = ∫_a^b e^(jmθ) dθ); the constant gives
+    −k·(E(b) − E(a))/(−jn) (−k·(b − a) for n = 0); the exponential
+    C·τ·(E(a) − e^(−L/τ)·E(b))/(1 + jnτ), τ = tan φ, L = b − a (0 for τ = 0 or b ≤ a).
+    a, b, phi [rad]; c, k [per unit]; rows broadcast against orders on a new last axis. Two
+    complex exponentials per row and order (E at a and at b) serve every term.
 
     >>> co = segment_coefficients(a=0.0, b=np.pi, c=0.0, phi=0.0, orders=np.array([1]))
     >>> np.round(co / np.pi, 12).tolist()  # half a sine: c_1 = −j/2 per cycle-π
@@ -89,17 +91,59 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     """
     a, b, c, phi, k = (np.asarray(x, dtype=float)[..., None] for x in (a, b, c, phi, k))
     n = np.asarray(orders)
+    nf = n.astype(float)
     tau = np.tan(np.clip(phi, 0.0, np.arctan(1e12)))
-    length = np.maximum(b - a, 0.0)
-    sin_part = (np.exp(-1j * phi) * _f(1 - n, a, b) - np.exp(1j * phi) * _f(-1 - n, a, b)) / 2j
-    const = -k * _f(-n, a, b)
-    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
-        safe = np.where(tau > 1e-12, tau, 1.0)
-        decay = np.exp(-length / safe)
-        ex = c * np.exp(-1j * n * a) * safe * (1 - decay * np.exp(-1j * n * length)) / (
-            1 + 1j * n * safe)
-    ex = np.where(tau > 1e-12, ex, 0.0)
-    return sin_part + const + ex
+    unit = np.abs(n) == 1  # 1 − n² = 0: those orders take the F(0) form below
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore", under="ignore"):
+        ea, eb = np.exp(-1j * nf * a), np.exp(-1j * nf * b)  # E(a), E(b)
+        g = np.where(unit, 0.0, -1.0 / (1.0 - nf * nf))
+        gn = g * nf
+        ua, ub = a - phi, b - phi
+        total = eb * (np.cos(ub) * g + 1j * (np.sin(ub) * gn))
+        total -= ea * (np.cos(ua) * g + 1j * (np.sin(ua) * gn))
+        # the constant: −k·(E(b) − E(a))/(−jn) = −j·k·(E(b) − E(a))/n
+        zero = n == 0
+        kn = np.where(zero, 0.0, k / np.where(zero, 1.0, nf))
+        total -= 1j * kn * (eb - ea)
+        if zero.any():
+            total[..., zero] -= k * (b - a)
+        # the exponential, only where τ > 0 and the segment has a length
+        live = (tau > 1e-12) & (b > a)
+        safe = np.where(live, tau, 1.0)
+        decay = np.exp(-np.where(live, b - a, 0.0) / safe)
+        weight = np.where(live, c * safe, 0.0)
+        total += weight * (ea - decay * eb) / (1.0 + 1j * nf * safe)
+        if unit.any():
+            m = n[unit]
+            total[..., unit] += (np.exp(-1j * phi) * _f(1 - m, a, b)
+                                 - np.exp(1j * phi) * _f(-1 - m, a, b)) / 2j
+    return total
+
+
+def _distinct_rows(*arrays: np.ndarray | float) -> tuple[list[np.ndarray], np.ndarray]:
+    """The distinct rows of broadcast ``arrays`` (columns of the distinct rows) and, per
+    original row, the index of its distinct row; the original shape is kept by the index.
+
+    Corner tables repeat a segment many times over (inputs the waveform does not read), and
+    its coefficients cost 41 complex exponentials per row: each distinct one is worked once.
+
+    >>> cols, back = _distinct_rows(np.array([1.0, 2.0, 1.0]), 0.5)
+    >>> [c.tolist() for c in cols], back.tolist()
+    ([[1.0, 2.0], [0.5, 0.5]], [0, 1, 0])
+    """
+    full = np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in arrays))
+    shape = full[0].shape
+    flat = [x.ravel() for x in full]
+    if flat[0].size <= 1:
+        return flat, np.zeros(shape, dtype=np.intp)
+    order = np.lexsort(flat[::-1])
+    ranked = [x[order] for x in flat]
+    # rows differ where any column differs (NaN rows are never merged: NaN != NaN)
+    new = np.ones(order.size, dtype=bool)
+    new[1:] = np.any(np.stack([r[1:] != r[:-1] for r in ranked]), axis=0)
+    back = np.empty(order.size, dtype=np.intp)
+    back[order] = np.cumsum(new) - 1
+    return [r[new] for r in ranked], back.reshape(shape)
 
 
 def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np.ndarray,
@@ -117,7 +161,9 @@ def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np
     [0.3183, 0.1061]
     """
     n = np.asarray(orders)
-    co = segment_coefficients(a=seg_a, b=seg_b, c=seg_c, phi=phi, k=offset, orders=n)
+    cols, back = _distinct_rows(seg_a, seg_b, seg_c, phi, offset)
+    a, b, c, p, k = cols
+    co = segment_coefficients(a=a, b=b, c=c, phi=p, k=k, orders=n)[back]
     if symmetric:
         co = co * (1 - np.exp(-1j * np.pi * n))
     return co * np.asarray(amplitude, dtype=float)[..., None] / np.pi

@@ -14,11 +14,15 @@ import argparse
 import sys
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from reviewer.batch import Options, ProjectResult, no_projects, results, say_skipped, select
 from reviewer.parallel import default_jobs
 from reviewer.textsafe import visible
+
+if TYPE_CHECKING:
+    from reviewer.outputs.csv_out import CsvWriter
+    from reviewer.outputs.junit import JunitWriter
 
 
 def _jobs(text: str) -> int:
@@ -72,16 +76,23 @@ def drive(args: argparse.Namespace, command: str, paths: Sequence[str], *,
     Returns the exit code (``exit_code(outcome)``; 2 when nothing was found).
     """
     from reviewer.outputs import document
-    from reviewer.outputs.csv_out import CsvWriter
     from reviewer.outputs.json_out import JsonStream
-    from reviewer.outputs.junit import JunitWriter
 
     files, skipped = select(paths, folders=folders, recursive=recursive)
     say_skipped(skipped, sys.stderr)
     if not files:
         raise no_projects(paths)
-    junit = JunitWriter(args.junit) if getattr(args, "junit", None) else None
-    csv = CsvWriter(args.csv) if getattr(args, "csv", None) else None
+    # Each writer imported only when asked for (the XML one pulls in urllib and ssl).
+    junit: JunitWriter | None = None
+    csv: CsvWriter | None = None
+    if getattr(args, "junit", None):
+        from reviewer.outputs.junit import JunitWriter
+
+        junit = JunitWriter(args.junit)
+    if getattr(args, "csv", None):
+        from reviewer.outputs.csv_out import CsvWriter
+
+        csv = CsvWriter(args.csv)
     stream: JsonStream | None = None  # opened on the first result: a run that cannot start
     out = Outcome()                   # (no scheduler) leaves standard output empty
     try:

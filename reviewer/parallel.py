@@ -14,15 +14,16 @@ started by a fork server), or the scheduler of a ``distributed`` cluster
 
 from __future__ import annotations
 
-import multiprocessing
 import os
 import threading
 from collections import deque
 from collections.abc import Callable, Iterable, Iterator
-from concurrent.futures import Future, ProcessPoolExecutor
-from typing import Any, TypeVar
+from typing import TYPE_CHECKING, Any, TypeVar
 
 from reviewer.errors import LatchbookError
+
+if TYPE_CHECKING:
+    from concurrent.futures import Future
 
 T = TypeVar("T")
 R = TypeVar("R")
@@ -55,6 +56,8 @@ def _context() -> Any:
     """Fork (workers start at once, modules imported) while this process has one thread;
     with other threads running (a lock one of them holds would stay held in the child)
     a fork server, which forks from a clean process; else the platform's default."""
+    import multiprocessing  # here: a serial run (most commands) never pays for its import
+
     methods = multiprocessing.get_all_start_methods()
     if "fork" in methods and threading.active_count() == 1:
         return multiprocessing.get_context("fork")
@@ -104,6 +107,8 @@ def ordered_map(fn: Callable[[T], R], items: Iterable[T], *, jobs: int = 1,
             for item in items:
                 yield fn(item)
         return
+    from concurrent.futures import ProcessPoolExecutor
+
     workers = min(jobs, len(items))
     with ProcessPoolExecutor(max_workers=workers, mp_context=_context(),
                              initializer=_worker_init, initargs=(compact,)) as pool:

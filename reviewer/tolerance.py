@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import math
 import zlib
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -140,13 +141,16 @@ def monte_carlo(result: Result, n: int, *, seed: int = 0, distribution: str = "n
 
 def monte_carlo_all(results: list[Result], n: int, *, seed: int = 0,
                     distribution: str = "normal", chunk: int = CHUNK,
-                    keep_values: bool = False) -> dict[tuple[str, str], Yield]:
+                    keep_values: bool = False,
+                    progress: Callable[[int], bool] | None = None
+                    ) -> dict[tuple[str, str], Yield]:
     """:func:`monte_carlo` for every result that has an evaluation, giving the same yields.
 
     The checks advance chunk by chunk together, so a part value's samples are drawn once per
     chunk for every check that reads it, a solution several checks need from the same samples
     (the line-synchronised firing angle) is solved once per chunk (:mod:`checks.memo`), and
-    only one chunk's draws and solutions are held at a time.
+    only one chunk's draws and solutions are held at a time. ``progress(samples_done)`` is
+    called after every chunk; when it returns False the run stops and gives nothing.
     """
     samplers = {(r.stage, r.check): _Sampler(r, n, seed, distribution, keep_values)
                 for r in results if r.evaluation is not None}
@@ -159,6 +163,8 @@ def monte_carlo_all(results: list[Result], n: int, *, seed: int = 0,
                 s.step(m, drawn)
             memo.clear()
             done += m
+            if progress is not None and not progress(done):
+                return {}
     return {k: s.result() for k, s in samplers.items()}
 
 

@@ -139,7 +139,8 @@ def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
     names = [n for n in b.inputs if n.startswith("dt_") and n not in fixed] + ["vs"]
     if "freq" in b.inputs:
         names.append("freq")
-    ends = [np.unique([b.inputs[n].value.lo, b.inputs[n].value.hi]) for n in names]
+    # sorted and distinct without np.unique (which imports numpy.ma: 10 ms of every check)
+    ends = [sorted({b.inputs[n].value.lo, b.inputs[n].value.hi}) for n in names]
     grid = dict(zip(names, (g.ravel() for g in np.meshgrid(*ends, indexing="ij")),
                     strict=True))
     f = grid.get("freq", grid.get("dt_freq"))

@@ -229,7 +229,7 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
 
         b.inputs["osc_rt"].extra = rt_at_angles(
             b, "osc_rt", ["osc_" + k for k in pkeys] + ["osc_vz", "osc_ct", "vs", "freq"],
-            angle_of, extra)
+            angle_of, extra, key=("line_sync_firing_angle", dev, tuple(pkeys)))
     return True
 
 

@@ -143,7 +143,8 @@ def _bind_alpha(ctx: Context, b: Bound, power: Stage) -> None:
                                                 ct=g["osc_ct"], **{k: g[k] for k in peak})
 
             b.inputs["osc_rt"].extra = rt_at_angles(b, "osc_rt", peak + ["osc_ct", "v", "f"],
-                                                    angle_of, (HALF_PI,))
+                                                    angle_of, (HALF_PI,),
+                                                    key=("osc_firing_angle", dev, tuple(peak)))
         b.options["alpha_from"] = "osc"
         b.notes.append(f"firing angle from the line-synchronised oscillator `{osc.id}` "
                        f"(timing R swept at {OSC_SWEEP} points)")

@@ -87,7 +87,7 @@ class Workbook(App[int]):
         self.push_screen(OverviewScreen())
         self.call_after_refresh(self.notify_warnings)
         if self.recompute_on_open and not self.session.computed:
-            self.computer.start(None)
+            self.call_after_refresh(self.computer.start, None)  # the table first
 
     def recompute(self, paths: list[str] | None) -> None:
         self.computer.start(paths)

@@ -9,6 +9,7 @@ the inputs hash they sampled).
 
 from __future__ import annotations
 
+import gc
 import time
 from typing import Any
 
@@ -17,7 +18,7 @@ from textual.worker import Worker, WorkerState, get_current_worker
 
 from reviewer.aids import Aid, passing_range
 from reviewer.engine import Result
-from reviewer.tolerance import Yield, monte_carlo
+from reviewer.tolerance import Yield, monte_carlo_all
 from reviewer.tui.analysis import DISTRIBUTION, SAMPLES, SEED
 from reviewer.tui.messages import AnalysisChanged, ResultsChanged
 from reviewer.tui.session import Session
@@ -29,12 +30,18 @@ class Computer:
     A small recomputation (an edit's dependents, expected under :attr:`INLINE` seconds from
     the measured cost per check) runs on the UI thread and the caller repaints: the screen
     then repaints once, with the new results, instead of once for the edit and again when a
-    worker hands them over.
-    Anything larger runs in a worker and the screen stays responsive.
+    worker hands them over. The cost per check is the computing thread's own CPU time, so a
+    first run that shared the processor with the first paint (or a busy machine) does not
+    make every later edit look too big to run inline.
+    Anything larger runs in a worker and the screen stays responsive; a run of the whole
+    project (opening it) hands over what it has every :attr:`PARTIAL` seconds, so a large
+    project's table fills stage by stage instead of all at the end. The first run starts
+    after the first paint: the table is on the screen before the engine competes with it.
     """
 
     GROUP = "compute"
     INLINE = 0.06
+    PARTIAL = 0.25
 
     def __init__(self, app: App[Any], session: Session) -> None:
         self.app = app
@@ -42,6 +49,7 @@ class Computer:
         self.last_seconds = 0.0
         self.started = 0.0
         self.per_check: float | None = None  # seconds per check, from the last run
+        self.frozen = False
 
     def start(self, paths: list[str] | None) -> Worker[None] | None:
         """Recompute the checks that depend on ``paths`` (None: every check)."""
@@ -51,25 +59,38 @@ class Computer:
         session = self.session
         if paths is not None and self.per_check is not None and \
                 len(keys) * self.per_check < self.INLINE:
+            cpu = time.thread_time()
             results = session.compute(project, keys) if keys else []
-            self._measure(len(keys))
+            self._measure(len(keys), time.thread_time() - cpu)
             # The caller (an edit, undo or redo) repaints right after: no message, so the
             # screen is not refreshed a second time for the same results.
             self._deliver(gen, results, True, tell=False)
             return None
 
         def work() -> None:
-            results = session.compute(project, keys) if keys else []
-            self._measure(len(keys))
+            cpu = time.thread_time()
+            batch: list[Result] = []
+            last = time.perf_counter()
+
+            def arrived(r: Result) -> None:
+                nonlocal last
+                batch.append(r)
+                if paths is None and time.perf_counter() - last >= self.PARTIAL:
+                    self.app.call_from_thread(self._deliver, gen, batch.copy(), False)
+                    batch.clear()
+                    last = time.perf_counter()
+
+            results = session.compute(project, keys, arrived) if keys else []
+            self._measure(len(keys), time.thread_time() - cpu)
             self.app.call_from_thread(self._deliver, gen, results, True)
 
         return self.app.run_worker(work, name="engine", group=self.GROUP, thread=True,
                                    exit_on_error=False, exclusive=True,
                                    description="recompute the checks")
 
-    def _measure(self, n: int) -> None:
+    def _measure(self, n: int, cpu: float) -> None:
         if n:
-            self.per_check = (time.perf_counter() - self.started) / n
+            self.per_check = cpu / n
 
     def _deliver(self, gen: int, results: list[Any], done: bool, *, tell: bool = True) -> None:
         changed = self.session.accept(gen, results, done=done)
@@ -77,8 +98,18 @@ class Computer:
             return
         if done:
             self.last_seconds = time.perf_counter() - self.started
+            if not self.frozen:
+                self.frozen = True
+                self.app.call_after_refresh(self._freeze)
         if tell:
             self.app.screen.post_message(ResultsChanged(done))
+
+    @staticmethod
+    def _freeze() -> None:
+        """Once the first results are shown: what is alive now (modules, the screens, the
+        results) lives as long as the workbook, so the garbage collector stops scanning it.
+        A full collection over it took 40–60 ms and came in the middle of an edit."""
+        gc.freeze()
 
     def on_state(self, event: Worker.StateChanged) -> None:
         """Report a failed computation instead of ending the app (exit_on_error=False)."""
@@ -93,8 +124,11 @@ class Computer:
 class Analyst:
     """Monte Carlo yield and design aids in thread workers, delivered to the top screen.
 
-    Monte Carlo goes check by check, so the banner can count them; a new run replaces a
-    running one (exclusive). A design aid is computed once per (check, inputs hash, input).
+    Monte Carlo samples every check together through :func:`reviewer.tolerance.monte_carlo_all`
+    (as ``latchbook check --monte-carlo`` does: each part's draws and the firing angle shared
+    among the checks, chunk by chunk); the banner counts the samples, and the yields arrive in
+    one delivery. A new run replaces a running one (exclusive). A design aid is computed once
+    per (check, inputs hash, input).
     """
 
     YIELD = "yield"
@@ -123,16 +157,23 @@ class Analyst:
             self.app.notify("no computed check to sample here", markup=False)
             return None
         n, seed, dist = self.samples, self.seed, self.distribution
-        s.yield_progress = (0, len(results))
+        s.yield_progress = (0, n)
         self._tell()
 
         def work() -> None:
             me = get_current_worker()
-            for k, r in enumerate(results):
+
+            def progress(done: int) -> bool:
                 if me.is_cancelled:
-                    return
-                y = monte_carlo(r, n, seed=seed, distribution=dist, keep_values=True)
-                self.app.call_from_thread(self._yield_done, r, y, k + 1, len(results))
+                    return False
+                if done < n:
+                    self.app.call_from_thread(self._yield_progress, done, n)
+                return True
+
+            yields = monte_carlo_all(results, n, seed=seed, distribution=dist,
+                                     keep_values=True, progress=progress)
+            if not me.is_cancelled:
+                self.app.call_from_thread(self._yields_done, results, yields)
 
         where = f"stage {stage}" if stage else "the whole project"
         self.app.notify(f"Monte Carlo on {where}: {len(results)} checks × {n} samples "
@@ -141,9 +182,15 @@ class Analyst:
                                    exit_on_error=False, exclusive=True,
                                    description=f"Monte Carlo on {where}")
 
-    def _yield_done(self, result: Result, y: Yield | None, done: int, total: int) -> None:
-        self.session.store_yield(result, y)
-        self.session.yield_progress = None if done >= total else (done, total)
+    def _yield_progress(self, done: int, total: int) -> None:
+        if self.session.yield_progress is not None:  # not after the yields arrived
+            self.session.yield_progress = (done, total)
+            self._tell()
+
+    def _yields_done(self, results: list[Result], yields: dict[tuple[str, str], Yield]) -> None:
+        for r in results:
+            self.session.store_yield(r, yields.get((r.stage, r.check)))
+        self.session.yield_progress = None
         self._tell()
 
     def start_aid(self, result: Result, name: str) -> None:

@@ -320,9 +320,11 @@ class Session:
         self.computed = not groups
         return self.generation, self.project, list(groups.values())
 
-    def compute(self, project: Project, keys: list[Key]) -> list[Result]:
-        """Run the engine on some checks of ``project`` (safe in a worker thread)."""
-        return evaluate(project, self.checklist, only=keys).results
+    def compute(self, project: Project, keys: list[Key],
+                on_result: Callable[[Result], None] | None = None) -> list[Result]:
+        """Run the engine on some checks of ``project`` (safe in a worker thread);
+        ``on_result`` sees each result as it comes (:func:`reviewer.engine.evaluate`)."""
+        return evaluate(project, self.checklist, only=keys, on_result=on_result).results
 
     def accept(self, gen: int, results: list[Result], *, done: bool) -> set[Key] | None:
         """Take results unless the project changed meanwhile; return the rows that changed.
@@ -440,13 +442,23 @@ class Session:
             self.record, self.check_states, self.review_error = None, {}, NOT_SIGNED
             return
         try:
-            self.record = mod.load_record(self.path)
+            self.record = mod.load_record(self.path, self._disk_checklist())
             self.check_states = dict(mod.check_states(self.record, self.run)) \
                 if self.computed else {}
             self.review_error = ""
         except LatchbookError as exc:
             self.record, self.check_states = None, {}
             self.review_error = str(exc)
+
+    def _disk_checklist(self) -> Checklist | None:
+        """The checklist of the project as on disk, for verifying the record: the session's
+        own while the file is the one it read or last wrote (so the record need not load the
+        whole project again: 80 ms at 50 stages), else None (the record loads it)."""
+        try:
+            _, sha = store.read_with_hash(self.path)
+        except LatchbookError:
+            return None
+        return self.checklist if sha is not None and sha == self.disk_sha else None
 
     def review(self, stage: str, check: str) -> str:
         """The review word of one check (reviewer.states.review_word); "" with no record

@@ -99,6 +99,43 @@ def test_monte_carlo_key_fills_the_yield_column_and_the_histogram(slow_flasher):
     asyncio.run(go())
 
 
+def test_monte_carlo_in_the_workbook_is_the_shared_sampler(kiln, monkeypatch):
+    """y on the whole project samples every computed check in one call of the sampler the
+    command line uses (draws and firing angles shared), and each yield it shows is that
+    check's own Monte Carlo result for the same seed."""
+    import reviewer.tui.compute as compute
+    from reviewer import tolerance
+
+    calls: list[int] = []
+
+    def counted(results, n, **kw):
+        calls.append(len(results))
+        return tolerance.monte_carlo_all(results, n, **kw)
+
+    monkeypatch.setattr(compute, "monte_carlo_all", counted)
+
+    async def go():
+        app = make_app(kiln)
+        async with app.run_test(size=SIZE) as pilot:
+            await settle(pilot, app)
+            sampled = [r for r in app.session.run.results if r.evaluation is not None]
+            app.analyst.start_yield(None)
+            await settle(pilot, app)
+            while app.session.yield_progress is not None:
+                await pilot.pause(0.05)
+            assert calls == [len(sampled)]
+            for r in sampled:
+                if r.check not in ("power.didt", "snubber.discharge", "osc.timing"):
+                    continue
+                alone = monte_carlo(r, N, seed=0)
+                shown = app.session.yield_of(r.stage, r.check)
+                assert shown is not None and alone is not None
+                assert shown.fail_fraction == alone.fail_fraction
+                assert shown.marginal_fraction == alone.marginal_fraction
+            app.session.close()
+    asyncio.run(go())
+
+
 def test_monte_carlo_failure_is_reported_and_the_workbook_stays(slow_flasher, monkeypatch):
     """An exception inside the Monte Carlo worker becomes a notification, not a crash."""
     import reviewer.tui.compute as compute
@@ -106,7 +143,7 @@ def test_monte_carlo_failure_is_reported_and_the_workbook_stays(slow_flasher, mo
     def broken(*a, **k):
         raise RuntimeError("sampler broke")
 
-    monkeypatch.setattr(compute, "monte_carlo", broken)
+    monkeypatch.setattr(compute, "monte_carlo_all", broken)
 
     async def go():
         app = make_app(slow_flasher)

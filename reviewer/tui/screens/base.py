@@ -15,6 +15,7 @@ from typing import Any, cast
 from rich.text import Text
 from textual.binding import Binding
 from textual.screen import Screen
+from textual.widgets import Static
 
 from reviewer import states
 from reviewer.edits import shown_text
@@ -77,6 +78,15 @@ class WorkbookScreen(Screen[None]):
     # -- refresh ------------------------------------------------------------------------
     def refresh_view(self) -> None:
         """Show the session's current state (each screen fills this in)."""
+
+    def set_static(self, selector: str, content: Text | str) -> None:
+        """Show ``content`` in the Static ``selector``, only if it differs from what it shows:
+        an update lays the whole screen out again (a Static is as tall as its text)."""
+        shown: dict[str, Text | str] = self.__dict__.setdefault("_static_shown", {})
+        if selector in shown and shown[selector] == content:
+            return
+        shown[selector] = content
+        self.query_one(selector, Static).update(content)
 
     def refresh_all(self) -> None:
         """Show the current state, and the footer keys that apply to it."""

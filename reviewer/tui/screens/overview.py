@@ -72,7 +72,7 @@ class OverviewScreen(WorkbookScreen):
                         f"filter {f.label}: waiting for the results", style="magenta")
             if not rows and s.computed:
                 note.append(" — none here; f shows the next filter", style="magenta")
-        self.query_one("#overview-note", Static).update(note)
+        self.set_static("#overview-note", note)
         self.query_one(StageTable).show(rows, computing=not s.computed,
                                         order=list(s.project.stages))
         counts = status_counts(s.run.results)
@@ -87,8 +87,8 @@ class OverviewScreen(WorkbookScreen):
                            f"({r.stage} · {r.check})", style="bold")
             else:
                 tot.append(f"  · Monte Carlo on {len(sampled)}: no sample failed")
-        self.query_one("#overview-totals", Static).update(tot)
-        self.query_one("#overview-safety", Static).update(Text(
+        self.set_static("#overview-totals", tot)
+        self.set_static("#overview-safety", Text(
             "⚠ Mains circuits can kill. A pass means the computed margin meets the checklist "
             "limit; nothing here shows compliance with any standard.", style="italic dim"))
 

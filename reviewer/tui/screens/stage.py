@@ -103,7 +103,7 @@ class StageScreen(WorkbookScreen):
             out.append(f"  {visible(r.summary)}")
         elif self.check:
             out.append(f"{self.check}: computing…", style="italic")
-        self.query_one("#stage-summary", Static).update(out)
+        self.set_static("#stage-summary", out)
 
     def on_checklist_table_check_highlighted(self, event: ChecklistTable.CheckHighlighted) -> None:
         self.check = event.check

@@ -38,7 +38,8 @@ def banner_parts(session: Session, where: str = "", filter_label: str = "",
                               style="bold yellow")))
     if session.yield_progress is not None:
         done, total = session.yield_progress
-        parts.append((6, Text(f"  Monte Carlo {done}/{total}…", style="bold cyan")))
+        pct = 100 * done // total if total else 0
+        parts.append((6, Text(f"  Monte Carlo {pct} %…", style="bold cyan")))
     if session.read_only:
         parts.append((9, Text("  READ-ONLY", style="bold reverse")))
     if filter_label:

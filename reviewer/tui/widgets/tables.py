@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 
+from rich.cells import cell_len
 from rich.text import Text
 from textual.message import Message
 from textual.widgets import DataTable
@@ -59,7 +60,10 @@ class KeyedTable(DataTable[Text]):
     """A row-cursor DataTable whose rows are replaced in place by key."""
 
     COLUMNS: tuple[tuple[str, str, int | None], ...] = ()
-    AUTO_HEIGHT = False  # rows as tall as their cells (measured on every rebuild: costly)
+    #: Rows as tall as their cells. The height is worked out here from the columns' widths
+    #: (a cell whose lines all fit is as tall as its lines; only a longer one is wrapped)
+    #: instead of by the DataTable, which renders every cell of every new row to measure it.
+    AUTO_HEIGHT = False
 
     def __init__(self, **kw: object) -> None:
         super().__init__(cursor_type="row", zebra_stripes=False, **kw)  # type: ignore[arg-type]
@@ -80,7 +84,9 @@ class KeyedTable(DataTable[Text]):
         rows = list(rows)
         keys = [r.key for r in rows]
         cols = [key for _, key, _ in self.COLUMNS]
-        if keys == self._keys:
+        heights = [self.row_height(r.cells) for r in rows]
+        if keys == self._keys and all(self.rows[r.key].height == h
+                                      for r, h in zip(rows, heights, strict=True)):
             for r in rows:
                 for col, cell in zip(cols, r.cells, strict=True):
                     if self.get_cell(r.key, col) != cell:
@@ -88,13 +94,26 @@ class KeyedTable(DataTable[Text]):
             return
         current = self.current_key or self._last
         self.clear()
-        for r in rows:
-            self.add_row(*r.cells, key=r.key, height=None if self.AUTO_HEIGHT else 1)
+        for r, h in zip(rows, heights, strict=True):
+            self.add_row(*r.cells, key=r.key, height=h)
         target = nearest(current, keys, order or [*self._keys, *keys])
         self._keys = keys
         self._last = current if not keys else None
         if target is not None:
             self.move_cursor(row=keys.index(target), animate=False)
+
+    def row_height(self, cells: tuple[Text, ...]) -> int:
+        """The lines a row of ``cells`` needs (1 unless :attr:`AUTO_HEIGHT`)."""
+        if not self.AUTO_HEIGHT:
+            return 1
+        tallest = 1
+        for (_, _, width), cell in zip(self.COLUMNS, cells, strict=True):
+            lines = cell.plain.split("\n")
+            if width is None or all(cell_len(line) <= width for line in lines):
+                tallest = max(tallest, len(lines))
+            else:
+                tallest = max(tallest, len(cell.wrap(self.app.console, width)))
+        return tallest
 
     @property
     def current_key(self) -> str | None:
