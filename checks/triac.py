@@ -90,12 +90,14 @@ def gate_trigger_check(*, used: tuple[str, ...], drive: np.ndarray, drop: np.nda
                        igt_cold: Mapping[str, np.ndarray], vgt_cold: Mapping[str, np.ndarray],
                        cold_at: np.ndarray, limits: Mapping[str, float],
                        r_gk: np.ndarray | None = None) -> Outcome:
-    """``triac.gate-trigger``: the gate current against the cold IGT of the worst quadrant used.
+    """``triac.gate-trigger``: the gate current against the cold IGT, in every quadrant used.
 
-    i_G = (V_drive − V_drop − VGT)/R_S − VGT/R_GK with VGT and IGT of the quadrant whose cold
-    IGT is highest; metric i_G/IGT_cold. Cold values from the part's cold table (interpolated
-    from 25 °C) or the common-practice factors at −40 °C pro rata (IGT ×2, VGT ×1.5).
-    drive, drop [V]; series_r, r_gk [Ω]; igt [A], vgt [V] per quadrant; t_min, cold_at [K].
+    i_G = (V_drive − V_drop − VGT)/R_S − VGT/R_GK per quadrant, with that quadrant's cold VGT
+    and IGT; metric min over the quadrants of i_G/IGT_cold (the quadrant with the highest IGT
+    need not decide: a higher VGT elsewhere leaves less current). Cold values from the part's
+    cold table (interpolated from 25 °C) or the common-practice factors at −40 °C pro rata
+    (IGT ×2, VGT ×1.5). drive, drop [V]; series_r, r_gk [Ω]; igt [A], vgt [V] per quadrant;
+    t_min, cold_at [K]. ``quadrant`` is the position in ``used`` of the deciding quadrant.
 
     >>> o = gate_trigger_check(used=("q1", "q3"), drive=np.array([5.0]), drop=0.0,
     ...     series_r=100.0, igt={"q1": 10e-3, "q3": 20e-3}, vgt={"q1": 1.0, "q3": 1.0},
@@ -105,20 +107,29 @@ def gate_trigger_check(*, used: tuple[str, ...], drive: np.ndarray, drop: np.nda
     >>> round(float(o.values["gate_current"][0]) * 1e3, 3), o.status.tolist()
     (40.0, [0])
     """
-    ic = {q: cold_value(igt[q], t_min, v_cold=igt_cold[q], t_cold=cold_at, k=K_IGT)
-          for q in used}
-    vc = {q: cold_value(vgt[q], t_min, v_cold=vgt_cold[q], t_cold=cold_at, k=K_VGT)
-          for q in used}
-    i_req, v_g, idx = worst_igt(used=used, igt=ic, vgt=vc)
+    ic = [cold_value(igt[q], t_min, v_cold=igt_cold[q], t_cold=cold_at, k=K_IGT) for q in used]
+    vc = [cold_value(vgt[q], t_min, v_cold=vgt_cold[q], t_cold=cold_at, k=K_VGT) for q in used]
     g_gk = 0.0 if r_gk is None else 1.0 / _a(r_gk)
-    i_g = (_a(drive) - _a(drop) - v_g) / _a(series_r) - v_g * g_gk
+    head = _a(drive) - _a(drop)
+    # Quadrants on a leading axis, rows (every input broadcast together) behind it.
+    rows = np.broadcast_shapes(head.shape, _a(series_r).shape, np.shape(g_gk),
+                               *[np.shape(x) for x in ic + vc])
+    i_q = np.stack([np.broadcast_to(_a(x), rows) for x in ic])
+    v_q = np.stack([np.broadcast_to(_a(x), rows) for x in vc])
+    i_g_q = (head - v_q) / _a(series_r) - v_q * g_gk
     with np.errstate(divide="ignore", invalid="ignore"):
-        metric = i_g / i_req
+        m_q = i_g_q / i_q
+    idx = np.argmin(np.where(np.isnan(m_q), -np.inf, m_q), axis=0)
+
+    def pick(a: np.ndarray) -> np.ndarray:
+        return np.take_along_axis(a, idx[None, ...], axis=0)[0]
+
+    i_g, i_req, v_g, metric = pick(i_g_q), pick(i_q), pick(v_q), pick(m_q)
     margin, status = grade(metric, limits)
-    # The largest R_S that still gives the wanted ratio (for the fix text).
+    # The largest R_S that still gives the wanted ratio in every quadrant (for the fix text).
     k = float(limits.get("marginal_below", 1.0))
     with np.errstate(divide="ignore", invalid="ignore"):
-        r_max = (_a(drive) - _a(drop) - v_g) / (k * i_req + v_g * g_gk)
+        r_max = np.min((head - v_q) / (k * i_q + v_q * g_gk), axis=0)
     return Outcome({"gate_current": i_g, "igt": i_req, "vgt": v_g,
                     "quadrant": idx.astype(float), "series_r_max": r_max}, margin, status)
 

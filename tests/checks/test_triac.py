@@ -326,3 +326,19 @@ def test_triac_current_fired_before_the_load_angle_is_never_below_either_drive(a
     assert float(c["it_rms"]) >= sine * (1 - 1e-9)
     assert float(c["it_rms"]) >= half * (1 - 1e-5)
     assert float(c["it_rms"]) == pytest.approx(max(sine, half), rel=1e-5)
+
+
+def test_gate_trigger_takes_the_quadrant_with_the_least_current_not_the_largest_igt():
+    """Quadrant III has the larger IGT (11 mA) but I, with its 2.5 V VGT, gets less current:
+    by Ohm's law (3 − 2.5) V / 100 Ω = 5 mA against 10 mA, half of IGT: it fails; III alone
+    would give (3 − 0.7)/100 = 23 mA, 2.09×, a pass."""
+    nan = {"q1": np.nan, "q3": np.nan}
+    o = triac.gate_trigger_check(used=("q1", "q3"), drive=np.array([3.0, 6.0]), drop=0.0,
+                                 series_r=100.0, igt={"q1": 10e-3, "q3": 11e-3},
+                                 vgt={"q1": 2.5, "q3": 0.7}, t_min=298.15, igt_cold=nan,
+                                 vgt_cold=nan, cold_at=np.nan, limits=LIM)
+    assert o.status.tolist() == [FAIL, PASS]  # 6 V: I gets 35 mA (3.5×), III 48 mA (4.8×)
+    assert o.values["quadrant"].tolist() == [0.0, 0.0]
+    assert np.allclose(o.values["gate_current"], [5e-3, 35e-3])
+    # R_S for 1.5× in both: I needs (3 − 2.5)/15 mA = 33.3 Ω, III (3 − 0.7)/16.5 mA = 139 Ω.
+    assert float(o.values["series_r_max"][0]) == pytest.approx(0.5 / 0.015)
