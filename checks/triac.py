@@ -401,7 +401,9 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
     :func:`didt_at_zero`, the reapplied voltage step E = Vm·|sin β|. Its rate: with a snubber
     the maximum of :func:`snubbed_step` for the step at the largest |line| within 4/σ of the
     zero (``step_bound``: the line keeps rising towards its peak while the snubber rings, and
-    a step at the window's largest value bounds that response); without one, on an inductive
+    a step at the window's largest value bounds that response), plus the line's own slope
+    ω·Vm times the peak of the unit step response (the ramp the line is meanwhile: the
+    whole rate on a nearly resistive load, where the step is tiny); without one, on an inductive
     load, a step limited only by the triac's own capacitance (NaN here: no finite rate can be
     claimed, so it fails);
     on a resistive load the line's own ω·Vm (a snubber only slows it).
@@ -435,7 +437,12 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
         window = np.minimum(omega * SETTLE / sigma, np.pi)
         step_used = np.where(inductive, vm * max_abs_sin(a=beta, b=beta + window), step)
         s = snubbed_step(e=step_used, r_load=r, l=l_s, r_s=snub_r, c=snub_c)
-        dvdt = np.where(inductive, s["dvdt_max"], omega * vm)
+        # The line's own slope (up to ω·Vm) is a ramp into the same network: its response
+        # rises at the slope times the unit step response, at most its peak h_max. On a
+        # nearly resistive load the step is tiny and this term is the whole rate.
+        h_max = snubbed_step(e=np.ones_like(step_used), r_load=r, l=l_s, r_s=snub_r,
+                             c=snub_c)["peak_voltage"]
+        dvdt = np.where(inductive, s["dvdt_max"] + omega * vm * h_max, omega * vm)
         t_m = np.where(inductive, s["dvdt_time"], 0.0)
         zeta = np.where(inductive, s["damping"], np.nan)
         peak = np.where(inductive, s["peak_voltage"], vm * np.abs(np.sin(beta)))
