@@ -174,6 +174,9 @@ def test_commutation_never_passes_what_the_integration_fails(data: st.DataObject
     p = project(part=part, power={"load": {"r": r, "l": l}, "firing": alpha},
                 snub={"r": r_s, "c": c})
     res = run(p, "triac.commutation")
+    # The engine's worst corner bounds the reference's worst rates from above.
+    assert res.values["dvdt_reapplied"].max >= float(rates[0].max()) * (1 - TOL), res.summary
+    assert res.values["didt_zero"].max >= float(rates[1].max()) * (1 - TOL), res.summary
     if res.status == "pass":
         assert ref >= PASS_BELOW * (1 - TOL), (res.summary, ref)
     if res.status in ("pass", "marginal"):
@@ -199,3 +202,71 @@ def test_gate_trigger_never_passes_a_quadrant_ohms_law_fails(vgt_hi: float) -> N
                 for ig, vg in ((20e-3, vgt_hi), (24e-3, 0.7)))
     want = "pass" if worst >= 1.5 else "marginal" if worst >= 1.0 else "fail"
     assert res.status == want, (res.summary, worst)
+
+
+def halfwaves(vm: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+              alpha: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The current from zero at α to its zero β (triac as an ideal switch), per case, on a
+    fine grid of a vectorised solve_ivp: (∫i² dθ, ∫|i| dθ, peak i). Fine-grid trapezoid."""
+    n = alpha.size
+
+    def f(x: float, i: np.ndarray) -> np.ndarray:
+        return (vm * np.sin(alpha + x) - r * i) / (W50 * l)
+
+    x = np.linspace(0.0, 2 * math.pi, 20_001)
+    sol = solve_ivp(f, (0.0, 2 * math.pi), np.zeros(n), method="DOP853", rtol=1e-10,
+                    atol=1e-12 * float(np.max(vm / r)), t_eval=x)
+    i = sol.y
+    after = np.cumsum(i[:, 1:] <= 0.0, axis=1) > 0  # at or after the first zero
+    i = np.concatenate([i[:, :1], np.where(after, 0.0, i[:, 1:])], axis=1)
+    return (np.trapezoid(i**2, x, axis=1), np.trapezoid(np.abs(i), x, axis=1), i.max(axis=1))
+
+
+def _rl_design(data: st.DataObject) -> tuple[Value, Value, Value]:
+    r = data.draw(st.floats(5.0, 3000.0))
+    phi = data.draw(st.floats(1.0, 88.0))
+    tol = data.draw(st.sampled_from([0.0, 0.05, 0.1]))
+    l = r * math.tan(math.radians(phi)) / W50  # noqa: E741
+    a_lo = data.draw(st.floats(0.0, 170.0))
+    a_hi = data.draw(st.floats(a_lo, 175.0))
+    return (val(r, "resistance", "ohm", tol), val(l, "inductance", "H", tol),
+            rng(math.radians(a_lo), math.radians(a_hi), "angle", "deg"))
+
+
+@seed(20261203)
+@settings(max_examples=15, deadline=None)
+@given(data=st.data())
+def test_rms_current_and_latching_never_pass_what_the_fine_grid_fails(
+        data: st.DataObject) -> None:
+    """Reference: the R–L current (solve_ivp, fine-grid trapezoid) at every corner and 17
+    firing angles. I_RMS with narrow pulses: both half-cycles (α ≥ φ), one polarity (α < φ:
+    the second pulse comes while the first half-wave conducts); and the held gate's steady
+    sine Vm/(√2·|Z|), the worse taken. Latching: the peak after firing at low line against the
+    cold IL (25 mA at 25 °C, ×2 at −40 °C pro rata to −10 °C: 38.46 mA, common practice)."""
+    r, l, alpha = _rl_design(data)  # noqa: E741
+    rows = np.array(list(itertools.product((207.0, 253.0), _corners(r), _corners(l),
+                                           np.linspace(alpha.lo, alpha.hi, 17))))
+    v_, r_, l_, a_ = rows.T
+    vm = math.sqrt(2) * v_
+    i2, _, peak = halfwaves(vm, r_, l_, a_)
+    phi = np.arctan2(W50 * l_, r_)
+    one = np.sqrt(i2 / (2 * math.pi))
+    rms = np.where(a_ >= phi, math.sqrt(2) * one,
+                   np.maximum(one, vm / np.hypot(r_, W50 * l_) / math.sqrt(2)))
+    rating = data.draw(st.floats(0.8, 1.3)) * float(rms.max())
+    part = triac_part(it_rms=val(rating, "current", "A"))
+    p = project(part=part, power={"load": {"r": r, "l": l}, "firing": alpha})
+    res = run(p, "triac.rms-current")
+    # The engine's worst corner bounds the reference's worst from above, whatever the rating.
+    assert res.values["it_rms"].max >= float(rms.max()) * (1 - 1e-6), res.summary
+    if res.status == "pass":
+        assert rating >= float(rms.max()) * (1 - TOL), (res.summary, rms.max())
+    reach = float(peak[v_ == 207.0].min())
+    il = data.draw(st.floats(0.8, 1.3)) * reach / (1 + 35 / 65)
+    part = triac_part(il=val(il, "current", "A"))
+    p = project(part=part, power={"load": {"r": r, "l": l}, "firing": alpha})
+    res = run(p, "triac.latching")
+    assert res.values["reach_current"].min <= reach * (1 + 1e-6), res.summary
+    il_cold = il * (1 + 35 / 65)
+    if res.status == "pass":
+        assert reach >= il_cold * (1 - TOL), (res.summary, reach, il_cold)
