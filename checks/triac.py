@@ -411,8 +411,10 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
     metric = min((dv/dt)c / dv/dt, (di/dt)c / di/dt): the (dv/dt)c rating holds only at or
     below the (di/dt)c it is specified at, so a faster fall of current fails however slow the
     reapplied voltage is; with ``vdrm`` the ringing peak counts too (VDRM/peak), since a
-    triac that breaks over fires again as surely. vs [V RMS]; r [Ω]; l [H]; omega [rad/s];
-    alpha [rad]; dvdt_c [V/s]; didt_c [A/s]; snub_r [Ω]; snub_c [F]; vdrm [V].
+    triac that breaks over fires again as surely, and so does the off-state voltage the line
+    gives through load and snubber, Vm·|H(jω)|, above Vm near their L–C resonance.
+    vs [V RMS]; r [Ω]; l [H]; omega [rad/s]; alpha [rad]; dvdt_c [V/s]; didt_c [A/s];
+    snub_r [Ω]; snub_c [F]; vdrm [V].
 
     >>> o = commutation_check(vs=np.array([230.0]), r=20.0, l=0.1, omega=314.16, alpha=1.5,
     ...     dvdt_c=10e6, didt_c=5e6, limits={"fail_below": 1.0, "marginal_below": 1.5})
@@ -445,7 +447,15 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
         dvdt = np.where(inductive, s["dvdt_max"] + omega * vm * h_max, omega * vm)
         t_m = np.where(inductive, s["dvdt_time"], 0.0)
         zeta = np.where(inductive, s["damping"], np.nan)
-        peak = np.where(inductive, s["peak_voltage"], vm * np.abs(np.sin(beta)))
+        # Off, the triac sees the line through the load and the snubber, a divider
+        # H = (1 + jωR_sC)/(1 − ω²LC + jω(R + R_s)C) whose gain exceeds 1 as ω nears the
+        # L–C resonance: the off-state voltage is then above the line's own peak.
+        jw = 1j * omega
+        c_s = _a(snub_c)
+        gain = np.abs((1 + jw * _a(snub_r) * c_s)
+                      / (1 + jw**2 * l * c_s + jw * (r + _a(snub_r)) * c_s))
+        peak = np.where(inductive, np.maximum(s["peak_voltage"], vm * gain),
+                        vm * np.abs(np.sin(beta)))
     else:
         dvdt = np.where(inductive, np.nan, omega * vm)
         t_m, zeta, peak = nan, nan, nan

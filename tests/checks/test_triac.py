@@ -364,3 +364,24 @@ def test_a_nearly_resistive_load_with_a_snubber_counts_the_line_own_slope():
                                 snub_r=r_s, snub_c=c)
     assert float(o.values["dvdt_reapplied"][0]) >= ivp["dvdt"]
     assert o.status.tolist() == [FAIL]
+
+
+def test_the_off_state_voltage_through_load_and_snubber_can_exceed_the_line_peak():
+    """φ = 85° (R = 20 Ω, L = 0.728 H) with an overdamped snubber (C = 0.305 µF, ζ = 2): off,
+    the triac sees the line through the divider load–snubber, whose gain at 50 Hz is 1.016
+    (their resonance is at 339 Hz). solve_ivp with the moving line over the off interval is the
+    reference: 364.5 V against the line's 357.8 V peak, so a VDRM of 1.515 × 357.8 V is below
+    1.5× the reference peak and must not pass."""
+    r, l = 20.0, 20.0 * math.tan(math.radians(85.0)) / W50  # noqa: E741
+    c = 3.0518e-7
+    r_s = 4.0 * math.sqrt(l / c)
+    vm, a = math.sqrt(2) * 253.0, math.radians(136.0)
+    o = triac.commutation_check(vs=np.array([253.0]), r=r, l=l, omega=W50, alpha=a,
+                                dvdt_c=1e12, didt_c=1e12, limits=LIM, snub_r=r_s, snub_c=c,
+                                vdrm=1.515 * vm)
+    beta = float(o.values["commutation_angle"][0])
+    ivp = integrate_snubbed(0.0, r, l, r_s, c, line=(vm, W50, beta),
+                            t_end=(a + math.pi - beta) / W50)  # until it fires again
+    assert ivp["peak"] > 1.515 * vm / 1.5  # the reference is past the 1.5× pass limit
+    assert float(o.values["reapplied_peak"][0]) >= 0.995 * ivp["peak"]
+    assert o.status.tolist() == [MARGINAL]
