@@ -752,8 +752,9 @@ def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.nd
     The capacitor (c_diac [F]) drops by ΔV (breakback [V]) into the gate: charge C·ΔV, peak
     current I = (ΔV − VGT)/R_path (r_path [Ω]: series resistor plus the diac's on
     resistance), decaying with R_path·C; its width above IGT is R_path·C·ln(I/IGT). IGT and
-    VGT are those of the worse of quadrants I and III (a diac's pulse follows MT2's sign:
-    :func:`checks.triac.quadrants` "ac") at the coldest ambient (t_min [K]; the cold table at
+    VGT are those of the worse of quadrants I and III, the one with the smaller I/IGT, each
+    with its own VGT (a diac's pulse follows MT2's sign: :func:`checks.triac.quadrants`
+    "ac") at the coldest ambient (t_min [K]; the cold table at
     ``cold_at`` [K], NaN: the common-practice factors at −40 °C pro rata, IGT ×2, VGT ×1.5).
     Metric I/IGT_cold graded with ``fail_below``/``marginal_below``; a peak above the diac's
     pulse rating ``i_pulse`` [A] fails.
@@ -767,11 +768,18 @@ def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.nd
           for q in used}
     vc = {q: cold_value(raw_v[q], t_min, v_cold=cold_v[q], t_cold=cold_at, k=triac.K_VGT)
           for q in used}
-    igt, vgt, idx = triac.worst_igt(used=used, igt=ic, vgt=vc)
     dv = as_array(breakback)
-    drive = np.maximum(dv - vgt, 0.0)
+    # Each quadrant with its own VGT: the one with the highest IGT need not be the worse
+    # (a higher VGT elsewhere leaves less current); the smaller ratio decides.
     with np.errstate(divide="ignore", invalid="ignore"):
-        i_pk = drive / as_array(r_path)
+        i_q = {q: np.maximum(dv - vc[q], 0.0) / as_array(r_path) for q in used}
+        r_q = {q: i_q[q] / ic[q] for q in used}
+    worse3 = ~(r_q["q3"] >= r_q["q1"]) & ~np.isnan(r_q["q3"])
+    idx = worse3.astype(int)
+    igt = np.where(worse3, ic["q3"], ic["q1"])
+    vgt = np.where(worse3, vc["q3"], vc["q1"])
+    i_pk = np.where(worse3, i_q["q3"], i_q["q1"])
+    with np.errstate(divide="ignore", invalid="ignore"):
         ratio = i_pk / igt
         width = np.where(ratio > 1, as_array(r_path) * as_array(c_diac) * np.log(ratio), 0.0)
     fail_below = float(limits.get("fail_below", 1.0))

@@ -90,12 +90,14 @@ def gate_trigger_check(*, used: tuple[str, ...], drive: np.ndarray, drop: np.nda
                        igt_cold: Mapping[str, np.ndarray], vgt_cold: Mapping[str, np.ndarray],
                        cold_at: np.ndarray, limits: Mapping[str, float],
                        r_gk: np.ndarray | None = None) -> Outcome:
-    """``triac.gate-trigger``: the gate current against the cold IGT of the worst quadrant used.
+    """``triac.gate-trigger``: the gate current against the cold IGT, in every quadrant used.
 
-    i_G = (V_drive − V_drop − VGT)/R_S − VGT/R_GK with VGT and IGT of the quadrant whose cold
-    IGT is highest; metric i_G/IGT_cold. Cold values from the part's cold table (interpolated
-    from 25 °C) or the common-practice factors at −40 °C pro rata (IGT ×2, VGT ×1.5).
-    drive, drop [V]; series_r, r_gk [Ω]; igt [A], vgt [V] per quadrant; t_min, cold_at [K].
+    i_G = (V_drive − V_drop − VGT)/R_S − VGT/R_GK per quadrant, with that quadrant's cold VGT
+    and IGT; metric min over the quadrants of i_G/IGT_cold (the quadrant with the highest IGT
+    need not decide: a higher VGT elsewhere leaves less current). Cold values from the part's
+    cold table (interpolated from 25 °C) or the common-practice factors at −40 °C pro rata
+    (IGT ×2, VGT ×1.5). drive, drop [V]; series_r, r_gk [Ω]; igt [A], vgt [V] per quadrant;
+    t_min, cold_at [K]. ``quadrant`` is the position in ``used`` of the deciding quadrant.
 
     >>> o = gate_trigger_check(used=("q1", "q3"), drive=np.array([5.0]), drop=0.0,
     ...     series_r=100.0, igt={"q1": 10e-3, "q3": 20e-3}, vgt={"q1": 1.0, "q3": 1.0},
@@ -105,20 +107,29 @@ def gate_trigger_check(*, used: tuple[str, ...], drive: np.ndarray, drop: np.nda
     >>> round(float(o.values["gate_current"][0]) * 1e3, 3), o.status.tolist()
     (40.0, [0])
     """
-    ic = {q: cold_value(igt[q], t_min, v_cold=igt_cold[q], t_cold=cold_at, k=K_IGT)
-          for q in used}
-    vc = {q: cold_value(vgt[q], t_min, v_cold=vgt_cold[q], t_cold=cold_at, k=K_VGT)
-          for q in used}
-    i_req, v_g, idx = worst_igt(used=used, igt=ic, vgt=vc)
+    ic = [cold_value(igt[q], t_min, v_cold=igt_cold[q], t_cold=cold_at, k=K_IGT) for q in used]
+    vc = [cold_value(vgt[q], t_min, v_cold=vgt_cold[q], t_cold=cold_at, k=K_VGT) for q in used]
     g_gk = 0.0 if r_gk is None else 1.0 / _a(r_gk)
-    i_g = (_a(drive) - _a(drop) - v_g) / _a(series_r) - v_g * g_gk
+    head = _a(drive) - _a(drop)
+    # Quadrants on a leading axis, rows (every input broadcast together) behind it.
+    rows = np.broadcast_shapes(head.shape, _a(series_r).shape, np.shape(g_gk),
+                               *[np.shape(x) for x in ic + vc])
+    i_q = np.stack([np.broadcast_to(_a(x), rows) for x in ic])
+    v_q = np.stack([np.broadcast_to(_a(x), rows) for x in vc])
+    i_g_q = (head - v_q) / _a(series_r) - v_q * g_gk
     with np.errstate(divide="ignore", invalid="ignore"):
-        metric = i_g / i_req
+        m_q = i_g_q / i_q
+    idx = np.argmin(np.where(np.isnan(m_q), -np.inf, m_q), axis=0)
+
+    def pick(a: np.ndarray) -> np.ndarray:
+        return np.take_along_axis(a, idx[None, ...], axis=0)[0]
+
+    i_g, i_req, v_g, metric = pick(i_g_q), pick(i_q), pick(v_q), pick(m_q)
     margin, status = grade(metric, limits)
-    # The largest R_S that still gives the wanted ratio (for the fix text).
+    # The largest R_S that still gives the wanted ratio in every quadrant (for the fix text).
     k = float(limits.get("marginal_below", 1.0))
     with np.errstate(divide="ignore", invalid="ignore"):
-        r_max = (_a(drive) - _a(drop) - v_g) / (k * i_req + v_g * g_gk)
+        r_max = np.min((head - v_q) / (k * i_q + v_q * g_gk), axis=0)
     return Outcome({"gate_current": i_g, "igt": i_req, "vgt": v_g,
                     "quadrant": idx.astype(float), "series_r_max": r_max}, margin, status)
 
@@ -390,7 +401,9 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
     :func:`didt_at_zero`, the reapplied voltage step E = Vm·|sin β|. Its rate: with a snubber
     the maximum of :func:`snubbed_step` for the step at the largest |line| within 4/σ of the
     zero (``step_bound``: the line keeps rising towards its peak while the snubber rings, and
-    a step at the window's largest value bounds that response); without one, on an inductive
+    a step at the window's largest value bounds that response), plus the line's own slope
+    ω·Vm times the peak of the unit step response (the ramp the line is meanwhile: the
+    whole rate on a nearly resistive load, where the step is tiny); without one, on an inductive
     load, a step limited only by the triac's own capacitance (NaN here: no finite rate can be
     claimed, so it fails);
     on a resistive load the line's own ω·Vm (a snubber only slows it).
@@ -398,8 +411,10 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
     metric = min((dv/dt)c / dv/dt, (di/dt)c / di/dt): the (dv/dt)c rating holds only at or
     below the (di/dt)c it is specified at, so a faster fall of current fails however slow the
     reapplied voltage is; with ``vdrm`` the ringing peak counts too (VDRM/peak), since a
-    triac that breaks over fires again as surely. vs [V RMS]; r [Ω]; l [H]; omega [rad/s];
-    alpha [rad]; dvdt_c [V/s]; didt_c [A/s]; snub_r [Ω]; snub_c [F]; vdrm [V].
+    triac that breaks over fires again as surely, and so does the off-state voltage the line
+    gives through load and snubber, Vm·|H(jω)|, above Vm near their L–C resonance.
+    vs [V RMS]; r [Ω]; l [H]; omega [rad/s]; alpha [rad]; dvdt_c [V/s]; didt_c [A/s];
+    snub_r [Ω]; snub_c [F]; vdrm [V].
 
     >>> o = commutation_check(vs=np.array([230.0]), r=20.0, l=0.1, omega=314.16, alpha=1.5,
     ...     dvdt_c=10e6, didt_c=5e6, limits={"fail_below": 1.0, "marginal_below": 1.5})
@@ -424,10 +439,23 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
         window = np.minimum(omega * SETTLE / sigma, np.pi)
         step_used = np.where(inductive, vm * max_abs_sin(a=beta, b=beta + window), step)
         s = snubbed_step(e=step_used, r_load=r, l=l_s, r_s=snub_r, c=snub_c)
-        dvdt = np.where(inductive, s["dvdt_max"], omega * vm)
+        # The line's own slope (up to ω·Vm) is a ramp into the same network: its response
+        # rises at the slope times the unit step response, at most its peak h_max. On a
+        # nearly resistive load the step is tiny and this term is the whole rate.
+        h_max = snubbed_step(e=np.ones_like(step_used), r_load=r, l=l_s, r_s=snub_r,
+                             c=snub_c)["peak_voltage"]
+        dvdt = np.where(inductive, s["dvdt_max"] + omega * vm * h_max, omega * vm)
         t_m = np.where(inductive, s["dvdt_time"], 0.0)
         zeta = np.where(inductive, s["damping"], np.nan)
-        peak = np.where(inductive, s["peak_voltage"], vm * np.abs(np.sin(beta)))
+        # Off, the triac sees the line through the load and the snubber, a divider
+        # H = (1 + jωR_sC)/(1 − ω²LC + jω(R + R_s)C) whose gain exceeds 1 as ω nears the
+        # L–C resonance: the off-state voltage is then above the line's own peak.
+        jw = 1j * omega
+        c_s = _a(snub_c)
+        gain = np.abs((1 + jw * _a(snub_r) * c_s)
+                      / (1 + jw**2 * l * c_s + jw * (r + _a(snub_r)) * c_s))
+        peak = np.where(inductive, np.maximum(s["peak_voltage"], vm * gain),
+                        vm * np.abs(np.sin(beta)))
     else:
         dvdt = np.where(inductive, np.nan, omega * vm)
         t_m, zeta, peak = nan, nan, nan

@@ -336,6 +336,22 @@ def test_gate_pulse_values():
     assert over.status.item() == 2  # 4.7 A peak against a 2 A rating
 
 
+def test_gate_pulse_takes_the_quadrant_with_the_smaller_ratio_each_with_its_vgt():
+    """Quadrant III has the larger IGT (12 mA) but I, with a 3.2 V VGT, gets less: by Ohm's
+    law (4 − 3.2) V / 100 Ω = 8 mA against 10 mA, 0.8×, a fail; III alone would give
+    (4 − 0.8)/100 = 32 mA, 2.67×, a pass."""
+    nan = math.nan
+    out = diac.gate_pulse_check(c_diac=100e-9, breakback=4.0, r_path=100.0, igt_q1=10e-3,
+                                igt_q3=12e-3, vgt_q1=3.2, vgt_q3=0.8, t_min=298.15,
+                                igt_q1_cold=nan, igt_q3_cold=nan, vgt_q1_cold=nan,
+                                vgt_q3_cold=nan, cold_at=nan,
+                                limits={"fail_below": 1.0, "marginal_below": 2.0})
+    assert out.status.item() == 2
+    assert float(out.values["quadrant"]) == 1.0
+    assert float(out.values["peak_current"]) == pytest.approx(8e-3)
+    assert float(out.values["drive_ratio"]) == pytest.approx(0.8)
+
+
 def test_symmetric_diac_has_no_dc():
     out = diac.symmetry_check(vs=230.0, freq=F, r_lo=3.3e3, r_hi=203.3e3, c1=100e-9,
                               vbo=32.0, asymmetry=0.0, breakback=6.0,
