@@ -492,3 +492,73 @@ def control_check(*, r: np.ndarray, l: np.ndarray, omega: np.ndarray,  # noqa: E
     margin, status = grade(metric, limits)
     return Outcome({"load_angle": phi + 0 * metric, "alpha_min": _a(alpha_lo) + 0 * metric},
                    margin, status)
+
+
+def current_after_firing(*, vm: np.ndarray, omega: np.ndarray, r: np.ndarray,
+                         l: np.ndarray, alpha: np.ndarray, t: np.ndarray,  # noqa: E741
+                         snub_r: np.ndarray | float = np.nan,
+                         snub_c: np.ndarray | float = np.nan) -> np.ndarray:
+    """Main-terminal current [A] a time ``t`` [s] after firing at ``alpha`` [rad] (positive
+    half-cycle; the negative one is its mirror), from zero load current.
+
+    Load (R–L, ideal switch): i = (Vm/Z)·[sin(α + ωt − φ) − sin(α − φ)·e^(−t·R/L)], and with
+    L = 0 i = Vm·sin(α + ωt)/R [1]. An R–C snubber across the triac adds its discharge
+    v_C(α)/R_s·e^(−t/(R_s·C_s)), v_C the steady off-state capacitor voltage through the
+    load: V/(1 + jωC(R + R_s) − ω²LC) [2]; NaN snub_r: no snubber.
+
+    [1] M. H. Rashid, Power Electronics, 4th ed., §11 (R–L AC voltage controller current).
+    [2] Series R–L–R_s–C circuit in sinusoidal steady state (phasors).
+
+    >>> round(float(current_after_firing(vm=325.0, omega=314.16, r=100.0, l=0.0,
+    ...                                  alpha=np.pi / 2, t=0.0)), 3)
+    3.25
+    """
+    vm, omega, r, l, alpha, t = (_a(x) for x in (vm, omega, r, l, alpha, t))
+    z = np.hypot(r, omega * l)
+    phi = np.arctan2(omega * l, r)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        decay = np.where(l > 0, np.exp(-t * r / np.where(l > 0, l, 1.0)), 0.0)
+    i = vm / z * (np.sin(alpha + omega * t - phi) - np.sin(alpha - phi) * decay)
+    rs, cs = _a(snub_r), _a(snub_c)
+    snubbed = np.isfinite(rs) & np.isfinite(cs)
+    if np.any(snubbed):
+        with np.errstate(invalid="ignore", divide="ignore"):
+            h = 1.0 / (1.0 + 1j * omega * cs * (r + rs) - omega ** 2 * l * cs)
+            vc = vm * np.abs(h) * np.sin(alpha + np.angle(h))
+            i_s = np.maximum(vc, 0.0) / rs * np.exp(-t / (rs * cs))
+        i = i + np.where(snubbed, i_s, 0.0)
+    return i
+
+
+def latch_time_check(*, vs: np.ndarray, omega: np.ndarray, r: np.ndarray,
+                     l: np.ndarray, alpha: np.ndarray, width: np.ndarray,  # noqa: E741
+                     il_cold: np.ndarray, limits: Mapping[str, float],
+                     snub_r: np.ndarray | float = np.nan,
+                     snub_c: np.ndarray | float = np.nan) -> Outcome:
+    """``triac.latch-time``: the main-terminal current when a short gate pulse ends.
+
+    A pulse above IGT for ``width`` [s] (a diac's) latches the triac only when the current
+    has reached IL by its end — IL is the least current that keeps it on once the gate
+    signal is removed [1]. Metric i(width)/IL_cold (:func:`current_after_firing`), graded
+    with ``fail_below``/``marginal_below``. The snubber's discharge helps; an inductive load
+    alone rises slowly (Vm·sin α/L).
+
+    [1] GE SCR Manual, 6th ed., ch. 1 and 4 (latching current, gate pulse width) — from
+        memory.
+
+    >>> o = latch_time_check(vs=230.0, omega=314.16, r=220.0, l=1.0, alpha=np.pi / 2,
+    ...                      width=7e-6, il_cold=0.04, limits={})
+    >>> int(o.status), round(float(o.values["current_at_end"]) * 1e3, 2)  # Vm·t/L = 2.28 mA
+    (2, 2.28)
+    """
+    vm = np.sqrt(2.0) * _a(vs)
+    i_end = current_after_firing(vm=vm, omega=omega, r=r, l=l, alpha=alpha, t=width,
+                                 snub_r=snub_r, snub_c=snub_c)
+    il = _a(il_cold)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        margin, status = grade(i_end / il, limits)
+    shape = np.broadcast_shapes(np.shape(i_end), np.shape(il), np.shape(width))
+    return Outcome({"current_at_end": np.broadcast_to(i_end, shape) + 0.0,
+                    "il": np.broadcast_to(il, shape) + 0.0,
+                    "pulse_width": np.broadcast_to(_a(width), shape) + 0.0},
+                   np.broadcast_to(margin, shape), np.broadcast_to(status, shape))

@@ -128,6 +128,7 @@ CATALOGUE: list[tuple[str, tuple[str, ...]]] = [
     ("triac.output", TRIAC), ("triac.blocking", TRIAC), ("triac.rms-current", TRIAC),
     ("triac.junction", TRIAC),
     ("triac.surge", TRIAC), ("triac.fuse", TRIAC), ("triac.latching", TRIAC),
+    ("triac.latch-time", TRIAC),
     ("triac.holding", TRIAC), ("triac.didt", TRIAC), ("triac.control", TRIAC),
     ("triac.commutation", TRIAC), ("triac.gate-trigger", ("triac-gate",)),
     ("triac.gate-power", ("triac-gate",)),

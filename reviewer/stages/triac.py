@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import power, triac
+from checks import diac, power, triac
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
 from reviewer.fmt import at_least, at_most, eng, span
@@ -564,6 +564,88 @@ register(CheckDef(
     cautions=("IL of a triac differs between quadrants (highest in II): a short gate pulse "
               "with the largest IL is the case to check on the bench.",),
     optional=frozenset({"max_firing_angle", "time_to_il", "reach_current"}),
+))
+
+
+# --------------------------------------------------------------------------------------------
+# triac.latch-time (a short gate pulse: the current when it ends)
+
+def _bind_latch_time(ctx: Context) -> Bound:
+    b = Bound()
+    gate = ctx.linked_stage("gate")
+    if gate is None or gate.kind != "diac-rc":
+        b.not_applicable = ("the gate is driven for as long as the drive is on, not by a short "
+                            "pulse" if gate is not None else "no gate stage named")
+        return b
+    if not _bind_cold(ctx, b, "il"):
+        return b
+    _line(ctx, b)
+    _load(ctx, b)
+    ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
+    b.notes[:] = [n for n in b.notes if not n.startswith("l_s not given")]
+    sn = _snubber(ctx)
+    if sn is not None:
+        b.options["snubber"] = sn.id
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+    pulse = diac_stage._bind_pulse(Context(ctx.project, gate))
+    b.missing += pulse.missing
+    for name, inp in pulse.inputs.items():
+        if name != "t_min":  # the same ambient as the IL above
+            b.inputs["p_" + name] = inp
+    b.options["pulse_from"] = gate.id
+    b.depends.append((gate.id, "diac.gate-pulse"))
+    _firing(ctx, b, sweep=5)
+    return b
+
+
+def _fn_latch_time(*, limits: Mapping[str, float], snubber: str = "", pulse_from: str = "",
+                   **kw: Any) -> Outcome:
+    pulse = {k[2:]: kw.pop(k) for k in list(kw) if k.startswith("p_")}
+    pulse["t_min"] = kw["t_min"]
+    pulse["r_path"] = pulse.pop("gate_r") + pulse.pop("r_on")
+    width = diac.gate_pulse_check(**pulse, limits={}).values["width"]
+    il = _cold_of(kw, "il")
+    a, _, _ = _pop_range(kw)
+    l_tot = np.asarray(kw.pop("l"), dtype=float) + np.asarray(kw.pop("l_s", 0.0), dtype=float)
+    return triac.latch_time_check(vs=kw["vs"], omega=_omega(kw), r=kw["r"], l=l_tot, alpha=a,
+                                  width=width, il_cold=il, limits=limits,
+                                  snub_r=kw.get("snub_r", np.nan),
+                                  snub_c=kw.get("snub_c", np.nan))
+
+
+def _sum_latch_time(r: Reduced) -> str:
+    gate = r.bound.options.get("pulse_from", "")
+    sn = r.bound.options.get("snubber")
+    text = (f"when the pulse from `{gate}` ends (above IGT for as little as "
+            f"{eng(r.lo['pulse_width'], 's')}) the main current has reached "
+            f"{eng(r.lo['current_at_end'], 'A')} at worst, against IL {eng(r.hi['il'], 'A')} "
+            "(cold, low line)")
+    text += f", the snubber `{sn}` discharge included" if sn else ", the load alone"
+    if r.status != "pass":
+        text += (f"; {r.status}: the triac may not latch (it fires and drops out, or fires "
+                 "late): a longer pulse (a larger capacitor at the diac, a larger gate "
+                 "resistor within diac.gate-pulse), an R–C snubber whose discharge carries "
+                 "the current past IL, or a triac with a lower IL")
+    return text
+
+
+register(CheckDef(
+    id="triac.latch-time", kinds=KIND,
+    question="Has the main current reached IL (cold) when the diac's short gate pulse ends?",
+    method="Pulse width above IGT as diac.gate-pulse works it out (R·C·ln(I/IGT), cold); the "
+           "current then: the R–L load's rise from zero after firing at α, "
+           "(Vm/Z)·[sin(α + ωt − φ) − sin(α − φ)·e^(−tR/L)], with the supply inductance in "
+           "series, plus the snubber's discharge v_C(α)/R_s·e^(−t/R_sC_s) from its steady "
+           "off-state voltage; over the firing range, against IL_c at low line.",
+    source="GE SCR Manual 6th ed. ch. 1 and 4 (latching current, gate pulse width) — from "
+           "memory; Rashid 4e §11 (R–L AC controller current)",
+    fn=_fn_latch_time, bind=_bind_latch_time,
+    units={"current_at_end": "A", "il": "A", "pulse_width": "s"},
+    summarise=_sum_latch_time,
+    fix="A longer gate pulse, an R–C snubber across the triac, or a triac with a lower IL.",
+    cautions=("An inductive load with a diac trigger and no snubber is the classic case of a "
+              "triac that fires and drops out: check it on the bench at the coldest ambient.",),
 ))
 
 

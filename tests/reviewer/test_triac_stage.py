@@ -109,7 +109,7 @@ def test_every_triac_check_is_registered_with_later_defaults():
     from reviewer.schema import CATALOGUE
 
     ids = [c for c, kinds in CATALOGUE if c.startswith("triac.")]
-    assert len(ids) == 13
+    assert len(ids) == 14
     for cid in ids:
         assert cid in CHECKS, cid
         assert cid in later_defaults(), cid
@@ -529,3 +529,15 @@ def test_a_diac_trigger_feeds_every_triac_check_without_an_error():
         assert len(power) >= 11, name
         errors = [(r.check, r.summary) for r in run.results if r.status == "error"]
         assert not errors, (name, errors)
+
+
+def test_latch_time_judges_a_diac_pulse_and_not_a_held_drive():
+    """triac.latch-time applies to a diac's short pulse only: a DC drive holds the gate
+    (not applicable); the bare fan's 1 H load has not reached IL when the pulse ends."""
+    held = run_project(DATA / "fan-triac.toml").by_key()
+    assert held[("power", "triac.latch-time")].status == "not-applicable"
+    bare = {(r.stage, r.check): r for r in
+            run_project(Path(__file__).parents[2] / "projects" / "fan-230-bare.toml").results}
+    r = bare[("power", "triac.latch-time")]
+    assert r.status == "fail"
+    assert "the load alone" in r.summary and "IL" in r.summary
