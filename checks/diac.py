@@ -37,7 +37,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import triac
+from checks import rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -116,9 +116,21 @@ def _xss(s: Mapping[str, np.ndarray], th: np.ndarray) -> tuple[np.ndarray, np.nd
 def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                    vbo: np.ndarray, breakback: np.ndarray | float, alpha: np.ndarray,
                    r2: np.ndarray | float = np.nan,
-                   c2: np.ndarray | float = np.nan, start: bool = False) -> Any:
+                   c2: np.ndarray | float = np.nan, start: bool = False,
+                   phi: np.ndarray | float = 0.0) -> Any:
     """v_diac(α⁻) − VBO [V] in the periodic state that fires at α in every half-cycle, once
     (``start``: the state x(0) at the positive zero instead, as two arrays).
+
+    ``phi`` [rad] the load angle atan(ωL/R) of an R–L load (0: resistive). The triac then
+    conducts until the current's zero β(α) > π (:func:`checks.rl.extinction_angle`), the
+    network's input is zero over (α, β) and it restarts at γ = β − π in the next half-cycle,
+    from the line's value there: with y = x(γ) the start of the half-cycle,
+
+    (I + Φ(π))·y = Φ(π)·xs(γ) − Φ(π + γ − α)·(xs(α) − ΔV·e₂),
+    x(α⁻) = xs(α) + Φ(α − γ)·(y − xs(γ)),
+
+    which is the resistive form at γ = 0. For α ≤ φ the current does not end before the next
+    half-cycle's firing (continuous conduction): NaN there (no consistent state).
 
     The network sits across the triac: it sees Vm·sin θ on [0, α) and nothing while the triac
     conducts, (α, π) (a resistive load's current ends at the line zero). At α the diac drops
@@ -135,10 +147,17 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     alpha = as_array(alpha)
     dv = as_array(breakback)
-    s10, s20 = _xss(s, np.zeros_like(alpha))
+    ph = as_array(phi)
+    if np.any(ph > 0):
+        beta = rl.extinction_angle(alpha=alpha, phi=ph)
+        gam = np.where(ph > 0, beta - np.pi, 0.0)
+        gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)  # α ≤ φ: continuous
+    else:
+        gam = np.zeros_like(alpha)
+    s10, s20 = _xss(s, gam)
     s1a, s2a = _xss(s, alpha)
     q11, q12, q21, q22 = _phi(s, np.full_like(alpha, np.pi))
-    r11, r12, r21, r22 = _phi(s, np.pi - alpha)
+    r11, r12, r21, r22 = _phi(s, np.pi + gam - alpha)
     u1, u2 = s1a, s2a - dv
     w1 = q11 * s10 + q12 * s20 - (r11 * u1 + r12 * u2)
     w2 = q21 * s10 + q22 * s20 - (r21 * u1 + r22 * u2)
@@ -148,7 +167,7 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     x02 = (m11 * w2 - m21 * w1) / det
     if start:
         return x01, x02
-    p11, p12, p21, p22 = _phi(s, alpha)
+    p11, p12, p21, p22 = _phi(s, alpha - gam)
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
 
 
@@ -465,13 +484,42 @@ def periodic_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: n
 _GRID = 96  # bracketing points over the half-cycle for the running firing angle
 
 
-def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...]) -> np.ndarray:
-    """The first α in (0, π) where g(α) turns non-negative, per row; NaN without one.
+def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...],
+                lo: np.ndarray | None = None) -> np.ndarray:
+    """The first α in (lo, π) (lo: 0 unless given) where g(α) turns non-negative, per row;
+    NaN without one.
 
     A grid of _GRID angles brackets the first sign change, then false position (Illinois)
     narrows every row's bracket together (:func:`_root_in`).
     """
-    return _root_in(g, np.zeros(shape), np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+    start = np.zeros(shape) if lo is None else np.broadcast_to(lo, shape)
+    return _root_in(g, start, np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+
+
+_PHI_GAP = 1e-9  # [rad] above φ: the first angle an R–L load's current ends before
+
+
+def _alpha_floor(phi: np.ndarray | float, shape: tuple[int, ...]) -> np.ndarray:
+    """The lowest running angle a row can fire at: 0 (resistive) or just above φ."""
+    ph = np.broadcast_to(as_array(phi), shape)
+    return np.where(ph > 0, ph + _PHI_GAP, 0.0)
+
+
+def continuous(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+               vbo: np.ndarray, breakback: np.ndarray | float, phi: np.ndarray | float,
+               r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan
+               ) -> np.ndarray:
+    """True where an R–L load (φ > 0) has no running state with its current ending before
+    the next firing: the state that fires just after φ already has the capacitor above VBO
+    there, so the diac would fire while the triac still conducts (continuous conduction: the
+    triac fires at each current zero, the pot has lost control)."""
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
+                                                         phi, r2, c2)))
+    ph = np.broadcast_to(as_array(phi), shape)
+    with np.errstate(all="ignore"):
+        g = running_excess(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback,
+                           alpha=_alpha_floor(ph, shape), r2=r2, c2=c2, phi=ph)
+    return (ph > 0) & (g >= 0)
 
 
 _BLOCK = 2048  # elements per block where a half-cycle grid rides on every row
@@ -498,16 +546,22 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
     return np.concatenate(parts).reshape(shape)
 
 
-_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2")
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi")
 
 
 @memoised  # every triac check fired from this trigger asks for the same angles
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
-                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                 phi: np.ndarray | float = 0.0) -> np.ndarray:
     """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
     the diac starts firing) or, with it firing every half-cycle, the first root of
     :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
+
+    ``phi`` [rad]: the load angle of an R–L load (running only; 0: resistive). The root is
+    then sought over (φ, π); where the state just above φ is already past VBO
+    (:func:`continuous`) there is no consistent state: NaN. A second section with an R–L load
+    is not modelled: NaN.
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
@@ -517,7 +571,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     91.29
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
-          "running": running, "r2": r2, "c2": c2}
+          "running": running, "r2": r2, "c2": c2, "phi": phi}
     if not running:
         return _firing_angle(**kw)
     return _blocked(_firing_angle, _ANGLE_ARGS, kw)
@@ -567,22 +621,32 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
 
 def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
-                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                 phi: np.ndarray | float = 0.0) -> np.ndarray:
     """firing_angle: see there (one block of rows)."""
     if running:
         shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
-                                                             r2, c2)))
+                                                             r2, c2, phi)))
+        inductive = bool(np.any(as_array(phi) > 0))
+
+        def c(x: np.ndarray | float) -> np.ndarray:
+            return np.broadcast_to(as_array(x), shape)[..., None]
 
         def g(a: np.ndarray) -> np.ndarray:
-            def c(x: np.ndarray | float) -> np.ndarray:
-                return np.broadcast_to(as_array(x), shape)[..., None]
-
             return running_excess(vm=c(vm), omega=c(omega), r1=c(r1), c1=c(c1), vbo=c(vbo),
-                                  breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2))
+                                  breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2),
+                                  phi=c(phi) if inductive else 0.0)
 
         with np.errstate(all="ignore"):
-            alpha = _first_root(g, shape)
             dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if inductive:
+                floor = _alpha_floor(phi, shape)
+                alpha = _first_root(g, shape, floor)
+                ph = np.broadcast_to(as_array(phi), shape)
+                bad = (ph > 0) & ((g(floor[..., None])[..., 0] >= 0) | dbl)
+                alpha = np.where(bad, np.nan, alpha)
+            else:
+                alpha = _first_root(g, shape)
             if not (dbl & np.isfinite(alpha)).any():
                 return alpha  # a single section never fires twice in a half-cycle
             kw = {k: np.broadcast_to(as_array(x), shape) for k, x in
@@ -606,19 +670,25 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
 
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
-            r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+            r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+            phi: np.ndarray | float = 0.0) -> np.ndarray:
     """The largest R1 [Ω] that still fires (starting, or ``running``), solved per row by
     bisection in log R over 1 Ω … 1 GΩ (firing stops once as R1 rises: G falls and ψ grows);
     NaN where even 1 Ω does not fire. Single section, starting: ωR1C1 = √((Vm/VBO)² − 1).
+    ``phi``: an R–L load's angle (running: the grid runs over (φ, π), :func:`running_excess`).
 
     >>> round(float(limit_r(vm=325.0, omega=2 * np.pi * 50, c1=100e-9, vbo=32.0)))
     321713
     """
-    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2)))
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2,
+                                                         phi)))
     lo = np.full(shape, 0.0)
     hi = np.full(shape, np.log(1e9))
 
-    th = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+    th: Any = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+    if np.any(as_array(phi) > 0):
+        floor = _alpha_floor(phi, shape)[..., None]
+        th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
     def fires(ln_r: np.ndarray) -> np.ndarray:
         if not running:
@@ -632,7 +702,7 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         with np.errstate(all="ignore"):
             g = running_excess(vm=c(vm), omega=c(omega), r1=c(np.exp(ln_r)), c1=c(c1),
                                vbo=c(vbo), breakback=c(breakback), alpha=th, r2=c(r2),
-                               c2=c(c2))
+                               c2=c(c2), phi=c(phi))
         return (g >= 0).any(axis=-1)
 
     ok_lo = fires(lo)
@@ -664,7 +734,8 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
                        target_lo: np.ndarray | float, target_hi: np.ndarray | float,
                        series_r: np.ndarray, limits: Mapping[str, float],
                        r2: np.ndarray | float = np.nan,
-                       c2: np.ndarray | float = np.nan) -> Outcome:
+                       c2: np.ndarray | float = np.nan,
+                       phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.firing-range``: the firing angles at the ends of the pot, against the target.
 
     vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
@@ -675,15 +746,18 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     a pot end where the capacitor's steady sine never reaches VBO fails, and ``fires_up_to``
     says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
     α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
+    ``phi`` [rad]: the load angle of an R–L load (the running angles follow its current's
+    zero, :func:`running_excess`); ``continuous`` is 1 where the pot's low end has no state
+    with the current ending before the next firing (:func:`continuous`: NaN angles, fails).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
     a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi)
     a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi)
     r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
     never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
         | ~np.isfinite(a_hi)
@@ -701,12 +775,20 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
               "fires_up_to": r_start - as_array(series_r), "amplitude_hi": vm * network(
                   r1=r_hi, c1=c1, omega=omega, r2=r2, c2=c2)[0]}
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
+    if np.any(as_array(phi) > 0):
+        cont = continuous(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
+                          phi=phi, r2=r2, c2=c2)
+        values["continuous"] = cont.astype(float)
+        values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(cont))
+        if cont.any():
+            notes.append("continuous conduction at the pot's low end at some corners")
     return Outcome(values, margin, status, notes)
 
 
 def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
                   breakback: np.ndarray, series_r: np.ndarray, limits: Mapping[str, float],
-                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> Outcome:
+                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                  phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.snap-on``: the jump in firing angle where the load snaps on.
 
     R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
@@ -716,18 +798,19 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     ``pot_on`` and ``pot_off`` the pot settings (R − series_r); ``charge_removed`` the
     ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
     which with the triac's short of the network sets the running state. Graded against
-    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it).
+    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it). ``phi``: an R–L load's
+    angle (the running state follows its current's zero).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
     r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
     r_off = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=breakback, running=True,
-                    r2=r2, c2=c2)
+                    r2=r2, c2=c2, phi=phi)
     # Just inside the starting limit (the angle there is the limit of α as R → R_on⁻).
     r_at = r_on * (1 - 1e-9)
     a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_run = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, breakback=breakback,
-                         running=True, r2=r2, c2=c2)
+                         running=True, r2=r2, c2=c2, phi=phi)
     jump = a_start - a_run
     p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
     limit = np.radians(float(limits.get("max_jump_deg", 35.0)))

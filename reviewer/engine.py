@@ -438,10 +438,11 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     if bound.not_applicable:
         return Result(stage.id, defn.id, stage.kind, "not-applicable", None,
                       bound.not_applicable, inputs_sha256=digest, snapshot=snap)
-    if bound.missing:
-        return Result(stage.id, defn.id, stage.kind, "incomplete", None,
-                      "incomplete: " + ", ".join(f"{p} not given" for p in bound.missing)
-                      + " (give it, or switch the check off in the checklist)",
+    if bound.missing or bound.unmodelled:
+        text = ("incomplete: " + bound.unmodelled if bound.unmodelled else
+                "incomplete: " + ", ".join(f"{p} not given" for p in bound.missing)
+                + " (give it, or switch the check off in the checklist)")
+        return Result(stage.id, defn.id, stage.kind, "incomplete", None, text,
                       inputs_sha256=digest, snapshot=snap, needs=list(bound.missing))
     limits = checklist.limits_for(defn.id)
     try:
