@@ -11,8 +11,10 @@ Without firing the diac capacitor follows the sinusoidal steady state vss(θ) = 
 α = ψ + asin(VBO/(Vm·G)), and only when Vm·G > VBO and α < π (a crossing after the line has
 reversed fires in the wrong half-cycle, counted here as no firing).
 
-Once the diac fires, the triac shorts the network's supply until the line's zero (a
-resistive load), and the diac drops its capacitor by the breakback ΔV. The capacitor then
+Once the diac fires, the triac shorts the network's supply until its current's zero (the
+line's zero for a resistive load, the R–L extinction angle β > π for an inductive one, after
+which the network restarts from the line's value at β), and the diac drops its capacitor by
+the breakback ΔV. The capacitor then
 starts each half-cycle near zero instead of at the steady sine's −Vm·G·sin ψ, so it reaches
 VBO much earlier: the running state. Its periodic solution is in closed form (half-wave
 antisymmetry, :func:`running_excess`) and its firing angle is the first root over the
@@ -151,7 +153,8 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     if np.any(ph > 0):
         beta = rl.extinction_angle(alpha=alpha, phi=ph)
         gam = np.where(ph > 0, beta - np.pi, 0.0)
-        gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)  # α ≤ φ: continuous
+        # α ≤ φ: the current would not end before the next firing (no such state)
+        gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)
     else:
         gam = np.zeros_like(alpha)
     s10, s20 = _xss(s, gam)
@@ -505,23 +508,6 @@ def _alpha_floor(phi: np.ndarray | float, shape: tuple[int, ...]) -> np.ndarray:
     return np.where(ph > 0, ph + _PHI_GAP, 0.0)
 
 
-def continuous(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
-               vbo: np.ndarray, breakback: np.ndarray | float, phi: np.ndarray | float,
-               r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan
-               ) -> np.ndarray:
-    """True where an R–L load (φ > 0) has no running state with its current ending before
-    the next firing: the state that fires just after φ already has the capacitor above VBO
-    there, so the diac would fire while the triac still conducts (continuous conduction: the
-    triac fires at each current zero, the pot has lost control)."""
-    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
-                                                         phi, r2, c2)))
-    ph = np.broadcast_to(as_array(phi), shape)
-    with np.errstate(all="ignore"):
-        g = running_excess(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback,
-                           alpha=_alpha_floor(ph, shape), r2=r2, c2=c2, phi=ph)
-    return (ph > 0) & (g >= 0)
-
-
 _BLOCK = 2048  # elements per block where a half-cycle grid rides on every row
 
 
@@ -559,9 +545,11 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
 
     ``phi`` [rad]: the load angle of an R–L load (running only; 0: resistive). The root is
-    then sought over (φ, π); where the state just above φ is already past VBO
-    (:func:`continuous`) there is no consistent state: NaN. A second section with an R–L load
-    is not modelled: NaN.
+    then sought over (φ, π): below φ the current would not end before the next firing. The
+    triac shorts the network while it conducts, so the capacitor restarts below VBO at the
+    current's zero and the first root lies above φ; a row where it does not (the state just
+    above φ already past VBO: continuous conduction) has no consistent state and is NaN, as
+    is a second section with an R–L load (not modelled).
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
@@ -747,8 +735,7 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
     α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
     ``phi`` [rad]: the load angle of an R–L load (the running angles follow its current's
-    zero, :func:`running_excess`); ``continuous`` is 1 where the pot's low end has no state
-    with the current ending before the next firing (:func:`continuous`: NaN angles, fails).
+    zero, :func:`running_excess`), reported as ``load_angle``.
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
@@ -776,12 +763,7 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
                   r1=r_hi, c1=c1, omega=omega, r2=r2, c2=c2)[0]}
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
     if np.any(as_array(phi) > 0):
-        cont = continuous(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
-                          phi=phi, r2=r2, c2=c2)
-        values["continuous"] = cont.astype(float)
-        values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(cont))
-        if cont.any():
-            notes.append("continuous conduction at the pot's low end at some corners")
+        values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(a_lo))
     return Outcome(values, margin, status, notes)
 
 

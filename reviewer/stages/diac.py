@@ -278,13 +278,6 @@ def _sum_range(r: Reduced) -> str:
             f"half-cycle fires later, {_deg(r.nom['alpha_lo_start'])} to "
             f"{_deg(r.nom['alpha_hi_start'])}); at worst {span(lo_w, hi_w, 'deg')} against "
             f"target {span(t_lo, t_hi, 'deg')}")
-    if r.hi.get("continuous", 0.0) > 0:
-        phi = r.hi["load_angle"]
-        return (f"fails: at the pot's low end the R–L load's current (φ up to {_deg(phi)}) does "
-                "not end before the next firing at some corners: the triac conducts "
-                "continuously and the pot has lost control there (no steady firing angle); "
-                f"needs a later low end (α above φ ≥ {at_least(phi, 'deg')}: a larger series "
-                "R or C)")
     if "load_angle" in r.hi:
         text += (f"; the triac conducts to the R–L load's current zero (φ up to "
                  f"{_deg(r.hi['load_angle'])}), which delays the running state")
@@ -299,7 +292,11 @@ def _sum_range(r: Reduced) -> str:
                 "fails: the capacitor never reaches VBO at some corners: a smaller R·C")
     if r.status != "pass":
         fixes = []
-        if not lo_w <= t_lo:
+        phi = r.hi.get("load_angle", 0.0)
+        if not lo_w <= t_lo and t_lo <= phi:
+            fixes.append(f"a target low end above the load angle φ {_deg(phi)} (the triac "
+                         "fires again only after the load's current has ended)")
+        elif not lo_w <= t_lo:
             fixes.append(f"an earlier low end (α ≤ {at_most(t_lo, 'deg')}: a smaller series R "
                          "or C)")
         if not hi_w >= t_hi:
@@ -328,7 +325,7 @@ register(CheckDef(
            "solve_ivp of the network",
     fn=_fn_range, bind=_bind_range,
     units={"alpha_lo": "deg", "alpha_hi": "deg", "alpha_lo_start": "deg", "alpha_hi_start": "deg",
-           "fires_up_to": "ohm", "amplitude_hi": "V", "continuous": "", "load_angle": "deg"},
+           "fires_up_to": "ohm", "amplitude_hi": "V", "load_angle": "deg"},
     summarise=_sum_range,
     cautions=("The RC network, the diac and the pot sit at mains potential: the pot's shaft "
               "and any metal knob need the full insulation of a live part.",
