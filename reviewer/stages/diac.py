@@ -316,13 +316,16 @@ register(CheckDef(
            "crossing of VBO, α = ψ + asin(VBO/(Vm·G)). Running (firing every half-cycle, the "
            "network shorted while the triac conducts, the capacitor dropped by ΔV at each "
            "firing) the periodic state is solved in closed form and α found as its first "
-           "root over the half-cycle (grid bracket + bisection); a second section that "
+           "root over the half-cycle (grid bracket + bisection). With an R–L load (the "
+           "triac stage whose gate this is gives load.l) the network is shorted until the "
+           "current's zero β(α) (R–L extinction angle) and restarts there from the line's "
+           "value, the root sought above the load angle φ; a second section that "
            "brings C2 back to VBO refires within the half-cycle, followed by Newton's method "
            "on the cycle map. The ends are the running "
            "angles (the state the load is in); every setting must also start from off.",
     source="GE SCR Manual 6th ed. ch. 9 (diac–RC phase control) — from memory; Maloney, "
            "Modern Industrial Electronics 5th ed. ch. 7 — from memory; checked against "
-           "solve_ivp of the network",
+           "solve_ivp of the network, and of the whole circuit with an R–L load",
     fn=_fn_range, bind=_bind_range,
     units={"alpha_lo": "deg", "alpha_hi": "deg", "alpha_lo_start": "deg", "alpha_hi_start": "deg",
            "fires_up_to": "ohm", "amplitude_hi": "V", "load_angle": "deg"},
@@ -385,7 +388,8 @@ register(CheckDef(
            "(bisection in log R); there the running state (network shorted while the triac "
            "conducts, ΔV taken at each firing) fires at once at α_run < α_start. Jump = "
            "α_start − α_run; R_off: where the running state stops firing. The power a "
-           "resistive load snaps on to: 1 − α/π + sin 2α/(2π).",
+           "resistive load snaps on to: 1 − α/π + sin 2α/(2π). With an R–L load the "
+           "running state follows the current's zero (as in diac.firing-range).",
     source="GE SCR Manual 6th ed. ch. 9 (hysteresis, double time constant) — from memory; "
            "Rashid, Power Electronics 4th ed. §10 (AC switch output); checked against "
            "solve_ivp of the network with the diac and triac switching",
