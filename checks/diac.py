@@ -174,71 +174,92 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
 
 
+def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
+    """Where the next half-cycle's network starts after a firing at ``ang`` [rad]: γ = β − π
+    for an R–L load (0: resistive, or a half that does not fire, NaN ``ang``)."""
+    ph = as_array(phi)
+    if not np.any(ph > 0):
+        return np.zeros(np.broadcast_shapes(np.shape(ang), np.shape(ph)))
+    fired = np.isfinite(ang)
+    beta = rl.extinction_angle(alpha=np.where(fired, ang, np.pi), phi=ph)
+    return np.where(fired & (ph > 0), beta - np.pi, 0.0)
+
+
 def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                 a: np.ndarray, b: np.ndarray, which: int, r2: np.ndarray | float = np.nan,
-                c2: np.ndarray | float = np.nan) -> np.ndarray:
+                c2: np.ndarray | float = np.nan,
+                phi: np.ndarray | float = 0.0) -> np.ndarray:
     """The periodic state over a whole cycle that fires at a in the positive half-cycle (level
     v_pos) and at b after the negative one starts (level v_neg; NaN: that half does not
     fire): v_diac − level at the firing of half ``which`` (0: positive, 1: negative).
 
-    Each half-cycle is an affine map of its starting state, x ↦ Φ(π)·x + q (in the frame of
-    that half's sign), q = Φ(π − a)·(xs(a) − Φ(a)·xs(0) − ΔV·e₂); the cycle closes with
-    x(0) = (I − Φ(π)²)⁻¹·(Φ(π)·q₊ − q₋). With v_pos = v_neg this is :func:`running_excess`.
+    Each half-cycle starts where the other's current ended, γ = β − π (0 for a resistive load
+    or a half that did not fire; ``phi`` the load angle, :func:`running_excess`), and is an
+    affine map of its starting state, x ↦ Φ(π + γ_out − γ_in)·x + q (in the frame of that
+    half's sign), q = Φ(π + γ_out − a)·(xs(a) − Φ(a − γ_in)·xs(γ_in) − ΔV·e₂); the cycle
+    closes with x(γ_b) = (I − Φ(2π))⁻¹·(Φ(π + γ_b − γ_a)·q₊ − q₋). With v_pos = v_neg
+    this is :func:`running_excess`. A half that would fire before the other's current has
+    ended is NaN (no such state).
     """
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     a, b = np.broadcast_arrays(as_array(a), as_array(b))
     dv = as_array(breakback)
-    z = np.zeros_like(a)
-    s10, s20 = _xss(s, z)
-    q11, q12, q21, q22 = _phi(s, np.full_like(a, np.pi))
+    ga, gb = _restart(a, phi), _restart(b, phi)
 
-    def q(ang: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    def q(ang: np.ndarray, g_in: np.ndarray, g_out: np.ndarray
+          ) -> tuple[np.ndarray, np.ndarray]:
         fired = np.isfinite(ang)
         ang = np.where(fired, ang, np.pi)
         d = np.where(fired, dv, 0.0)
         sa1, sa2 = _xss(s, ang)
-        p11, p12, p21, p22 = _phi(s, ang)
-        u1 = sa1 - (p11 * s10 + p12 * s20)
-        u2 = sa2 - (p21 * s10 + p22 * s20) - d
-        r11, r12, r21, r22 = _phi(s, np.pi - ang)
-        return r11 * u1 + r12 * u2, r21 * u1 + r22 * u2, ang, d
+        s01, s02 = _xss(s, g_in)
+        p11, p12, p21, p22 = _phi(s, ang - g_in)
+        u1 = sa1 - (p11 * s01 + p12 * s02)
+        u2 = sa2 - (p21 * s01 + p22 * s02) - d
+        r11, r12, r21, r22 = _phi(s, np.pi + g_out - ang)
+        return r11 * u1 + r12 * u2, r21 * u1 + r22 * u2
 
-    qa1, qa2, _, _ = q(a)
-    qb1, qb2, _, _ = q(b)
-    w1 = q11 * qa1 + q12 * qa2 - qb1
-    w2 = q21 * qa1 + q22 * qa2 - qb2
-    # I − Φ(π)²
-    m11 = 1 - (q11 * q11 + q12 * q21)
-    m12 = -(q11 * q12 + q12 * q22)
-    m21 = -(q21 * q11 + q22 * q21)
-    m22 = 1 - (q21 * q12 + q22 * q22)
+    qa1, qa2 = q(a, gb, ga)
+    qb1, qb2 = q(b, ga, gb)
+    ma11, ma12, ma21, ma22 = _phi(s, np.pi + ga - gb)
+    mb11, mb12, mb21, mb22 = _phi(s, np.pi + gb - ga)
+    w1 = mb11 * qa1 + mb12 * qa2 - qb1
+    w2 = mb21 * qa1 + mb22 * qa2 - qb2
+    f11, f12, f21, f22 = _phi(s, np.full_like(ga, 2 * np.pi))
+    m11, m12, m21, m22 = 1 - f11, -f12, -f21, 1 - f22  # I − Φ(2π)
     det = m11 * m22 - m12 * m21
     x1 = (m22 * w1 - m12 * w2) / det
     x2 = (m11 * w2 - m21 * w1) / det
-    if which == 1:  # the negative half's start, mirrored: −(Φ(π)·x + q₊)
-        x1, x2 = -(q11 * x1 + q12 * x2 + qa1), -(q21 * x1 + q22 * x2 + qa2)
+    g_in = gb
+    if which == 1:  # the negative half's start, mirrored: −(Φ(π + γ_a − γ_b)·x + q₊)
+        x1, x2 = -(ma11 * x1 + ma12 * x2 + qa1), -(ma21 * x1 + ma22 * x2 + qa2)
+        g_in = ga
     ang = a if which == 0 else b
     sa1, sa2 = _xss(s, ang)
-    p11, p12, p21, p22 = _phi(s, ang)
-    return sa2 + p21 * (x1 - s10) + p22 * (x2 - s20) - as_array(v_pos if which == 0 else v_neg)
+    s01, s02 = _xss(s, g_in)
+    p11, p12, p21, p22 = _phi(s, ang - g_in)
+    out = sa2 + p21 * (x1 - s01) + p22 * (x2 - s02) - as_array(v_pos if which == 0 else v_neg)
+    return np.where(ang > g_in, out, np.nan)
 
 
 def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
-                 c2: np.ndarray | float = np.nan
+                 c2: np.ndarray | float = np.nan, phi: np.ndarray | float = 0.0
                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """running_pair: see there (one block of rows)."""
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
-                                                         breakback, r2, c2)))
+                                                         breakback, r2, c2, phi)))
 
     def c(x: np.ndarray | float) -> np.ndarray:
         return np.broadcast_to(as_array(x), shape)
 
     kw = {"vm": c(vm), "omega": c(omega), "r1": c(r1), "c1": c(c1), "v_pos": c(v_pos),
-          "v_neg": c(v_neg), "breakback": c(breakback), "r2": c(r2), "c2": c(c2)}
-    base = {k: kw[k] for k in ("vm", "omega", "r1", "c1", "breakback", "r2", "c2")}
+          "v_neg": c(v_neg), "breakback": c(breakback), "r2": c(r2), "c2": c(c2),
+          "phi": c(phi)}
+    base = {k: kw[k] for k in ("vm", "omega", "r1", "c1", "breakback", "r2", "c2", "phi")}
+    ph = kw["phi"]
     with np.errstate(all="ignore"):
         a = firing_angle(vbo=kw["v_pos"], running=True, **base)
         b = firing_angle(vbo=kw["v_neg"], running=True, **base)
@@ -260,8 +281,9 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
             det = j11 * j22 - j12 * j21
             da = (j22 * f0 - j12 * g0) / det
             db = (j11 * g0 - j21 * f0) / det
-            a = np.clip(a - np.where(both, da, 0.0), 1e-9, np.pi - 1e-9)
-            b = np.clip(b - np.where(both, db, 0.0), 1e-9, np.pi - 1e-9)
+            floor = np.where(ph > 0, ph + _PHI_GAP, 1e-9)
+            a = np.clip(a - np.where(both, da, 0.0), floor, np.pi - 1e-9)
+            b = np.clip(b - np.where(both, db, 0.0), floor, np.pi - 1e-9)
         f0, g0 = f(a, b)
         ok = (np.abs(f0) <= 1e-9 * kw["v_pos"]) & (np.abs(g0) <= 1e-9 * kw["v_pos"])
         a = np.where(both, np.where(ok, a, np.nan), a)
@@ -287,7 +309,8 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
         else:
             bad = np.zeros(shape, dtype=bool)
         dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
-        live = dbl & (np.isfinite(a) | np.isfinite(b))
+        bad = bad | (dbl & (ph > 0))  # a second section with an R–L load: not modelled
+        live = dbl & (ph <= 0) & (np.isfinite(a) | np.isfinite(b))
         if live.any():
             # A double section may refire within a half-cycle: follow it where it does.
             guess = np.where(np.isfinite(a), a, np.where(np.isfinite(b), b, np.pi / 2))
@@ -299,13 +322,13 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
             _, _, _, n2, _ = _half_map(s, m1, m2, kw["v_neg"], kw["breakback"])
             redo = live & ((n1 > 0) | (n2 > 0))
             if redo.any():
-                st = periodic_running(x1=x1, x2=x2, **kw)
+                st = periodic_running(x1=x1, x2=x2, **{k: v for k, v in kw.items() if k != "phi"})
                 a = np.where(redo, st["alpha_pos"], a)
                 b = np.where(redo, st["alpha_neg"], b)
                 bad = bad | (redo & ~st["resolved"])
                 dc = np.where(redo, st["dc"], dc_fraction(a, b))
                 return a, b, ~bad, dc
-    return a, b, ~bad, dc_fraction(a, b)
+    return a, b, ~bad, dc_fraction(a, b, phi=ph)
 
 
 _REFIRE_MAX = 16  # refirings within one half-cycle followed at most (then: not trusted)
@@ -568,7 +591,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
-                 c2: np.ndarray | float = np.nan
+                 c2: np.ndarray | float = np.nan, phi: np.ndarray | float = 0.0
                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
     half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
@@ -583,9 +606,11 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     that half is solved with the other not firing (the first root over its half-cycle). A
     double section that refires within a half-cycle is then solved by
     :func:`periodic_running` from that state. Rows are taken in blocks (:func:`_blocked`).
+    ``phi``: an R–L load's angle (each half starts at the other's current zero,
+    :func:`pair_excess`; a second section with it is not resolved).
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "v_pos": v_pos, "v_neg": v_neg,
-          "breakback": breakback, "r2": r2, "c2": c2}
+          "breakback": breakback, "r2": r2, "c2": c2, "phi": phi}
     return _blocked(_running_pair, tuple(kw), kw)
 
 
@@ -866,10 +891,13 @@ def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.nd
     return Outcome(values, margin, status)
 
 
-def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray) -> np.ndarray:
+def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray,
+                phi: np.ndarray | float = 0.0) -> np.ndarray:
     """Mean of the load voltage over a cycle as a fraction of Vm, positive half fired at
     α₊ and negative at α₋ (NaN: that half does not fire) [3]:
-    (cos α₊ − cos α₋)/(2π), each missing half counting as α = π.
+    (cos α₊ − cos α₋)/(2π), each missing half counting as α = π. With an R–L load (``phi``
+    the load angle) each half conducts to its current's zero β (the load's voltage is the
+    line's over (α, β), its DC part across R): [(cos α₊ − cos β₊) − (cos α₋ − cos β₋)]/(2π).
 
     >>> round(float(dc_fraction(np.radians(90.0), np.radians(100.0))), 5)
     0.02764
@@ -878,6 +906,9 @@ def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray) -> np.ndarray:
     """
     cp = np.where(np.isfinite(a_pos), np.cos(a_pos), -1.0)
     cn = np.where(np.isfinite(a_neg), np.cos(a_neg), -1.0)
+    if np.any(as_array(phi) > 0):
+        cp = cp - np.cos(np.pi + _restart(a_pos, phi))  # − cos β₊ (β = π + γ)
+        cn = cn - np.cos(np.pi + _restart(a_neg, phi))
     return (cp - cn) / (2 * np.pi)
 
 
@@ -885,7 +916,8 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
                    c1: np.ndarray, vbo: np.ndarray, asymmetry: np.ndarray,
                    breakback: np.ndarray, limits: Mapping[str, float],
                    r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                   load_r: np.ndarray | float = np.nan, points: int = 0) -> Outcome:
+                   load_r: np.ndarray | float = np.nan, points: int = 0,
+                   phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.symmetry``: the DC component a VBO asymmetry puts on the load.
 
     One half-cycle fires at VBO, the other at VBO − asymmetry (the datasheet's largest
@@ -898,6 +930,7 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     ``marginal_fraction`` of it); ``dc_current`` = V_dc/load_r [A] when the load's DC
     resistance ``load_r`` is given (a winding or transformer primary). A pot setting whose
     pair of angles could not be resolved gives NaN, which fails (never a pass by default).
+    ``phi``: the load angle of an R–L load (each half starts at the other's current zero).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
@@ -913,7 +946,8 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
 
     a_pos, a_neg, trusted, dc_mean = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
                                 v_pos=col(vbo), v_neg=col(vbo) - np.abs(col(asymmetry)),
-                                breakback=col(breakback), r2=col(r2), c2=col(c2))
+                                breakback=col(breakback), r2=col(r2), c2=col(c2),
+                                phi=col(phi))
     dc = np.where(trusted, np.abs(dc_mean), np.nan)
     grid = np.broadcast_to(grid, dc.shape)
     worst = np.argmax(dc, axis=-1)

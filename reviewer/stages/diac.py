@@ -499,10 +499,6 @@ def _bind_symmetry(ctx: Context) -> Bound:
     _bind_network(ctx, b)
     if ctx.want(b, "asymmetry", f"parts.{d.ref}.vbo_asymmetry") is None:
         return b
-    if "rl_l" in b.inputs and not b.unmodelled:
-        b.unmodelled = ("the half-cycle asymmetry with the R–L load of the triac stage "
-                        "(load.l given) is not modelled: each half's current zero moves the "
-                        "other's start; simulate the netlist (latchbook export --spice)")
     ctx.read(b, "load_r", ctx.stage_path("load_r"))
     return b
 
@@ -510,10 +506,12 @@ def _bind_symmetry(ctx: Context) -> Bound:
 def _fn_symmetry(**kw: Any) -> Outcome:
     net = _net(kw)
     sr = net["series_r"]
+    phi = _load_angle(kw, 2 * np.pi * np.asarray(kw["freq"], dtype=float))
     return diac.symmetry_check(
         vs=kw["vs"], freq=kw["freq"], r_lo=kw["pot_lo"] + sr, r_hi=kw["pot_hi"] + sr,
         c1=net["c1"], vbo=kw["vbo"], asymmetry=kw["asymmetry"], breakback=kw["breakback"],
-        r2=net["r2"], c2=net["c2"], load_r=kw.get("load_r", np.nan), limits=kw["limits"])
+        r2=net["r2"], c2=net["c2"], load_r=kw.get("load_r", np.nan), limits=kw["limits"],
+        phi=phi)
 
 
 def _sum_symmetry(r: Reduced) -> str:

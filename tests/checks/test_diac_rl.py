@@ -26,9 +26,15 @@ VBO, DV, C1, R_LOAD = 32.0, 6.0, 100e-9, 50.0
 
 
 def circuit(r1: float, phi: float, *, cycles: int = 14, r_load: float = R_LOAD,
-            vm: float = VM, first: float | None = None) -> list[tuple[float, float]]:
+            vm: float = VM, first: float | None = None, vbo_neg: float = VBO,
+            ends: list[float] | None = None,
+            times: list[float] | None = None) -> list[tuple[float, float]]:
     """(angle in the cycle [rad], sign) of every firing of the whole circuit; ``first``: R1
-    for the first four cycles (the pot turned up from there to r1, the load running)."""
+    for the first four cycles (the pot turned up from there to r1, the load running);
+    ``vbo_neg`` the negative breakover; ``ends`` and ``times`` collect the times the current
+    ends and the diac fires [s]."""
+    ends = [] if ends is None else ends
+    times = [] if times is None else times
     ind = r_load * math.tan(phi) / W
     period = 1 / F
 
@@ -49,7 +55,7 @@ def circuit(r1: float, phi: float, *, cycles: int = 14, r_load: float = R_LOAD,
         return y[1] - VBO
 
     def down(t: float, y: np.ndarray) -> float:
-        return y[1] + VBO
+        return y[1] + vbo_neg
 
     def zero(t: float, y: np.ndarray) -> float:
         return y[0]
@@ -74,11 +80,13 @@ def circuit(r1: float, phi: float, *, cycles: int = 14, r_load: float = R_LOAD,
             continue
         if conducting:
             conducting, y[0] = False, 0.0
+            ends.append(t0)
         else:
             sign = 1.0 if y[1] > 0 else -1.0
             y[1] -= sign * DV
             conducting = True
             fired.append(((W * t0) % (2 * math.pi), sign))
+            times.append(t0)
     return fired
 
 
@@ -153,3 +161,29 @@ def test_limit_r_follows_the_load():
         fired = circuit(k * r_off, phi, cycles=12, first=0.5 * r_off)
         late = fired[12:]  # four cycles at the lower setting fire 8 times (and the move)
         assert (len(late) >= 12) is runs, (k, len(fired))
+
+
+def test_asymmetric_diac_with_rl_load_against_the_circuit():
+    """VBO +32 V / −29 V into φ = 45°: both half-cycles' angles within 0.5 % of the circuit,
+    and the DC part of the load's voltage (the line's over each conduction, from the
+    circuit's own firing and current-zero instants) within 1 % of the model's."""
+    phi, r1 = math.radians(45.0), 150e3
+    ends: list[float] = []
+    times: list[float] = []
+    fired = circuit(r1, phi, vbo_neg=29.0, ends=ends, times=times)
+    pos = [a for a, s in fired if s > 0][-1]
+    neg = [a - math.pi for a, s in fired if s < 0][-1]
+    a, b, ok, dc = diac.running_pair(vm=VM, omega=W, r1=r1, c1=C1, v_pos=VBO, v_neg=29.0,
+                                     breakback=DV, phi=phi)
+    assert bool(ok)
+    assert float(a) == pytest.approx(pos, rel=5e-3)
+    assert float(b) == pytest.approx(neg, rel=5e-3)
+    resistive = diac.running_pair(vm=VM, omega=W, r1=r1, c1=C1, v_pos=VBO, v_neg=29.0,
+                                  breakback=DV)
+    assert abs(float(resistive[0]) - pos) > 0.05 * pos
+    # The last cycle: two conductions, each from a firing to its current's zero.
+    last = [(t0, t1) for t0, t1 in zip(times, ends, strict=False)][-2:]
+    assert len(last) == 2 and all(t1 > t0 for t0, t1 in last)
+    sim_dc = sum(math.cos(W * t0) - math.cos(W * t1) for t0, t1 in last) / (2 * math.pi)
+    assert abs(sim_dc) > 1e-3  # the asymmetry does put DC on the load
+    assert float(dc) == pytest.approx(sim_dc, rel=1e-2)
