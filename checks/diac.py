@@ -11,8 +11,10 @@ Without firing the diac capacitor follows the sinusoidal steady state vss(θ) = 
 α = ψ + asin(VBO/(Vm·G)), and only when Vm·G > VBO and α < π (a crossing after the line has
 reversed fires in the wrong half-cycle, counted here as no firing).
 
-Once the diac fires, the triac shorts the network's supply until the line's zero (a
-resistive load), and the diac drops its capacitor by the breakback ΔV. The capacitor then
+Once the diac fires, the triac shorts the network's supply until its current's zero (the
+line's zero for a resistive load, the R–L extinction angle β > π for an inductive one, after
+which the network restarts from the line's value at β), and the diac drops its capacitor by
+the breakback ΔV. The capacitor then
 starts each half-cycle near zero instead of at the steady sine's −Vm·G·sin ψ, so it reaches
 VBO much earlier: the running state. Its periodic solution is in closed form (half-wave
 antisymmetry, :func:`running_excess`) and its firing angle is the first root over the
@@ -37,7 +39,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import triac
+from checks import rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -116,9 +118,21 @@ def _xss(s: Mapping[str, np.ndarray], th: np.ndarray) -> tuple[np.ndarray, np.nd
 def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                    vbo: np.ndarray, breakback: np.ndarray | float, alpha: np.ndarray,
                    r2: np.ndarray | float = np.nan,
-                   c2: np.ndarray | float = np.nan, start: bool = False) -> Any:
+                   c2: np.ndarray | float = np.nan, start: bool = False,
+                   phi: np.ndarray | float = 0.0) -> Any:
     """v_diac(α⁻) − VBO [V] in the periodic state that fires at α in every half-cycle, once
     (``start``: the state x(0) at the positive zero instead, as two arrays).
+
+    ``phi`` [rad] the load angle atan(ωL/R) of an R–L load (0: resistive). The triac then
+    conducts until the current's zero β(α) > π (:func:`checks.rl.extinction_angle`), the
+    network's input is zero over (α, β) and it restarts at γ = β − π in the next half-cycle,
+    from the line's value there: with y = x(γ) the start of the half-cycle,
+
+    (I + Φ(π))·y = Φ(π)·xs(γ) − Φ(π + γ − α)·(xs(α) − ΔV·e₂),
+    x(α⁻) = xs(α) + Φ(α − γ)·(y − xs(γ)),
+
+    which is the resistive form at γ = 0. For α ≤ φ the current does not end before the next
+    half-cycle's firing (continuous conduction): NaN there (no consistent state).
 
     The network sits across the triac: it sees Vm·sin θ on [0, α) and nothing while the triac
     conducts, (α, π) (a resistive load's current ends at the line zero). At α the diac drops
@@ -135,10 +149,18 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     alpha = as_array(alpha)
     dv = as_array(breakback)
-    s10, s20 = _xss(s, np.zeros_like(alpha))
+    ph = as_array(phi)
+    if np.any(ph > 0):
+        beta = rl.extinction_angle(alpha=alpha, phi=ph)
+        gam = np.where(ph > 0, beta - np.pi, 0.0)
+        # α ≤ φ: the current would not end before the next firing (no such state)
+        gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)
+    else:
+        gam = np.zeros_like(alpha)
+    s10, s20 = _xss(s, gam)
     s1a, s2a = _xss(s, alpha)
     q11, q12, q21, q22 = _phi(s, np.full_like(alpha, np.pi))
-    r11, r12, r21, r22 = _phi(s, np.pi - alpha)
+    r11, r12, r21, r22 = _phi(s, np.pi + gam - alpha)
     u1, u2 = s1a, s2a - dv
     w1 = q11 * s10 + q12 * s20 - (r11 * u1 + r12 * u2)
     w2 = q21 * s10 + q22 * s20 - (r21 * u1 + r22 * u2)
@@ -148,75 +170,96 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     x02 = (m11 * w2 - m21 * w1) / det
     if start:
         return x01, x02
-    p11, p12, p21, p22 = _phi(s, alpha)
+    p11, p12, p21, p22 = _phi(s, alpha - gam)
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
+
+
+def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
+    """Where the next half-cycle's network starts after a firing at ``ang`` [rad]: γ = β − π
+    for an R–L load (0: resistive, or a half that does not fire, NaN ``ang``)."""
+    ph = as_array(phi)
+    if not np.any(ph > 0):
+        return np.zeros(np.broadcast_shapes(np.shape(ang), np.shape(ph)))
+    fired = np.isfinite(ang)
+    beta = rl.extinction_angle(alpha=np.where(fired, ang, np.pi), phi=ph)
+    return np.where(fired & (ph > 0), beta - np.pi, 0.0)
 
 
 def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                 a: np.ndarray, b: np.ndarray, which: int, r2: np.ndarray | float = np.nan,
-                c2: np.ndarray | float = np.nan) -> np.ndarray:
+                c2: np.ndarray | float = np.nan,
+                phi: np.ndarray | float = 0.0) -> np.ndarray:
     """The periodic state over a whole cycle that fires at a in the positive half-cycle (level
     v_pos) and at b after the negative one starts (level v_neg; NaN: that half does not
     fire): v_diac − level at the firing of half ``which`` (0: positive, 1: negative).
 
-    Each half-cycle is an affine map of its starting state, x ↦ Φ(π)·x + q (in the frame of
-    that half's sign), q = Φ(π − a)·(xs(a) − Φ(a)·xs(0) − ΔV·e₂); the cycle closes with
-    x(0) = (I − Φ(π)²)⁻¹·(Φ(π)·q₊ − q₋). With v_pos = v_neg this is :func:`running_excess`.
+    Each half-cycle starts where the other's current ended, γ = β − π (0 for a resistive load
+    or a half that did not fire; ``phi`` the load angle, :func:`running_excess`), and is an
+    affine map of its starting state, x ↦ Φ(π + γ_out − γ_in)·x + q (in the frame of that
+    half's sign), q = Φ(π + γ_out − a)·(xs(a) − Φ(a − γ_in)·xs(γ_in) − ΔV·e₂); the cycle
+    closes with x(γ_b) = (I − Φ(2π))⁻¹·(Φ(π + γ_b − γ_a)·q₊ − q₋). With v_pos = v_neg
+    this is :func:`running_excess`. A half that would fire before the other's current has
+    ended is NaN (no such state).
     """
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     a, b = np.broadcast_arrays(as_array(a), as_array(b))
     dv = as_array(breakback)
-    z = np.zeros_like(a)
-    s10, s20 = _xss(s, z)
-    q11, q12, q21, q22 = _phi(s, np.full_like(a, np.pi))
+    ga, gb = _restart(a, phi), _restart(b, phi)
 
-    def q(ang: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    def q(ang: np.ndarray, g_in: np.ndarray, g_out: np.ndarray
+          ) -> tuple[np.ndarray, np.ndarray]:
         fired = np.isfinite(ang)
         ang = np.where(fired, ang, np.pi)
         d = np.where(fired, dv, 0.0)
         sa1, sa2 = _xss(s, ang)
-        p11, p12, p21, p22 = _phi(s, ang)
-        u1 = sa1 - (p11 * s10 + p12 * s20)
-        u2 = sa2 - (p21 * s10 + p22 * s20) - d
-        r11, r12, r21, r22 = _phi(s, np.pi - ang)
-        return r11 * u1 + r12 * u2, r21 * u1 + r22 * u2, ang, d
+        s01, s02 = _xss(s, g_in)
+        p11, p12, p21, p22 = _phi(s, ang - g_in)
+        u1 = sa1 - (p11 * s01 + p12 * s02)
+        u2 = sa2 - (p21 * s01 + p22 * s02) - d
+        r11, r12, r21, r22 = _phi(s, np.pi + g_out - ang)
+        return r11 * u1 + r12 * u2, r21 * u1 + r22 * u2
 
-    qa1, qa2, _, _ = q(a)
-    qb1, qb2, _, _ = q(b)
-    w1 = q11 * qa1 + q12 * qa2 - qb1
-    w2 = q21 * qa1 + q22 * qa2 - qb2
-    # I − Φ(π)²
-    m11 = 1 - (q11 * q11 + q12 * q21)
-    m12 = -(q11 * q12 + q12 * q22)
-    m21 = -(q21 * q11 + q22 * q21)
-    m22 = 1 - (q21 * q12 + q22 * q22)
+    qa1, qa2 = q(a, gb, ga)
+    qb1, qb2 = q(b, ga, gb)
+    ma11, ma12, ma21, ma22 = _phi(s, np.pi + ga - gb)
+    mb11, mb12, mb21, mb22 = _phi(s, np.pi + gb - ga)
+    w1 = mb11 * qa1 + mb12 * qa2 - qb1
+    w2 = mb21 * qa1 + mb22 * qa2 - qb2
+    f11, f12, f21, f22 = _phi(s, np.full_like(ga, 2 * np.pi))
+    m11, m12, m21, m22 = 1 - f11, -f12, -f21, 1 - f22  # I − Φ(2π)
     det = m11 * m22 - m12 * m21
     x1 = (m22 * w1 - m12 * w2) / det
     x2 = (m11 * w2 - m21 * w1) / det
-    if which == 1:  # the negative half's start, mirrored: −(Φ(π)·x + q₊)
-        x1, x2 = -(q11 * x1 + q12 * x2 + qa1), -(q21 * x1 + q22 * x2 + qa2)
+    g_in = gb
+    if which == 1:  # the negative half's start, mirrored: −(Φ(π + γ_a − γ_b)·x + q₊)
+        x1, x2 = -(ma11 * x1 + ma12 * x2 + qa1), -(ma21 * x1 + ma22 * x2 + qa2)
+        g_in = ga
     ang = a if which == 0 else b
     sa1, sa2 = _xss(s, ang)
-    p11, p12, p21, p22 = _phi(s, ang)
-    return sa2 + p21 * (x1 - s10) + p22 * (x2 - s20) - as_array(v_pos if which == 0 else v_neg)
+    s01, s02 = _xss(s, g_in)
+    p11, p12, p21, p22 = _phi(s, ang - g_in)
+    out = sa2 + p21 * (x1 - s01) + p22 * (x2 - s02) - as_array(v_pos if which == 0 else v_neg)
+    return np.where(ang > g_in, out, np.nan)
 
 
 def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
-                 c2: np.ndarray | float = np.nan
+                 c2: np.ndarray | float = np.nan, phi: np.ndarray | float = 0.0
                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """running_pair: see there (one block of rows)."""
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, v_pos, v_neg,
-                                                         breakback, r2, c2)))
+                                                         breakback, r2, c2, phi)))
 
     def c(x: np.ndarray | float) -> np.ndarray:
         return np.broadcast_to(as_array(x), shape)
 
     kw = {"vm": c(vm), "omega": c(omega), "r1": c(r1), "c1": c(c1), "v_pos": c(v_pos),
-          "v_neg": c(v_neg), "breakback": c(breakback), "r2": c(r2), "c2": c(c2)}
-    base = {k: kw[k] for k in ("vm", "omega", "r1", "c1", "breakback", "r2", "c2")}
+          "v_neg": c(v_neg), "breakback": c(breakback), "r2": c(r2), "c2": c(c2),
+          "phi": c(phi)}
+    base = {k: kw[k] for k in ("vm", "omega", "r1", "c1", "breakback", "r2", "c2", "phi")}
+    ph = kw["phi"]
     with np.errstate(all="ignore"):
         a = firing_angle(vbo=kw["v_pos"], running=True, **base)
         b = firing_angle(vbo=kw["v_neg"], running=True, **base)
@@ -238,8 +281,9 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
             det = j11 * j22 - j12 * j21
             da = (j22 * f0 - j12 * g0) / det
             db = (j11 * g0 - j21 * f0) / det
-            a = np.clip(a - np.where(both, da, 0.0), 1e-9, np.pi - 1e-9)
-            b = np.clip(b - np.where(both, db, 0.0), 1e-9, np.pi - 1e-9)
+            floor = np.where(ph > 0, ph + _PHI_GAP, 1e-9)
+            a = np.clip(a - np.where(both, da, 0.0), floor, np.pi - 1e-9)
+            b = np.clip(b - np.where(both, db, 0.0), floor, np.pi - 1e-9)
         f0, g0 = f(a, b)
         ok = (np.abs(f0) <= 1e-9 * kw["v_pos"]) & (np.abs(g0) <= 1e-9 * kw["v_pos"])
         a = np.where(both, np.where(ok, a, np.nan), a)
@@ -265,7 +309,8 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
         else:
             bad = np.zeros(shape, dtype=bool)
         dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
-        live = dbl & (np.isfinite(a) | np.isfinite(b))
+        bad = bad | (dbl & (ph > 0))  # a second section with an R–L load: not modelled
+        live = dbl & (ph <= 0) & (np.isfinite(a) | np.isfinite(b))
         if live.any():
             # A double section may refire within a half-cycle: follow it where it does.
             guess = np.where(np.isfinite(a), a, np.where(np.isfinite(b), b, np.pi / 2))
@@ -277,13 +322,13 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
             _, _, _, n2, _ = _half_map(s, m1, m2, kw["v_neg"], kw["breakback"])
             redo = live & ((n1 > 0) | (n2 > 0))
             if redo.any():
-                st = periodic_running(x1=x1, x2=x2, **kw)
+                st = periodic_running(x1=x1, x2=x2, **{k: v for k, v in kw.items() if k != "phi"})
                 a = np.where(redo, st["alpha_pos"], a)
                 b = np.where(redo, st["alpha_neg"], b)
                 bad = bad | (redo & ~st["resolved"])
                 dc = np.where(redo, st["dc"], dc_fraction(a, b))
                 return a, b, ~bad, dc
-    return a, b, ~bad, dc_fraction(a, b)
+    return a, b, ~bad, dc_fraction(a, b, phi=ph)
 
 
 _REFIRE_MAX = 16  # refirings within one half-cycle followed at most (then: not trusted)
@@ -465,13 +510,25 @@ def periodic_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: n
 _GRID = 96  # bracketing points over the half-cycle for the running firing angle
 
 
-def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...]) -> np.ndarray:
-    """The first α in (0, π) where g(α) turns non-negative, per row; NaN without one.
+def _first_root(g: Callable[[np.ndarray], np.ndarray], shape: tuple[int, ...],
+                lo: np.ndarray | None = None) -> np.ndarray:
+    """The first α in (lo, π) (lo: 0 unless given) where g(α) turns non-negative, per row;
+    NaN without one.
 
     A grid of _GRID angles brackets the first sign change, then false position (Illinois)
     narrows every row's bracket together (:func:`_root_in`).
     """
-    return _root_in(g, np.zeros(shape), np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+    start = np.zeros(shape) if lo is None else np.broadcast_to(lo, shape)
+    return _root_in(g, start, np.full(shape, np.pi * (1 - 1e-12)), grid=_GRID)
+
+
+_PHI_GAP = 1e-9  # [rad] above φ: the first angle an R–L load's current ends before
+
+
+def _alpha_floor(phi: np.ndarray | float, shape: tuple[int, ...]) -> np.ndarray:
+    """The lowest running angle a row can fire at: 0 (resistive) or just above φ."""
+    ph = np.broadcast_to(as_array(phi), shape)
+    return np.where(ph > 0, ph + _PHI_GAP, 0.0)
 
 
 _BLOCK = 2048  # elements per block where a half-cycle grid rides on every row
@@ -498,16 +555,24 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
     return np.concatenate(parts).reshape(shape)
 
 
-_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2")
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi")
 
 
 @memoised  # every triac check fired from this trigger asks for the same angles
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
-                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                 phi: np.ndarray | float = 0.0) -> np.ndarray:
     """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
     the diac starts firing) or, with it firing every half-cycle, the first root of
     :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
+
+    ``phi`` [rad]: the load angle of an R–L load (running only; 0: resistive). The root is
+    then sought over (φ, π): below φ the current would not end before the next firing. The
+    triac shorts the network while it conducts, so the capacitor restarts below VBO at the
+    current's zero and the first root lies above φ; a row where it does not (the state just
+    above φ already past VBO: continuous conduction) has no consistent state and is NaN, as
+    is a second section with an R–L load (not modelled).
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
@@ -517,7 +582,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     91.29
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
-          "running": running, "r2": r2, "c2": c2}
+          "running": running, "r2": r2, "c2": c2, "phi": phi}
     if not running:
         return _firing_angle(**kw)
     return _blocked(_firing_angle, _ANGLE_ARGS, kw)
@@ -526,7 +591,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                  r2: np.ndarray | float = np.nan,
-                 c2: np.ndarray | float = np.nan
+                 c2: np.ndarray | float = np.nan, phi: np.ndarray | float = 0.0
                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Running firing angles (α₊, α₋) [rad] with different breakover levels in the two
     half-cycles (NaN: that half does not fire); a mask of the rows resolved (False: no
@@ -541,9 +606,11 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     that half is solved with the other not firing (the first root over its half-cycle). A
     double section that refires within a half-cycle is then solved by
     :func:`periodic_running` from that state. Rows are taken in blocks (:func:`_blocked`).
+    ``phi``: an R–L load's angle (each half starts at the other's current zero,
+    :func:`pair_excess`; a second section with it is not resolved).
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "v_pos": v_pos, "v_neg": v_neg,
-          "breakback": breakback, "r2": r2, "c2": c2}
+          "breakback": breakback, "r2": r2, "c2": c2, "phi": phi}
     return _blocked(_running_pair, tuple(kw), kw)
 
 
@@ -567,22 +634,32 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
 
 def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
-                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+                 r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                 phi: np.ndarray | float = 0.0) -> np.ndarray:
     """firing_angle: see there (one block of rows)."""
     if running:
         shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
-                                                             r2, c2)))
+                                                             r2, c2, phi)))
+        inductive = bool(np.any(as_array(phi) > 0))
+
+        def c(x: np.ndarray | float) -> np.ndarray:
+            return np.broadcast_to(as_array(x), shape)[..., None]
 
         def g(a: np.ndarray) -> np.ndarray:
-            def c(x: np.ndarray | float) -> np.ndarray:
-                return np.broadcast_to(as_array(x), shape)[..., None]
-
             return running_excess(vm=c(vm), omega=c(omega), r1=c(r1), c1=c(c1), vbo=c(vbo),
-                                  breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2))
+                                  breakback=c(breakback), alpha=a, r2=c(r2), c2=c(c2),
+                                  phi=c(phi) if inductive else 0.0)
 
         with np.errstate(all="ignore"):
-            alpha = _first_root(g, shape)
             dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if inductive:
+                floor = _alpha_floor(phi, shape)
+                alpha = _first_root(g, shape, floor)
+                ph = np.broadcast_to(as_array(phi), shape)
+                bad = (ph > 0) & ((g(floor[..., None])[..., 0] >= 0) | dbl)
+                alpha = np.where(bad, np.nan, alpha)
+            else:
+                alpha = _first_root(g, shape)
             if not (dbl & np.isfinite(alpha)).any():
                 return alpha  # a single section never fires twice in a half-cycle
             kw = {k: np.broadcast_to(as_array(x), shape) for k, x in
@@ -606,19 +683,25 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
 
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
-            r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> np.ndarray:
+            r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+            phi: np.ndarray | float = 0.0) -> np.ndarray:
     """The largest R1 [Ω] that still fires (starting, or ``running``), solved per row by
     bisection in log R over 1 Ω … 1 GΩ (firing stops once as R1 rises: G falls and ψ grows);
     NaN where even 1 Ω does not fire. Single section, starting: ωR1C1 = √((Vm/VBO)² − 1).
+    ``phi``: an R–L load's angle (running: the grid runs over (φ, π), :func:`running_excess`).
 
     >>> round(float(limit_r(vm=325.0, omega=2 * np.pi * 50, c1=100e-9, vbo=32.0)))
     321713
     """
-    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2)))
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2,
+                                                         phi)))
     lo = np.full(shape, 0.0)
     hi = np.full(shape, np.log(1e9))
 
-    th = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+    th: Any = np.linspace(0.0, np.pi, _GRID + 1)[1:-1]
+    if np.any(as_array(phi) > 0):
+        floor = _alpha_floor(phi, shape)[..., None]
+        th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
     def fires(ln_r: np.ndarray) -> np.ndarray:
         if not running:
@@ -632,7 +715,7 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         with np.errstate(all="ignore"):
             g = running_excess(vm=c(vm), omega=c(omega), r1=c(np.exp(ln_r)), c1=c(c1),
                                vbo=c(vbo), breakback=c(breakback), alpha=th, r2=c(r2),
-                               c2=c(c2))
+                               c2=c(c2), phi=c(phi))
         return (g >= 0).any(axis=-1)
 
     ok_lo = fires(lo)
@@ -664,7 +747,8 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
                        target_lo: np.ndarray | float, target_hi: np.ndarray | float,
                        series_r: np.ndarray, limits: Mapping[str, float],
                        r2: np.ndarray | float = np.nan,
-                       c2: np.ndarray | float = np.nan) -> Outcome:
+                       c2: np.ndarray | float = np.nan,
+                       phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.firing-range``: the firing angles at the ends of the pot, against the target.
 
     vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
@@ -675,15 +759,17 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     a pot end where the capacitor's steady sine never reaches VBO fails, and ``fires_up_to``
     says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
     α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
+    ``phi`` [rad]: the load angle of an R–L load (the running angles follow its current's
+    zero, :func:`running_excess`), reported as ``load_angle``.
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
     a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi)
     a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi)
     r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
     never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
         | ~np.isfinite(a_hi)
@@ -701,12 +787,15 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
               "fires_up_to": r_start - as_array(series_r), "amplitude_hi": vm * network(
                   r1=r_hi, c1=c1, omega=omega, r2=r2, c2=c2)[0]}
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
+    if np.any(as_array(phi) > 0):
+        values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(a_lo))
     return Outcome(values, margin, status, notes)
 
 
 def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
                   breakback: np.ndarray, series_r: np.ndarray, limits: Mapping[str, float],
-                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan) -> Outcome:
+                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
+                  phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.snap-on``: the jump in firing angle where the load snaps on.
 
     R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
@@ -716,18 +805,19 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     ``pot_on`` and ``pot_off`` the pot settings (R − series_r); ``charge_removed`` the
     ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
     which with the triac's short of the network sets the running state. Graded against
-    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it).
+    ``max_jump_deg`` (marginal above ``marginal_fraction`` of it). ``phi``: an R–L load's
+    angle (the running state follows its current's zero).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
     r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
     r_off = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=breakback, running=True,
-                    r2=r2, c2=c2)
+                    r2=r2, c2=c2, phi=phi)
     # Just inside the starting limit (the angle there is the limit of α as R → R_on⁻).
     r_at = r_on * (1 - 1e-9)
     a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2)
     a_run = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, breakback=breakback,
-                         running=True, r2=r2, c2=c2)
+                         running=True, r2=r2, c2=c2, phi=phi)
     jump = a_start - a_run
     p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
     limit = np.radians(float(limits.get("max_jump_deg", 35.0)))
@@ -801,10 +891,13 @@ def gate_pulse_check(*, c_diac: np.ndarray, breakback: np.ndarray, r_path: np.nd
     return Outcome(values, margin, status)
 
 
-def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray) -> np.ndarray:
+def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray,
+                phi: np.ndarray | float = 0.0) -> np.ndarray:
     """Mean of the load voltage over a cycle as a fraction of Vm, positive half fired at
     α₊ and negative at α₋ (NaN: that half does not fire) [3]:
-    (cos α₊ − cos α₋)/(2π), each missing half counting as α = π.
+    (cos α₊ − cos α₋)/(2π), each missing half counting as α = π. With an R–L load (``phi``
+    the load angle) each half conducts to its current's zero β (the load's voltage is the
+    line's over (α, β), its DC part across R): [(cos α₊ − cos β₊) − (cos α₋ − cos β₋)]/(2π).
 
     >>> round(float(dc_fraction(np.radians(90.0), np.radians(100.0))), 5)
     0.02764
@@ -813,6 +906,9 @@ def dc_fraction(a_pos: np.ndarray, a_neg: np.ndarray) -> np.ndarray:
     """
     cp = np.where(np.isfinite(a_pos), np.cos(a_pos), -1.0)
     cn = np.where(np.isfinite(a_neg), np.cos(a_neg), -1.0)
+    if np.any(as_array(phi) > 0):
+        cp = cp - np.cos(np.pi + _restart(a_pos, phi))  # − cos β₊ (β = π + γ)
+        cn = cn - np.cos(np.pi + _restart(a_neg, phi))
     return (cp - cn) / (2 * np.pi)
 
 
@@ -820,7 +916,8 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
                    c1: np.ndarray, vbo: np.ndarray, asymmetry: np.ndarray,
                    breakback: np.ndarray, limits: Mapping[str, float],
                    r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                   load_r: np.ndarray | float = np.nan, points: int = 0) -> Outcome:
+                   load_r: np.ndarray | float = np.nan, points: int = 0,
+                   phi: np.ndarray | float = 0.0) -> Outcome:
     """``diac.symmetry``: the DC component a VBO asymmetry puts on the load.
 
     One half-cycle fires at VBO, the other at VBO − asymmetry (the datasheet's largest
@@ -833,6 +930,7 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
     ``marginal_fraction`` of it); ``dc_current`` = V_dc/load_r [A] when the load's DC
     resistance ``load_r`` is given (a winding or transformer primary). A pot setting whose
     pair of angles could not be resolved gives NaN, which fails (never a pass by default).
+    ``phi``: the load angle of an R–L load (each half starts at the other's current zero).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
@@ -848,7 +946,8 @@ def symmetry_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_hi: 
 
     a_pos, a_neg, trusted, dc_mean = running_pair(vm=col(vm), omega=col(omega), r1=grid, c1=col(c1),
                                 v_pos=col(vbo), v_neg=col(vbo) - np.abs(col(asymmetry)),
-                                breakback=col(breakback), r2=col(r2), c2=col(c2))
+                                breakback=col(breakback), r2=col(r2), c2=col(c2),
+                                phi=col(phi))
     dc = np.where(trusted, np.abs(dc_mean), np.nan)
     grid = np.broadcast_to(grid, dc.shape)
     worst = np.argmax(dc, axis=-1)

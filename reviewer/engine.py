@@ -159,8 +159,21 @@ def build_corners(inputs: Mapping[str, Input],
     """Row 0 is the nominal; the rest every combination of each varying input's points.
 
     Returns the arrays, the varying input names and a note ("" unless corners were sampled).
+    Two plain inputs read from the same key (a trigger's firing range reading its power
+    stage's load, which that stage's check reads too) are one quantity: they share a column.
     """
-    names = list(inputs)
+    alias: dict[str, str] = {}
+    seen: dict[tuple[Any, ...], str] = {}
+    for name, inp in inputs.items():
+        v = inp.value
+        key = (inp.path, v.lo, v.nom, v.hi)
+        if inp.sweep or inp.extra:
+            continue
+        if key in seen:
+            alias[name] = seen[key]
+        else:
+            seen[key] = name
+    names = [n for n in inputs if n not in alias]
     points: list[np.ndarray] = []
     varying: list[str] = []
     for name in names:
@@ -197,6 +210,8 @@ def build_corners(inputs: Mapping[str, Input],
     for name, col in zip(names, cols, strict=True):
         nom = inputs[name].value.nom
         arrays[name] = np.concatenate([[nom], col])
+    for name, same in alias.items():
+        arrays[name] = arrays[same].copy()
     return arrays, varying, note
 
 
@@ -438,10 +453,11 @@ def evaluate_check(defn: CheckDef, project: Project, stage: Stage, checklist: Ch
     if bound.not_applicable:
         return Result(stage.id, defn.id, stage.kind, "not-applicable", None,
                       bound.not_applicable, inputs_sha256=digest, snapshot=snap)
-    if bound.missing:
-        return Result(stage.id, defn.id, stage.kind, "incomplete", None,
-                      "incomplete: " + ", ".join(f"{p} not given" for p in bound.missing)
-                      + " (give it, or switch the check off in the checklist)",
+    if bound.missing or bound.unmodelled:
+        text = ("incomplete: " + bound.unmodelled if bound.unmodelled else
+                "incomplete: " + ", ".join(f"{p} not given" for p in bound.missing)
+                + " (give it, or switch the check off in the checklist)")
+        return Result(stage.id, defn.id, stage.kind, "incomplete", None, text,
                       inputs_sha256=digest, snapshot=snap, needs=list(bound.missing))
     limits = checklist.limits_for(defn.id)
     try:

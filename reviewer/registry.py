@@ -75,6 +75,8 @@ class Bound:
     missing: list[str] = field(default_factory=list)
     #: (stage id, check id) whose pass is this check's premise (result ``blocked`` otherwise).
     depends: list[tuple[str, str]] = field(default_factory=list)
+    #: Why the model does not cover this configuration (result ``incomplete`` with this text).
+    unmodelled: str | None = None
 
     def add(self, name: str, path: str, value: Value, *, sweep: int = 0,
             extra: tuple[float, ...] = ()) -> Value:

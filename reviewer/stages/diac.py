@@ -15,7 +15,7 @@ from typing import Any
 import numpy as np
 
 from checks import diac
-from checks.core import Outcome
+from checks.core import MARGINAL, PASS, Outcome
 from reviewer.errors import ProjectError
 from reviewer.fmt import at_least, at_most, eng, span
 from reviewer.model import Part, Stage, Value
@@ -50,6 +50,10 @@ DIAC_RC = register_kind(StageKind("diac-rc", {
 
 _LOAD_NOTE = ("the network sits across the triac: the load's drop is neglected while the "
               "triac is off, and the triac conducts to the line zero (a resistive load)")
+_RL_NOTE = ("the network sits across the triac: the load's drop is neglected while the triac "
+            "is off; with the R–L load of `{}` the triac conducts to the current's zero, and "
+            "the network restarts there")
+POWER_KINDS = ("triac-phase-control",)
 
 
 # --------------------------------------------------------------------------- binding helpers
@@ -90,6 +94,7 @@ def _bind_network(ctx: Context, b: Bound, stage: Stage | None = None, prefix: st
     if _double(ctx, st):
         ctx.need(b, prefix + "r2", ctx.stage_path("r2", st))
         ctx.need(b, prefix + "c2", ctx.stage_path("c2", st))
+    _bind_load(ctx, b, st, prefix)
     if pot != "none":
         pv: Value = st.get("pot")
         path = ctx.stage_path("pot", st)
@@ -97,7 +102,46 @@ def _bind_network(ctx: Context, b: Bound, stage: Stage | None = None, prefix: st
             b.add(prefix + "pot", path, pv, sweep=sweep if pv.varies else 0)
         b.add(prefix + "pot_lo", path + "#min", pv.at(pv.lo))
         b.add(prefix + "pot_hi", path + "#max", pv.at(pv.hi))
-    b.notes.append(_LOAD_NOTE)
+
+
+def _power_stage(ctx: Context, st: Stage) -> Stage | None:
+    """The triac stage diac-rc stage ``st`` fires: the binding one, or the one naming it."""
+    if ctx.stage.kind in POWER_KINDS and ctx.stage.get("gate") == st.id:
+        return ctx.stage
+    fired = ctx.stages_of(POWER_KINDS, "gate", st.id)
+    if len(fired) > 1:
+        raise ProjectError(f"stage `{st.id}` is the gate of several triac stages ("
+                           + ", ".join(f"`{f.id}`" for f in fired) + "): give each triac "
+                           "stage a diac-rc stage of its own", st.where)
+    return fired[0] if fired else None
+
+
+def _bind_load(ctx: Context, b: Bound, st: Stage, prefix: str) -> None:
+    """The R–L load of the triac stage this trigger fires, as ``rl_r``/``rl_l`` inputs
+    (prefixed), only where its ``load.l`` is given: a resistive load's inputs stay as they
+    are. A second RC section with an R–L load is not modelled (the checks are incomplete)."""
+    power = _power_stage(ctx, st)
+    lv = ctx.project.lookup(ctx.stage_path("load.l", power)) if power is not None else None
+    if power is None or not isinstance(lv, Value):
+        b.notes.append(_LOAD_NOTE)
+        return
+    ctx.need(b, prefix + "rl_r", ctx.stage_path("load.r", power))
+    b.add(prefix + "rl_l", ctx.stage_path("load.l", power), lv)
+    b.notes.append(_RL_NOTE.format(power.id))
+    if _double(ctx, st):
+        b.unmodelled = (f"a second RC section (stages.{st.id}.r2, c2) firing the R–L load of "
+                        f"`{power.id}` (load.l given) is not modelled: simulate the netlist "
+                        "(latchbook export --spice) for the firing range, or use a single "
+                        "section")
+
+
+def _load_angle(kw: dict[str, Any], omega: Any, prefix: str = "") -> Any:
+    """Pop the R–L load's inputs: its angle φ = atan(ωL/R) [rad], 0 without them."""
+    r, ll = kw.pop(prefix + "rl_r", None), kw.pop(prefix + "rl_l", None)
+    if r is None or ll is None:
+        return 0.0
+    return np.arctan2(np.asarray(omega, dtype=float) * np.asarray(ll, dtype=float),
+                      np.asarray(r, dtype=float))
 
 
 def _net(kw: dict[str, Any], prefix: str = "") -> dict[str, Any]:
@@ -135,7 +179,7 @@ def bind_firing(ctx: Context, b: Bound, stage: Stage, *, sweep: int = 0,
 def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
     """The pot settings inside its range that fire at ``angles`` (running), for every
     combination of the other inputs' ends: vectorised bisection (the angle rises with R)."""
-    fixed = ("dt_pot", "dt_pot_lo", "dt_pot_hi")
+    fixed = ("dt_pot", "dt_pot_lo", "dt_pot_hi")  # the load's R and L are ends like the rest
     names = [n for n in b.inputs if n.startswith("dt_") and n not in fixed] + ["vs"]
     if "freq" in b.inputs:
         names.append("freq")
@@ -145,6 +189,8 @@ def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
                     strict=True))
     f = grid.get("freq", grid.get("dt_freq"))
     pot = b.inputs["dt_pot"].value
+    phi = (np.arctan2(2 * np.pi * f * grid["dt_rl_l"], grid["dt_rl_r"])
+           if "dt_rl_l" in grid else 0.0)
     out: list[float] = []
     for target in angles:
         lo = np.full(grid["vs"].shape, pot.lo)
@@ -156,7 +202,7 @@ def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
                     vm=np.sqrt(2.0) * grid["vs"], omega=2 * np.pi * f,
                     r1=mid + grid["dt_series_r"], c1=grid["dt_c1"], vbo=grid["dt_vbo"],
                     breakback=grid["dt_breakback"], running=True,
-                    r2=grid.get("dt_r2", np.nan), c2=grid.get("dt_c2", np.nan))
+                    r2=grid.get("dt_r2", np.nan), c2=grid.get("dt_c2", np.nan), phi=phi)
             late = ~(a < target)
             hi = np.where(late, mid, hi)
             lo = np.where(late, lo, mid)
@@ -177,11 +223,12 @@ def firing_from(kw: dict[str, Any]) -> tuple[np.ndarray, np.ndarray, np.ndarray]
     net = _net(kw, "dt_")
     vbo, dv = kw.pop("dt_vbo"), kw.pop("dt_breakback")
     pot, lo, hi = kw.pop("dt_pot", None), kw.pop("dt_pot_lo"), kw.pop("dt_pot_hi")
+    phi = _load_angle(kw, omega, "dt_")
 
     def at(p: np.ndarray) -> np.ndarray:
         return diac.firing_angle(vm=vm, omega=omega, r1=p + net["series_r"], c1=net["c1"],
                                  vbo=vbo, breakback=dv, running=True, r2=net["r2"],
-                                 c2=net["c2"])
+                                 c2=net["c2"], phi=phi)
 
     a_lo, a_hi = at(lo), at(hi)
     return (at(pot) if pot is not None else a_lo), a_lo, a_hi
@@ -210,14 +257,29 @@ def _bind_range(ctx: Context) -> Bound:
     return b
 
 
+_DROP_PASS = 0.01  # |Z_load|/R1 above which a pass is only marginal (the drop is neglected)
+
+
 def _fn_range(**kw: Any) -> Outcome:
     net = _net(kw)
     sr = net["series_r"]
-    return diac.firing_range_check(
+    omega = 2 * np.pi * np.asarray(kw["freq"], dtype=float)
+    z = (np.hypot(kw["rl_r"], omega * kw["rl_l"]) if "rl_l" in kw else None)
+    phi = _load_angle(kw, omega)
+    out = diac.firing_range_check(
         vs=kw["vs"], freq=kw["freq"], r_lo=kw["pot_lo"] + sr, r_hi=kw["pot_hi"] + sr,
         c1=net["c1"], vbo=kw["vbo"], breakback=kw["breakback"], target_lo=kw["target_lo"],
         target_hi=kw["target_hi"], series_r=sr, r2=net["r2"], c2=net["c2"],
-        limits=kw["limits"])
+        limits=kw["limits"], phi=phi)
+    if z is not None:
+        # The network's current through the load's impedance delays the charging: the low
+        # end fires later than the model says, by about this fraction (a simulation of the
+        # whole circuit: about 0.7 of it).
+        drop = z / np.maximum(kw["pot_lo"] + sr, 1.0)
+        out.values["load_drop"] = drop + 0 * out.margin
+        out.status = np.where((out.status == PASS) & (drop > _DROP_PASS), MARGINAL,
+                              out.status).astype(np.int8)
+    return out
 
 
 def _sum_range(r: Reduced) -> str:
@@ -230,6 +292,13 @@ def _sum_range(r: Reduced) -> str:
             f"half-cycle fires later, {_deg(r.nom['alpha_lo_start'])} to "
             f"{_deg(r.nom['alpha_hi_start'])}); at worst {span(lo_w, hi_w, 'deg')} against "
             f"target {span(t_lo, t_hi, 'deg')}")
+    if "load_angle" in r.hi:
+        text += (f"; the triac conducts to the R–L load's current zero (φ up to "
+                 f"{_deg(r.hi['load_angle'])}), which delays the running state")
+    if r.hi.get("load_drop", 0.0) > _DROP_PASS:
+        text += (f"; the load's impedance is {r.hi['load_drop'] * 100:.3g} % of R1 at the low "
+                 "end, its drop neglected: the low end fires up to about that much later "
+                 "(no better than marginal; a larger series R)")
     fires_up_to = r.lo["fires_up_to"]
     if not fires_up_to >= pot_hi or not math.isfinite(lo_w):
         where = (f"above a pot setting of {_pot(fires_up_to)}" if math.isfinite(fires_up_to)
@@ -241,7 +310,11 @@ def _sum_range(r: Reduced) -> str:
                 "fails: the capacitor never reaches VBO at some corners: a smaller R·C")
     if r.status != "pass":
         fixes = []
-        if not lo_w <= t_lo:
+        phi = r.hi.get("load_angle", 0.0)
+        if not lo_w <= t_lo and t_lo <= phi:
+            fixes.append(f"a target low end above the load angle φ {_deg(phi)} (the triac "
+                         "fires again only after the load's current has ended)")
+        elif not lo_w <= t_lo:
             fixes.append(f"an earlier low end (α ≤ {at_most(t_lo, 'deg')}: a smaller series R "
                          "or C)")
         if not hi_w >= t_hi:
@@ -261,16 +334,19 @@ register(CheckDef(
            "crossing of VBO, α = ψ + asin(VBO/(Vm·G)). Running (firing every half-cycle, the "
            "network shorted while the triac conducts, the capacitor dropped by ΔV at each "
            "firing) the periodic state is solved in closed form and α found as its first "
-           "root over the half-cycle (grid bracket + bisection); a second section that "
+           "root over the half-cycle (grid bracket + bisection). With an R–L load (the "
+           "triac stage whose gate this is gives load.l) the network is shorted until the "
+           "current's zero β(α) (R–L extinction angle) and restarts there from the line's "
+           "value, the root sought above the load angle φ; a second section that "
            "brings C2 back to VBO refires within the half-cycle, followed by Newton's method "
            "on the cycle map. The ends are the running "
            "angles (the state the load is in); every setting must also start from off.",
     source="GE SCR Manual 6th ed. ch. 9 (diac–RC phase control) — from memory; Maloney, "
            "Modern Industrial Electronics 5th ed. ch. 7 — from memory; checked against "
-           "solve_ivp of the network",
+           "solve_ivp of the network, and of the whole circuit with an R–L load",
     fn=_fn_range, bind=_bind_range,
     units={"alpha_lo": "deg", "alpha_hi": "deg", "alpha_lo_start": "deg", "alpha_hi_start": "deg",
-           "fires_up_to": "ohm", "amplitude_hi": "V"},
+           "fires_up_to": "ohm", "amplitude_hi": "V", "load_angle": "deg", "load_drop": ""},
     summarise=_sum_range,
     cautions=("The RC network, the diac and the pot sit at mains potential: the pot's shaft "
               "and any metal knob need the full insulation of a live part.",
@@ -294,9 +370,10 @@ def _fn_snap(**kw: Any) -> Outcome:
     kw.pop("pot_lo")
     kw.pop("pot_hi")
     net = _net(kw)
+    phi = _load_angle(kw, 2 * np.pi * np.asarray(kw["freq"], dtype=float))
     return diac.snap_on_check(vs=kw["vs"], freq=kw["freq"], c1=net["c1"], vbo=kw["vbo"],
                               breakback=kw["breakback"], series_r=net["series_r"],
-                              r2=net["r2"], c2=net["c2"], limits=kw["limits"])
+                              r2=net["r2"], c2=net["c2"], limits=kw["limits"], phi=phi)
 
 
 def _sum_snap(r: Reduced) -> str:
@@ -329,7 +406,8 @@ register(CheckDef(
            "(bisection in log R); there the running state (network shorted while the triac "
            "conducts, ΔV taken at each firing) fires at once at α_run < α_start. Jump = "
            "α_start − α_run; R_off: where the running state stops firing. The power a "
-           "resistive load snaps on to: 1 − α/π + sin 2α/(2π).",
+           "resistive load snaps on to: 1 − α/π + sin 2α/(2π). With an R–L load the "
+           "running state follows the current's zero (as in diac.firing-range).",
     source="GE SCR Manual 6th ed. ch. 9 (hysteresis, double time constant) — from memory; "
            "Rashid, Power Electronics 4th ed. §10 (AC switch output); checked against "
            "solve_ivp of the network with the diac and triac switching",
@@ -446,10 +524,12 @@ def _bind_symmetry(ctx: Context) -> Bound:
 def _fn_symmetry(**kw: Any) -> Outcome:
     net = _net(kw)
     sr = net["series_r"]
+    phi = _load_angle(kw, 2 * np.pi * np.asarray(kw["freq"], dtype=float))
     return diac.symmetry_check(
         vs=kw["vs"], freq=kw["freq"], r_lo=kw["pot_lo"] + sr, r_hi=kw["pot_hi"] + sr,
         c1=net["c1"], vbo=kw["vbo"], asymmetry=kw["asymmetry"], breakback=kw["breakback"],
-        r2=net["r2"], c2=net["c2"], load_r=kw.get("load_r", np.nan), limits=kw["limits"])
+        r2=net["r2"], c2=net["c2"], load_r=kw.get("load_r", np.nan), limits=kw["limits"],
+        phi=phi)
 
 
 def _sum_symmetry(r: Reduced) -> str:
