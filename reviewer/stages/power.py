@@ -870,7 +870,28 @@ register(CheckDef(
 
 
 # --------------------------------------------------------------------------------------------
-# power.fuse
+# power.fuse (and power.fault): the SCR's I²t
+
+def bind_device_i2t(ctx: Context, b: Bound) -> bool:
+    """Read the SCR's surge duration t_sm and its I²t, or its ITSM (unless already read) for
+    ITSM²·t_sm/2; False (a missing key named) when neither is given."""
+    part = _scr(ctx)
+    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
+    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is not None:
+        return True
+    if "itsm" not in b.inputs and ctx.read(b, "itsm", f"parts.{part.ref}.itsm") is None:
+        b.missing.append(f"parts.{part.ref}.i2t (or itsm)")
+        return False
+    b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    return True
+
+
+def device_i2t(*, i2t: Any, itsm: Any, t_sm: Any) -> Any:
+    """The SCR's I²t [A²s]: as given, else ITSM²·t_sm/2 of the surge half-sine."""
+    if i2t is not None:
+        return i2t
+    return np.asarray(itsm, dtype=float) ** 2 * np.asarray(t_sm, dtype=float) / 2
+
 
 def _bind_fuse(ctx: Context) -> Bound:
     b = Bound()
@@ -878,15 +899,9 @@ def _bind_fuse(ctx: Context) -> Bound:
     if not isinstance(fuse, dict):
         b.not_applicable = "no `fuse` given"
         return b
-    part = _scr(ctx)
     ctx.need(b, "fuse_i2t", _sp(ctx, "fuse.i2t"))
-    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
-    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is None:
-        itsm = ctx.read(b, "itsm", f"parts.{part.ref}.itsm")
-        if itsm is None:
-            b.missing.append(f"parts.{part.ref}.i2t (or itsm)")
-            return b
-        b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    if not bind_device_i2t(ctx, b):
+        return b
     if ctx.read(b, "t_base", _sp(ctx, "fuse.clearing_time")) is not None:
         b.options["base"] = "the fuse's clearing time"
     elif _is_dc(ctx):
@@ -901,7 +916,7 @@ def _bind_fuse(ctx: Context) -> Bound:
 def _fn_fuse(*, fuse_i2t: Any, t_sm: Any, limits: Mapping[str, float], base: str = "",
              i2t: Any = None, itsm: Any = None, t_base: Any = None, freq: Any = None) -> Outcome:
     t_sm = np.asarray(t_sm, dtype=float)
-    dev = i2t if i2t is not None else np.asarray(itsm, dtype=float) ** 2 * t_sm / 2
+    dev = device_i2t(i2t=i2t, itsm=itsm, t_sm=t_sm)
     tb = t_base if t_base is not None else 0.5 / np.asarray(freq, dtype=float)
     out = power.fuse_check(fuse_i2t=fuse_i2t, i2t=dev, t_sm=t_sm, t_base=tb, limits=limits)
     out.values["t_base"] = np.asarray(tb, dtype=float) + 0 * out.values["device_i2t"]
