@@ -83,6 +83,10 @@ def _bind_firing(ctx: Context, b: Bound, pw: Stage) -> None:
     oscillator behind its gate drive. Sets ``not_applicable`` when neither gives one."""
     path = ctx.stage_path("firing", pw)
     fv = ctx.project.lookup(path)
+    if pw.get("control") == "burst":  # integral-cycle control: fired at the voltage zero
+        b.add("alpha", ctx.stage_path("control", pw) + "#burst",
+              Value.fixed(0.0, "angle", "rad"))
+        return
     if fv is not None:
         extra = [math.pi / 2]
         r = ctx.project.lookup(ctx.stage_path("load.r", pw))
