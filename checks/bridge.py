@@ -121,20 +121,28 @@ def semi_overlap_output(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray,
 def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.ndarray,
                       r: np.ndarray, omega: np.ndarray, l_s: np.ndarray, alpha: np.ndarray,
                       alpha_lo: np.ndarray, e: np.ndarray | float, continuous: np.ndarray,
-                      continuous_lo: np.ndarray, req_hi: np.ndarray) -> dict[str, np.ndarray]:
-    """The overlap's effect on a full bridge's ``power.output`` values (continuous rows only).
+                      continuous_lo: np.ndarray, req_hi: np.ndarray,
+                      semi: bool = False) -> dict[str, np.ndarray]:
+    """The overlap's effect on a bridge's ``power.output`` values (continuous rows only): a
+    fully controlled bridge (:func:`overlap_output`) or, with ``semi``, a half-controlled one
+    (:func:`semi_overlap_output`).
 
     Adds ``overlap_angle`` μ [rad] and ``overlap_drop`` ΔV [V] at the row's α (NaN where the
-    conduction is discontinuous), and lowers the full output ``output_at_min`` at α_lo by ΔV
-    (voltage), ΔV/R (current) or the factor ((V − ΔV)/V)² (power); returns the new values and
-    ``overlap_short`` (1 where the lowered full output no longer reaches ``req_hi``).
+    conduction is discontinuous; ``semi`` also ``overlap_diode`` μ_d [rad], the diode leg's
+    transfer at the line zero, NaN where the firing interrupts it), and lowers the full output
+    ``output_at_min`` at α_lo by ΔV (voltage), ΔV/R (current) or the factor ((V − ΔV)/V)²
+    (power); returns the new values and ``overlap_short`` (1 where the lowered full output no
+    longer reaches ``req_hi``).
     """
     out = dict(values)
-    row = overlap_output(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha, e=e)
+    solve = semi_overlap_output if semi else overlap_output
+    row = solve(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha, e=e)
     cont = np.asarray(continuous) > 0
     out["overlap_angle"] = np.where(cont, row["mu"], np.nan)
     out["overlap_drop"] = np.where(cont, row["drop"], np.nan)
-    lo = overlap_output(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha_lo, e=e)
+    if semi:
+        out["overlap_diode"] = np.where(cont, row["mu_d"], np.nan)
+    lo = solve(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha_lo, e=e)
     full = _a(values["output_at_min"])
     with np.errstate(divide="ignore", invalid="ignore"):
         if quantity == "voltage":
@@ -153,13 +161,14 @@ def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.nd
 def overlap_check(*, outcome: Outcome, quantity: str, vs: np.ndarray, r: np.ndarray,
                   omega: np.ndarray, l_s: np.ndarray, alpha: np.ndarray, alpha_lo: np.ndarray,
                   e: np.ndarray | float, continuous: np.ndarray, continuous_lo: np.ndarray,
-                  req_hi: np.ndarray) -> Outcome:
-    """``power.output`` of a full bridge with source inductance: the outcome of the check
-    without it, with :func:`overlap_on_output`'s values; rows whose full output the overlap
-    brings below ``req_hi`` fail (margin = lowered/req_hi − 1)."""
+                  req_hi: np.ndarray, semi: bool = False) -> Outcome:
+    """``power.output`` of a bridge with source inductance (``semi``: half-controlled): the
+    outcome of the check without it, with :func:`overlap_on_output`'s values; rows whose full
+    output the overlap brings below ``req_hi`` fail (margin = lowered/req_hi − 1)."""
     vals = overlap_on_output(values=outcome.values, quantity=quantity, vs=vs, r=r, omega=omega,
                              l_s=l_s, alpha=alpha, alpha_lo=alpha_lo, e=e,
-                             continuous=continuous, continuous_lo=continuous_lo, req_hi=req_hi)
+                             continuous=continuous, continuous_lo=continuous_lo, req_hi=req_hi,
+                             semi=semi)
     short = vals["overlap_short"] > 0
     status = np.where(short, FAIL, outcome.status).astype(np.int8)
     with np.errstate(divide="ignore", invalid="ignore"):
