@@ -26,13 +26,6 @@ def _bind(ctx: Context) -> Bound:
     ctx.need(b, "vs", "supply.voltage")
     ctx.need(b, "freq", "supply.frequency")
     pw._bind_load(ctx, b)
-    if b.inputs["l"].value.hi > 0:
-        # With inductance the harmonic currents are not monotonic in R (the conduction angle
-        # and phase move with it): R is sampled across its range, not taken at its ends.
-        b.inputs["r"].sweep = R_SWEEP
-        rv = b.inputs["r"].value
-        if rv.varies:
-            b.options["r_range"] = (rv.lo, rv.hi, 0.5 * (rv.hi - rv.lo) / (R_SWEEP - 1))
     extra = [math.pi / 2]
     r, lv, f = (ctx.project.lookup(p) for p in (pw._sp(ctx, "load.r"), pw._sp(ctx, "load.l"),
                                                  "supply.frequency"))
@@ -52,6 +45,13 @@ def _bind(ctx: Context) -> Bound:
     if not 200.0 <= vs.nom <= 250.0:
         b.notes.append(f"the Class A table is for 220–240 V systems; on {eng(vs.nom, 'V')} it "
                        "is shown for orientation only")
+    if b.inputs["l"].value.hi > 0 and "burst_period" not in b.options:
+        # With inductance the harmonic currents are not monotonic in R (the conduction angle
+        # and phase move with it): R is sampled across its range, not taken at its ends.
+        b.inputs["r"].sweep = R_SWEEP
+        rv = b.inputs["r"].value
+        if rv.varies:
+            b.options["r_range"] = (rv.lo, rv.hi, 0.5 * (rv.hi - rv.lo) / (R_SWEEP - 1))
     return b
 
 
