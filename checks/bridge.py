@@ -1,4 +1,5 @@
-"""Commutation overlap of a fully controlled single-phase bridge with source inductance.
+"""Commutation overlap of single-phase bridges with source inductance: the fully controlled
+bridge and the half-controlled bridge (semi-converter) whose diode leg freewheels the load.
 
 When the incoming pair is fired, the supply's inductance L_s keeps both pairs conducting while
 the line current reverses from −I_d to +I_d: the output is shorted (v_d = 0) for the overlap
@@ -7,12 +8,24 @@ angle μ, with  Vm·(cos α − cos(α + μ)) = 2·ω·L_s·I_d,  so the mean ou
 I_d = [(2Vm/π)·cos α − E]/(R + 2ωL_s/π). Commutation fails (no μ) when
 cos α − 2ωL_s·I_d/Vm < −1: the current cannot transfer before the line reverses.
 
+A half-controlled bridge makes two transfers of I_d (not one of 2·I_d) per half-cycle: at the
+line zero its diode leg takes the load current over (freewheeling) while the line current falls
+from I_d to 0, over μ_d with cos μ_d = 1 − ωL_s·I_d/Vm; at the firing the incoming SCR takes
+it from the freewheeling path while the line current rises from 0 to I_d, over μ with
+cos(α + μ) = cos α − ωL_s·I_d/Vm. The output is zero during both (and while it freewheels), so
+V_d = (Vm/π)·(1 + cos α) − ωL_s·I_d/π: half the full bridge's drop. Fired before the diode
+transfer ends (α < μ_d) the line current runs on from −I_d to +I_d in one overlap from the line
+zero, as in a diode bridge: V_d = 2Vm/π − 2ωL_s·I_d/π; both are the first form with
+α' = max(α, μ_d).
+
 References
 ----------
 [1] N. Mohan, T. M. Undeland & W. P. Robbins, *Power Electronics: Converters, Applications, and
     Design*, ch. 5–6 (line-frequency rectifiers with L_s: commutation, ΔV_d = (2/π)·ωL_s·I_d).
 [2] M. H. Rashid, *Power Electronics: Devices, Circuits, and Applications*, 4th ed., §10
     (effects of source inductance on single-phase converters).
+[3] P. S. Bimbhra, *Power Electronics*, ch. 6 (single-phase semi-converter with source
+    inductance: V_d = (Vm/π)(1 + cos α) − (ωL_s/π)·I_d) [from memory].
 """
 
 from __future__ import annotations
@@ -60,23 +73,76 @@ def overlap_output(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray, l_s: np.
     return {"i_d": i_d, "vdc": vd0 - drop, "drop": drop, "mu": mu}
 
 
+def semi_overlap_output(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray,
+                        l_s: np.ndarray, alpha: np.ndarray,
+                        e: np.ndarray | float = 0.0) -> dict[str, np.ndarray]:
+    """A half-controlled bridge (diode leg freewheeling) in continuous, ripple-free conduction
+    with source inductance  [3], [1, ch. 5–6 (the diode bridge for α < μ_d)].
+
+    With x = ωL_s·I_d/Vm: the diode-leg transfer at the line zero lasts μ_d = acos(1 − x); the
+    firing transfer from α' = max(α, μ_d) lasts μ with cos(α' + μ) = cos α' − x (for α < μ_d
+    the two are one, from the line zero, 2·x); V_d = (Vm/π)·(1 + cos α') − ωL_s·I_d/π, and
+    I_d = [(Vm/π)·(1 + cos α') − E]/(R + ωL_s/π) (0 where negative). α < μ_d at that current
+    gives the diode-bridge current [2Vm/π − E]/(R + 2ωL_s/π).
+
+    Returns ``i_d`` [A], ``vdc`` [V], ``drop`` [V] the mean output lost to the overlaps
+    ((Vm/π)(1 + cos α) − V_d), ``mu`` [rad] the firing overlap (from α; for α < μ_d the whole
+    overlap from the line zero less α), ``mu_d`` [rad] the diode-leg transfer (NaN where the
+    firing interrupts it), ``mu_end`` [rad] where the output leaves zero. NaN μ where the
+    transfer cannot end before π. vs [V RMS]; r [Ω]; omega [rad/s]; l_s [H]; alpha [rad]; e [V].
+
+    >>> o = semi_overlap_output(vs=230.0, r=8.0, omega=2 * np.pi * 50, l_s=1e-3,
+    ...                         alpha=np.radians(30), e=0.0)
+    >>> round(float(o["i_d"]), 3), round(float(np.degrees(o["mu"])), 3)
+    (23.852, 2.543)
+    """
+    vm = np.sqrt(2.0) * _a(vs)
+    xl = _a(omega) * _a(l_s)
+    a = _a(alpha)
+    r, e = _a(r), _a(e)
+    i_semi = np.maximum((vm / np.pi * (1 + np.cos(a)) - e) / (r + xl / np.pi), 0.0)
+    i_diode = np.maximum((2 * vm / np.pi - e) / (r + 2 * xl / np.pi), 0.0)
+    # The diode-leg transfer at I_d is over by α when 1 − cos α ≥ x.
+    early = (1 - np.cos(a)) < xl * i_semi / vm
+    i_d = np.where(early, i_diode, i_semi)
+    x = xl * i_d / vm
+    mu_d = np.arccos(np.clip(1 - x, -1.0, 1.0))
+    a_eff = np.maximum(a, mu_d)
+    arg = np.cos(a_eff) - np.where(early, 0.0, x)
+    if_early = 1 - 2 * x  # the one overlap from the line zero
+    arg = np.where(early, if_early, arg)
+    with np.errstate(invalid="ignore"):
+        end = np.where(arg >= -1.0, np.arccos(np.clip(arg, -1.0, 1.0)), np.nan)
+    vdc = vm / np.pi * (1 + np.cos(a_eff)) - xl * i_d / np.pi
+    return {"i_d": i_d, "vdc": vdc, "drop": vm / np.pi * (1 + np.cos(a)) - vdc,
+            "mu": end - a, "mu_d": np.where(early, np.nan, mu_d), "mu_end": end}
+
+
 def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.ndarray,
                       r: np.ndarray, omega: np.ndarray, l_s: np.ndarray, alpha: np.ndarray,
                       alpha_lo: np.ndarray, e: np.ndarray | float, continuous: np.ndarray,
-                      continuous_lo: np.ndarray, req_hi: np.ndarray) -> dict[str, np.ndarray]:
-    """The overlap's effect on a full bridge's ``power.output`` values (continuous rows only).
+                      continuous_lo: np.ndarray, req_hi: np.ndarray,
+                      semi: bool = False) -> dict[str, np.ndarray]:
+    """The overlap's effect on a bridge's ``power.output`` values (continuous rows only): a
+    fully controlled bridge (:func:`overlap_output`) or, with ``semi``, a half-controlled one
+    (:func:`semi_overlap_output`).
 
     Adds ``overlap_angle`` μ [rad] and ``overlap_drop`` ΔV [V] at the row's α (NaN where the
-    conduction is discontinuous), and lowers the full output ``output_at_min`` at α_lo by ΔV
-    (voltage), ΔV/R (current) or the factor ((V − ΔV)/V)² (power); returns the new values and
-    ``overlap_short`` (1 where the lowered full output no longer reaches ``req_hi``).
+    conduction is discontinuous; ``semi`` also ``overlap_diode`` μ_d [rad], the diode leg's
+    transfer at the line zero, NaN where the firing interrupts it), and lowers the full output
+    ``output_at_min`` at α_lo by ΔV (voltage), ΔV/R (current) or the factor ((V − ΔV)/V)²
+    (power); returns the new values and ``overlap_short`` (1 where the lowered full output no
+    longer reaches ``req_hi``).
     """
     out = dict(values)
-    row = overlap_output(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha, e=e)
+    solve = semi_overlap_output if semi else overlap_output
+    row = solve(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha, e=e)
     cont = np.asarray(continuous) > 0
     out["overlap_angle"] = np.where(cont, row["mu"], np.nan)
     out["overlap_drop"] = np.where(cont, row["drop"], np.nan)
-    lo = overlap_output(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha_lo, e=e)
+    if semi:
+        out["overlap_diode"] = np.where(cont, row["mu_d"], np.nan)
+    lo = solve(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha_lo, e=e)
     full = _a(values["output_at_min"])
     with np.errstate(divide="ignore", invalid="ignore"):
         if quantity == "voltage":
@@ -95,13 +161,14 @@ def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.nd
 def overlap_check(*, outcome: Outcome, quantity: str, vs: np.ndarray, r: np.ndarray,
                   omega: np.ndarray, l_s: np.ndarray, alpha: np.ndarray, alpha_lo: np.ndarray,
                   e: np.ndarray | float, continuous: np.ndarray, continuous_lo: np.ndarray,
-                  req_hi: np.ndarray) -> Outcome:
-    """``power.output`` of a full bridge with source inductance: the outcome of the check
-    without it, with :func:`overlap_on_output`'s values; rows whose full output the overlap
-    brings below ``req_hi`` fail (margin = lowered/req_hi − 1)."""
+                  req_hi: np.ndarray, semi: bool = False) -> Outcome:
+    """``power.output`` of a bridge with source inductance (``semi``: half-controlled): the
+    outcome of the check without it, with :func:`overlap_on_output`'s values; rows whose full
+    output the overlap brings below ``req_hi`` fail (margin = lowered/req_hi − 1)."""
     vals = overlap_on_output(values=outcome.values, quantity=quantity, vs=vs, r=r, omega=omega,
                              l_s=l_s, alpha=alpha, alpha_lo=alpha_lo, e=e,
-                             continuous=continuous, continuous_lo=continuous_lo, req_hi=req_hi)
+                             continuous=continuous, continuous_lo=continuous_lo, req_hi=req_hi,
+                             semi=semi)
     short = vals["overlap_short"] > 0
     status = np.where(short, FAIL, outcome.status).astype(np.int8)
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -8,6 +8,8 @@ References
 
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import numpy as np
 
 
@@ -98,20 +100,25 @@ def extinction_angle(*, alpha: np.ndarray, phi: np.ndarray) -> np.ndarray:
     return out
 
 
-def _extinction_rl(a: np.ndarray, p: np.ndarray, tp: np.ndarray) -> np.ndarray:
-    """:func:`extinction_angle` for 1-D inductive rows with α < π (tan φ > 0)."""
-    lo = np.maximum(a, np.pi)
-    hi = np.maximum(2 * np.pi - a, lo)
-    k0, inv = np.sin(a - p), 1.0 / tp
-    g_lo, _ = _g(lo, a, k0, inv, p)
-    g_hi, _ = _g(hi, a, k0, inv, p)
-    # A bracket without a sign change collapses onto the end the bisection would reach.
-    fixed = np.where(g_lo <= 0.0, lo, np.where(g_hi > 0.0, hi, np.nan))
-    out = 0.5 * (lo + hi)
-    idx = np.flatnonzero(np.isnan(fixed))  # rows still iterating
-    b, lo, hi, a, k0, inv, p = (x[idx] for x in (out, lo, hi, a, k0, inv, p))
+def root_falling(lo: np.ndarray, hi: np.ndarray,
+                 f: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
+                 ) -> np.ndarray:
+    """The root of a function that falls through zero once on [lo, hi] (f(lo) > 0 ≥ f(hi)),
+    every row at once [rad]: Newton steps, bisecting whenever a step would leave the bracket,
+    until every row's step (or bracket) is below 4e-15 rad. ``f(b, rows)`` returns (value,
+    slope) at ``b`` for the rows of the 1-D arrays ``lo``, ``hi`` selected by the index array
+    ``rows`` (rows that converged early leave the iteration).
+
+    >>> round(float(root_falling(np.array([0.0]), np.array([3.0]),
+    ...                          lambda b, rows: (np.cos(b), -np.sin(b)))[0]), 12)
+    1.570796326795
+    """
+    lo, hi = np.array(lo, dtype=float), np.array(hi, dtype=float)
+    rows = np.arange(lo.size)
+    b = 0.5 * (lo + hi)
+    out = b.copy()
     for _ in range(_NEWTON_MAX):
-        g, dg = _g(b, a, k0, inv, p)
+        g, dg = f(b, rows)
         pos = g > 0.0
         lo = np.where(pos, b, lo)
         hi = np.where(pos, hi, b)
@@ -124,9 +131,27 @@ def _extinction_rl(a: np.ndarray, p: np.ndarray, tp: np.ndarray) -> np.ndarray:
         n_done = int(np.count_nonzero(done))
         if n_done == done.size:
             break
-        if 4 * n_done >= done.size:  # enough rows converged: drop them from the iteration
-            out[idx[done]] = b[done]
+        if 4 * n_done >= done.size:  # enough rows converged: iterate on the rest only
+            out[rows[done]] = b[done]
             keep = ~done
-            idx, b, lo, hi, a, k0, inv, p = (x[keep] for x in (idx, b, lo, hi, a, k0, inv, p))
-    out[idx] = b
-    return np.where(np.isnan(fixed), out, fixed)
+            rows, b, lo, hi = rows[keep], b[keep], lo[keep], hi[keep]
+    out[rows] = b
+    return out
+
+
+def _extinction_rl(a: np.ndarray, p: np.ndarray, tp: np.ndarray) -> np.ndarray:
+    """:func:`extinction_angle` for 1-D inductive rows with α < π (tan φ > 0)."""
+    lo = np.maximum(a, np.pi)
+    hi = np.maximum(2 * np.pi - a, lo)
+    k0, inv = np.sin(a - p), 1.0 / tp
+    g_lo, _ = _g(lo, a, k0, inv, p)
+    g_hi, _ = _g(hi, a, k0, inv, p)
+    # A bracket without a sign change collapses onto the end the bisection would reach.
+    fixed = np.where(g_lo <= 0.0, lo, np.where(g_hi > 0.0, hi, np.nan))
+    out = np.array(fixed)
+    idx = np.flatnonzero(np.isnan(fixed))  # rows to iterate
+    if idx.size:
+        a, k0, inv, p = (x[idx] for x in (a, k0, inv, p))
+        out[idx] = root_falling(lo[idx], hi[idx],
+                                lambda b, rows: _g(b, a[rows], k0[rows], inv[rows], p[rows]))
+    return out

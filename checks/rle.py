@@ -28,17 +28,16 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Callable, Mapping
+from collections.abc import Mapping
 
 import numpy as np
 
 from checks.core import FAIL, PASS, Outcome, grade
 from checks.power import _decay, _one_minus_decay, _segment_peak, segment_integrals
+from checks.rl import root_falling
 
 TOPOLOGIES = ("half-wave", "bridge")
 _TINY = 1e-12
-_NEWTON_MAX = 60
-_TOL = 4e-15
 
 
 def _a(x: object) -> np.ndarray:
@@ -53,38 +52,6 @@ def emf_angle(*, vm: np.ndarray, e: np.ndarray) -> np.ndarray:
     8.13
     """
     return np.arcsin(np.clip(_a(e) / _a(vm), 0.0, 1.0))
-
-
-def _root_falling(lo: np.ndarray, hi: np.ndarray,
-                  f: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
-                  ) -> np.ndarray:
-    """The root of a function that falls through zero once on [lo, hi] (f(lo) > 0 ≥ f(hi)),
-    every row at once: Newton steps, bisecting whenever a step would leave the bracket.
-    ``f(theta, rows)`` returns (value, slope) for the rows selected by the index array."""
-    lo, hi = np.array(lo, dtype=float), np.array(hi, dtype=float)
-    rows = np.arange(lo.size)
-    b = 0.5 * (lo + hi)
-    out = b.copy()
-    for _ in range(_NEWTON_MAX):
-        g, dg = f(b, rows)
-        pos = g > 0.0
-        lo = np.where(pos, b, lo)
-        hi = np.where(pos, hi, b)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            step = b - g / dg
-        inside = (step >= lo) & (step <= hi) & np.isfinite(step)
-        b_new = np.where(g == 0.0, b, np.where(inside, step, 0.5 * (lo + hi)))
-        done = (np.abs(b_new - b) <= _TOL) | (hi - lo <= _TOL)
-        b = b_new
-        n_done = int(np.count_nonzero(done))
-        if n_done == done.size:
-            break
-        if 4 * n_done >= done.size:  # enough rows converged: iterate on the rest only
-            out[rows[done]] = b[done]
-            keep = ~done
-            rows, b, lo, hi = rows[keep], b[keep], lo[keep], hi[keep]
-    out[rows] = b
-    return out
 
 
 def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.ndarray,
@@ -162,7 +129,7 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
             j = idx[rows]
             return seg_val(th, a0[j], c0[j], k[j], tau[j], phi[j])
 
-        beta[idx] = _root_falling(lo[idx], hi[idx], f)
+        beta[idx] = root_falling(lo[idx], hi[idx], f)
     outlasts = starts & ~res & (g_hi > 0.0)  # the zero-start current is alive at `hi`
 
     a = a0.copy()

@@ -25,7 +25,7 @@ import numpy as np
 
 from checks.core import Outcome, grade
 from checks.oscillator import line_sync_firing_angle
-from checks.rl import extinction_angle, load_angle
+from checks.rl import extinction_angle, load_angle, root_falling
 
 _TWO_PI = 2.0 * np.pi
 
@@ -319,6 +319,98 @@ def line_turnoff(*, topology: str, freewheel: bool, alpha: np.ndarray, omega: np
     return LineTurnoff(np.broadcast_to(t_c, alpha.shape), beta, full_line, continuous, lost)
 
 
+def line_turnoff_emf(*, topology: str, alpha: np.ndarray, omega: np.ndarray, r: np.ndarray,
+                     l: np.ndarray, vm: np.ndarray, e: np.ndarray,  # noqa: E741
+                     l_s: np.ndarray | float = 0.0) -> LineTurnoff:
+    """Circuit turn-off time of natural commutation with a back-EMF load (battery, motor) [s].
+
+    After its current ends at the R–L–E extinction angle β (:func:`checks.rle.waveform_pu`,
+    conduction from max(α, θ1), θ1 = asin(E/V_m)) the load's terminals sit at E, so the SCR
+    sees v − E: it stays reverse-biased until the line again exceeds E, at 2π + θ1
+    [2, §10 (R–L–E load)], [1, ch. 6 (battery charging)]:
+
+    - half-wave: (2π + θ1 − β)/ω; 0 where the current reaches 2π + θ1 (it never ends);
+    - fully controlled bridge, discontinuous: the incoming pair fires at π + max(α, θ1) and,
+      while it conducts, puts the line itself across the outgoing SCR: (2π − β)/ω when β > π
+      (the incoming pair still conducts at 2π), else (2π + θ1 − β)/ω (its current too ended
+      before 2π, the pair then shares v − E < 0); continuous, or fired before θ1 with a current
+      that outlasts π + α (the incoming pair takes it over there): (π − α − μ)/ω with μ from
+      :func:`overlap_angle` for the R–L–E current handed over; in the latter case the pair
+      that took it over carries it on while the line is below E and, where it ends at θ_d
+      before θ1, is forward-biased again at θ1: (θ1 − θ_d)/ω when shorter.
+
+    Rows where the line never exceeds E after α conduct nothing; they keep the formula's value.
+    Not for a freewheeling diode (π/ω there, :func:`line_turnoff`). Arguments as
+    :func:`line_turnoff`; e [V] back EMF ≥ 0.
+
+    >>> w = 2 * np.pi * 50  # R and E only: conducts θ1..π − θ1, so t_c = (π + 2·θ1)/ω
+    >>> out = line_turnoff_emf(topology="half-wave", alpha=0.0, omega=w, r=1.0, l=0.0,
+    ...                        vm=100.0, e=50.0)
+    >>> round(float(out.turnoff_time) * 1e3, 4), round((np.pi + np.pi / 3) / w * 1e3, 4)
+    (13.3333, 13.3333)
+    """
+    from checks.power import _decay
+    from checks.rle import waveform_pu
+
+    alpha, omega, r, l, vm, e, l_s = np.broadcast_arrays(  # noqa: E741
+        _a(alpha), _a(omega), _a(r), _a(l), _a(vm), _a(e), _a(l_s))
+    phi = load_angle(r=r, l=l, omega=omega)
+    w = waveform_pu(topology=topology, freewheel=False, alpha=alpha, phi=phi, m=e / vm,
+                    peak=False)
+    beta, th1 = w["beta"], w["theta1"]
+    back = np.maximum(_TWO_PI + th1 - beta, 0.0) / omega
+    continuous = w["continuous"] > 0
+    if topology == "half-wave":
+        t_c = back
+    else:
+        t_disc = np.where(beta > np.pi, np.maximum(_TWO_PI - beta, 0.0) / omega, back)
+        # Fired before θ1 (α < θ1) a current from θ1 may outlast π + α: the incoming pair's
+        # pulse then takes it over (the outgoing pair's conduction forward-biases it).
+        handed = ~continuous & (beta > np.pi + alpha)
+        z = np.hypot(r, omega * l)
+        at = np.where(continuous, alpha, np.pi + alpha)
+        i_d = (vm / z) * (np.sin(at - phi) - w["offset"] + w["seg_c"] * _decay(
+            at - w["seg_a"], np.tan(phi)))
+        continuous = continuous | handed
+        mu = overlap_angle(alpha=alpha, omega=omega, l_s=l_s,
+                           i_d=np.where(continuous, np.maximum(i_d, 0.0), 0.0), vm=vm)
+        t_cont = np.maximum(np.pi - alpha - mu, 0.0) / omega
+        t_cont = np.minimum(t_cont, _tail_turnoff(handed, alpha, phi, w, i_d * z / vm) / omega)
+        t_c = np.where(continuous, np.where(np.isnan(mu), 0.0, t_cont), t_disc)
+        beta = np.where(continuous, np.pi + alpha + np.nan_to_num(mu), beta)
+    nan = np.full(alpha.shape, np.nan)
+    return LineTurnoff(np.broadcast_to(t_c, alpha.shape), beta, nan, continuous,
+                       np.zeros(alpha.shape, dtype=bool))
+
+
+def _tail_turnoff(handed: np.ndarray, alpha: np.ndarray, phi: np.ndarray,
+                  w: Mapping[str, np.ndarray], i_h: np.ndarray) -> np.ndarray:
+    """A bridge fired before θ1 whose current outlasts π + α hands it over there: the
+    incoming pair carries it on while the line is still below E, so it falls, and where it
+    ends before θ1 (+ π), at θ_d, that pair is forward-biased again at θ1 when the line
+    exceeds E: reverse-biased for θ1 − θ_d [rad]; ∞ where the current outlasts θ1 or on
+    other rows. i_h [per unit of V_m/Z] the current handed over."""
+    shape = alpha.shape
+    handed, alpha, phi, i_h = (np.ravel(x) for x in (handed, alpha, phi, i_h))
+    k, th1 = np.ravel(w["offset"]), np.ravel(w["theta1"])
+    out = np.full(alpha.shape, np.inf)
+    tau = np.tan(phi)
+    c = i_h + k - np.sin(alpha - phi)  # the tail i = sin(θ − φ) − k + c·e^(−(θ − α)/τ)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        g_end = np.sin(th1 - phi) - k + c * np.exp(-(th1 - alpha) / tau)
+    idx = np.flatnonzero(handed & (tau > 1e-12) & (g_end <= 0.0) & (i_h > 0.0))
+    if idx.size:
+        a, p, kk, cc, tt = (x[idx] for x in (alpha, phi, k, c, tau))
+
+        def f(b: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            ex = cc[rows] * np.exp(-(b - a[rows]) / tt[rows])
+            return (np.sin(b - p[rows]) - kk[rows] + ex,
+                    np.cos(b - p[rows]) - ex / tt[rows])
+
+        out[idx] = th1[idx] - root_falling(a, th1[idx], f)
+    return out.reshape(shape)
+
+
 def step_dvdt_max(*, e: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
                   c: np.ndarray) -> np.ndarray:
     """Largest dv/dt across a series R–C reached by a step E through L, from rest [V/s].
@@ -476,11 +568,16 @@ def capacitor_time(*, model: str, c: np.ndarray, r: np.ndarray, v_s: np.ndarray,
 def _line(*, topology: str, freewheel: bool, alpha: np.ndarray | None, f: np.ndarray,
           r: np.ndarray | None, l: np.ndarray | None, v_s: np.ndarray | None,  # noqa: E741
           l_s: np.ndarray | None, osc: Mapping[str, Any],
-          gate_pulse: float | None = None) -> LineTurnoff:
+          gate_pulse: float | None = None, e: np.ndarray | None = None) -> LineTurnoff:
     """:func:`line_turnoff` with the inputs a check read; the rest cannot change the answer
-    (a resistive load or a freewheeling diode makes t_c = π/ω whatever α, R and V are)."""
+    (a resistive load or a freewheeling diode makes t_c = π/ω whatever α, R and V are).
+    With a back EMF ``e`` [V]: :func:`line_turnoff_emf`."""
     vs = _a(1.0 if v_s is None else v_s)
     a = 0.0 if alpha is None and not osc else firing_angle(alpha=alpha, v_s=vs, f=f, osc=osc)
+    if e is not None and not freewheel:
+        return line_turnoff_emf(topology=topology, alpha=a, omega=_TWO_PI * _a(f),
+                                r=1.0 if r is None else r, l=0.0 if l is None else l,
+                                vm=_vm(vs, True), e=e, l_s=0.0 if l_s is None else l_s)
     return line_turnoff(topology=topology, freewheel=freewheel, alpha=a,
                         omega=_TWO_PI * _a(f), r=1.0 if r is None else r,
                         l=0.0 if l is None else l, vm=_vm(vs, True),
@@ -494,11 +591,12 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
                alpha: np.ndarray | None = None, l_s: np.ndarray | None = None,
                model: str = "resistive", diode: str = "unknown", topology: str = "half-wave",
                freewheel: bool = False, ac: bool = False, gate_pulse: float | None = None,
-               **osc: Any) -> Outcome:
+               e: np.ndarray | None = None, **osc: Any) -> Outcome:
     """``turnoff.time``: circuit turn-off time t_c against tq; metric t_c/tq.
 
     network ``line``: :func:`line_turnoff` (alpha [rad] or the oscillator's ``osc_*`` inputs,
-    see :func:`firing_angle`; f [Hz]; r [Ω], l [H] load; v_s [V RMS]; l_s [H]);
+    see :func:`firing_angle`; f [Hz]; r [Ω], l [H] load; v_s [V RMS]; l_s [H]; e [V] a back
+    EMF, :func:`line_turnoff_emf`);
     ``capacitor``: :func:`capacitor_time` (model); ``resonant``: :func:`resonant_turnoff_time`
     (diode) with I_o from :func:`load_current`. tq [s] at Tj,max.
 
@@ -518,7 +616,7 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
     if network == "line":
         assert f is not None
         lt = _line(topology=topology, freewheel=freewheel, alpha=alpha, f=f, r=r, l=l,
-                   v_s=v_s, l_s=l_s, osc=osc, gate_pulse=gate_pulse)
+                   v_s=v_s, l_s=l_s, osc=osc, gate_pulse=gate_pulse, e=e)
         t_c = lt.turnoff_time
         values.update(full_line_time=lt.full_line_time, beta=lt.beta,
                       continuous=lt.continuous.astype(float),

@@ -24,7 +24,8 @@ RULES = (
     "needs `turns_ratio`.",
     "A phase-control stage needs an AC supply and `firing` or `gate`; not both when the gate's "
     "oscillator is line-synchronised (its timing sets the angle), and `firing` when it is "
-    "free-running (its pulses are not tied to the line).",
+    "free-running (its pulses are not tied to the line), unless `control = \"burst\"` (whole "
+    "cycles fired at the voltage zero).",
     "`freewheel` is not for an `ac-switch` (the load sees AC).",
     "A dc-switch stage needs a DC supply.",
     "A triac part's `dvdt_c` and `didt_c` come together ((dv/dt)c is rated at that (di/dt)c); "

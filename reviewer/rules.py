@@ -110,7 +110,8 @@ def _phase_control(project: Project, st: Stage, table: str, where: WhereFn) -> N
                            f"oscillator `{osc.id}` is line-synchronised, so its timing sets the "
                            "angle. Remove `firing` (the range then comes from the oscillator), "
                            "or remove `gate` to review a fixed range", where(table, "firing"))
-    if "firing" not in st.params and osc is not None and osc.get("sync") != "line":
+    if "firing" not in st.params and osc is not None and osc.get("sync") != "line" \
+            and st.get("control") != "burst":  # burst control fires at the voltage zero
         raise ProjectError(f"the firing range is not known: the gate's oscillator `{osc.id}` is "
                            "free-running, so its pulses are not tied to the line. Add "
                            'firing = { min = "…", max = "…" } (the angles the control covers), '

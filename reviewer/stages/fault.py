@@ -25,13 +25,11 @@ def _bind(ctx: Context) -> Bound:
         return b
     if not pw._hot_or_na(ctx, b, {"itsm": "itsm"}):
         return b
-    part = pw._scr(ctx)
     ctx.need(b, "vs", "supply.voltage")
     ctx.need(b, "freq", "supply.frequency")
     ctx.need(b, "l_s", "supply.inductance")
-    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
-    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is None:
-        b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    pw.bind_device_i2t(ctx, b)
+    if "i2t" not in b.inputs:
         b.options["i2t_from_itsm"] = True
     fuse = ctx.stage.get("fuse")
     if isinstance(fuse, dict):
@@ -44,7 +42,7 @@ def _fn(*, vs: Any, freq: Any, l_s: Any, itsm: Any, t_sm: Any, limits: Mapping[s
         i2t: Any = None, i2t_from_itsm: bool = False, fuse_i2t: Any = None,
         t_fuse: Any = None) -> Outcome:
     t_sm = np.asarray(t_sm, dtype=float)
-    dev = np.asarray(itsm, dtype=float) ** 2 * t_sm / 2 if i2t is None else i2t
+    dev = pw.device_i2t(i2t=i2t, itsm=itsm, t_sm=t_sm)
     return fault.fault_check(vs=vs, omega=2 * np.pi * np.asarray(freq, dtype=float), l_s=l_s,
                              itsm=itsm, t_sm=t_sm, i2t=dev, fuse_i2t=fuse_i2t, t_fuse=t_fuse,
                              limits=limits)

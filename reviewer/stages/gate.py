@@ -336,7 +336,14 @@ def _bind_latch_time(ctx: Context) -> Bound:
     b.options["load"] = "ac"
     ctx.need(b, "f", "supply.frequency")
     firing = power.get("firing")
-    if isinstance(firing, Value):
+    if power.get("control") == "burst":
+        # Integral-cycle control fires at the voltage zero: the anode current rises from zero
+        # with the line, the slowest start of all, so the pulse must last until it reaches IL.
+        b.add("alpha", ctx.stage_path("control", power) + "#burst",
+              Value.fixed(0.0, "angle", "rad"))
+        b.notes.append("integral-cycle control: fired at the voltage zero, where the anode "
+                       "current rises from zero with the line")
+    elif isinstance(firing, Value):
         ctx.need(b, "alpha", ctx.stage_path("firing", power), sweep=7 if firing.varies else 0)
     elif osc.get("sync") == "line":
         ctx.need(b, "rt", ctx.stage_path("timing_r", osc))
@@ -353,7 +360,10 @@ def _sum_latch_time(r: Reduced) -> str:
     text = (f"gate held {span(r.lo['pulse_width'], r.hi['pulse_width'], 's')} above IGT(cold) "
             f"against {need} needed for the anode current to reach IL "
             f"{eng(r.worst['il_cold'], 'A')} (cold, low line)")
-    if not math.isnan(r.nom["firing_angle"]):
+    alpha = r.bound.inputs.get("alpha")
+    if alpha is not None and alpha.path.endswith("#burst"):
+        text += " at the voltage zero (integral-cycle control: the current rises with the line)"
+    elif not math.isnan(r.nom["firing_angle"]):
         text += (f" over α {span(r.lo['firing_angle'], r.hi['firing_angle'], 'deg')}; "
                  f"latch limit {at_most(r.lo['latch_limit_angle'], 'deg')}")
     if r.status in ("fail", "marginal"):
@@ -381,7 +391,8 @@ register(CheckDef(
     method="pulse width = time the gate-loaded discharge keeps i_G ≥ IGT_c (capped at the "
            "valley); required = time for the anode current from zero at α to reach IL_c at "
            "low line (R: the sine; R–L: first crossing of the exact current; DC: "
-           "−(L/R)·ln(1 − R·IL/V)) plus tgt; at every α of the firing range.",
+           "−(L/R)·ln(1 − R·IL/V)) plus tgt; at every α of the firing range (integral-cycle "
+           "control: α = 0, the current from zero with the line, asin(IL·R/Vm)/ω for R).",
     source="Rashid 4e Ex 10.11 (minimum gate pulse width); Bimbhra ch. 4; Singhal & Gupta "
            "Ex 1_5",
     fn=gate.latch_time_check, bind=_bind_latch_time,

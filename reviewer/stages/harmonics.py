@@ -17,6 +17,7 @@ from reviewer.safety import HARMONICS
 from reviewer.stages import power as pw
 
 FIRING_SWEEP = 13
+R_SWEEP = 9
 
 
 def _bind(ctx: Context) -> Bound:
@@ -44,6 +45,13 @@ def _bind(ctx: Context) -> Bound:
     if not 200.0 <= vs.nom <= 250.0:
         b.notes.append(f"the Class A table is for 220–240 V systems; on {eng(vs.nom, 'V')} it "
                        "is shown for orientation only")
+    if b.inputs["l"].value.hi > 0 and "burst_period" not in b.options:
+        # With inductance the harmonic currents are not monotonic in R (the conduction angle
+        # and phase move with it): R is sampled across its range, not taken at its ends.
+        b.inputs["r"].sweep = R_SWEEP
+        rv = b.inputs["r"].value
+        if rv.varies:
+            b.options["r_range"] = (rv.lo, rv.hi, 0.5 * (rv.hi - rv.lo) / (R_SWEEP - 1))
     return b
 
 
@@ -69,11 +77,36 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
     a, _, _ = pw._firing(kw)
     omega = pw._omega(kw)
     e = kw.pop("e", None)
-    v = power.stage_values(topology=topology, freewheel=freewheel, alpha=a, omega=omega,
-                           e=e, peak=False, **kw)
-    v["z"] = np.hypot(np.asarray(kw["r"], dtype=float), omega * np.asarray(kw["l"]))
-    return harmonics.harmonics_check(waveform=v, topology=topology, freewheel=freewheel,
-                                     limits=limits)
+    r_range = kw.pop("r_range", None)
+
+    def at(r: Any) -> Outcome:
+        v = power.stage_values(topology=topology, freewheel=freewheel, alpha=a, omega=omega,
+                               e=e, peak=False, **(kw | {"r": r}))
+        v["z"] = np.hypot(np.asarray(r, dtype=float), omega * np.asarray(kw["l"]))
+        return harmonics.harmonics_check(waveform=v, topology=topology, freewheel=freewheel,
+                                         limits=limits)
+
+    out = at(kw["r"])
+    if r_range is None:
+        return out
+    # The graded ratio at its least over R within half a sweep step of each row's R, so no R
+    # between the sampled ones reads worse than the result.
+    lo, hi, half = r_range
+    shape = np.shape(out.margin)
+    r_row = np.broadcast_to(np.asarray(kw["r"], dtype=float), shape).ravel()
+    n = r_row.size
+
+    def ratio(r: np.ndarray) -> np.ndarray:
+        return np.broadcast_to(at(r.reshape(shape)).values["limit_ratio"], shape).ravel()[:n]
+
+    r_w, _ = harmonics.refine_min(ratio, r_row, lo, hi, half)
+    worst = at(r_w.reshape(shape))
+    order = np.broadcast_to(worst.values["worst_order"], shape).astype(int)
+    h = np.stack([np.broadcast_to(worst.values[f"i_h{k}"], shape) for k in range(41)], axis=-1)
+    out.values.update(limit_ratio=worst.values["limit_ratio"], worst_order=order.astype(float),
+                      worst_harmonic=np.take_along_axis(h, order[..., None], axis=-1)[..., 0],
+                      worst_load_r=r_w.reshape(shape))
+    return Outcome(out.values, worst.margin, worst.status, out.notes)
 
 
 def _summarise(r: Reduced) -> str:
@@ -97,7 +130,9 @@ def _summarise(r: Reduced) -> str:
     if r.lo["in_scope"] == 0:
         text += ("; above 16 A per phase at some corners, where the table is out of its scope "
                  "(graded against it all the same)")
-    worst_i = r.worst[f"i_h{n}"]
+    worst_i = r.worst.get("worst_harmonic", r.worst[f"i_h{n}"])
+    if "worst_load_r" in r.worst:
+        text += f"; the worst load R within its range {eng(r.worst['worst_load_r'], 'ohm')}"
     if r.status != "pass":
         text += (f"; estimated harmonic {n} of {eng(worst_i, 'A')} exceeds the {cls} limit "
                  f"{eng(lim, 'A')} (ratio {r.worst['limit_ratio']:.2f}): a line filter or "
@@ -112,7 +147,8 @@ def _summarise(r: Reduced) -> str:
 UNITS = {"line_current": "A", "thd": "1", "displacement_factor": "1",
          "distortion_factor": "1", "power_factor": "1", "limit_ratio": "1", "worst_order": "1"}
 UNITS.update({f"i_h{n}": "A" for n in range(0, 41)})
-UNITS.update(interharmonic_current="A", interharmonic_frequency="Hz")
+UNITS.update(interharmonic_current="A", interharmonic_frequency="Hz", worst_harmonic="A",
+             worst_load_r="ohm")
 
 register(CheckDef(
     id="power.harmonics", kinds=("phase-control",),

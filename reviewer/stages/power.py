@@ -294,8 +294,7 @@ def _bind_output(ctx: Context) -> Bound:
     req = ctx.stage.get("required")
     path = _sp(ctx, "required")
     ls = ctx.project.supply.get("inductance")
-    if (ctx.stage.get("topology") == "bridge" and not b.options.get("freewheel")
-            and isinstance(ls, Value) and ls.hi > 0):
+    if ctx.stage.get("topology") == "bridge" and isinstance(ls, Value) and ls.hi > 0:
         ctx.need(b, "l_s", "supply.inductance")  # the commutation overlap
     if "e" in b.inputs:
         ev = b.inputs["e"].value
@@ -367,10 +366,12 @@ def _fn_output(**kw: Any) -> Outcome:
 
 def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
              l_s: Any) -> Outcome:
-    """A full bridge with source inductance: the overlap and the full output it costs."""
+    """A bridge with source inductance: the overlap and the full output it costs (a
+    half-controlled bridge's diode leg freewheels: two transfers of I_d a half-cycle)."""
     from checks import bridge
 
-    common = dict(topology="bridge", freewheel=False, vs=kw["vs"], r=kw["r"], l=kw["l"],
+    semi = bool(kw.get("freewheel"))
+    common = dict(topology="bridge", freewheel=semi, vs=kw["vs"], r=kw["r"], l=kw["l"],
                   omega=omega, peak=False, e=kw.get("e"))
     cont = power.stage_values(alpha=a, **common)["continuous"]
     cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
@@ -378,7 +379,7 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
     return bridge.overlap_check(
         outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
         alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
-        continuous_lo=cont_lo, req_hi=kw["req_hi"])
+        continuous_lo=cont_lo, req_hi=kw["req_hi"], semi=semi)
 
 
 def _sum_burst(r: Reduced) -> str:
@@ -445,6 +446,10 @@ def _sum_output(r: Reduced) -> str:
         text += (f"; the supply inductance overlaps the commutation by μ up to {_deg(mu)}, "
                  f"taking up to {eng(r.hi['overlap_drop'], 'V')} of the mean output "
                  "(counted in the full output)")
+        mu_d = r.hi.get("overlap_diode", float("nan"))
+        if mu_d == mu_d:
+            text += (f"; the diode leg takes the current over at the line zero in up to "
+                     f"{_deg(mu_d)}")
     if r.hi.get("overlap_short", 0.0) > 0:
         text += "; the overlap's drop is what makes the full output fall short"
     return text + _lost_text(r)
@@ -475,6 +480,8 @@ register(CheckDef(
     question="What does the load get over the firing range, and does it meet `required`?",
     method="Exact waveforms: R load closed forms; R–L from i(θ) = (Vm/Z)[sin(θ−φ) − "
            "sin(α−φ)e^(−(θ−α)/tanφ)] up to β, steady state where continuous or freewheeling. "
+           "Bridges with supply.inductance: the commutation overlap's drop, (2/π)·ωL_s·I_d "
+           "(fully controlled) or ωL_s·I_d/π (half-controlled), comes off the full output. "
            "Full output (α_min, low line) must reach required.max; minimum (α_max, high line) "
            "must be at or below required.min.",
     source="Rashid, Power Electronics 4th ed. §10–11 (Ex 10.1, 11.1, 11.2); Hart, Power "
@@ -482,11 +489,12 @@ register(CheckDef(
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
            "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
-           "overlap_angle": "deg", "overlap_drop": "V", "power_step": "W"},
+           "overlap_angle": "deg", "overlap_drop": "V", "overlap_diode": "deg",
+           "power_step": "W"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
-    optional=frozenset({"shortcut_error", "overlap_angle", "overlap_drop"}),
+    optional=frozenset({"shortcut_error", "overlap_angle", "overlap_drop", "overlap_diode"}),
 ))
 
 
@@ -870,7 +878,28 @@ register(CheckDef(
 
 
 # --------------------------------------------------------------------------------------------
-# power.fuse
+# power.fuse (and power.fault): the SCR's I²t
+
+def bind_device_i2t(ctx: Context, b: Bound) -> bool:
+    """Read the SCR's surge duration t_sm and its I²t, or its ITSM (unless already read) for
+    ITSM²·t_sm/2; False (a missing key named) when neither is given."""
+    part = _scr(ctx)
+    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
+    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is not None:
+        return True
+    if "itsm" not in b.inputs and ctx.read(b, "itsm", f"parts.{part.ref}.itsm") is None:
+        b.missing.append(f"parts.{part.ref}.i2t (or itsm)")
+        return False
+    b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    return True
+
+
+def device_i2t(*, i2t: Any, itsm: Any, t_sm: Any) -> Any:
+    """The SCR's I²t [A²s]: as given, else ITSM²·t_sm/2 of the surge half-sine."""
+    if i2t is not None:
+        return i2t
+    return np.asarray(itsm, dtype=float) ** 2 * np.asarray(t_sm, dtype=float) / 2
+
 
 def _bind_fuse(ctx: Context) -> Bound:
     b = Bound()
@@ -878,15 +907,9 @@ def _bind_fuse(ctx: Context) -> Bound:
     if not isinstance(fuse, dict):
         b.not_applicable = "no `fuse` given"
         return b
-    part = _scr(ctx)
     ctx.need(b, "fuse_i2t", _sp(ctx, "fuse.i2t"))
-    ctx.read(b, "t_sm", f"parts.{part.ref}.itsm_duration", default=0.01, dim="time", unit="s")
-    if ctx.read(b, "i2t", f"parts.{part.ref}.i2t") is None:
-        itsm = ctx.read(b, "itsm", f"parts.{part.ref}.itsm")
-        if itsm is None:
-            b.missing.append(f"parts.{part.ref}.i2t (or itsm)")
-            return b
-        b.notes.append("i2t not given: ITSM²·t_sm/2 of the surge half-sine used")
+    if not bind_device_i2t(ctx, b):
+        return b
     if ctx.read(b, "t_base", _sp(ctx, "fuse.clearing_time")) is not None:
         b.options["base"] = "the fuse's clearing time"
     elif _is_dc(ctx):
@@ -901,7 +924,7 @@ def _bind_fuse(ctx: Context) -> Bound:
 def _fn_fuse(*, fuse_i2t: Any, t_sm: Any, limits: Mapping[str, float], base: str = "",
              i2t: Any = None, itsm: Any = None, t_base: Any = None, freq: Any = None) -> Outcome:
     t_sm = np.asarray(t_sm, dtype=float)
-    dev = i2t if i2t is not None else np.asarray(itsm, dtype=float) ** 2 * t_sm / 2
+    dev = device_i2t(i2t=i2t, itsm=itsm, t_sm=t_sm)
     tb = t_base if t_base is not None else 0.5 / np.asarray(freq, dtype=float)
     out = power.fuse_check(fuse_i2t=fuse_i2t, i2t=dev, t_sm=t_sm, t_base=tb, limits=limits)
     out.values["t_base"] = np.asarray(tb, dtype=float) + 0 * out.values["device_i2t"]

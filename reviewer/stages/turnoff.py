@@ -9,7 +9,7 @@ import numpy as np
 
 from checks import turnoff
 from reviewer.fmt import at_least, at_most, eng, span
-from reviewer.model import Part, Stage
+from reviewer.model import Part, Stage, Value
 from reviewer.registry import (
     Bound,
     CheckDef,
@@ -83,6 +83,10 @@ def _bind_firing(ctx: Context, b: Bound, pw: Stage) -> None:
     oscillator behind its gate drive. Sets ``not_applicable`` when neither gives one."""
     path = ctx.stage_path("firing", pw)
     fv = ctx.project.lookup(path)
+    if pw.get("control") == "burst":  # integral-cycle control: fired at the voltage zero
+        b.add("alpha", ctx.stage_path("control", pw) + "#burst",
+              Value.fixed(0.0, "angle", "rad"))
+        return
     if fv is not None:
         extra = [math.pi / 2]
         r = ctx.project.lookup(ctx.stage_path("load.r", pw))
@@ -133,6 +137,9 @@ def _bind_line(ctx: Context, b: Bound, pw: Stage, *, for_dvdt: bool) -> None:
     freewheel = bool(pw.get("freewheel", False))
     b.options.update(topology=topology, freewheel=freewheel)
     inductive = _has_inductance(ctx, pw) and not freewheel
+    if not for_dvdt and not freewheel and _has_emf(ctx, pw):
+        _bind_line_emf(ctx, b, pw, topology)
+        return
     if for_dvdt:
         ctx.need(b, "v_s", "supply.voltage")
         if not (inductive and topology in ("ac-switch", "bridge")):
@@ -147,6 +154,24 @@ def _bind_line(ctx: Context, b: Bound, pw: Stage, *, for_dvdt: bool) -> None:
         b.options["gate_pulse"] = pulse
     if topology == "bridge" and not for_dvdt:
         ctx.need(b, "v_s", "supply.voltage")
+        ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
+
+
+def _has_emf(ctx: Context, pw: Stage) -> bool:
+    load = pw.get("load")
+    return isinstance(load, dict) and isinstance(load.get("e"), Value)
+
+
+def _bind_line_emf(ctx: Context, b: Bound, pw: Stage, topology: str) -> None:
+    """A back-EMF load: the SCR stays reverse-biased after its current ends until the line
+    exceeds E again, so t_c reads E, the line voltage and the R–L–E current's inputs."""
+    ctx.need(b, "r", ctx.stage_path("load.r", pw))
+    ctx.read(b, "l", ctx.stage_path("load.l", pw), default=0.0, dim="inductance", unit="H")
+    b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+    ctx.need(b, "e", ctx.stage_path("load.e", pw))
+    ctx.need(b, "v_s", "supply.voltage")
+    _bind_firing(ctx, b, pw)
+    if topology == "bridge":
         ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
 
 
@@ -267,6 +292,11 @@ def _sum_time(r: Reduced) -> str:
             if r.hi.get("lost_control", 0.0) > 0:
                 text += ("; fired before the load angle at some corners: control is lost "
                          "(power.control), taken as half-wave, (2π − β)/ω")
+        elif "e" in r.bound.inputs:
+            text += (f" (back EMF: reverse-biased from β until the line exceeds E again, "
+                     f"β up to {eng(r.hi['beta'], 'deg')})")
+            if r.hi.get("continuous", 0.0) > 0:
+                text += "; continuous conduction at some corners: (π − α − μ)/ω"
         elif o["topology"] == "bridge" and r.hi.get("continuous", 0.0) > 0:
             text += "; continuous conduction at some corners: (π − α − μ)/ω"
         else:
@@ -375,7 +405,9 @@ register(CheckDef(
     id="turnoff.time", kinds=TURNOFF,
     question="Circuit turn-off time against the SCR's tq, at minimum charge voltage and "
              "maximum load current.",
-    method="line: π/ω, (2π − β)/ω or (π − α − μ)/ω by topology and load over the firing range; "
+    method="line: π/ω, (2π − β)/ω or (π − α − μ)/ω by topology and load over the firing range "
+           "(a back EMF E: reverse-biased from the R–L–E extinction β until the line exceeds E "
+           "again, (2π + θ1 − β)/ω, θ1 = asin(E/V_m)); "
            "capacitor: R·C·ln(1 + V_c0/V_s) or C·V_c0/I_o; resonant: (π − 2·asin x)·√(LC) with "
            "a diode, C·V_c0·√(1 − x²)/I_o without; t_c ≥ 1.2 tq (fail) / 1.5 tq (marginal)",
     source=_SRC, fn=_strip(turnoff.time_check), bind=_bind_time,  # type: ignore[arg-type]

@@ -5,7 +5,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
 import pytest
+from scipy.integrate import solve_ivp
 
 from reviewer.engine import evaluate
 from reviewer.errors import ProjectError
@@ -61,3 +63,49 @@ def test_no_line_harmonics_but_subharmonics():
 def test_bad_burst_tables(on, period, match):
     with pytest.raises(ProjectError, match=match):
         load_project_text(burst_kiln(on=on, period=period), "k.toml")
+
+
+def latch(text: str):
+    p = load_project_text(text, "k.toml")
+    return evaluate(p, only=[("gate", "gate.latch-time")], strict=True).results[0]
+
+
+def test_latch_time_at_the_voltage_zero_resistive_closed_form():
+    """Fired at the voltage zero the anode current Vm·sin(ωt)/R rises from zero: it reaches
+    IL at t = asin(IL·R/Vm)/ω ≈ IL·R/(Vm·ω), plus tgt (closed form, every corner). The
+    demo's UJT pulse (a few µs) is far too short for that at low line."""
+    r = latch(burst_kiln())
+    ev = r.evaluation
+    x = ev.inputs
+    vm, rl, w = np.sqrt(2) * x["v_s"], x["r_load"], 2 * np.pi * x["f"]
+    il = ev.outcome.values["il_cold"]
+    t = np.arcsin(il * rl / vm) / w + x["tgt"]
+    assert np.allclose(ev.outcome.values["required_width"], t, rtol=1e-9)
+    assert np.all(np.abs(t - (il * rl / (vm * w) + x["tgt"])) < 1e-3 * t)  # ≈ IL·R/(Vm·ω)
+    assert r.status == "fail" and "integral-cycle" in " ".join(r.notes)
+    assert "stages.power.control#burst" in r.snapshot["inputs"]
+
+
+def test_latch_time_at_the_voltage_zero_inductive_against_solve_ivp():
+    """R–L: L·di/dt = Vm·sin ωt − R·i from zero at t = 0 (solve_ivp) until i = IL."""
+    text = burst_kiln().replace('load = { r = "26.5 ohm ±5%"',
+                                'load = { r = "26.5 ohm ±5%", l = "60 mH"')
+    r = latch(text)
+    ev = r.evaluation
+    x = ev.inputs
+    il = ev.outcome.values["il_cold"]
+    for row in (0, ev.worst_row):
+        vm, rl, ll = np.sqrt(2) * x["v_s"][row], x["r_load"][row], x["l_load"][row]
+        w = 2 * np.pi * x["f"][row]
+
+        def hit(t, y, target=il[row]):
+            return y[0] - target
+        hit.terminal = True
+        def rhs(t, y, vm=vm, w=w, rl=rl, ll=ll):
+            return [(vm * np.sin(w * t) - rl * y[0]) / ll]
+        sol = solve_ivp(rhs, (0.0, 0.5 / 50), [0.0], events=[hit], rtol=1e-10, atol=1e-12,
+                        max_step=1e-6)
+        t_ivp = sol.t_events[0][0] + x["tgt"][row]
+        assert ev.outcome.values["required_width"][row] == pytest.approx(t_ivp, rel=5e-3)
+    # the inductance slows the rise: more than the resistive time
+    assert r.values["required_width"].max > latch(burst_kiln()).values["required_width"].max

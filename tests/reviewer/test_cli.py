@@ -93,7 +93,7 @@ def test_no_arguments_copies_the_demo_and_prints_its_table(tmp_path):
     res = run(cwd=tmp_path)
     assert res.returncode == 0, res.stderr
     assert (tmp_path / "latchbook-demo" / "kiln-230.toml").is_file()
-    for name in ("charger-12v.toml", "motor-dc.toml"):  # the back-EMF demos come along
+    for name in ("charger-12v.toml", "motor-dc.toml", "heater-burst.toml"):  # all demos
         assert (tmp_path / "latchbook-demo" / name).is_file()
     assert "Bench kiln element controller" in res.stdout
     assert "latchbook open" in res.stdout

@@ -4,6 +4,8 @@ load current; circuits built for the test (invented values, no real parts)."""
 
 from __future__ import annotations
 
+import math
+
 import pytest
 
 from reviewer.engine import evaluate
@@ -222,3 +224,28 @@ def test_full_bridge_overlap_costs_output():
     assert r.values["overlap_drop"].max == pytest.approx(4 * 50 * 2e-3 * 14.687, rel=2e-3)
     assert r.values["overlap_angle"].max > 0
     assert out("2 mH", "170 V").status == "pass"
+
+
+def test_half_controlled_bridge_overlap_costs_output():
+    """A continuous half-controlled bridge at α = 30° gives (Vm/π)·(1 + cos 30°) = 193.2 V
+    without source inductance; 2 mH takes ΔV = ωL_s·I_d/π (two transfers of I_d: half the
+    full bridge's) with I_d = (193.2 − 100)/(5 + 0.2) = 17.92 A: 3.585 V, so the full output
+    is 189.6 V; the diode leg's transfer at the line zero lasts acos(1 − ωL_s·I_d/Vm) =
+    15.12° and the firing's μ from cos(30° + μ) = cos 30° − ωL_s·I_d/Vm is 3.76°."""
+    text = MOTOR.replace('topology = "bridge"\n', 'topology = "bridge"\nfreewheel = true\n')
+
+    def out(ls: str, req: str):
+        p = load_project_text(text.replace("LS", ls).replace("REQ", req), "m.toml")
+        return evaluate(p, only=[("drive", "power.output")], strict=True).results[0]
+
+    assert out("0 uH", "190 V").status == "pass"
+    r = out("2 mH", "190 V")
+    assert r.status == "fail" and "overlap" in r.summary and "diode leg" in r.summary
+    i_d = (2**0.5 * 230 / math.pi * (1 + math.cos(math.pi / 6)) - 100) / (5 + 0.2)
+    x = 100 * math.pi * 2e-3 * i_d / (2**0.5 * 230)
+    assert r.values["overlap_drop"].max == pytest.approx(100 * 2e-3 * i_d, rel=1e-6)
+    assert r.values["overlap_diode"].max == pytest.approx(math.degrees(math.acos(1 - x)),
+                                                          rel=1e-6)
+    assert r.values["overlap_angle"].max == pytest.approx(
+        math.degrees(math.acos(math.cos(math.pi / 6) - x)) - 30.0, rel=1e-6)
+    assert out("2 mH", "189 V").status == "pass"

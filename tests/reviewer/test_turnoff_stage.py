@@ -356,3 +356,23 @@ def test_capacitor_current_rating(rating, status):
         assert "rated for ≥ 80 A" in r.summary and "c_voltage" not in r.summary
     unrated = run(cap_circuit(10e-6), "cc")["turnoff.capacitor"]
     assert "reported only" in unrated.summary
+
+
+def test_back_emf_half_wave_reverse_bias_lasts_until_the_line_exceeds_e():
+    # R and E: the current flows while the line exceeds E, θ1..π − θ1, and the SCR is
+    # reverse-biased from π − θ1 to 2π + θ1: t_c = (π + 2·asin(E/V_m))/ω (closed form), least
+    # at the lowest E and the highest line.
+    p = line_circuit("half-wave", l=None, firing=(30.0, 120.0))
+    p.stages["pc"].params["load"]["e"] = Value(48.0, 40.0, 56.0, "voltage")
+    p.supply["voltage"] = Value(120.0, 108.0, 132.0, "voltage")
+    r = run(p, "lc")["turnoff.time"]
+    th1 = math.asin(40.0 / (132.0 * math.sqrt(2)))
+    assert r.values["turnoff_time"].min == pytest.approx((math.pi + 2 * th1) / (2 * math.pi * 60),
+                                                        rel=1e-9)
+    assert "back EMF" in r.summary and "stages.pc.load.e" in r.snapshot["inputs"]
+
+
+def test_no_back_emf_reads_no_e():
+    r = run(line_circuit("half-wave", l=40e-3, firing=(45.0, 45.0)), "lc")["turnoff.time"]
+    assert set(r.snapshot["inputs"]) == {"parts.Q1.tq", "supply.frequency", "stages.pc.load.r",
+                                        "stages.pc.load.l", "stages.pc.firing"}
