@@ -769,7 +769,11 @@ def _fn_control(**kw: Any) -> Outcome:
 
 def _sum_control(r: Reduced) -> str:
     phi = r.hi["load_angle"]
-    text = f"load angle φ up to {_deg(phi)} against the earliest firing {_deg(r.lo['alpha_min'])}"
+    # Judged corner by corner: a trigger that follows the load fires later where φ is larger,
+    # so the range's extremes come from different corners; the closest corner says it.
+    text = (f"earliest firing {_deg(r.worst['alpha_min'])} against the load angle φ "
+            f"{_deg(r.worst['load_angle'])} at the closest corner (φ up to {_deg(phi)}, the "
+            f"earliest firing {_deg(r.lo['alpha_min'])}, over all corners)")
     if r.status != "pass":
         text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or a gate drive that stays "
                  "on through the half-cycle (a short pulse is missed and DC flows in the load)")
