@@ -426,7 +426,9 @@ register(CheckDef(
 
 # --------------------------------------------------------------------------- diac.gate-pulse
 
-def _bind_pulse(ctx: Context) -> Bound:
+def bind_pulse(ctx: Context) -> Bound:
+    """The inputs of the pulse the diac of stage ``ctx.stage`` drives into its triac's gate
+    (``diac.gate-pulse``; ``triac.latch-time`` reads the same through its gate stage)."""
     b = Bound()
     d = _part(ctx, "diac")
     t = _part(ctx, "triac")
@@ -464,7 +466,8 @@ def _bind_pulse(ctx: Context) -> Bound:
     return b
 
 
-def _fn_pulse(**kw: Any) -> Outcome:
+def pulse_outcome(**kw: Any) -> Outcome:
+    """:func:`bind_pulse`'s inputs → the pulse (peak, width above IGT, …)."""
     kw["r_path"] = kw.pop("gate_r") + kw.pop("r_on")
     return diac.gate_pulse_check(**kw)
 
@@ -498,7 +501,7 @@ register(CheckDef(
     source="GE SCR Manual 6th ed. ch. 4 and 9 (gate triggering, diac pulse) — from memory; "
            "P. C. Sen, Power Electronics, ch. 2 (triac gate quadrants); the common-practice "
            "cold factors at −40 °C (IGT ×2, VGT ×1.5)",
-    fn=_fn_pulse, bind=_bind_pulse,
+    fn=pulse_outcome, bind=bind_pulse,
     units={"peak_current": "A", "igt_cold": "A", "vgt_cold": "V", "quadrant": "",
            "charge": "C", "width": "s", "drive_ratio": "", "i_pulse": "A"},
     summarise=_sum_pulse,

@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import diac, power, triac
+from checks import power, triac
 from checks import snubber as snubber_mod
 from checks.core import Outcome, cold_value
 from reviewer.fmt import at_least, at_most, eng, span
@@ -588,7 +588,7 @@ def _bind_latch_time(ctx: Context) -> Bound:
         b.options["snubber"] = sn.id
         ctx.need(b, "snub_r", ctx.stage_path("r", sn))
         ctx.need(b, "snub_c", ctx.stage_path("c", sn))
-    pulse = diac_stage._bind_pulse(Context(ctx.project, gate))
+    pulse = diac_stage.bind_pulse(Context(ctx.project, gate))
     b.missing += pulse.missing
     for name, inp in pulse.inputs.items():
         if name != "t_min":  # the same ambient as the IL above
@@ -603,8 +603,7 @@ def _fn_latch_time(*, limits: Mapping[str, float], snubber: str = "", pulse_from
                    **kw: Any) -> Outcome:
     pulse = {k[2:]: kw.pop(k) for k in list(kw) if k.startswith("p_")}
     pulse["t_min"] = kw["t_min"]
-    pulse["r_path"] = pulse.pop("gate_r") + pulse.pop("r_on")
-    width = diac.gate_pulse_check(**pulse, limits={}).values["width"]
+    width = diac_stage.pulse_outcome(**pulse, limits={}).values["width"]
     il = _cold_of(kw, "il")
     a, _, _ = _pop_range(kw)
     l_tot = np.asarray(kw.pop("l"), dtype=float) + np.asarray(kw.pop("l_s", 0.0), dtype=float)
