@@ -708,10 +708,11 @@ def _bind_didt(ctx: Context) -> Bound:
     return b
 
 
-def _fn_didt(*, vs: Any, didt_rating: Any, limits: Mapping[str, float], l_s: Any = 0.0,
+def _fn_didt(*, didt_rating: Any, limits: Mapping[str, float], l_s: Any = 0.0,
              l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
              snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
-    a, _, _ = _pop_range({**kw, "vs": vs})  # a diac-rc trigger's range reads the line too
+    a, _, _ = _pop_range(kw)  # the line stays in kw: a diac-rc trigger's range reads it
+    vs = kw["vs"]
     v = np.sqrt(2.0) * np.asarray(vs, dtype=float) * np.sin(a)
     snub: Any = 0.0
     if snubber:
