@@ -1199,6 +1199,10 @@ def _bind_control(ctx: Context) -> Bound:
     ctx.need(b, "r", _sp(ctx, "load.r"))
     ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
+    if ctx.stage.get("control") == "burst":
+        # Burst control fires at the voltage zero, before an inductive load's current zero:
+        # the question is whether the gate pulse outlasts it (None: no gate width known).
+        b.options["burst_pulse"] = gate_pulse(ctx, ctx.stage)
     return b
 
 
@@ -1219,17 +1223,51 @@ def _fn_control(**kw: Any) -> Outcome:
         return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     _, lo, _ = _firing(kw)
     kw.pop("vs", None)
+    if "burst_pulse" in kw:
+        from checks import burst
+
+        omega = _omega(kw)
+        phi = np.arctan2(omega * np.asarray(kw["l"], dtype=float),
+                         np.asarray(kw["r"], dtype=float))
+        pulse = kw["burst_pulse"]
+        return burst.pulse_check(phi=phi, omega=omega,
+                                 pulse=float("nan") if pulse is None else pulse,
+                                 limits=kw["limits"])
     return power.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
 
 
 def _sum_control(r: Reduced) -> str:
     if "emf" in r.bound.options:
         return _sum_control_emf(r)
+    if "burst_pulse" in r.bound.options:
+        return _sum_control_burst(r)
     phi = r.hi["load_angle"]
     text = f"load angle φ up to {_deg(phi)} against the earliest firing"
     if r.status != "pass":
         text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or wide gate pulses / a "
                  "pulse train (else one SCR can miss its pulse and DC flows in the load)")
+    return text
+
+
+def _sum_control_burst(r: Reduced) -> str:
+    need = r.hi["required_width"]
+    text = (f"integral-cycle control fires at the voltage zero; with φ up to "
+            f"{_deg(r.hi['load_angle'])} the current's zero lags it by "
+            f"{span(r.lo['steady_lag_time'], r.hi['steady_lag_time'], 's')} in steady state and "
+            f"by up to {eng(need, 's')} ({_deg(r.hi['first_zero_lag'])}) after the first "
+            f"half-cycle of a burst, whose current peaks at up to "
+            f"{r.hi['inrush_factor']:.2f}× the steady peak (power.surge grades that peak)")
+    pulse = r.bound.options["burst_pulse"]
+    if pulse is None:
+        text += "; the gate pulse width is not known (no gate drive's gate.latch-time width)"
+    else:
+        text += f"; gate pulse {eng(pulse, 's')}"
+    if r.status != "pass":
+        text += (f"; fails: a pulse that ends before the other SCR's current zero is missed, "
+                 f"one SCR conducts alone and DC flows in the load (a transformer or motor "
+                 f"saturates): give a gate pulse ≥ {at_least(need, 's')} from the voltage "
+                 f"zero, or hold the gate (a pulse train) through every half-cycle of the "
+                 f"burst, or fire each SCR at the current zero instead")
     return text
 
 
@@ -1253,9 +1291,15 @@ register(CheckDef(
     id="power.control", kinds=("phase-control",),
     question="AC switch with an inductive load: is the minimum firing angle at or above the "
              "load angle?",
-    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
+    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ. Burst control: the "
+           "gate pulse against the first current zero after a voltage-zero start, "
+           "(β(0, φ) − π)/ω.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
-    units={"load_angle": "deg", "emf_angle": "deg"}, summarise=_sum_control,
-    fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train.",
+    units={"load_angle": "deg", "emf_angle": "deg", "first_zero_lag": "deg",
+           "required_width": "s", "steady_lag_time": "s", "pulse_width": "s"},
+    summarise=_sum_control,
+    fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train "
+        "(burst control: a gate pulse lasting past the first current zero, a gate held "
+        "through the burst, or firing at the current zero).",
 ))
