@@ -147,3 +147,16 @@ def test_inductive_burst_wide_pulse_passes_and_unknown_fails(monkeypatch):
 
 def test_resistive_burst_has_no_control_question():
     assert result(burst_kiln(), "power.control").status == "not-applicable"
+
+
+def test_burst_pulse_key_sets_the_pulse():
+    """`burst.pulse` (a gate held through the half-cycle: 10 ms at 50 Hz) passes; a 2 ms
+    pulse against the ≈4.3 ms first current zero fails and says the width to type."""
+    held = rl_burst_kiln().replace("burst = { period = 50,",
+                                   'burst = { pulse = "10 ms", period = 50,')
+    r = result(held, "power.control")
+    assert r.status == "pass" and "(burst.pulse)" in r.summary
+    assert "stages.power.burst.pulse" in r.snapshot["inputs"]
+    short = held.replace('pulse = "10 ms"', 'pulse = "2 ms"')
+    r = result(short, "power.control")
+    assert r.status == "fail" and 'burst.pulse = "4.' in r.summary
