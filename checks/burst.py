@@ -11,12 +11,23 @@ control period around it. Those modulate the supply voltage: with short control 
 lamps on the same supply flicker (IEC 61000-3-3 governs voltage fluctuations; a long period
 and small steps soften it).
 
+With an R–L load the current lags: fired from rest at a voltage zero, the first half-cycle's
+current i = (Vm/Z)·[sin(θ − φ) + sin φ·e^(−θ/tan φ)] is asymmetric (its peak approaches twice
+the steady peak as φ → 90°) and ends at β(0, φ) > π + φ; in steady state the current's zero
+lags the voltage zero by φ. While one SCR still conducts, the other (pulsed at the voltage
+zero) is not forward-biased, so its gate pulse must last until the current zero; a shorter
+pulse is missed and one SCR conducts alone: a half-wave, DC in the load (a transformer or a
+motor saturates) [1, §11], [3].
+
 References
 ----------
 [1] M. H. Rashid, *Power Electronics: Devices, Circuits, and Applications*, 4th ed., §11 (on–off
     control of AC voltage controllers: duty, output power, input power factor √(N/M)).
 [2] IEC 61000-3-2 (harmonic current limits, Class A) and IEC 61000-3-3 (voltage fluctuations
     and flicker), for what the estimate stands against; neither is checked here.
+[3] The R–L switch-on transient in any circuits text, e.g. W. H. Hayt, J. E. Kemmerly,
+    *Engineering Circuit Analysis*, (complete response of an R–L circuit to a sinusoidal
+    source): i(t) = (Vm/Z)·[sin(ωt − φ) + sin φ·e^(−t·R/L)] switched on at the voltage zero.
 """
 
 from __future__ import annotations
@@ -26,6 +37,7 @@ from collections.abc import Mapping
 import numpy as np
 
 from checks.core import MARGINAL, Outcome, cap_status, grade
+from checks.rl import extinction_angle
 
 
 def _a(x: object) -> np.ndarray:
@@ -171,3 +183,48 @@ def burst_harmonics_check(*, n_on: np.ndarray, period: int, i_peak: np.ndarray,
               "interharmonic_frequency": nu[k] * _a(line_hz)}
     values.update({f"i_h{o}": h[..., o] for o in ORDERS})
     return Outcome(values, margin, status)
+
+
+def first_zero_lag(*, phi: np.ndarray) -> np.ndarray:
+    """How far the first current zero lags the voltage zero after a switch-on at a voltage
+    zero from rest [rad]: β(0, φ) − π, β the root of sin(β − φ) + sin φ·e^(−β/tan φ) = 0
+    (:func:`checks.rl.extinction_angle`); at least φ, the steady lag, and up to π as φ → 90°
+    (a pure inductance conducts a whole cycle from a voltage-zero start). phi [rad].
+
+    >>> round(float(np.degrees(first_zero_lag(phi=np.radians(60.0)))), 2)
+    64.24
+    """
+    phi = _a(phi)
+    return np.where(phi > 0, extinction_angle(alpha=0.0 * phi, phi=phi) - np.pi, 0.0)
+
+
+def pulse_check(*, phi: np.ndarray, omega: np.ndarray, pulse: np.ndarray,
+                limits: Mapping[str, float]) -> Outcome:
+    """``power.control`` of burst control with an R–L load: each SCR is pulsed at its voltage
+    zero, but while the other still conducts it is not forward-biased, so the pulse must last
+    past the current zero. The latest current zero is the first of a burst, which starts from
+    rest: :func:`first_zero_lag` λ1 = β(0, φ) − π after the voltage zero (steady state: φ).
+    Metric = t_pulse/(λ1/ω), graded with ``fail_below``; an unknown pulse (NaN) fails.
+    Values: ``required_width`` λ1/ω [s], ``steady_lag_time`` φ/ω [s], ``pulse_width`` [s],
+    ``first_zero_lag`` λ1 [rad], ``load_angle`` φ [rad], ``inrush_factor`` the first
+    half-cycle's peak over the steady peak Vm/Z [–]  [1, §11], [3].
+    phi [rad] load angle; omega [rad/s]; pulse [s] the shortest gate pulse (NaN: unknown).
+
+    >>> o = pulse_check(phi=np.radians([60.0, 60.0]), omega=2 * np.pi * 50,
+    ...                 pulse=np.array([3e-3, 5e-3]), limits={})
+    >>> o.status.tolist(), round(float(o.values["required_width"][0]) * 1e3, 3)
+    ([2, 0], 3.569)
+    """
+    from checks.power import _segment_peak
+
+    phi, omega, pulse = np.broadcast_arrays(_a(phi), _a(omega), _a(pulse))
+    lag = first_zero_lag(phi=phi)
+    need = lag / omega
+    with np.errstate(divide="ignore", invalid="ignore"):
+        metric = np.where(need > 0, pulse / need, np.where(np.isnan(pulse), np.nan, np.inf))
+    margin, status = grade(metric, limits)
+    margin = np.where(np.isinf(metric), np.inf, margin)
+    peak = _segment_peak(0.0 * phi, np.pi + lag, phi, np.sin(phi))
+    return Outcome({"required_width": need, "steady_lag_time": phi / omega,
+                    "pulse_width": pulse + 0.0, "first_zero_lag": lag, "load_angle": phi,
+                    "inrush_factor": peak}, margin, status)

@@ -214,6 +214,11 @@ def harmonics_check(*, waveform: Mapping[str, np.ndarray], topology: str, freewh
     amp = np.asarray(w["vm"], dtype=float) / np.asarray(w["z"], dtype=float)
     co = spectrum(seg_a=w["seg_a"], seg_b=w["seg_b"], seg_c=w["seg_c"], phi=w["phi"],
                   offset=offset, symmetric=symmetric, amplitude=amp)
+    if "handed" in w and np.any(np.asarray(w["handed"]) > 0):
+        # A bridge fired before θ1 that takes a current over at α + π: each SCR also carries
+        # the tail (α, γ) of that current (checks.rle.waveform_pu).
+        co = co + spectrum(seg_a=w["tail_a"], seg_b=w["tail_b"], seg_c=w["tail_c"],
+                           phi=w["phi"], offset=offset, symmetric=symmetric, amplitude=amp)
     pieces = 2.0 if symmetric else 1.0
     line_rms = np.sqrt(pieces) * np.asarray(w["it_rms"], dtype=float)
     q = line_quality(coeffs=co, line_rms=line_rms)

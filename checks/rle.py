@@ -67,7 +67,8 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     current), ``it_av``, ``it_rms``, ``it_peak`` (one SCR), ``beta``, ``conduction``,
     ``alpha_eff`` (where conduction starts: max(α, θ1) from zero), ``continuous``, ``seg_a``,
     ``seg_b``, ``seg_c`` — and ``offset`` k, ``theta1`` θ1, ``fw_len`` (the freewheeling
-    interval after π), ``i_pi`` (the current at π where it freewheels).
+    interval after π), ``i_pi`` (the current at π where it freewheels), and the hand-over
+    tail ``handed``, ``tail_a``, ``tail_b``, ``tail_c`` (zero length where there is none).
 
     Cases  [1, §10, §15], [2, ch. 6]:
 
@@ -76,6 +77,13 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     * continuous bridge (the current from zero at a is still positive at a + π): the steady
       state C = −2·sin(α − φ)/(1 − e^(−π/tan φ)) at the actual α (the outgoing pair keeps the
       incoming one forward-biased, so α < θ1 fires too); V_dc = (2Vm/π)·cos α;
+    * bridge fired before θ1 whose current from θ1 still flows at α + π (i_h there): the next
+      pair takes it over at α + π, so the state starts at α with i_h, C_t = i_h + k − sin(α −
+      φ); the current falls while the line is below E. If it is still positive at θ1 it never
+      stops (continuous, as above); else it ends at γ < θ1 and the pair starts again from zero
+      at θ1 (a gate held past θ1): each SCR conducts the tail (α, γ) (``tail_a``, ``tail_b``,
+      ``tail_c``; ``handed`` 1) and (θ1, α + π), and ``beta`` = γ + π is where the load
+      current ends;
     * freewheel: SCR from a to min(β, π); the diode from π while (i(π) + k)·e^(−x/tan φ) > k,
       at most until the next firing; continuous when it lasts that long, with
       i(α) = [k2·(sin φ − sin(α − φ)·k1 + k·k1) − k]/(1 − k1·k2), k1 = e^(−(π − α)/tan φ),
@@ -138,9 +146,40 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     cont = np.zeros_like(a)
     fw_len = np.zeros_like(a)
     i_pi = np.zeros_like(a)
+    # The hand-over tail of a bridge fired before θ1: from α, i = sin(θ − φ) − k + C_t·e.
+    ta = alpha.copy()
+    tb = alpha.copy()
+    tc = np.zeros_like(a)
+    handed = np.zeros(a.shape, dtype=bool)
+
+    def tail(early: np.ndarray, i_h: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Rows ``early`` take over i_h at α: (rows whose tail ends before θ1, its C_t); the
+        tail's end goes into ``tb``. The current falls on (α, θ1) (the line is below E)."""
+        c_h = i_h + k - np.sin(alpha - phi)
+        g_th1, _ = seg_val(th1, alpha, c_h, k, tau, phi)
+        ends = early & (g_th1 <= 0.0)
+        if ends.any():
+            idx = np.flatnonzero(ends)
+
+            def f_tail(th: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                j = idx[rows]
+                return seg_val(th, alpha[j], c_h[j], k[j], tau[j], phi[j])
+
+            tb[idx] = root_falling(alpha[idx], th1[idx], f_tail)
+        return ends, np.where(ends, c_h, 0.0)
+
     if not freewheel and topology == "bridge":
+        # Fired before θ1, the current from θ1 may still flow at α + π: the next pair's pulse
+        # then takes it over (its line polarity is the higher one), so the state starts at α
+        # with that current, which falls while the line is below E. Where it reaches zero
+        # before θ1 the pair starts again from zero at θ1 (a gate held past θ1); otherwise
+        # the current never stops: continuous at α.
+        early = starts & ~res & (alpha < th1) & (beta > alpha + np.pi)
+        i_h, _ = seg_val(alpha + np.pi, a0, c0, k, tau, phi)
+        handed, tc = tail(early, i_h)
+        cc = (outlasts & (alpha >= th1)) | (early & ~handed)
+        b = np.where(handed, alpha + np.pi, b)
         # Continuous conduction at the actual α: the steady state of the full bridge.
-        cc = outlasts
         q1 = _one_minus_decay(np.pi, tau)
         with np.errstate(divide="ignore", invalid="ignore"):
             c_cont = -2 * np.sin(alpha - phi) / np.where(q1 > 0, q1, 1.0)
@@ -160,6 +199,13 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
         # Continuous: the steady state at the actual α (the diode holds the load at 0 V, so
         # the line forward-biases the SCR at any α in (0, π)).
         delta = (np.pi + alpha) if topology == "half-wave" else alpha
+        # Fired before θ1 with the diode's current still flowing at the next pulse (α, after
+        # Δ = δ(α) of freewheeling): the SCR takes it over there, on a line below E, and it
+        # falls; continuous if it outlasts θ1, else a tail (α, γ) and a new start at θ1.
+        early = fw & ~fw_cont & ~res & (alpha < th1) & (x_end > delta)
+        i_hf = (ip0 + k) * _decay(delta, tau) - k
+        handed, tc = tail(early, i_hf)
+        fw_cont = fw_cont | (early & ~handed)
         k1c = _decay(np.pi - alpha, tau)
         k2c = _decay(delta, tau)
         with np.errstate(divide="ignore", invalid="ignore"):
@@ -170,13 +216,19 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
         c = np.where(fw_cont, c_fc, c)
         b = np.where(fw, np.pi, b)
         i_pi = np.where(fw_cont, np.sin(phi) - k + c_fc * k1c, np.where(fw, ip0, 0.0))
-        fw_len = np.where(fw_cont, delta, np.where(fw, np.minimum(x_end, delta0), 0.0))
+        fw_len = np.where(fw_cont | handed, delta,
+                          np.where(fw, np.minimum(x_end, delta0), 0.0))
         cont = fw_cont.astype(float)
 
     s1, s2 = segment_integrals(a=a, b=b, phi=phi, c=c)  # of sin(θ − φ) + C·e, per unit
     length = np.maximum(b - a, 0.0)
     i1 = s1 - k * length
     i2 = s2 - 2 * k * s1 + k * k * length
+    t_len = np.maximum(tb - ta, 0.0)
+    if handed.any():
+        t1, t2 = segment_integrals(a=ta, b=tb, phi=phi, c=tc)
+        i1 = i1 + np.where(handed, t1 - k * t_len, 0.0)
+        i2 = i2 + np.where(handed, t2 - 2 * k * t1 + k * k * t_len, 0.0)
     amp = i_pi + k  # freewheel: i(x) = amp·e^(−x/τ) − k
     e1 = tau * _one_minus_decay(fw_len, tau)
     e2 = 0.5 * tau * _one_minus_decay(2 * fw_len, tau)
@@ -185,9 +237,10 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     f1 = np.where(fw_len > 0, f1, 0.0)
     f2 = np.where(fw_len > 0, f2, 0.0)
     on = starts | (cont > 0)
-    off = np.where(on, np.maximum(period - length - fw_len, 0.0), period)
-    v1 = np.where(on, np.cos(a) - np.cos(b), 0.0)
-    v2 = np.where(on, 0.5 * length - 0.25 * (np.sin(2 * b) - np.sin(2 * a)), 0.0)
+    off = np.where(on, np.maximum(period - length - t_len - fw_len, 0.0), period)
+    v1 = np.where(on, np.cos(a) - np.cos(b) + np.cos(ta) - np.cos(tb), 0.0)
+    v2 = np.where(on, 0.5 * (length + t_len) - 0.25 * (np.sin(2 * b) - np.sin(2 * a)
+                                                       + np.sin(2 * tb) - np.sin(2 * ta)), 0.0)
     out = {
         "vdc": (v1 + m * off) / period,
         "vrms": np.sqrt(np.maximum((v2 + m * m * off) / period, 0.0)),
@@ -198,8 +251,10 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     }
     if peak:
         out["it_peak"] = np.where(on, _segment_peak(a, b, phi, c) - k, 0.0)
-    out.update(beta=b, conduction=np.where(on, length, 0.0), alpha_eff=a, continuous=cont,
-               seg_a=a, seg_b=b, seg_c=c, offset=k, theta1=th1, fw_len=fw_len, i_pi=i_pi)
+    out.update(beta=np.where(handed & (not freewheel), tb + np.pi, b),
+               conduction=np.where(on, length + t_len, 0.0), alpha_eff=a, continuous=cont,
+               seg_a=a, seg_b=b, seg_c=c, offset=k, theta1=th1, fw_len=fw_len, i_pi=i_pi,
+               handed=handed.astype(float), tail_a=ta, tail_b=tb, tail_c=tc)
     return {key: v.reshape(shape) for key, v in out.items()}
 
 
@@ -231,7 +286,8 @@ def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarra
     out.update(beta=w["beta"], conduction=w["conduction"], alpha_eff=w["alpha_eff"],
                continuous=w["continuous"], phi=phi, vm=vm, seg_a=w["seg_a"], seg_b=w["seg_b"],
                seg_c=w["seg_c"], theta1=w["theta1"], e=e, offset=w["offset"],
-               fw_len=w["fw_len"], i_pi=w["i_pi"])
+               fw_len=w["fw_len"], i_pi=w["i_pi"], handed=w["handed"], tail_a=w["tail_a"],
+               tail_b=w["tail_b"], tail_c=w["tail_c"])
     out["emf_power"] = e * out["idc"]
     out["load_power"] = out["emf_power"] + out["irms"] ** 2 * r
     return out
@@ -470,6 +526,13 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float, l: flo
         cur = np.sin(x + a - phi) - k + c * _decay(x, tau)
         i_load = np.where(on, cur, i_load)
         v_load = np.where(on, sign * src, v_load)
+        if float(w["handed"]) > 0:  # the current taken over at the pulse, to its end
+            ta, tb, tc = (float(w[n]) for n in ("tail_a", "tail_b", "tail_c"))
+            xt = np.mod(theta - ta - shift, 2 * np.pi)
+            on_t = (xt <= tb - ta) & ~on
+            cur_t = np.sin(xt + ta - phi) - k + tc * _decay(xt, tau)
+            i_load = np.where(on_t, cur_t, i_load)
+            v_load = np.where(on_t, sign * src, v_load)
         if fw_len > 0:
             y = np.mod(theta - np.pi - shift, 2 * np.pi)
             fw = (y < fw_len) & ~on

@@ -361,6 +361,31 @@ class _Loader:
                                self.where(table, "sync"))
         return Stage(sid, kind, values, self.where(table))
 
+    def _check_triac_burst(self, project: Project, st: Stage) -> None:
+        """Burst control of a triac: whole cycles fired at the voltage zero, so a `burst`
+        table and a gate that can fire there (a triac-gate drive, not a diac–RC network,
+        which fires at a phase angle)."""
+        where = self.where(f"stages.{st.id}", "control")
+        if st.params.get("control") != "burst":
+            raise ProjectError('`burst` needs control = "burst" in the same stage',
+                               self.where(f"stages.{st.id}", "burst"))
+        if "burst" not in st.params:
+            raise ProjectError('control = "burst" (integral-cycle control) needs '
+                               'burst = { period = 50, on = { min = 1, max = 50 } } (whole '
+                               'cycles on out of every period; add pulse = "…" for the gate '
+                               "pulse at each voltage zero)", where)
+        gate = project.stages.get(st.get("gate", ""))
+        if gate is not None and gate.kind == "diac-rc":
+            raise ProjectError(f'control = "burst" fires at the voltage zero, but the gate '
+                               f"`{gate.id}` is a diac–RC network, which fires at a phase "
+                               'angle: use a triac-gate drive (e.g. a zero-cross opto '
+                               'driver) for burst control, or control = "phase"', where)
+        on, period = st.params["burst"]["on"], st.params["burst"]["period"]
+        if on.hi > period or on.lo < 0 or on.lo != round(on.lo) or on.hi != round(on.hi):
+            raise ProjectError(f"`burst.on` ({on.lo:g} … {on.hi:g}) must be whole cycles "
+                               f"within 0 … `burst.period` ({period})",
+                               self.where(f"stages.{st.id}", "burst"))
+
     def links(self, project: Project) -> None:
         for st in project.stages.values():
             kind = STAGE_KINDS[st.kind]
@@ -418,6 +443,9 @@ class _Loader:
                 elif "gate" not in st.params and "firing" not in st.params:
                     raise ProjectError('needs `firing = { min = "…", max = "…" }` or `gate` '
                                        "(a gate-drive stage)", self.where(f"stages.{st.id}"))
+            if st.kind == "triac-phase-control" and (st.params.get("control") == "burst"
+                                                     or "burst" in st.params):
+                self._check_triac_burst(project, st)
 
 
 def _confine(base: Path, ref: str, naming: Path, where: Where) -> None:

@@ -49,6 +49,13 @@ FUSE = {
     "clearing_time": Param(V, "time"),
 }
 
+#: Integral-cycle control's keys, shared with the triac stage: the period and the on-cycles
+#: [cycles], and the gate pulse at each voltage zero (its width; a gate held through each
+#: half-cycle is a pulse of half a cycle), which an inductive load needs to outlast.
+BURST = {"period": Param("number", required=True),
+         "on": Param(V, "dimensionless", required=True),
+         "pulse": Param(V, "time")}
+
 PHASE_CONTROL = register_kind(StageKind("phase-control", {
     "scr": Param("part", required=True, part_type="scr"),
     "topology": Param("choice", required=True, choices=("half-wave", "bridge", "ac-switch")),
@@ -60,8 +67,7 @@ PHASE_CONTROL = register_kind(StageKind("phase-control", {
     "fuse": Param("table", fields=FUSE),
     "required": Param("required"),
     "control": Param("choice", choices=("phase", "burst")),
-    "burst": Param("table", fields={"period": Param("number", required=True),
-                                    "on": Param(V, "dimensionless", required=True)}),
+    "burst": Param("table", fields=BURST),
 }, "SCRs controlling power from an AC supply by firing angle"))
 
 DC_SWITCH = register_kind(StageKind("dc-switch", {
@@ -1199,7 +1205,23 @@ def _bind_control(ctx: Context) -> Bound:
     ctx.need(b, "r", _sp(ctx, "load.r"))
     ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
+    if ctx.stage.get("control") == "burst":
+        bind_burst_pulse(ctx, b, lambda: gate_pulse(ctx, ctx.stage))
     return b
+
+
+def bind_burst_pulse(ctx: Context, b: Bound, from_gate: Any = None) -> None:
+    """Burst control fires at the voltage zero, before an inductive load's current zero: the
+    question is whether the gate pulse outlasts it. The pulse is `burst.pulse` when given,
+    else what ``from_gate()`` knows of the gate drive's pulse (None: not known)."""
+    burst = ctx.stage.get("burst")
+    given = burst.get("pulse") if isinstance(burst, dict) else None
+    if isinstance(given, Value):
+        ctx.need(b, "pulse", _sp(ctx, "burst.pulse"))
+        b.options["burst_pulse"] = "burst.pulse"
+        return
+    width = from_gate() if from_gate is not None else None
+    b.options["burst_pulse"] = width  # the gate drive's width [s], "held", or None
 
 
 def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
@@ -1219,17 +1241,66 @@ def _fn_control(**kw: Any) -> Outcome:
         return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     _, lo, _ = _firing(kw)
     kw.pop("vs", None)
+    if "burst_pulse" in kw:
+        return burst_pulse_outcome(kw, _omega(kw))
     return power.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
+
+
+def burst_pulse_outcome(kw: dict[str, Any], omega: Any) -> Outcome:
+    """burst.pulse_check for a bound burst stage (``r``, ``l``, and the pulse)."""
+    from checks import burst
+
+    phi = np.arctan2(omega * np.asarray(kw["l"], dtype=float), np.asarray(kw["r"], dtype=float))
+    opt = kw["burst_pulse"]
+    if "pulse" in kw:
+        pulse = kw["pulse"]
+    elif opt == "held":  # a gate held while the drive is on: through every half-cycle
+        pulse = np.pi / np.asarray(omega, dtype=float)
+    else:
+        pulse = float("nan") if opt is None else opt
+    return burst.pulse_check(phi=phi, omega=omega, pulse=pulse, limits=kw["limits"])
 
 
 def _sum_control(r: Reduced) -> str:
     if "emf" in r.bound.options:
         return _sum_control_emf(r)
+    if "burst_pulse" in r.bound.options:
+        return sum_burst_pulse(r)
     phi = r.hi["load_angle"]
     text = f"load angle φ up to {_deg(phi)} against the earliest firing"
     if r.status != "pass":
         text += (f"; fails: needs α_min ≥ {at_least(phi, 'deg')}, or wide gate pulses / a "
                  "pulse train (else one SCR can miss its pulse and DC flows in the load)")
+    return text
+
+
+def sum_burst_pulse(r: Reduced, device: str = "SCR") -> str:
+    """The summary of a burst stage's pulse against its R–L load's current zero."""
+    need = r.hi["required_width"]
+    text = (f"integral-cycle control fires at the voltage zero; with φ up to "
+            f"{_deg(r.hi['load_angle'])} the current's zero lags it by "
+            f"{span(r.lo['steady_lag_time'], r.hi['steady_lag_time'], 's')} in steady state and "
+            f"by up to {eng(need, 's')} ({_deg(r.hi['first_zero_lag'])}) after the first "
+            f"half-cycle of a burst, whose current peaks at up to "
+            f"{r.hi['inrush_factor']:.2f}× the steady peak (power.surge grades that peak)")
+    src = r.bound.options["burst_pulse"]
+    if src is None:
+        text += ("; the gate pulse width is not known: give burst.pulse, how long the gate "
+                 "is driven from each voltage zero (a zero-crossing opto driver fires only "
+                 "near the voltage zero, so it cannot follow a lagging current)")
+    elif src == "held":
+        text += "; the DC gate drive holds the gate through every half-cycle of a burst"
+    else:
+        text += (f"; gate pulse {span(r.lo['pulse_width'], r.hi['pulse_width'], 's')}"
+                 + (" (burst.pulse)" if src == "burst.pulse" else " (the gate drive's)"))
+    other = "the other SCR's" if device == "SCR" else "the previous half-cycle's"
+    if r.status != "pass":
+        text += (f"; fails: a pulse that ends before {other} current zero is missed, one "
+                 f"polarity conducts alone and DC flows in the load (a transformer or motor "
+                 f"saturates): give a gate pulse ≥ {at_least(need, 's')} from the voltage "
+                 f"zero (burst.pulse = \"{at_least(need, 's')}\"), or hold the gate (a pulse "
+                 f"train) through every half-cycle of the burst (burst.pulse = half a cycle), "
+                 f"or fire at the current zero instead")
     return text
 
 
@@ -1253,9 +1324,15 @@ register(CheckDef(
     id="power.control", kinds=("phase-control",),
     question="AC switch with an inductive load: is the minimum firing angle at or above the "
              "load angle?",
-    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
+    method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ. Burst control: the "
+           "gate pulse against the first current zero after a voltage-zero start, "
+           "(β(0, φ) − π)/ω.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
-    units={"load_angle": "deg", "emf_angle": "deg"}, summarise=_sum_control,
-    fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train.",
+    units={"load_angle": "deg", "emf_angle": "deg", "first_zero_lag": "deg",
+           "required_width": "s", "steady_lag_time": "s", "pulse_width": "s"},
+    summarise=_sum_control,
+    fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train "
+        "(burst control: a gate pulse lasting past the first current zero, a gate held "
+        "through the burst, or firing at the current zero).",
 ))

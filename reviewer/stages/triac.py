@@ -31,6 +31,7 @@ from reviewer.registry import (
 )
 from reviewer.schema import TRIAC
 from reviewer.stages import diac as diac_stage
+from reviewer.stages.power import BURST, bind_burst_pulse, burst_pulse_outcome, sum_burst_pulse
 
 V = "value"
 KIND = TRIAC
@@ -63,6 +64,8 @@ TRIAC_STAGE = register_kind(StageKind("triac-phase-control", {
     "heatsink": Param("table", fields=HEATSINK),
     "fuse": Param("table", fields=FUSE),
     "required": Param("required"),
+    "control": Param("choice", choices=("phase", "burst")),
+    "burst": Param("table", fields=BURST),
 }, "one triac switching an AC load by firing angle"))
 
 TRIAC_GATE = register_kind(StageKind("triac-gate", {
@@ -117,6 +120,14 @@ def _firing(ctx: Context, b: Bound, *, sweep: int = 0,
     """The firing range ``alpha`` (swept) with ``alpha_lo``/``alpha_hi``; incomplete without."""
     fv = ctx.stage.get("firing")
     path = _sp(ctx, "firing")
+    if _burst(ctx):
+        # Integral-cycle control: whole cycles fired at the voltage zero, full conduction.
+        zero = Value.fixed(0.0, "angle", "rad")
+        for name in ("alpha", "alpha_lo", "alpha_hi"):
+            b.add(name, _sp(ctx, "control") + "#burst", zero)
+        b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
+                       "on-cycle at full current")
+        return True
     if not isinstance(fv, Value):
         gate = ctx.linked_stage("gate")
         if gate is not None and gate.kind == "diac-rc":
@@ -128,6 +139,10 @@ def _firing(ctx: Context, b: Bound, *, sweep: int = 0,
     b.add("alpha_lo", path + "#min", fv.at(fv.lo))
     b.add("alpha_hi", path + "#max", fv.at(fv.hi))
     return True
+
+
+def _burst(ctx: Context) -> bool:
+    return ctx.stage.get("control") == "burst"
 
 
 def _snubber(ctx: Context) -> Any:
@@ -184,6 +199,13 @@ def _bind_output(ctx: Context) -> Bound:
     _load(ctx, b)
     if not _firing(ctx, b, sweep=7):
         return b
+    if _burst(ctx):
+        burst = ctx.stage.get("burst")
+        assert isinstance(burst, dict)  # the loader requires it with control = "burst"
+        b.options["burst_period"] = int(burst["period"])
+        on = ctx.need(b, "n_on", _sp(ctx, "burst.on"))
+        b.add("n_lo", _sp(ctx, "burst.on") + "#min", on.at(on.lo))
+        b.add("n_hi", _sp(ctx, "burst.on") + "#max", on.at(on.hi))
     req = ctx.stage.get("required")
     path = _sp(ctx, "required")
     if not isinstance(req, Value):
@@ -206,6 +228,17 @@ def _bind_output(ctx: Context) -> Bound:
 def _fn_output(**kw: Any) -> Outcome:
     a, lo, hi = _pop_range(kw)
     w = _omega(kw)
+    if "burst_period" in kw:
+        from checks import burst
+
+        full = power.stage_values(topology="ac-switch", freewheel=False, vs=kw["vs"],
+                                  r=kw["r"], l=kw["l"], omega=w, alpha=a, peak=False)
+        out = burst.burst_output_check(
+            p_full=full["load_power"], vs=kw["vs"], n_on=kw["n_on"], n_lo=kw["n_lo"],
+            n_hi=kw["n_hi"], period=kw["burst_period"], req_lo=kw["req_lo"],
+            req_hi=kw["req_hi"], quantity=kw["quantity"], limits=kw["limits"])
+        out.values["conduction_angle"] = full["conduction"]
+        return out
     out = power.output_check(topology="ac-switch", freewheel=False, alpha=a, alpha_lo=lo,
                              alpha_hi=hi, omega=w, **kw)
     note = _lost_note(kw, a, w)
@@ -215,6 +248,10 @@ def _fn_output(**kw: Any) -> Outcome:
 
 
 def _sum_output(r: Reduced) -> str:
+    if "burst_period" in r.bound.options:
+        from reviewer.stages.power import _sum_burst
+
+        return _sum_burst(r)
     q = r.bound.options.get("quantity", "power")
     unit, name = ("W", "load power") if q == "power" else ("V", "load V_rms")
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
@@ -247,7 +284,8 @@ register(CheckDef(
     source="Rashid 4e §11 (Ex 11.1, 11.2)",
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
-           "conduction_angle": "deg", "shortcut_error": "1", "load_angle": "deg"},
+           "conduction_angle": "deg", "shortcut_error": "1", "load_angle": "deg",
+           "power_step": "W"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less).",
     optional=frozenset({"shortcut_error"}),
@@ -759,15 +797,31 @@ def _bind_control(ctx: Context) -> Bound:
     ctx.need(b, "r", _sp(ctx, "load.r"))
     ctx.need(b, "freq", "supply.frequency")
     _firing(ctx, b)
+    if _burst(ctx):
+        bind_burst_pulse(ctx, b, lambda: _held_gate(ctx))
     return b
+
+
+def _held_gate(ctx: Context) -> str | None:
+    """A DC gate drive holds the gate while it is on ("held"); an opto-triac (AC) drive may
+    be a zero-crossing one, which does not fire again at an inductive load's current zero
+    (the voltage then is well past its window): not known (None)."""
+    gate = ctx.linked_stage("gate")
+    if gate is not None and gate.kind == "triac-gate" and gate.get("mode") != "ac":
+        return "held"
+    return None
 
 
 def _fn_control(**kw: Any) -> Outcome:
     _, lo, _ = _pop_range(kw)
+    if "burst_pulse" in kw:
+        return burst_pulse_outcome(kw, _omega(kw))
     return triac.control_check(alpha_lo=lo, omega=_omega(kw), **kw)
 
 
 def _sum_control(r: Reduced) -> str:
+    if "burst_pulse" in r.bound.options:
+        return sum_burst_pulse(r, device="triac")
     phi = r.hi["load_angle"]
     # Judged corner by corner: a trigger that follows the load fires later where φ is larger,
     # so the range's extremes come from different corners; the closest corner says it.
@@ -786,8 +840,11 @@ register(CheckDef(
     method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
-    units={"load_angle": "deg", "alpha_min": "deg"}, summarise=_sum_control,
-    fix="Raise α_min to at least φ, or keep the gate driven through each half-cycle.",
+    units={"load_angle": "deg", "alpha_min": "deg", "first_zero_lag": "deg",
+           "required_width": "s", "steady_lag_time": "s", "pulse_width": "s"},
+    summarise=_sum_control,
+    fix="Raise α_min to at least φ, or keep the gate driven through each half-cycle (burst "
+        "control: a gate pulse lasting past the first current zero).",
 ))
 
 

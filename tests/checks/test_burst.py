@@ -44,3 +44,106 @@ def test_spectrum_against_fft(n_on, period):
     got = comp[0]
     np.testing.assert_allclose(got, ref[:got.size], atol=1e-6)
     assert np.all(got[[h * period for h in range(2, 41)]] < 1e-9)
+
+
+# ------------------------------------------------------------------------------------------
+# Burst control of an R–L load: the switch-on transient at a voltage zero and the gate pulse.
+
+def switch_on(phi: float, cycles: float = 1.5) -> tuple[np.ndarray, np.ndarray]:
+    """Per unit (Vm = 1, Z = 1, θ = ωt): L·di/dθ = sin θ − R·i from i(0) = 0 (solve_ivp),
+    R = cos φ, ωL = sin φ, with no switch in the loop (the first half-cycle's SCR conducts
+    until the current's first zero). Returns a fine grid of θ and i."""
+    from scipy.integrate import solve_ivp
+
+    r, x = np.cos(phi), np.sin(phi)
+    sol = solve_ivp(lambda th, y: [(np.sin(th) - r * y[0]) / x], (0.0, 2 * np.pi * cycles),
+                    [0.0], rtol=1e-11, atol=1e-13, dense_output=True, max_step=1e-3)
+    th = np.linspace(0.0, 2 * np.pi * cycles, 400_001)
+    return th, sol.sol(th)[0]
+
+
+@pytest.mark.parametrize("phi_deg", [10.0, 37.0, 60.0, 77.0, 88.0])
+def test_first_current_zero_and_peak_against_solve_ivp(phi_deg):
+    phi = np.radians(phi_deg)
+    th, i = switch_on(phi)
+    after = th > 0.1
+    k = int(np.argmax(after & (i <= 0.0)))  # the first zero after the start
+    lag_ivp = th[k] - np.pi
+    assert float(burst.first_zero_lag(phi=phi)) == pytest.approx(lag_ivp, rel=5e-3, abs=1e-4)
+    assert lag_ivp > phi  # later than the steady lag: the first half-cycle is asymmetric
+    o = burst.pulse_check(phi=phi, omega=2 * np.pi * 50, pulse=1.0, limits={})
+    assert float(o.values["inrush_factor"]) == pytest.approx(float(np.max(i[:k])), rel=5e-3)
+
+
+def test_pure_inductance_limit_closed_form():
+    """Pure L switched on at a voltage zero (any circuits text, e.g. Hayt & Kemmerly, from
+    memory): i = (Vm/ωL)·(1 − cos ωt), peak 2·Vm/ωL at ωt = π, zero again at 2π, so the
+    first zero lags the voltage zero by π and the peak is twice the steady peak."""
+    phi = np.radians(89.999)
+    o = burst.pulse_check(phi=phi, omega=2 * np.pi * 50, pulse=1.0, limits={})
+    assert float(o.values["inrush_factor"]) == pytest.approx(2.0, rel=2e-3)
+    # the zero is a tangency as φ → 90°, so the lag approaches π slowly (3.1268 here)
+    assert float(o.values["first_zero_lag"]) == pytest.approx(np.pi, rel=5e-3)
+
+
+def burst_pair(phi: float, pulse: float, cycles: int = 6) -> dict[str, float]:
+    """Antiparallel SCRs, each pulsed at its own voltage zero (θ = 2πn and 2πn + π) for
+    ``pulse`` rad, an R–L load from rest (solve_ivp, per unit). An SCR fires while its
+    pulse lasts and its anode is positive, i.e. once the other SCR's current has ended;
+    it conducts until its current's zero. Returns the mean load current over the burst and
+    how many half-cycles each SCR conducted."""
+    from scipy.integrate import solve_ivp
+
+    r, x = np.cos(phi), np.sin(phi)
+    t, end = 0.0, 2 * np.pi * cycles
+    area, fired = 0.0, {1: 0, -1: 0}
+    while t < end - 1e-9:
+        # the next pulse that finds no current flowing: pulses start at multiples of π
+        n = int(np.ceil(t / np.pi - 1e-9))
+        start = None
+        for m in (n - 1, n):
+            if m >= 0 and m * np.pi <= t + 1e-12 < m * np.pi + pulse:
+                start, sign = t, (1.0 if m % 2 == 0 else -1.0)
+                break
+        if start is None:
+            t, sign = n * np.pi, (1.0 if n % 2 == 0 else -1.0)
+            if t >= end:
+                break
+        def rhs(th, y, s=sign):
+            return [(s * np.sin(th) - r * y[0]) / x]
+
+        def zero(th, y):
+            return y[0] + 1e-12
+        zero.terminal, zero.direction = True, -1
+        sol = solve_ivp(rhs, (t, min(t + 2 * np.pi, end)), [0.0], events=[zero],
+                        rtol=1e-10, atol=1e-12, dense_output=True, max_step=2e-3)
+        tt = np.linspace(t, sol.t[-1], 20001)
+        area += sign * np.trapezoid(np.maximum(sol.sol(tt)[0], 0.0), tt)
+        fired[int(sign)] += 1
+        t = float(sol.t[-1])
+    return {"mean": area / (2 * np.pi * cycles), "forward": fired[1], "reverse": fired[-1]}
+
+
+@pytest.mark.parametrize("phi_deg", [60.0, 80.0])
+def test_a_pulse_shorter_than_the_first_current_zero_gives_dc(phi_deg):
+    """The check's rule against a simulation of the pair: a pulse 5 % short of the required
+    width (yet longer than the steady lag φ) is missed, one SCR conducts alone and the load
+    carries DC; 5 % longer, both conduct every half-cycle and what mean is left is the first
+    cycle's decaying asymmetry."""
+    phi = np.radians(phi_deg)
+    w = 2 * np.pi * 50
+    need = float(burst.first_zero_lag(phi=phi))
+    assert 0.95 * need > phi
+    short, wide = burst_pair(phi, 0.95 * need), burst_pair(phi, 1.05 * need)
+    assert short["reverse"] == 0 and short["mean"] > 0.2
+    assert wide["reverse"] == wide["forward"] == 6
+    assert abs(wide["mean"]) < 0.3 * short["mean"]
+    o = burst.pulse_check(phi=phi, omega=w, pulse=np.array([0.95, 1.05]) * need / w,
+                          limits={"fail_below": 1.0})
+    assert o.status.tolist() == [2, 0]
+
+
+def test_unknown_pulse_fails():
+    o = burst.pulse_check(phi=np.radians(40.0), omega=2 * np.pi * 50, pulse=np.nan,
+                          limits={"fail_below": 1.0})
+    assert o.status.tolist() == 2

@@ -109,3 +109,54 @@ def test_latch_time_at_the_voltage_zero_inductive_against_solve_ivp():
         assert ev.outcome.values["required_width"][row] == pytest.approx(t_ivp, rel=5e-3)
     # the inductance slows the rise: more than the resistive time
     assert r.values["required_width"].max > latch(burst_kiln()).values["required_width"].max
+
+
+def rl_burst_kiln(l: str = "200 mH") -> str:
+    return burst_kiln().replace('load = { r = "26.5 ohm ±5%"',
+                                f'load = {{ r = "26.5 ohm ±5%", l = "{l}"')
+
+
+def test_inductive_burst_short_pulse_fails_with_the_fix():
+    """The kiln's gate pulse (µs) against an R–L load's first current zero (ms): missed."""
+    from checks import burst
+
+    r = result(rl_burst_kiln(), "power.control")
+    assert r.status == "fail"
+    assert "gate pulse ≥" in r.summary and "pulse train" in r.summary
+    assert "current zero" in r.summary
+    ev = r.evaluation
+    x = ev.inputs
+    row = ev.worst_row
+    w = 2 * np.pi * x["freq"][row]
+    phi = np.arctan2(w * x["l"][row], x["r"][row])
+    assert ev.outcome.values["required_width"][row] == pytest.approx(
+        float(burst.first_zero_lag(phi=phi)) / w, rel=1e-9)
+
+
+def test_inductive_burst_wide_pulse_passes_and_unknown_fails(monkeypatch):
+    import reviewer.stages.power as pw
+
+    monkeypatch.setattr(pw, "gate_pulse", lambda ctx, stage: 6e-3)  # a 6 ms pulse
+    assert result(rl_burst_kiln(), "power.control").status == "pass"
+    monkeypatch.setattr(pw, "gate_pulse", lambda ctx, stage: 3e-3)  # 3 ms < 4.3 ms needed
+    assert result(rl_burst_kiln(), "power.control").status == "fail"
+    monkeypatch.setattr(pw, "gate_pulse", lambda ctx, stage: None)
+    r = result(rl_burst_kiln(), "power.control")
+    assert r.status == "fail" and "not known" in r.summary
+
+
+def test_resistive_burst_has_no_control_question():
+    assert result(burst_kiln(), "power.control").status == "not-applicable"
+
+
+def test_burst_pulse_key_sets_the_pulse():
+    """`burst.pulse` (a gate held through the half-cycle: 10 ms at 50 Hz) passes; a 2 ms
+    pulse against the ≈4.3 ms first current zero fails and says the width to type."""
+    held = rl_burst_kiln().replace("burst = { period = 50,",
+                                   'burst = { pulse = "10 ms", period = 50,')
+    r = result(held, "power.control")
+    assert r.status == "pass" and "(burst.pulse)" in r.summary
+    assert "stages.power.burst.pulse" in r.snapshot["inputs"]
+    short = held.replace('pulse = "10 ms"', 'pulse = "2 ms"')
+    r = result(short, "power.control")
+    assert r.status == "fail" and 'burst.pulse = "4.' in r.summary
