@@ -15,6 +15,7 @@ References
     (AC voltage controllers with R–L loads), §17.6 (dv/dt protection, snubbers).
 [2] N. Mohan, T. M. Undeland, W. P. Robbins, *Power Electronics*, 3rd ed., ch. 20 (triacs).
 [3] P. C. Sen, *Power Electronics*, ch. 2 (triac gate quadrants), and common practice.
+[4] The series R–L–R_s–C circuit in sinusoidal steady state (phasors): any circuits text.
 """
 
 from __future__ import annotations
@@ -390,6 +391,100 @@ def max_abs_sin(*, a: np.ndarray, b: np.ndarray) -> np.ndarray:
 SETTLE = 4.0
 
 
+def divider_gain(*, omega: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                 snub_r: np.ndarray, snub_c: np.ndarray) -> np.ndarray:
+    """|H(jω)| of the line through the load to an R–C snubber across the off triac [–].
+
+    H = Z_snub/(Z_load + Z_snub) = (1 + jωR_sC)/(1 − ω²LC + jω(R + R_s)C): the steady
+    off-state voltage across a triac that is not fired is Vm·|H|, above the line's peak
+    where the load's L and the snubber's C come near resonance (ω²LC towards 1)  [4].
+    omega [rad/s]; r, snub_r [Ω]; l [H]; snub_c [F].
+
+    >>> round(float(divider_gain(omega=314.159, r=30.0, l=2.0, snub_r=2800.0, snub_c=1e-6)), 4)
+    1.1119
+    """
+    jw = 1j * _a(omega)
+    c = _a(snub_c)
+    return np.abs((1 + jw * _a(snub_r) * c)
+                  / (1 + jw**2 * _a(l) * c + jw * (_a(r) + _a(snub_r)) * c))
+
+
+def snubbed_turnoff(*, vm: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                    omega: np.ndarray, beta: np.ndarray, snub_r: np.ndarray,
+                    snub_c: np.ndarray) -> dict[str, np.ndarray]:
+    """The voltage reapplied across a snubbed triac from the current zero β on, bounded.
+
+    The line moves on while the snubber rings (for a large L that lasts a fair part of the
+    half-cycle): the step is taken at the largest |line| within 4/σ after the zero
+    (``step_bound``, :func:`max_abs_sin`), which by superposition bounds the response to the
+    moving line from above; the line's own slope (up to ω·Vm) is a ramp into the same network,
+    whose response rises at the slope times the unit step response, at most its peak h_max:
+    dv/dt ≤ :func:`snubbed_step` maximum + ω·Vm·h_max (on a nearly resistive load the step is
+    tiny and this term is the whole rate). The peak (``peak``) is the larger of the ringing
+    and the steady off-state Vm·|H| of :func:`divider_gain`; on a resistive load (L = 0) it is
+    the line at the zero, Vm·|sin β|. vm [V] peak; r, snub_r [Ω]; l [H]; omega [rad/s];
+    beta [rad]; snub_c [F]. Returns ``step_bound`` [V], ``dvdt_max`` [V/s], ``dvdt_time``
+    [s], ``damping`` ζ [–], ``ringing_peak`` [V], ``divider_gain`` [–] and ``peak`` [V].
+
+    >>> t = snubbed_turnoff(vm=357.8, r=220.0, l=1.0, omega=314.16, beta=np.radians(230.0),
+    ...                     snub_r=3300.0, snub_c=47e-9)
+    >>> round(float(t["step_bound"]), 1), round(float(t["peak"]), 1)
+    (357.8, 488.2)
+    """
+    vm, r, l, omega, beta = (_a(x) for x in (vm, r, l, omega, beta))  # noqa: E741
+    inductive = l > 0
+    l_s = np.where(inductive, l, 1.0)
+    sigma = (r + _a(snub_r)) / (2 * l_s)
+    window = np.minimum(omega * SETTLE / sigma, np.pi)
+    step = vm * np.abs(np.sin(beta))
+    step_used = np.where(inductive, vm * max_abs_sin(a=beta, b=beta + window), step)
+    s = snubbed_step(e=step_used, r_load=r, l=l_s, r_s=snub_r, c=snub_c)
+    h_max = snubbed_step(e=np.ones_like(step_used), r_load=r, l=l_s, r_s=snub_r,
+                         c=snub_c)["peak_voltage"]
+    gain = divider_gain(omega=omega, r=r, l=l, snub_r=snub_r, snub_c=snub_c)
+    ringing = np.where(inductive, s["peak_voltage"], step)
+    return {"step_bound": step_used, "dvdt_max": s["dvdt_max"] + omega * vm * h_max,
+            "dvdt_time": s["dvdt_time"], "damping": s["damping"], "ringing_peak": ringing,
+            "divider_gain": gain + 0 * ringing,
+            "peak": np.where(inductive, np.maximum(ringing, vm * gain), step)}
+
+
+def offstate_peak(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                  omega: np.ndarray, snub_r: np.ndarray, snub_c: np.ndarray,
+                  alpha: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """The largest voltage across a snubbed triac while it blocks, per row [V].
+
+    The larger of the steady off state Vm·max(1, |H|) (a triac not fired sees the line
+    through load and snubber, :func:`divider_gain`) and the ringing after the current zero β
+    of a firing at α (:func:`commutation_angle`, :func:`snubbed_turnoff`, as
+    ``triac.commutation`` takes it). NaN α (a trigger that does not fire at that row): the
+    triac stays off, the steady state alone. Without ``alpha`` the zero is put at the line's
+    peak (β = 3π/2): the largest step any firing can give, a bound. vs [V RMS]; r, snub_r
+    [Ω]; l [H] (load and supply in series); omega [rad/s]; snub_c [F]; alpha [rad].
+    Returns ``peak``, ``steady_peak``, ``ringing_peak`` [V] and ``divider_gain`` [–].
+
+    >>> o = offstate_peak(vs=253.0, r=30.0, l=2.0, omega=314.159, snub_r=2800.0,
+    ...                   snub_c=1e-6, alpha=np.radians(150.0))
+    >>> round(float(o["steady_peak"]), 1), round(float(o["divider_gain"]), 4)
+    (397.8, 1.1119)
+    """
+    vm = np.sqrt(2.0) * _a(vs)
+    r, l, omega = _a(r), _a(l), _a(omega)  # noqa: E741
+    if alpha is None:
+        fired = np.True_
+        beta = np.full(np.broadcast(vm, r, l).shape, 1.5 * np.pi)
+    else:
+        a = _a(alpha)
+        fired = np.isfinite(a)
+        beta = commutation_angle(alpha=np.where(fired, a, np.pi / 2),
+                                 phi=np.arctan2(omega * l, r))
+    t = snubbed_turnoff(vm=vm, r=r, l=l, omega=omega, beta=beta, snub_r=snub_r, snub_c=snub_c)
+    steady = vm * np.maximum(1.0, t["divider_gain"])
+    ringing = np.where(fired, t["ringing_peak"], 0.0)
+    return {"peak": np.maximum(steady, ringing), "steady_peak": steady + 0 * ringing,
+            "ringing_peak": ringing, "divider_gain": t["divider_gain"] + 0 * ringing}
+
+
 def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
                       omega: np.ndarray, alpha: np.ndarray, dvdt_c: np.ndarray,
                       didt_c: np.ndarray, limits: Mapping[str, float],
@@ -431,31 +526,13 @@ def commutation_check(*, vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: 
     nan = np.full(np.broadcast(step, didt).shape, np.nan)
     step_used = step
     if snub_r is not None and snub_c is not None:
-        l_s = np.where(inductive, l, 1.0)
-        # The line moves on while the snubber rings (for a large L that lasts a fair part of
-        # the half-cycle): the step is taken at the largest |line| within 4/σ after the zero,
-        # which by superposition bounds the response to the moving line from above.
-        sigma = (r + _a(snub_r)) / (2 * l_s)
-        window = np.minimum(omega * SETTLE / sigma, np.pi)
-        step_used = np.where(inductive, vm * max_abs_sin(a=beta, b=beta + window), step)
-        s = snubbed_step(e=step_used, r_load=r, l=l_s, r_s=snub_r, c=snub_c)
-        # The line's own slope (up to ω·Vm) is a ramp into the same network: its response
-        # rises at the slope times the unit step response, at most its peak h_max. On a
-        # nearly resistive load the step is tiny and this term is the whole rate.
-        h_max = snubbed_step(e=np.ones_like(step_used), r_load=r, l=l_s, r_s=snub_r,
-                             c=snub_c)["peak_voltage"]
-        dvdt = np.where(inductive, s["dvdt_max"] + omega * vm * h_max, omega * vm)
-        t_m = np.where(inductive, s["dvdt_time"], 0.0)
-        zeta = np.where(inductive, s["damping"], np.nan)
-        # Off, the triac sees the line through the load and the snubber, a divider
-        # H = (1 + jωR_sC)/(1 − ω²LC + jω(R + R_s)C) whose gain exceeds 1 as ω nears the
-        # L–C resonance: the off-state voltage is then above the line's own peak.
-        jw = 1j * omega
-        c_s = _a(snub_c)
-        gain = np.abs((1 + jw * _a(snub_r) * c_s)
-                      / (1 + jw**2 * l * c_s + jw * (r + _a(snub_r)) * c_s))
-        peak = np.where(inductive, np.maximum(s["peak_voltage"], vm * gain),
-                        vm * np.abs(np.sin(beta)))
+        t = snubbed_turnoff(vm=vm, r=r, l=l, omega=omega, beta=beta, snub_r=snub_r,
+                            snub_c=snub_c)
+        step_used = t["step_bound"]
+        dvdt = np.where(inductive, t["dvdt_max"], omega * vm)
+        t_m = np.where(inductive, t["dvdt_time"], 0.0)
+        zeta = np.where(inductive, t["damping"], np.nan)
+        peak = t["peak"]
     else:
         dvdt = np.where(inductive, np.nan, omega * vm)
         t_m, zeta, peak = nan, nan, nan

@@ -271,46 +271,89 @@ def _bind_blocking(ctx: Context) -> Bound:
         step = sn.get("step", "line")
         if isinstance(step, Value):
             b.add("snub_e", ctx.stage_path("step", sn), step)
+        # Off, the line reaches the snubber through the load (and the supply's L): a divider
+        # whose gain can exceed 1, and after each current zero the step rings above the line.
+        ctx.need(b, "freq", "supply.frequency")
+        _load(ctx, b)
+        ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
+        b.notes[:] = [n for n in b.notes if not n.startswith("l_s not given")]
+        gate = ctx.linked_stage("gate")
+        if isinstance(ctx.stage.get("firing"), Value) or (gate is not None
+                                                           and gate.kind == "diac-rc"):
+            _firing(ctx, b, sweep=FIRING_SWEEP)
+        else:
+            b.options["no_firing"] = True
     return b
 
 
 def _fn_blocking(*, vs: Any, vdrm: Any, limits: Mapping[str, float], snubber: str = "",
                  snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
-                 snub_e: Any = None) -> Outcome:
+                 snub_e: Any = None, no_firing: bool = False, **kw: Any) -> Outcome:
     v_line = np.sqrt(2.0) * np.asarray(vs, dtype=float)
     v = v_line
+    extra: dict[str, Any] = {}
     if snubber:
         e = v_line if snub_e is None else snub_e
         v_snub, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
-        v = np.maximum(v_line, v_snub)
+        kw["vs"] = vs
+        a = None if no_firing else _pop_range(kw)[0]
+        l_loop = np.asarray(kw.pop("l"), dtype=float) + np.asarray(kw.pop("l_s", 0.0),
+                                                                   dtype=float)
+        off = triac.offstate_peak(vs=vs, r=kw.pop("r"), l=l_loop, omega=_omega(kw),
+                                  snub_r=snub_r, snub_c=snub_c, alpha=a)
+        v = np.maximum(np.maximum(v_line, v_snub), off["peak"])
+        extra = {"divider_gain": off["divider_gain"], "ringing_peak": off["ringing_peak"],
+                 "firing_step_peak": np.asarray(v_snub, dtype=float)}
     # One VDRM for both polarities: the triac blocks the line's peak each way.
     out = power.blocking_check(vdrm=vdrm, vrrm=vdrm, v_fwd=v, v_rev=v, limits=limits)
-    out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
+    zero = 0 * out.values["peak_voltage"]
+    out.values["line_peak"] = v_line + zero
+    for k, x in extra.items():
+        out.values[k] = x + zero
     return out
 
 
 def _sum_blocking(r: Reduced) -> str:
     vdrm = r.bound.inputs["vdrm"].value.nom
     sn = r.bound.options.get("snubber")
-    src = f"the larger of √2·V_s and the snubber `{sn}` overshoot" if sn else "√2·V_s"
+    if sn:
+        src = (f"the largest of √2·V_s, the line through load and snubber `{sn}` (gain up to "
+               f"{r.hi['divider_gain']:.3f}), the ringing after the current zero (up to "
+               f"{eng(r.hi['ringing_peak'], 'V')}) and the line-step overshoot")
+    else:
+        src = "√2·V_s"
     text = (f"VDRM {eng(vdrm, 'V')} against {eng(r.hi['peak_voltage'], 'V')} ({src}, high "
             f"line), both polarities: ratio {r.worst['blocking_ratio']:.2f}")
+    if r.bound.options.get("no_firing"):
+        text += "; no firing range given: the current zero taken at the line's peak"
     if r.status != "pass":
         k = r.limits.get("marginal_below", 2.0)
         text += (f"; {r.status}: needs VDRM ≥ {at_least(k * r.hi['peak_voltage'], 'V')} for "
                  f"{k:g}×")
-    return text + "; the overshoot after commutation is in triac.commutation"
+        w = r.worst
+        if sn and w["peak_voltage"] > 1.001 * w["line_peak"]:
+            if w["ringing_peak"] >= w["peak_voltage"] * (1 - 1e-9):
+                text += (", or a better-damped snubber (ζ = (R + R_s)/2·√(C/L) nearer 1: "
+                         "triac.commutation's dv/dt limits R_s)")
+            elif w["divider_gain"] * w["line_peak"] >= w["peak_voltage"] * (1 - 1e-9):
+                text += (", or a smaller snubber C (the load's L and C are near resonance at "
+                         "the line's frequency)")
+    return text
 
 
 register(CheckDef(
     id="triac.blocking", kinds=KIND,
     question="Is VDRM above the peak off-state voltage in both directions, with margin?",
-    method="blocking_ratio = VDRM/V with V = √2·V_s,max, or the larger snubber overshoot peak "
-           "of the firing-step response when a snubber is across the stage; ≥ 2.0 passes, "
-           "1.5–2.0 marginal.",
-    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6",
+    method="blocking_ratio = VDRM/V with V = √2·V_s,max; with a snubber across the stage the "
+           "largest of that, the steady off state √2·V_s·|H| (H = Z_snub/(Z_load + Z_snub), "
+           "the load's L with the supply's), the ringing after the current zero as "
+           "triac.commutation bounds it (over the firing range; at the line's peak without "
+           "one) and the snubber's line-step overshoot; ≥ 2.0 passes, 1.5–2.0 marginal.",
+    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6; the "
+           "series R–L–R_s–C circuit in sinusoidal steady state",
     fn=_fn_blocking, bind=_bind_blocking,
-    units={"peak_voltage": "V", "blocking_ratio": "1", "line_peak": "V"},
+    units={"peak_voltage": "V", "blocking_ratio": "1", "line_peak": "V", "divider_gain": "1",
+           "ringing_peak": "V", "firing_step_peak": "V"},
     summarise=_sum_blocking,
     fix="A higher voltage class, or a better-damped snubber.",
     cautions=("A triac that breaks over fires itself (it is not damaged by one breakover, but "
