@@ -264,6 +264,12 @@ def _bind_blocking(ctx: Context) -> Bound:
     sn = _snubber(ctx)
     if sn is not None:
         b.options["snubber"] = sn.id
+        # Off, the line reaches the snubber through the load (and the supply's L): a divider
+        # whose gain can exceed 1, and after each current zero the step rings above the line.
+        # Read in triac.commutation's order, so that both checks have the same corner rows
+        # and a diac trigger's firing angles, solved for one, are shared with the other.
+        ctx.need(b, "freq", "supply.frequency")
+        _load(ctx, b)
         ctx.need(b, "snub_r", ctx.stage_path("r", sn))
         ctx.need(b, "snub_c", ctx.stage_path("c", sn))
         if ctx.read(b, "snub_l", ctx.stage_path("inductance", sn)) is None:
@@ -271,10 +277,6 @@ def _bind_blocking(ctx: Context) -> Bound:
         step = sn.get("step", "line")
         if isinstance(step, Value):
             b.add("snub_e", ctx.stage_path("step", sn), step)
-        # Off, the line reaches the snubber through the load (and the supply's L): a divider
-        # whose gain can exceed 1, and after each current zero the step rings above the line.
-        ctx.need(b, "freq", "supply.frequency")
-        _load(ctx, b)
         ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
         b.notes[:] = [n for n in b.notes if not n.startswith("l_s not given")]
         gate = ctx.linked_stage("gate")
@@ -333,8 +335,8 @@ def _sum_blocking(r: Reduced) -> str:
         w = r.worst
         if sn and w["peak_voltage"] > 1.001 * w["line_peak"]:
             if w["ringing_peak"] >= w["peak_voltage"] * (1 - 1e-9):
-                text += (", or a better-damped snubber (ζ = (R + R_s)/2·√(C/L) nearer 1: "
-                         "triac.commutation's dv/dt limits R_s)")
+                text += (", or more damping in the snubber (ζ = (R + R_s)/2·√(C/L) towards "
+                         "1: a larger C, as triac.commutation's dv/dt holds R_s down)")
             elif w["divider_gain"] * w["line_peak"] >= w["peak_voltage"] * (1 - 1e-9):
                 text += (", or a smaller snubber C (the load's L and C are near resonance at "
                          "the line's frequency)")
@@ -875,6 +877,12 @@ def _sum_commutation(r: Reduced) -> str:
     if not inductive:
         text += (f"; a resistive load: the voltage rises with the line, "
                  f"{eng(r.hi['dvdt_reapplied'], 'V/s')} against (dv/dt)c {eng(rating_dv, 'V/s')}")
+    elif not sn and r.hi["load_angle"] <= triac.NEAR_RESISTIVE:
+        text += (f"; no snubber across the triac: a nearly resistive load (φ up to "
+                 f"{_deg(r.hi['load_angle'])}) steps by only {eng(r.hi['step_voltage'], 'V')}, "
+                 "but at a rate only the triac's own capacitance sets, which no input gives: "
+                 f"no rate can be shown against (dv/dt)c {eng(rating_dv, 'V/s')} (confirm on "
+                 "the bench at Tj,max, or add a snubber and the check can judge it)")
     elif not sn:
         text += ("; no snubber across the triac: the voltage steps at once (only the triac's own "
                  f"capacitance slows it), far above (dv/dt)c {eng(rating_dv, 'V/s')}: the triac "
@@ -893,7 +901,11 @@ def _sum_commutation(r: Reduced) -> str:
         fixes.append(f"the (dv/dt)c rating holds only at or below its (di/dt)c and the current "
                      f"falls faster: a triac rated for ≥ {at_least(k * r.hi['didt_zero'], 'A/s')}"
                      f" at commutation, or a load choke raising L to ≥ {at_least(need_l, 'H')}")
-    if r.lo["dvdt_ratio"] < k and inductive:
+    near_r = not sn and inductive and r.hi["load_angle"] <= triac.NEAR_RESISTIVE
+    if r.lo["dvdt_ratio"] < k and near_r:
+        fixes.append("an R–C snubber across the triac, so that the rate of the small step is "
+                     "one this check can compute (the full-step sizing does not apply here)")
+    elif r.lo["dvdt_ratio"] < k and inductive:
         # The step is bounded by the line's peak; with C ≥ L/R_s² the response is damped
         # (ζ ≥ 0.5, R_s·(R + R_s)·C ≥ L) and dv/dt is largest at once: R_s·E/L.
         e = math.sqrt(2.0) * r.bound.inputs["vs"].value.hi
@@ -922,14 +934,17 @@ register(CheckDef(
     method="β = the R–L extinction angle for α (β = π + φ at α = φ); at the zero L·di/dt = "
            "Vm·sin β, so |di/dt| = Vm·|sin β|/L (ω·Vm/R on a resistive load), and the step "
            "E = Vm·|sin β| is reapplied. With an rc-snubber across the stage: the R–L–C "
-           "response of the load (L, R) and the snubber (R_s, C_s) to E from rest, "
-           "dv/dt = i/C + R_s·di/dt at its maximum (closed form); without one an inductive "
-           "load's step has no finite rate: fail. Pass when dv/dt ≤ (dv/dt)c/1.5 and |di/dt| ≤ "
-           "(di/dt)c/1.5 and the ringing peak ≤ VDRM/1.5; a di/dt above (di/dt)c fails whatever "
-           "the dv/dt (the rating does not apply). Worst corner over high line, α (swept), L "
-           "and R and the snubber's spread.",
+           "response of the load (L, R) and the snubber (R_s, C_s) to the line from rest, "
+           "bounded: dv/dt ≤ E·max h' + ω·Vm·TV(h) (h the unit step response; Duhamel's "
+           "integral), or the steady state's ω·Vm·|H| plus the natural response's largest "
+           "rate, the smaller; without one an inductive load's step has no finite rate: fail "
+           "(φ ≤ 5°: marginal, the step below 0.09·Vm). Pass when dv/dt ≤ (dv/dt)c/1.5 and "
+           "|di/dt| ≤ (di/dt)c/1.5 and the ringing peak ≤ VDRM/1.5; a di/dt above (di/dt)c "
+           "fails whatever the dv/dt (the rating does not apply). Worst corner over high "
+           "line, α (swept), L and R and the snubber's spread.",
     source="Rashid 4e §11 (R–L extinction angle), §17.6 (snubber step response); Mohan, "
-           "Undeland & Robbins 3rd ed. ch. 20 (triac commutation)",
+           "Undeland & Robbins 3rd ed. ch. 20 (triac commutation); the series R–L–C circuit's "
+           "steady state and natural response (any circuits text)",
     fn=_fn_commutation, bind=_bind_commutation,
     units={"commutation_angle": "deg", "step_voltage": "V", "didt_zero": "A/s",
            "dvdt_reapplied": "V/s", "dvdt_time": "s", "damping": "1", "reapplied_peak": "V",

@@ -561,3 +561,45 @@ def test_diac_rc_phase_controller_chapman_example():
     load_r = 10.0
     it = float(triac.currents(vs=vs, r=load_r, l=0.0, omega=w, alpha=a)["it_rms"])
     assert it * load_r == pytest.approx(54.49, abs=0.01)
+
+
+@pytest.mark.parametrize("phi_deg", [0.5, 2.0, 4.5, 10.0, 30.0, 60.0])
+@pytest.mark.parametrize("snub", [(100.0, 0.1e-6), (1000.0, 47e-9), (10.0, 0.47e-6)])
+@pytest.mark.parametrize("r", [23.0, 100.0])
+def test_reapplied_rate_bound_against_solve_ivp(phi_deg: float, snub: tuple[float, float],
+                                                r: float):
+    """The rate bound E·max h' + ω·Vm·TV(h) against solve_ivp with the moving line, from the
+    current zero: never below it (no wrong pass), and within 2.5× of it, where the bound
+    that took the step at the line's largest value in the ringing window (and the slope
+    times the step response's peak) was up to 5.8× above it on nearly resistive loads."""
+    r_s, c = snub
+    vm = math.sqrt(2) * 253.0
+    l = r * math.tan(math.radians(phi_deg)) / W50  # noqa: E741
+    a = max(math.radians(90.0), math.radians(phi_deg) + 0.1)
+    o = triac.commutation_check(vs=np.array([253.0]), r=r, l=l, omega=W50, alpha=a,
+                                dvdt_c=1e12, didt_c=1e12, limits=LIM, snub_r=r_s, snub_c=c)
+    beta = float(o.values["commutation_angle"][0])
+    ivp = integrate_snubbed(0.0, r, l, r_s, c, line=(vm, W50, beta),
+                            t_end=min(2e-3, (a + math.pi - beta) / W50))
+    got = float(o.values["dvdt_reapplied"][0])
+    assert got >= ivp["dvdt"] * (1 - 1e-3)
+    assert got <= 2.5 * ivp["dvdt"]
+
+
+@pytest.mark.parametrize("phi_deg,didt_c,status", [
+    (2.0, 1e9, MARGINAL),   # a nearly resistive load: a small step at an unknown rate
+    (4.9, 1e9, MARGINAL),
+    (10.0, 1e9, FAIL),      # a full inductive step: the triac does not turn off
+    (2.0, 1.0, FAIL),       # the current's slope beyond (di/dt)c fails whatever the step
+])
+def test_no_snubber_nearly_resistive_is_marginal_never_pass(phi_deg, didt_c, status):
+    r = 23.0
+    l = r * math.tan(math.radians(phi_deg)) / W50  # noqa: E741
+    o = triac.commutation_check(vs=np.array([253.0]), r=r, l=l, omega=W50, alpha=1.5,
+                                dvdt_c=1e12, didt_c=didt_c, limits=LIM)
+    assert o.status.tolist() == [status]
+    assert math.isnan(float(o.values["dvdt_reapplied"][0]))  # no rate is claimed
+    assert float(o.margin[0]) <= 0.0
+    # the step is what it says: Vm·sin of the zero's angle, below 0.09·Vm for φ < 5°
+    if phi_deg < 5.0:
+        assert float(o.values["step_voltage"][0]) < 0.09 * math.sqrt(2) * 253.0
