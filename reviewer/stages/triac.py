@@ -747,24 +747,39 @@ def _bind_didt(ctx: Context) -> Bound:
     if sn is not None:
         b.options["snubber"] = sn.id
         if ctx.read(b, "snub_ld", ctx.stage_path("discharge_inductance", sn)) is None:
-            ctx.need(b, "snub_r", ctx.stage_path("r", sn))
             ctx.read(b, "t_on", _pp(ctx, "tgt"), default=1e-6, dim="time", unit="s")
+        # The capacitor discharges from the triac's voltage at firing, which the load and the
+        # snubber can lift above the line's (their divider, the ringing after the zero): it
+        # is taken at triac.blocking's off-state bound.
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.need(b, "freq", "supply.frequency")
     _firing(ctx, b, sweep=7, extra=(HALF_PI,))
     return b
 
 
 def _fn_didt(*, didt_rating: Any, limits: Mapping[str, float], l_s: Any = 0.0,
              l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
-             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+             snub_r: Any = None, t_on: Any = None, snub_c: Any = None, r: Any = None,
+             **kw: Any) -> Outcome:
     a, _, _ = _pop_range(kw)  # the line stays in kw: a diac-rc trigger's range reads it
     vs = kw["vs"]
     v = np.sqrt(2.0) * np.asarray(vs, dtype=float) * np.sin(a)
+    l_tot = np.asarray(l_s, dtype=float) + np.asarray(l, dtype=float)
     snub: Any = 0.0
+    v_fire: Any = None
     if snubber:
+        off = triac.offstate_peak(vs=vs, r=r, l=l_tot, omega=_omega(kw), snub_r=snub_r,
+                                  snub_c=snub_c, alpha=a)
+        v_fire = np.maximum(np.abs(v), off["peak"])
         with np.errstate(divide="ignore"):
-            snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
-    return power.didt_check(kind="ac", vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
-                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+            snub = v_fire / snub_ld if snub_ld is not None else (v_fire / snub_r) / t_on
+    out = power.didt_check(kind="ac", vs=vs, l_tot=l_tot, alpha=a, snub_didt=snub,
+                           didt_rating=didt_rating, limits=limits)
+    if v_fire is not None:
+        out.values["snubber_voltage"] = v_fire + 0 * out.values["didt"]
+    return out
 
 
 def _sum_didt(r: Reduced) -> str:
@@ -772,7 +787,8 @@ def _sum_didt(r: Reduced) -> str:
     text = f"di/dt at firing up to {eng(r.hi['didt'], 'A/s')} against {eng(rating, 'A/s')}"
     sn = r.bound.options.get("snubber")
     if sn:
-        text += f", with the snubber `{sn}` discharge"
+        text += (f", with the snubber `{sn}` discharge from up to "
+                 f"{eng(r.hi['snubber_voltage'], 'V')} (triac.blocking's off-state bound)")
     if r.status != "pass":
         ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
         text += (f"; fails: needs the loop inductance ≥ {at_least(ls * r.hi['didt'] / rating, 'H')}"
@@ -784,10 +800,12 @@ register(CheckDef(
     id="triac.didt", kinds=KIND,
     question="Rate of rise of on-state current at firing, including the snubber's discharge.",
     method="V_m,max·sin α*/(L_s + L), α* = 90° where the range spans it, else the end nearest "
-           "it; plus the snubber discharge V/L_d, or (V/R_sn)/t_gt without L_d.",
+           "it; plus the snubber discharge V/L_d, or (V/R_sn)/t_gt without L_d, V the "
+           "triac's voltage at firing bounded as triac.blocking's off-state peak (the line "
+           "through load and snubber, the ringing after the current zero).",
     source="Rashid 4e §17 (di/dt protection)",
     fn=_fn_didt, bind=_bind_didt,
-    units={"didt": "A/s"}, summarise=_sum_didt,
+    units={"didt": "A/s", "snubber_voltage": "V"}, summarise=_sum_didt,
     fix="A series choke L ≥ V_m,max/(di/dt)cr, or a larger snubber resistor.",
 ))
 
