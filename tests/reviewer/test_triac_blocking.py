@@ -79,3 +79,13 @@ def test_blocking_without_a_snubber_is_the_line_peak_only():
     triac.commutation fails such a design on an inductive load)."""
     res = run(project(), "triac.blocking")
     assert res.values["peak_voltage"].max == VM_HI
+
+
+def test_blocking_without_a_firing_range_takes_the_zero_at_the_line_peak():
+    """A DC gate drive and no `firing` range: blocking is still judged (not incomplete), with
+    the reapplied step put at the line's peak (the largest any firing gives), and says so."""
+    res = run(project(power={"firing": None}, snub={}), "triac.blocking")
+    assert res.status in ("pass", "marginal", "fail")
+    assert "no firing range given" in res.summary
+    fired = run(project(snub={}), "triac.blocking")
+    assert res.values["peak_voltage"].max >= fired.values["peak_voltage"].max * (1 - 1e-12)
