@@ -302,6 +302,12 @@ def _bind_blocking(ctx: Context) -> Bound:
     sn = _snubber(ctx)
     if sn is not None:
         b.options["snubber"] = sn.id
+        # Off, the line reaches the snubber through the load (and the supply's L): a divider
+        # whose gain can exceed 1, and after each current zero the step rings above the line.
+        # Read in triac.commutation's order, so that both checks have the same corner rows
+        # and a diac trigger's firing angles, solved for one, are shared with the other.
+        ctx.need(b, "freq", "supply.frequency")
+        _load(ctx, b)
         ctx.need(b, "snub_r", ctx.stage_path("r", sn))
         ctx.need(b, "snub_c", ctx.stage_path("c", sn))
         if ctx.read(b, "snub_l", ctx.stage_path("inductance", sn)) is None:
@@ -309,46 +315,85 @@ def _bind_blocking(ctx: Context) -> Bound:
         step = sn.get("step", "line")
         if isinstance(step, Value):
             b.add("snub_e", ctx.stage_path("step", sn), step)
+        ctx.read(b, "l_s", "supply.inductance", default=0.0, dim="inductance", unit="H")
+        b.notes[:] = [n for n in b.notes if not n.startswith("l_s not given")]
+        gate = ctx.linked_stage("gate")
+        if isinstance(ctx.stage.get("firing"), Value) or (gate is not None
+                                                           and gate.kind == "diac-rc"):
+            _firing(ctx, b, sweep=FIRING_SWEEP)
+        else:
+            b.options["no_firing"] = True
     return b
 
 
 def _fn_blocking(*, vs: Any, vdrm: Any, limits: Mapping[str, float], snubber: str = "",
                  snub_r: Any = None, snub_c: Any = None, snub_l: Any = None,
-                 snub_e: Any = None) -> Outcome:
+                 snub_e: Any = None, no_firing: bool = False, **kw: Any) -> Outcome:
     v_line = np.sqrt(2.0) * np.asarray(vs, dtype=float)
     v = v_line
+    extra: dict[str, Any] = {}
     if snubber:
         e = v_line if snub_e is None else snub_e
         v_snub, _ = snubber_mod.step_peak(e=e, r=snub_r, l=snub_l, c=snub_c)
-        v = np.maximum(v_line, v_snub)
+        kw["vs"] = vs
+        a = None if no_firing else _pop_range(kw)[0]
+        l_loop = np.asarray(kw.pop("l"), dtype=float) + np.asarray(kw.pop("l_s", 0.0),
+                                                                   dtype=float)
+        off = triac.offstate_peak(vs=vs, r=kw.pop("r"), l=l_loop, omega=_omega(kw),
+                                  snub_r=snub_r, snub_c=snub_c, alpha=a)
+        v = np.maximum(np.maximum(v_line, v_snub), off["peak"])
+        extra = {"divider_gain": off["divider_gain"], "ringing_peak": off["ringing_peak"],
+                 "firing_step_peak": np.asarray(v_snub, dtype=float)}
     # One VDRM for both polarities: the triac blocks the line's peak each way.
     out = power.blocking_check(vdrm=vdrm, vrrm=vdrm, v_fwd=v, v_rev=v, limits=limits)
-    out.values["line_peak"] = v_line + 0 * out.values["peak_voltage"]
+    zero = 0 * out.values["peak_voltage"]
+    out.values["line_peak"] = v_line + zero
+    for k, x in extra.items():
+        out.values[k] = x + zero
     return out
 
 
 def _sum_blocking(r: Reduced) -> str:
     vdrm = r.bound.inputs["vdrm"].value.nom
     sn = r.bound.options.get("snubber")
-    src = f"the larger of √2·V_s and the snubber `{sn}` overshoot" if sn else "√2·V_s"
+    if sn:
+        src = (f"the largest of √2·V_s, the line through load and snubber `{sn}` (gain up to "
+               f"{r.hi['divider_gain']:.3f}), the ringing after the current zero (up to "
+               f"{eng(r.hi['ringing_peak'], 'V')}) and the line-step overshoot")
+    else:
+        src = "√2·V_s"
     text = (f"VDRM {eng(vdrm, 'V')} against {eng(r.hi['peak_voltage'], 'V')} ({src}, high "
             f"line), both polarities: ratio {r.worst['blocking_ratio']:.2f}")
+    if r.bound.options.get("no_firing"):
+        text += "; no firing range given: the current zero taken at the line's peak"
     if r.status != "pass":
         k = r.limits.get("marginal_below", 2.0)
         text += (f"; {r.status}: needs VDRM ≥ {at_least(k * r.hi['peak_voltage'], 'V')} for "
                  f"{k:g}×")
-    return text + "; the overshoot after commutation is in triac.commutation"
+        w = r.worst
+        if sn and w["peak_voltage"] > 1.001 * w["line_peak"]:
+            if w["ringing_peak"] >= w["peak_voltage"] * (1 - 1e-9):
+                text += (", or more damping in the snubber (ζ = (R + R_s)/2·√(C/L) towards "
+                         "1: a larger C, as triac.commutation's dv/dt holds R_s down)")
+            elif w["divider_gain"] * w["line_peak"] >= w["peak_voltage"] * (1 - 1e-9):
+                text += (", or a smaller snubber C (the load's L and C are near resonance at "
+                         "the line's frequency)")
+    return text
 
 
 register(CheckDef(
     id="triac.blocking", kinds=KIND,
     question="Is VDRM above the peak off-state voltage in both directions, with margin?",
-    method="blocking_ratio = VDRM/V with V = √2·V_s,max, or the larger snubber overshoot peak "
-           "of the firing-step response when a snubber is across the stage; ≥ 2.0 passes, "
-           "1.5–2.0 marginal.",
-    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6",
+    method="blocking_ratio = VDRM/V with V = √2·V_s,max; with a snubber across the stage the "
+           "largest of that, the steady off state √2·V_s·|H| (H = Z_snub/(Z_load + Z_snub), "
+           "the load's L with the supply's), the ringing after the current zero as "
+           "triac.commutation bounds it (over the firing range; at the line's peak without "
+           "one) and the snubber's line-step overshoot; ≥ 2.0 passes, 1.5–2.0 marginal.",
+    source="Bimbhra, Power Electronics ch. 4 (voltage safety factor); Rashid 4e §17.6; the "
+           "series R–L–R_s–C circuit in sinusoidal steady state",
     fn=_fn_blocking, bind=_bind_blocking,
-    units={"peak_voltage": "V", "blocking_ratio": "1", "line_peak": "V"},
+    units={"peak_voltage": "V", "blocking_ratio": "1", "line_peak": "V", "divider_gain": "1",
+           "ringing_peak": "V", "firing_step_peak": "V"},
     summarise=_sum_blocking,
     fix="A higher voltage class, or a better-damped snubber.",
     cautions=("A triac that breaks over fires itself (it is not damaged by one breakover, but "
@@ -740,24 +785,39 @@ def _bind_didt(ctx: Context) -> Bound:
     if sn is not None:
         b.options["snubber"] = sn.id
         if ctx.read(b, "snub_ld", ctx.stage_path("discharge_inductance", sn)) is None:
-            ctx.need(b, "snub_r", ctx.stage_path("r", sn))
             ctx.read(b, "t_on", _pp(ctx, "tgt"), default=1e-6, dim="time", unit="s")
+        # The capacitor discharges from the triac's voltage at firing, which the load and the
+        # snubber can lift above the line's (their divider, the ringing after the zero): it
+        # is taken at triac.blocking's off-state bound.
+        ctx.need(b, "snub_r", ctx.stage_path("r", sn))
+        ctx.need(b, "snub_c", ctx.stage_path("c", sn))
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.need(b, "freq", "supply.frequency")
     _firing(ctx, b, sweep=7, extra=(HALF_PI,))
     return b
 
 
 def _fn_didt(*, didt_rating: Any, limits: Mapping[str, float], l_s: Any = 0.0,
              l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
-             snub_r: Any = None, t_on: Any = None, **kw: Any) -> Outcome:
+             snub_r: Any = None, t_on: Any = None, snub_c: Any = None, r: Any = None,
+             **kw: Any) -> Outcome:
     a, _, _ = _pop_range(kw)  # the line stays in kw: a diac-rc trigger's range reads it
     vs = kw["vs"]
     v = np.sqrt(2.0) * np.asarray(vs, dtype=float) * np.sin(a)
+    l_tot = np.asarray(l_s, dtype=float) + np.asarray(l, dtype=float)
     snub: Any = 0.0
+    v_fire: Any = None
     if snubber:
+        off = triac.offstate_peak(vs=vs, r=r, l=l_tot, omega=_omega(kw), snub_r=snub_r,
+                                  snub_c=snub_c, alpha=a)
+        v_fire = np.maximum(np.abs(v), off["peak"])
         with np.errstate(divide="ignore"):
-            snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
-    return power.didt_check(kind="ac", vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
-                            snub_didt=snub, didt_rating=didt_rating, limits=limits)
+            snub = v_fire / snub_ld if snub_ld is not None else (v_fire / snub_r) / t_on
+    out = power.didt_check(kind="ac", vs=vs, l_tot=l_tot, alpha=a, snub_didt=snub,
+                           didt_rating=didt_rating, limits=limits)
+    if v_fire is not None:
+        out.values["snubber_voltage"] = v_fire + 0 * out.values["didt"]
+    return out
 
 
 def _sum_didt(r: Reduced) -> str:
@@ -765,7 +825,8 @@ def _sum_didt(r: Reduced) -> str:
     text = f"di/dt at firing up to {eng(r.hi['didt'], 'A/s')} against {eng(rating, 'A/s')}"
     sn = r.bound.options.get("snubber")
     if sn:
-        text += f", with the snubber `{sn}` discharge"
+        text += (f", with the snubber `{sn}` discharge from up to "
+                 f"{eng(r.hi['snubber_voltage'], 'V')} (triac.blocking's off-state bound)")
     if r.status != "pass":
         ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
         text += (f"; fails: needs the loop inductance ≥ {at_least(ls * r.hi['didt'] / rating, 'H')}"
@@ -777,10 +838,12 @@ register(CheckDef(
     id="triac.didt", kinds=KIND,
     question="Rate of rise of on-state current at firing, including the snubber's discharge.",
     method="V_m,max·sin α*/(L_s + L), α* = 90° where the range spans it, else the end nearest "
-           "it; plus the snubber discharge V/L_d, or (V/R_sn)/t_gt without L_d.",
+           "it; plus the snubber discharge V/L_d, or (V/R_sn)/t_gt without L_d, V the "
+           "triac's voltage at firing bounded as triac.blocking's off-state peak (the line "
+           "through load and snubber, the ringing after the current zero).",
     source="Rashid 4e §17 (di/dt protection)",
     fn=_fn_didt, bind=_bind_didt,
-    units={"didt": "A/s"}, summarise=_sum_didt,
+    units={"didt": "A/s", "snubber_voltage": "V"}, summarise=_sum_didt,
     fix="A series choke L ≥ V_m,max/(di/dt)cr, or a larger snubber resistor.",
 ))
 
@@ -889,6 +952,12 @@ def _sum_commutation(r: Reduced) -> str:
     if not inductive:
         text += (f"; a resistive load: the voltage rises with the line, "
                  f"{eng(r.hi['dvdt_reapplied'], 'V/s')} against (dv/dt)c {eng(rating_dv, 'V/s')}")
+    elif not sn and r.hi["load_angle"] <= triac.NEAR_RESISTIVE:
+        text += (f"; no snubber across the triac: a nearly resistive load (φ up to "
+                 f"{_deg(r.hi['load_angle'])}) steps by only {eng(r.hi['step_voltage'], 'V')}, "
+                 "but at a rate only the triac's own capacitance sets, which no input gives: "
+                 f"no rate can be shown against (dv/dt)c {eng(rating_dv, 'V/s')} (confirm on "
+                 "the bench at Tj,max, or add a snubber and the check can judge it)")
     elif not sn:
         text += ("; no snubber across the triac: the voltage steps at once (only the triac's own "
                  f"capacitance slows it), far above (dv/dt)c {eng(rating_dv, 'V/s')}: the triac "
@@ -907,7 +976,11 @@ def _sum_commutation(r: Reduced) -> str:
         fixes.append(f"the (dv/dt)c rating holds only at or below its (di/dt)c and the current "
                      f"falls faster: a triac rated for ≥ {at_least(k * r.hi['didt_zero'], 'A/s')}"
                      f" at commutation, or a load choke raising L to ≥ {at_least(need_l, 'H')}")
-    if r.lo["dvdt_ratio"] < k and inductive:
+    near_r = not sn and inductive and r.hi["load_angle"] <= triac.NEAR_RESISTIVE
+    if r.lo["dvdt_ratio"] < k and near_r:
+        fixes.append("an R–C snubber across the triac, so that the rate of the small step is "
+                     "one this check can compute (the full-step sizing does not apply here)")
+    elif r.lo["dvdt_ratio"] < k and inductive:
         # The step is bounded by the line's peak; with C ≥ L/R_s² the response is damped
         # (ζ ≥ 0.5, R_s·(R + R_s)·C ≥ L) and dv/dt is largest at once: R_s·E/L.
         e = math.sqrt(2.0) * r.bound.inputs["vs"].value.hi
@@ -936,14 +1009,17 @@ register(CheckDef(
     method="β = the R–L extinction angle for α (β = π + φ at α = φ); at the zero L·di/dt = "
            "Vm·sin β, so |di/dt| = Vm·|sin β|/L (ω·Vm/R on a resistive load), and the step "
            "E = Vm·|sin β| is reapplied. With an rc-snubber across the stage: the R–L–C "
-           "response of the load (L, R) and the snubber (R_s, C_s) to E from rest, "
-           "dv/dt = i/C + R_s·di/dt at its maximum (closed form); without one an inductive "
-           "load's step has no finite rate: fail. Pass when dv/dt ≤ (dv/dt)c/1.5 and |di/dt| ≤ "
-           "(di/dt)c/1.5 and the ringing peak ≤ VDRM/1.5; a di/dt above (di/dt)c fails whatever "
-           "the dv/dt (the rating does not apply). Worst corner over high line, α (swept), L "
-           "and R and the snubber's spread.",
+           "response of the load (L, R) and the snubber (R_s, C_s) to the line from rest, "
+           "bounded: dv/dt ≤ E·max h' + ω·Vm·TV(h) (h the unit step response; Duhamel's "
+           "integral), or the steady state's ω·Vm·|H| plus the natural response's largest "
+           "rate, the smaller; without one an inductive load's step has no finite rate: fail "
+           "(φ ≤ 5°: marginal, the step below 0.09·Vm). Pass when dv/dt ≤ (dv/dt)c/1.5 and "
+           "|di/dt| ≤ (di/dt)c/1.5 and the ringing peak ≤ VDRM/1.5; a di/dt above (di/dt)c "
+           "fails whatever the dv/dt (the rating does not apply). Worst corner over high "
+           "line, α (swept), L and R and the snubber's spread.",
     source="Rashid 4e §11 (R–L extinction angle), §17.6 (snubber step response); Mohan, "
-           "Undeland & Robbins 3rd ed. ch. 20 (triac commutation)",
+           "Undeland & Robbins 3rd ed. ch. 20 (triac commutation); the series R–L–C circuit's "
+           "steady state and natural response (any circuits text)",
     fn=_fn_commutation, bind=_bind_commutation,
     units={"commutation_angle": "deg", "step_voltage": "V", "didt_zero": "A/s",
            "dvdt_reapplied": "V/s", "dvdt_time": "s", "damping": "1", "reapplied_peak": "V",

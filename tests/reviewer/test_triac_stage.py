@@ -260,6 +260,24 @@ def test_commutation_fails_without_a_snubber_on_an_inductive_load():
     assert res.values["didt_zero"].max == pytest.approx(worst, rel=1e-9)
 
 
+def test_commutation_without_a_snubber_on_a_nearly_resistive_load_is_marginal_with_words():
+    """A heater with 1 mH of wiring (φ ≤ 0.95°): the step at the zero is a few volts, at a
+    rate only the triac's own capacitance sets: no pass can be shown, nor the motor's certain
+    failure: marginal, saying why."""
+    load = {"load": {"r": val(23, "resistance", "ohm", 0.1),
+                     "l": val(1e-3, "inductance", "H", 0.1)},
+            "firing": rng(math.radians(10), math.radians(150), "angle", "deg")}
+    part = triac_part(didt_c=val(20e3, "current_rate", "A/s"))
+    res = run(project(power=load, part=part), "triac.commutation")
+    assert res.status == "marginal", res.summary
+    assert "nearly resistive" in res.summary and "no rate can be shown" in res.summary
+    assert "the full-step sizing does not apply" in res.summary
+    assert res.values["step_voltage"].max < 0.02 * VM_HI
+    # the current's slope at the zero, ω·Vm/|Z| = 5.4 A/ms, beyond a 1.8 A/ms (di/dt)c: fail
+    res = run(project(power=load), "triac.commutation")
+    assert res.status == "fail", res.summary
+
+
 def test_commutation_fix_in_the_summary_works():
     res = run(project(), "triac.commutation")
     r_fix = number(res.summary, "R ≤", "Ω")
