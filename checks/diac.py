@@ -39,7 +39,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import rl, triac
+from checks import diac_single, rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -151,7 +151,7 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     dv = as_array(breakback)
     ph = as_array(phi)
     if np.any(ph > 0):
-        beta = rl.extinction_angle(alpha=alpha, phi=ph)
+        beta = _extinction(alpha, ph)
         gam = np.where(ph > 0, beta - np.pi, 0.0)
         # α ≤ φ: the current would not end before the next firing (no such state)
         gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)
@@ -174,6 +174,20 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
 
 
+def _extinction(alpha: np.ndarray, phi: np.ndarray) -> np.ndarray:
+    """:func:`checks.rl.extinction_angle`, by the warm-started iteration of
+    :func:`checks.diac_single.extinction` on the rows it covers (0 ≤ α < π, tan φ > 1e-12;
+    the same root to ~1e-14 rad) and by the general code on the others."""
+    a, p = np.broadcast_arrays(as_array(alpha), as_array(phi))
+    fast = (np.tan(np.clip(p, 0.0, np.pi / 2)) > 1e-12) & (a >= 0) & (a < np.pi)
+    if not fast.all():
+        out = np.array(rl.extinction_angle(alpha=a, phi=p), dtype=float)
+        if fast.any():
+            out[fast] = diac_single.extinction(a[fast], p[fast])
+        return out
+    return diac_single.extinction(a, p)
+
+
 def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
     """Where the next half-cycle's network starts after a firing at ``ang`` [rad]: γ = β − π
     for an R–L load (0: resistive, or a half that does not fire, NaN ``ang``)."""
@@ -181,7 +195,7 @@ def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
     if not np.any(ph > 0):
         return np.zeros(np.broadcast_shapes(np.shape(ang), np.shape(ph)))
     fired = np.isfinite(ang)
-    beta = rl.extinction_angle(alpha=np.where(fired, ang, np.pi), phi=ph)
+    beta = _extinction(np.where(fired, ang, np.pi), ph)
     return np.where(fired & (ph > 0), beta - np.pi, 0.0)
 
 
@@ -652,6 +666,9 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
 
         with np.errstate(all="ignore"):
             dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if not dbl.any():
+                return _single_running(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo,
+                                       breakback=breakback, phi=phi, shape=shape, g=g)
             if inductive:
                 floor = _alpha_floor(phi, shape)
                 alpha = _first_root(g, shape, floor)
@@ -681,6 +698,26 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
     return crossing(vm=vm, gain=g_, lag=psi, level=as_array(vbo))
 
 
+def _single_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                    vbo: np.ndarray, breakback: np.ndarray | float,
+                    phi: np.ndarray | float, shape: tuple[int, ...],
+                    g: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
+    """The running angle of single-section rows (:func:`checks.diac_single.running_angle`:
+    the same root as :func:`_first_root` of :func:`running_excess`, without a nested solve);
+    a row whose grid bracket the exact ends do not confirm is solved by the general code."""
+    floor = _alpha_floor(phi, shape)
+    alpha, f_lo, recheck = diac_single.running_angle(
+        vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=as_array(breakback),
+        phi=as_array(phi), floor=floor, grid=_GRID)
+    ph = np.broadcast_to(as_array(phi), shape)
+    alpha = np.where((ph > 0) & (f_lo >= 0), np.nan, alpha)
+    if recheck.any():
+        redo = _first_root(g, shape, floor)
+        redo = np.where((ph > 0) & (g(floor[..., None])[..., 0] >= 0), np.nan, redo)
+        alpha = np.where(recheck, redo, alpha)
+    return alpha
+
+
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
             r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
@@ -703,7 +740,15 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         floor = _alpha_floor(phi, shape)[..., None]
         th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
+    single = running and not _double(as_array(r2), as_array(c2)).any()
+    fast = diac_single.grid_fires(
+        vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=as_array(breakback), phi=as_array(phi),
+        floor=_alpha_floor(phi, shape), u=np.linspace(0.0, 1.0, _GRID + 1)[1:-1],
+        top=np.pi) if single else None
+
     def fires(ln_r: np.ndarray) -> np.ndarray:
+        if fast is not None:  # one section: the same grid test without a nested solve
+            return fast(np.exp(ln_r))
         if not running:
             return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
                                             vbo=vbo, r2=r2, c2=c2))
