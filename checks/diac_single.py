@@ -23,6 +23,7 @@ from collections.abc import Callable
 
 import numpy as np
 
+_F_TOL = 1e-12  # excess [V] per volt of VBO at which a row's narrowing stops
 _TOL = 4e-15  # [rad] Newton step at which β has converged (as checks.rl)
 _GRID_NEWTON = 4  # Newton steps for β on the grid (bracketing only; the ends are redone)
 
@@ -200,16 +201,19 @@ class _Rows:
 
     def excess_grid(self, s_t: np.ndarray, c_t: np.ndarray, s_g: np.ndarray,
                     c_g: np.ndarray, d: np.ndarray) -> np.ndarray:
-        """:meth:`excess` (rows as columns) from the grid's sines and cosines of α and γ and
-        d = α − γ (0 < d < π)."""
-        cp, sp = np.cos(self.psi), np.sin(self.psi)
-        xs_a = self.amp * (s_t * cp - c_t * sp)
-        xs_g = self.amp * (s_g * cp - c_g * sp)
+        """(1 + e^(−kπ)) × :meth:`excess` (rows as columns: the same sign, for the grid) from
+        the grid's sines and cosines of α and γ and d = α − γ (0 < d < π).
+
+        With e₁ = e^(−kd) and e^(−k(π − d))·e₁ = e^(−kπ) the periodic state's start drops
+        out: (1 + e^(−kπ))·(v(α⁻) − VBO) = xs(α) − e₁·xs(γ) + e^(−kπ)·ΔV − (1 + e^(−kπ))·VBO,
+        with xs(θ) = A·(sin θ·cos ψ − cos θ·sin ψ).
+        """
+        a1, a2 = self.amp * np.cos(self.psi), self.amp * np.sin(self.psi)
         e1 = np.exp(-self.k * d)
-        # e^(−k(π − d)) = e^(−kπ)/e^(−kd) while e^(−kd) cannot underflow (k·π < 600)
-        e2 = self.e_pi / e1 if bool((self.k < 190.0).all()) else np.exp(-self.k * (np.pi - d))
-        x0 = (self.e_pi * xs_g - e2 * (xs_a - self.dv)) / (1.0 + self.e_pi)
-        return xs_a + e1 * (x0 - xs_g) - self.vbo
+        out = a1 * (s_t - e1 * s_g)
+        out -= a2 * (c_t - e1 * c_g)
+        out += self.e_pi * self.dv - (1.0 + self.e_pi) * self.vbo
+        return out
 
 
 def _grid_values(rows: _Rows, groups: Groups, n: int, points: int) -> np.ndarray:
@@ -259,7 +263,7 @@ def running_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
 
     The grid: ``grid`` points θ_i = floor + (π(1 − 1e-12) − floor)·i/grid, i = 1 … grid,
     as :func:`checks.diac._root_in`; then up to ``steps`` Illinois steps, each row leaving
-    once its bracket is below 1e-13 rad or its value exactly zero.
+    once its bracket is below 1e-12 rad or its excess below 1e-12·VBO.
     """
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
                                                          phi, floor)))
@@ -321,8 +325,11 @@ def running_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
             a, fa, beta_a = np.where(pos, a, x), np.where(pos, fa, fx), np.where(pos, beta_a,
                                                                                 bx)
             side = np.where(pos, 1, -1)
-            out[act] = b
-            keep = ~((b - a <= 1e-13) | (fx == 0))
+            # Converged: a bracket of 1e-12 rad, or a value at the rounding level of the
+            # excess (its terms are ~VBO; β's last digits move it by ~1e-11 V) at x.
+            tiny = np.abs(fx) <= _F_TOL * vbo[act]
+            out[act] = np.where(tiny, x, b)
+            keep = ~((b - a <= 1e-12) | tiny)
             if not keep.all():
                 act, a, b, fa, fb, beta_a, beta_b, side = (
                     x[keep] for x in (act, a, b, fa, fb, beta_a, beta_b, side))
