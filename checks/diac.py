@@ -602,6 +602,8 @@ def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
     arrays = [as_array(kw[n]) for n in names]
     shape = np.broadcast_shapes(*(a.shape for a in arrays))
     n = int(np.prod(shape)) if shape else 1
+    if n == 0:
+        return _blocked(fn, names, kw)
     m = np.stack([np.broadcast_to(a, shape).ravel() for a in arrays], axis=1) + 0.0  # −0 → 0
     bits = m.view(np.int64)
     order = np.lexsort(bits.T[::-1])
@@ -619,19 +621,18 @@ def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
     if todo.any():
         sub = {**kw, **{nm: uniq[todo, j] for j, nm in enumerate(names)}}
         got = _blocked(fn, names, sub)
-    multi = isinstance(got, tuple) if got is not None else isinstance(
-        next(r for r in known if r is not None), tuple)
-    width = (len(got) if got is not None else len(known[0])) if multi else 1
-    cols = [np.empty(len(uniq), dtype=float) for _ in range(width)]
+    sample = got if got is not None else next(r for r in known if r is not None)
+    multi = isinstance(sample, tuple)
+    # each column keeps its own type (the pair's third result is a mask)
+    types = [np.asarray(x).dtype for x in (sample if multi else (sample,))]
+    cols = [np.empty(len(uniq), dtype=t) for t in types]
     if got is not None:
-        parts = got if multi else (got,)
-        for j in range(width):
-            cols[j] = cols[j].astype(np.asarray(parts[j]).dtype)
-            cols[j][todo] = np.asarray(parts[j])
+        for j, part in enumerate(got if multi else (got,)):
+            cols[j][todo] = np.asarray(part)
     for i, r in enumerate(known):
         if r is not None:
-            for j in range(width):
-                cols[j][i] = r[j] if multi else r
+            for j, c in enumerate(cols):
+                c[i] = r[j] if multi else r
     if store is not None and got is not None:
         for i in np.flatnonzero(todo):
             store[keys[i]] = tuple(c[i] for c in cols) if multi else cols[0][i]

@@ -117,3 +117,15 @@ def test_extinction_angle_against_brentq_on_the_current():
         ref = brentq(cur, max(a, math.pi) + 1e-12, 2 * math.pi - a, xtol=1e-15)
         assert b == pytest.approx(ref, abs=1e-11)
     assert np.allclose(got, rl.extinction_angle(alpha=alpha, phi=phi), atol=1e-11)
+
+
+def test_shared_pair_rows_keep_their_types_and_values():
+    kw = {"vm": 325.0, "omega": 2 * np.pi * 50, "c1": 100e-9, "v_pos": 32.0, "v_neg": 30.0,
+          "breakback": 6.0, "phi": 0.5}
+    alone = diac.running_pair(r1=np.array([1e5, 2e5, 3e5]), **kw)
+    with memo.shared():
+        diac.running_pair(r1=np.array([1e5, 2e5]), **kw)
+        again = diac.running_pair(r1=np.array([1e5, 2e5, 3e5]), **kw)  # two rows remembered
+    assert again[2].dtype == bool and again[2].all()
+    for x, y in zip(alone, again, strict=True):
+        assert np.allclose(x, y, rtol=1e-12)
