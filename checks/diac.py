@@ -189,6 +189,22 @@ def _extinction(alpha: np.ndarray, phi: np.ndarray) -> np.ndarray:
     return out
 
 
+def _restart_slope(ang: np.ndarray, phi: np.ndarray | float) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_restart` γ and its slope dγ/dα, implicit in the extinction equation
+    g(β, α) = sin(β − φ) − sin(α − φ)·e^(−(β − α)/tan φ) = 0: dβ/dα = −g_α/g_β, with
+    g_α = −e^(…)·(cos(α − φ) + sin(α − φ)/tan φ), g_β = cos(β − φ) + sin(α − φ)·e^(…)/tan φ."""
+    gam = _restart(ang, phi)
+    ph = as_array(phi)
+    live = (gam > 0) & np.isfinite(ang)
+    with np.errstate(all="ignore"):
+        inv = 1.0 / np.tan(np.where(ph > 0, ph, 1.0))
+        beta = np.pi + gam
+        e = np.exp(-(beta - ang) * inv)
+        s_a, c_a = np.sin(ang - ph), np.cos(ang - ph)
+        slope = e * (c_a + s_a * inv) / (np.cos(beta - ph) + s_a * e * inv)
+    return gam, np.where(live, slope, 0.0)
+
+
 def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
     """Where the next half-cycle's network starts after a firing at ``ang`` [rad]: γ = β − π
     for an R–L load (0: resistive, or a half that does not fire, NaN ``ang``)."""
@@ -204,7 +220,8 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                 a: np.ndarray, b: np.ndarray, which: int, r2: np.ndarray | float = np.nan,
                 c2: np.ndarray | float = np.nan,
-                phi: np.ndarray | float = 0.0) -> np.ndarray:
+                phi: np.ndarray | float = 0.0,
+                gammas: tuple[np.ndarray, np.ndarray] | None = None) -> np.ndarray:
     """The periodic state over a whole cycle that fires at a in the positive half-cycle (level
     v_pos) and at b after the negative one starts (level v_neg; NaN: that half does not
     fire): v_diac − level at the firing of half ``which`` (0: positive, 1: negative).
@@ -216,11 +233,12 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
     closes with x(γ_b) = (I − Φ(2π))⁻¹·(Φ(π + γ_b − γ_a)·q₊ − q₋). With v_pos = v_neg
     this is :func:`running_excess`. A half that would fire before the other's current has
     ended is NaN (no such state). ``which`` −1: both halves, stacked on a leading axis.
+    ``gammas``: the restarts (γ after a, γ after b) when the caller has them.
     """
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     a, b = np.broadcast_arrays(as_array(a), as_array(b))
     dv = as_array(breakback)
-    ga, gb = _restart(a, phi), _restart(b, phi)
+    ga, gb = (_restart(a, phi), _restart(b, phi)) if gammas is None else gammas
 
     def q(ang: np.ndarray, g_in: np.ndarray, g_out: np.ndarray
           ) -> tuple[np.ndarray, np.ndarray]:
@@ -286,9 +304,10 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
         a, b = np.where(np.isfinite(a), a, b), np.where(np.isfinite(b), b, a)
         h = 1e-7
 
-        def f(x: np.ndarray, y: np.ndarray, k: Mapping[str, np.ndarray] = kw
+        def f(x: np.ndarray, y: np.ndarray, k: Mapping[str, np.ndarray] = kw,
+              gammas: tuple[np.ndarray, np.ndarray] | None = None
               ) -> tuple[np.ndarray, np.ndarray]:
-            both_halves = pair_excess(a=x, b=y, which=-1, **k)
+            both_halves = pair_excess(a=x, b=y, which=-1, gammas=gammas, **k)
             return both_halves[0], both_halves[1]
 
         # Newton on the rows still moving: a row leaves once its step is below 1e-13 rad.
@@ -300,11 +319,14 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
                 break
             sub = {k: v[act] for k, v in flat.items()}
             x, y = af[act], bf[act]
-            f0, g0 = f(x, y, sub)
-            fa1, ga1 = f(x + h, y, sub)
-            fa0, ga0 = f(x - h, y, sub)
-            fb1, gb1 = f(x, y + h, sub)
-            fb0, gb0 = f(x, y - h, sub)
+            # The restarts at x ± h from their slope (the error, ~h²·γ'', is far below
+            # what the difference quotient resolves): one extinction solve per half.
+            (gx, sx), (gy, sy) = _restart_slope(x, sub["phi"]), _restart_slope(y, sub["phi"])
+            f0, g0 = f(x, y, sub, (gx, gy))
+            fa1, ga1 = f(x + h, y, sub, (gx + h * sx, gy))
+            fa0, ga0 = f(x - h, y, sub, (gx - h * sx, gy))
+            fb1, gb1 = f(x, y + h, sub, (gx, gy + h * sy))
+            fb0, gb0 = f(x, y - h, sub, (gx, gy - h * sy))
             j11, j21 = (fa1 - fa0) / (2 * h), (ga1 - ga0) / (2 * h)
             j12, j22 = (fb1 - fb0) / (2 * h), (gb1 - gb0) / (2 * h)
             det = j11 * j22 - j12 * j21
