@@ -39,7 +39,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import rl, triac
+from checks import diac_single, memo, rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -151,7 +151,7 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     dv = as_array(breakback)
     ph = as_array(phi)
     if np.any(ph > 0):
-        beta = rl.extinction_angle(alpha=alpha, phi=ph)
+        beta = _extinction(alpha, ph)
         gam = np.where(ph > 0, beta - np.pi, 0.0)
         # α ≤ φ: the current would not end before the next firing (no such state)
         gam = np.where(alpha > np.where(ph > 0, ph, -1.0), gam, np.nan)
@@ -174,6 +174,37 @@ def running_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.
     return s2a + p21 * (x01 - s10) + p22 * (x02 - s20) - as_array(vbo)
 
 
+def _extinction(alpha: np.ndarray, phi: np.ndarray) -> np.ndarray:
+    """:func:`checks.rl.extinction_angle`, by the warm-started iteration of
+    :func:`checks.diac_single.extinction` on the rows it covers (0 ≤ α < π, tan φ > 1e-12;
+    the same root to ~1e-14 rad) and by the general code on the others."""
+    a, p = np.broadcast_arrays(as_array(alpha), as_array(phi))
+    fast = (np.tan(np.clip(p, 0.0, np.pi / 2)) > 1e-12) & (a >= 0) & (a < np.pi)
+    if fast.all():
+        return diac_single.extinction(a, p)
+    out = np.empty(a.shape)
+    out[~fast] = rl.extinction_angle(alpha=a[~fast], phi=p[~fast])
+    if fast.any():
+        out[fast] = diac_single.extinction(a[fast], p[fast])
+    return out
+
+
+def _restart_slope(ang: np.ndarray, phi: np.ndarray | float) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_restart` γ and its slope dγ/dα, implicit in the extinction equation
+    g(β, α) = sin(β − φ) − sin(α − φ)·e^(−(β − α)/tan φ) = 0: dβ/dα = −g_α/g_β, with
+    g_α = −e^(…)·(cos(α − φ) + sin(α − φ)/tan φ), g_β = cos(β − φ) + sin(α − φ)·e^(…)/tan φ."""
+    gam = _restart(ang, phi)
+    ph = as_array(phi)
+    live = (gam > 0) & np.isfinite(ang)
+    with np.errstate(all="ignore"):
+        inv = 1.0 / np.tan(np.where(ph > 0, ph, 1.0))
+        beta = np.pi + gam
+        e = np.exp(-(beta - ang) * inv)
+        s_a, c_a = np.sin(ang - ph), np.cos(ang - ph)
+        slope = e * (c_a + s_a * inv) / (np.cos(beta - ph) + s_a * e * inv)
+    return gam, np.where(live, slope, 0.0)
+
+
 def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
     """Where the next half-cycle's network starts after a firing at ``ang`` [rad]: γ = β − π
     for an R–L load (0: resistive, or a half that does not fire, NaN ``ang``)."""
@@ -181,7 +212,7 @@ def _restart(ang: np.ndarray, phi: np.ndarray | float) -> np.ndarray:
     if not np.any(ph > 0):
         return np.zeros(np.broadcast_shapes(np.shape(ang), np.shape(ph)))
     fired = np.isfinite(ang)
-    beta = rl.extinction_angle(alpha=np.where(fired, ang, np.pi), phi=ph)
+    beta = _extinction(np.where(fired, ang, np.pi), ph)
     return np.where(fired & (ph > 0), beta - np.pi, 0.0)
 
 
@@ -189,7 +220,8 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
                 v_pos: np.ndarray, v_neg: np.ndarray, breakback: np.ndarray | float,
                 a: np.ndarray, b: np.ndarray, which: int, r2: np.ndarray | float = np.nan,
                 c2: np.ndarray | float = np.nan,
-                phi: np.ndarray | float = 0.0) -> np.ndarray:
+                phi: np.ndarray | float = 0.0,
+                gammas: tuple[np.ndarray, np.ndarray] | None = None) -> np.ndarray:
     """The periodic state over a whole cycle that fires at a in the positive half-cycle (level
     v_pos) and at b after the negative one starts (level v_neg; NaN: that half does not
     fire): v_diac − level at the firing of half ``which`` (0: positive, 1: negative).
@@ -200,12 +232,13 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
     half's sign), q = Φ(π + γ_out − a)·(xs(a) − Φ(a − γ_in)·xs(γ_in) − ΔV·e₂); the cycle
     closes with x(γ_b) = (I − Φ(2π))⁻¹·(Φ(π + γ_b − γ_a)·q₊ − q₋). With v_pos = v_neg
     this is :func:`running_excess`. A half that would fire before the other's current has
-    ended is NaN (no such state).
+    ended is NaN (no such state). ``which`` −1: both halves, stacked on a leading axis.
+    ``gammas``: the restarts (γ after a, γ after b) when the caller has them.
     """
     s = _system(vm=vm, r1=r1, c1=c1, omega=omega, r2=as_array(r2), c2=as_array(c2))
     a, b = np.broadcast_arrays(as_array(a), as_array(b))
     dv = as_array(breakback)
-    ga, gb = _restart(a, phi), _restart(b, phi)
+    ga, gb = (_restart(a, phi), _restart(b, phi)) if gammas is None else gammas
 
     def q(ang: np.ndarray, g_in: np.ndarray, g_out: np.ndarray
           ) -> tuple[np.ndarray, np.ndarray]:
@@ -231,16 +264,20 @@ def pair_excess(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nda
     det = m11 * m22 - m12 * m21
     x1 = (m22 * w1 - m12 * w2) / det
     x2 = (m11 * w2 - m21 * w1) / det
-    g_in = gb
-    if which == 1:  # the negative half's start, mirrored: −(Φ(π + γ_a − γ_b)·x + q₊)
-        x1, x2 = -(ma11 * x1 + ma12 * x2 + qa1), -(ma21 * x1 + ma22 * x2 + qa2)
-        g_in = ga
-    ang = a if which == 0 else b
-    sa1, sa2 = _xss(s, ang)
-    s01, s02 = _xss(s, g_in)
-    p11, p12, p21, p22 = _phi(s, ang - g_in)
-    out = sa2 + p21 * (x1 - s01) + p22 * (x2 - s02) - as_array(v_pos if which == 0 else v_neg)
-    return np.where(ang > g_in, out, np.nan)
+    outs = []
+    for half in (0, 1) if which < 0 else (which,):
+        g_in, y1, y2 = gb, x1, x2
+        if half == 1:  # the negative half's start, mirrored: −(Φ(π + γ_a − γ_b)·x + q₊)
+            y1, y2 = -(ma11 * x1 + ma12 * x2 + qa1), -(ma21 * x1 + ma22 * x2 + qa2)
+            g_in = ga
+        ang = a if half == 0 else b
+        sa1, sa2 = _xss(s, ang)
+        s01, s02 = _xss(s, g_in)
+        p11, p12, p21, p22 = _phi(s, ang - g_in)
+        out = sa2 + p21 * (y1 - s01) + p22 * (y2 - s02) - as_array(v_pos if half == 0
+                                                                   else v_neg)
+        outs.append(np.where(ang > g_in, out, np.nan))
+    return outs[0] if which >= 0 else np.stack(outs)
 
 
 def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
@@ -267,23 +304,41 @@ def _running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
         a, b = np.where(np.isfinite(a), a, b), np.where(np.isfinite(b), b, a)
         h = 1e-7
 
-        def f(x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            return (pair_excess(a=x, b=y, which=0, **kw), pair_excess(a=x, b=y, which=1, **kw))
+        def f(x: np.ndarray, y: np.ndarray, k: Mapping[str, np.ndarray] = kw,
+              gammas: tuple[np.ndarray, np.ndarray] | None = None
+              ) -> tuple[np.ndarray, np.ndarray]:
+            both_halves = pair_excess(a=x, b=y, which=-1, gammas=gammas, **k)
+            return both_halves[0], both_halves[1]
 
+        # Newton on the rows still moving: a row leaves once its step is below 1e-13 rad.
+        flat = {k: np.ravel(v) for k, v in kw.items()}
+        af, bf = np.array(a, dtype=float).ravel(), np.array(b, dtype=float).ravel()
+        act = np.flatnonzero(np.ravel(both))
         for _ in range(8):
-            f0, g0 = f(a, b)
-            fa1, ga1 = f(a + h, b)
-            fa0, ga0 = f(a - h, b)
-            fb1, gb1 = f(a, b + h)
-            fb0, gb0 = f(a, b - h)
+            if not act.size:
+                break
+            sub = {k: v[act] for k, v in flat.items()}
+            x, y = af[act], bf[act]
+            # The restarts at x ± h from their slope (the error, ~h²·γ'', is far below
+            # what the difference quotient resolves): one extinction solve per half.
+            (gx, sx), (gy, sy) = _restart_slope(x, sub["phi"]), _restart_slope(y, sub["phi"])
+            f0, g0 = f(x, y, sub, (gx, gy))
+            fa1, ga1 = f(x + h, y, sub, (gx + h * sx, gy))
+            fa0, ga0 = f(x - h, y, sub, (gx - h * sx, gy))
+            fb1, gb1 = f(x, y + h, sub, (gx, gy + h * sy))
+            fb0, gb0 = f(x, y - h, sub, (gx, gy - h * sy))
             j11, j21 = (fa1 - fa0) / (2 * h), (ga1 - ga0) / (2 * h)
             j12, j22 = (fb1 - fb0) / (2 * h), (gb1 - gb0) / (2 * h)
             det = j11 * j22 - j12 * j21
             da = (j22 * f0 - j12 * g0) / det
             db = (j11 * g0 - j21 * f0) / det
-            floor = np.where(ph > 0, ph + _PHI_GAP, 1e-9)
-            a = np.clip(a - np.where(both, da, 0.0), floor, np.pi - 1e-9)
-            b = np.clip(b - np.where(both, db, 0.0), floor, np.pi - 1e-9)
+            floor = np.where(sub["phi"] > 0, sub["phi"] + _PHI_GAP, 1e-9)
+            x_new = np.clip(x - da, floor, np.pi - 1e-9)
+            y_new = np.clip(y - db, floor, np.pi - 1e-9)
+            af[act], bf[act] = x_new, y_new
+            moved = np.maximum(np.abs(x_new - x), np.abs(y_new - y))
+            act = act[~(moved <= 1e-13)]
+        a, b = af.reshape(shape), bf.reshape(shape)
         f0, g0 = f(a, b)
         ok = (np.abs(f0) <= 1e-9 * kw["v_pos"]) & (np.abs(g0) <= 1e-9 * kw["v_pos"])
         a = np.where(both, np.where(ok, a, np.nan), a)
@@ -558,6 +613,55 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
 _ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi")
 
 
+def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
+            cache: str) -> Any:
+    """``fn(**kw)`` solved once per distinct row of the broadcast inputs ``names`` (compared
+    bit for bit, NaN included) and, inside a :func:`checks.memo.shared` block, once per
+    distinct row among every call with the same ``cache`` name (the checks of a stage pass
+    tables of many rows built from a few distinct inputs; each row's solution does not
+    depend on the other rows). ``fn`` returns an array or a tuple of arrays in the rows'
+    shape; the result is joined back in the inputs' shape."""
+    arrays = [as_array(kw[n]) for n in names]
+    shape = np.broadcast_shapes(*(a.shape for a in arrays))
+    n = int(np.prod(shape)) if shape else 1
+    if n == 0:
+        return _blocked(fn, names, kw)
+    m = np.stack([np.broadcast_to(a, shape).ravel() for a in arrays], axis=1) + 0.0  # −0 → 0
+    bits = m.view(np.int64)
+    order = np.lexsort(bits.T[::-1])
+    srt = bits[order]
+    new = np.ones(n, dtype=bool)
+    new[1:] = (srt[1:] != srt[:-1]).any(axis=1)
+    inv = np.empty(n, dtype=np.intp)
+    inv[order] = np.cumsum(new) - 1
+    uniq = m[order[new]]
+    store = memo.table(cache)
+    keys = [row.tobytes() for row in uniq] if store is not None else []
+    known = [store.get(k) for k in keys] if store is not None else [None] * len(uniq)
+    todo = np.array([r is None for r in known], dtype=bool)
+    got: Any = None
+    if todo.any():
+        sub = {**kw, **{nm: uniq[todo, j] for j, nm in enumerate(names)}}
+        got = _blocked(fn, names, sub)
+    sample = got if got is not None else next(r for r in known if r is not None)
+    multi = isinstance(sample, tuple)
+    # each column keeps its own type (the pair's third result is a mask)
+    types = [np.asarray(x).dtype for x in (sample if multi else (sample,))]
+    cols = [np.empty(len(uniq), dtype=t) for t in types]
+    if got is not None:
+        for j, part in enumerate(got if multi else (got,)):
+            cols[j][todo] = np.asarray(part)
+    for i, r in enumerate(known):
+        if r is not None:
+            for j, c in enumerate(cols):
+                c[i] = r[j] if multi else r
+    if store is not None and got is not None:
+        for i in np.flatnonzero(todo):
+            store[keys[i]] = tuple(c[i] for c in cols) if multi else cols[0][i]
+    out = tuple(c[inv].reshape(shape) for c in cols)
+    return out if multi else out[0]
+
+
 @memoised  # every triac check fired from this trigger asks for the same angles
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
@@ -585,7 +689,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
           "running": running, "r2": r2, "c2": c2, "phi": phi}
     if not running:
         return _firing_angle(**kw)
-    return _blocked(_firing_angle, _ANGLE_ARGS, kw)
+    return _by_row(_firing_angle, _ANGLE_ARGS, kw, "checks.diac.running")
 
 
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
@@ -601,7 +705,8 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
 
     From the symmetric solutions at each level (:func:`firing_angle`, running), Newton's
     method on the two equations of :func:`pair_excess` (Jacobian by central differences of
-    1e-7 rad, steps kept inside (0, π)), 8 steps for every row at once; a row whose residual
+    1e-7 rad, steps kept inside (0, π)), up to 8 steps for every row at once (fewer once no
+    row moves by 1e-13 rad); a row whose residual
     is then above 1e-9·VBO is NaN (not trusted). Where only one half fires at its own level,
     that half is solved with the other not firing (the first root over its half-cycle). A
     double section that refires within a half-cycle is then solved by
@@ -611,7 +716,7 @@ def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "v_pos": v_pos, "v_neg": v_neg,
           "breakback": breakback, "r2": r2, "c2": c2, "phi": phi}
-    return _blocked(_running_pair, tuple(kw), kw)
+    return _by_row(_running_pair, tuple(kw), kw, "checks.diac.running_pair")
 
 
 def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
@@ -652,6 +757,9 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
 
         with np.errstate(all="ignore"):
             dbl = np.broadcast_to(_double(as_array(r2), as_array(c2)), shape)
+            if not dbl.any():
+                return _single_running(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo,
+                                       breakback=breakback, phi=phi, shape=shape, g=g)
             if inductive:
                 floor = _alpha_floor(phi, shape)
                 alpha = _first_root(g, shape, floor)
@@ -681,6 +789,26 @@ def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
     return crossing(vm=vm, gain=g_, lag=psi, level=as_array(vbo))
 
 
+def _single_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                    vbo: np.ndarray, breakback: np.ndarray | float,
+                    phi: np.ndarray | float, shape: tuple[int, ...],
+                    g: Callable[[np.ndarray], np.ndarray]) -> np.ndarray:
+    """The running angle of single-section rows (:func:`checks.diac_single.running_angle`:
+    the same root as :func:`_first_root` of :func:`running_excess`, without a nested solve);
+    a row whose grid bracket the exact ends do not confirm is solved by the general code."""
+    floor = _alpha_floor(phi, shape)
+    alpha, f_lo, recheck = diac_single.running_angle(
+        vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=as_array(breakback),
+        phi=as_array(phi), floor=floor, grid=_GRID)
+    ph = np.broadcast_to(as_array(phi), shape)
+    alpha = np.where((ph > 0) & (f_lo >= 0), np.nan, alpha)
+    if recheck.any():
+        redo = _first_root(g, shape, floor)
+        redo = np.where((ph > 0) & (g(floor[..., None])[..., 0] >= 0), np.nan, redo)
+        alpha = np.where(recheck, redo, alpha)
+    return alpha
+
+
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
             r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
@@ -703,7 +831,15 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         floor = _alpha_floor(phi, shape)[..., None]
         th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
+    single = running and not _double(as_array(r2), as_array(c2)).any()
+    fast = diac_single.grid_fires(
+        vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=as_array(breakback), phi=as_array(phi),
+        floor=_alpha_floor(phi, shape), u=np.linspace(0.0, 1.0, _GRID + 1)[1:-1],
+        top=np.pi) if single else None
+
     def fires(ln_r: np.ndarray) -> np.ndarray:
+        if fast is not None:  # one section: the same grid test without a nested solve
+            return fast(np.exp(ln_r))
         if not running:
             return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
                                             vbo=vbo, r2=r2, c2=c2))

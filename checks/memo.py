@@ -46,6 +46,16 @@ def clear() -> None:
         store.clear()
 
 
+def table(name: str) -> dict[bytes, Any] | None:
+    """A dictionary kept for ``name`` by the current :func:`shared` block (None outside one):
+    for results shared row by row (a row's inputs as bytes → its result), where the checks
+    pass different tables built from the same few distinct rows."""
+    store = _STORE.get()
+    if store is None:
+        return None
+    return store.setdefault(("table", name), {})  # type: ignore[return-value,arg-type]
+
+
 Inputs = dict[str, Any]
 
 

@@ -176,9 +176,16 @@ def bind_firing(ctx: Context, b: Bound, stage: Stage, *, sweep: int = 0,
         b.inputs["dt_pot"].extra = _pot_at_angles(b, extra)
 
 
+_POT_GRID = 32  # pot settings per row bracketing the angle (then false position)
+
+
 def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
     """The pot settings inside its range that fire at ``angles`` (running), for every
-    combination of the other inputs' ends: vectorised bisection (the angle rises with R)."""
+    combination of the other inputs' ends: the first crossing of each angle on a grid of
+    the pot's range (the angle rises with R; a setting that does not fire counts as late),
+    narrowed by false position (Illinois) where both ends fire and halving where one does
+    not, every row and angle at once, to 1e-12 of the pot's range; settings closer than
+    1e-9 of the pot's top are one."""
     fixed = ("dt_pot", "dt_pot_lo", "dt_pot_hi")  # the load's R and L are ends like the rest
     names = [n for n in b.inputs if n.startswith("dt_") and n not in fixed] + ["vs"]
     if "freq" in b.inputs:
@@ -191,25 +198,56 @@ def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
     pot = b.inputs["dt_pot"].value
     phi = (np.arctan2(2 * np.pi * f * grid["dt_rl_l"], grid["dt_rl_r"])
            if "dt_rl_l" in grid else 0.0)
+    n = grid["vs"].shape[0]
+
+    def col(x: Any) -> Any:
+        return np.asarray(x, dtype=float)[..., None] if np.ndim(x) else x
+
+    def angle(p: np.ndarray) -> np.ndarray:  # p: rows × k
+        with np.errstate(all="ignore"):
+            return diac.firing_angle(
+                vm=col(np.sqrt(2.0) * grid["vs"]), omega=col(2 * np.pi * f),
+                r1=p + col(grid["dt_series_r"]), c1=col(grid["dt_c1"]),
+                vbo=col(grid["dt_vbo"]), breakback=col(grid["dt_breakback"]), running=True,
+                r2=col(grid.get("dt_r2", np.nan)), c2=col(grid.get("dt_c2", np.nan)),
+                phi=col(phi))
+
+    targets = np.asarray(angles, dtype=float)
+    pts = pot.lo + (pot.hi - pot.lo) * np.linspace(0.0, 1.0, _POT_GRID + 1)
+    a_grid = angle(np.broadcast_to(pts, (n, pts.size)))  # rows × points
+    # rows × targets × points: where the angle is no longer below the target (NaN: late)
+    late = ~(a_grid[:, None, :] < targets[None, :, None])
+    has = late.any(axis=-1) & ~late[..., 0]  # a crossing inside the range
+    i = np.argmax(late, axis=-1)
+    lo, hi = pts[np.maximum(i - 1, 0)], pts[i]
+    take = np.take_along_axis
+    f_lo = take(a_grid, np.maximum(i - 1, 0), axis=-1) - targets
+    f_hi = take(a_grid, i, axis=-1) - targets  # ≥ 0 or NaN
+    side = np.zeros(lo.shape, dtype=int)
+    tol = 1e-13 * max(pot.hi - pot.lo, 1.0)
+    for _ in range(60):
+        run = has & (hi - lo > tol)
+        if not run.any():
+            break
+        fin = np.isfinite(f_hi)
+        x = np.where(fin & (f_hi != f_lo), lo - f_lo * (hi - lo) / (f_hi - f_lo),
+                     0.5 * (lo + hi))
+        x = np.where((x > lo) & (x < hi), x, 0.5 * (lo + hi))
+        fx = angle(np.where(run, x, lo)) - targets
+        up = ~(fx < 0)
+        f_lo = np.where(run & up & (side == 1), 0.5 * f_lo, f_lo)
+        f_hi = np.where(run & ~up & (side == -1), 0.5 * f_hi, f_hi)
+        hi, f_hi = np.where(run & up, x, hi), np.where(run & up, fx, f_hi)
+        lo, f_lo = np.where(run & ~up, x, lo), np.where(run & ~up, fx, f_lo)
+        side = np.where(run, np.where(up, 1, -1), side)
+    x = 0.5 * (lo + hi)
+    inside = has & (x > pot.lo + 1e-9 * pot.hi) & (x < pot.hi * (1 - 1e-9))
     out: list[float] = []
-    for target in angles:
-        lo = np.full(grid["vs"].shape, pot.lo)
-        hi = np.full(grid["vs"].shape, pot.hi)
-        for _ in range(40):
-            mid = 0.5 * (lo + hi)
-            with np.errstate(all="ignore"):
-                a = diac.firing_angle(
-                    vm=np.sqrt(2.0) * grid["vs"], omega=2 * np.pi * f,
-                    r1=mid + grid["dt_series_r"], c1=grid["dt_c1"], vbo=grid["dt_vbo"],
-                    breakback=grid["dt_breakback"], running=True,
-                    r2=grid.get("dt_r2", np.nan), c2=grid.get("dt_c2", np.nan), phi=phi)
-            late = ~(a < target)
-            hi = np.where(late, mid, hi)
-            lo = np.where(late, lo, mid)
-        x = 0.5 * (lo + hi)
-        inside = (x > pot.lo + 1e-9 * pot.hi) & (x < pot.hi * (1 - 1e-9))
-        out += [float(v) for v in x[inside]]
-    return tuple(sorted(set(out)))
+    for v in sorted(float(v) for v in x[inside]):
+        # rows that differ only in what does not move the angle: one setting
+        if not out or v - out[-1] > 1e-9 * pot.hi:
+            out.append(v)
+    return tuple(out)
 
 
 def firing_from(kw: dict[str, Any]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
