@@ -241,3 +241,52 @@ def test_harmonics_of_an_ac_switch_fired_before_phi_with_narrow_pulses():
     assert res.values["i_h3"].max >= ref[3] * (1 - 5e-3)
     assert res.status == "marginal"
     assert "harmonic 2" in res.summary
+
+
+# --------------------------------------------------------------------------------------------
+# Sampled corners: beyond 12 varying inputs the engine samples 4096 of the corners. A check
+# monotonic in each input is worst at one corner, which a random sample misses more often
+# than not (of 8192, (1 − 1/8192)^4096 = 61 %).
+
+def test_sampled_corners_still_find_the_one_failing_corner(projects_dir):
+    """13 inputs at 0.9–1.1; the metric 2.25 + Σ s_k·(x_k − 1) is below 1 only where every
+    input sits at its worse end (2.25 − 1.3 = 0.95): one failing corner of 8192 (enumerated
+    here). The signs s_k are chosen so that this corner is not among the engine's sampled
+    ones; the sample alone read pass."""
+    import itertools
+
+    from checks.core import Outcome, grade
+    from reviewer.checklist import standard
+    from reviewer.engine import build_corners, evaluate_check
+    from reviewer.model import Value
+    from reviewer.project import load_project
+    from reviewer.registry import Bound, CheckDef
+
+    def bind(ctx=None):
+        b = Bound()
+        for k in range(13):
+            b.add(f"x{k}", f"stages.power.x{k}", Value(1.0, 0.9, 1.1, "dimensionless", "1"))
+        return b
+
+    arrays, _, note = build_corners(bind().inputs)
+    assert "sampled" in note
+    sampled = set(zip(*(np.round(arrays[f"x{k}"][1:], 9) for k in range(13)), strict=True))
+    corner = next(c for c in itertools.product((0.9, 1.1), repeat=13) if c not in sampled)
+    signs = [1.0 if x == 0.9 else -1.0 for x in corner]
+
+    def metric(xs):
+        return 2.25 + sum(s * (x - 1.0) for s, x in zip(signs, xs, strict=True))
+
+    def fn(limits, **x):
+        m = metric([np.asarray(x[f"x{k}"], dtype=float) for k in range(13)])
+        return Outcome({"metric": m}, *grade(m, limits))
+
+    every = [metric(c) for c in itertools.product((0.9, 1.1), repeat=13)]
+    assert sum(1 for m in every if m < 1.0) == 1 and metric(corner) == pytest.approx(0.95)
+    defn = CheckDef("test.sampled-worst", ("phase-control",), "q", "m", "s", fn, bind,
+                    {"metric": "1"}, lambda r: f"metric {r.lo['metric']:.3g}")
+    p = load_project(projects_dir / "kiln-230.toml")
+    r = evaluate_check(defn, p, p.stages["power"], standard())
+    assert "4096 sampled corners instead of all 8192" in r.summary
+    assert r.values["metric"].min == pytest.approx(0.95)
+    assert r.status == "fail"
