@@ -290,3 +290,19 @@ def test_sampled_corners_still_find_the_one_failing_corner(projects_dir):
     assert "4096 sampled corners instead of all 8192" in r.summary
     assert r.values["metric"].min == pytest.approx(0.95)
     assert r.status == "fail"
+
+
+# --------------------------------------------------------------------------------------------
+# power.fault: ITSM covers one half-cycle. With no fuse the SCR fires into a short at the load
+# again every half-cycle; riding through the first one is not surviving the fault.
+
+def test_fault_without_a_fuse_is_never_a_pass():
+    """230 V +10 % through 10 mH: I_sc = 253/(ω·10 mH) = 80.5 A RMS, a first peak of at most
+    2√2·80.5 = 228 A under ITSM 400 A, but 80.5 A RMS every half-cycle after, twice the
+    40 A IT(RMS), with nothing in the project to clear it."""
+    res = _check("power.fault", ls='inductance = "10 mH"')
+    i_sc = 253.0 / (2 * math.pi * 50 * 10e-3)
+    assert res.values["fault_current"].max == pytest.approx(i_sc, rel=1e-9)
+    assert 2 * math.sqrt(2) * i_sc < 400.0 and i_sc > 40.0
+    assert res.status == "marginal"
+    assert "fires into the short again" in res.summary
