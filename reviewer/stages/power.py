@@ -821,6 +821,8 @@ def _bind_surge(ctx: Context) -> Bound:
     ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
     b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
     b.options["topology"] = ctx.stage.get("topology")
+    if ctx.stage.get("freewheel") and ctx.stage.get("topology") != "ac-switch":
+        b.options["freewheel"] = True
     _bind_surge_emf(ctx, b)
     _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
     return b
@@ -845,17 +847,41 @@ def _bind_surge_emf(ctx: Context, b: Bound) -> None:
 
 def _fn_surge(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
-    if "e_start" in kw:
+    freewheel = bool(kw.pop("freewheel", False))
+    topology = kw["topology"]
+    omega = _omega(kw)
+    e = kw.get("e_start")
+    if e is not None:
         for k in ("topology", "emf"):
             kw.pop(k)
-        return rle.surge_check(alpha=a, omega=_omega(kw), **kw)
-    return power.surge_check(alpha=a, omega=_omega(kw), **kw)
+        out = rle.surge_check(alpha=a, omega=omega, **kw)
+    else:
+        out = power.surge_check(alpha=a, omega=omega, **kw)
+    if topology != "bridge" and not freewheel:
+        return out  # the current starts from zero every cycle: the first one is the worst
+    # A bridge (or a freewheeling diode) can carry the current on from one half-cycle into the
+    # next: from rest it builds up over the first cycles, into the still cold load or the
+    # still stalled motor, to the steady current, whose peak is then the inrush.
+    steady = power.stage_values(topology=topology, freewheel=freewheel, vs=kw["vs"],
+                                r=kw["r_cold"], l=kw["l"], omega=omega, alpha=a, peak=True,
+                                e=e)["it_peak"]
+    first = out.values["inrush_peak"]
+    peak = np.maximum(first, steady)
+    rating = out.values["itsm_at_line"]
+    with np.errstate(divide="ignore"):
+        margin, status = grade(rating / peak, kw["limits"])
+    values = dict(out.values, inrush_peak=peak, first_peak=first + 0 * peak)
+    return Outcome(values, margin, status, out.notes)
 
 
 def _sum_surge(r: Reduced) -> str:
     rating = r.lo["itsm_at_line"]
     text = (f"cold-load inrush peak {eng(r.hi['inrush_peak'], 'A')} against ITSM "
             f"{eng(rating, 'A')} (at the line's half-cycle)")
+    first = r.worst.get("first_peak", float("nan"))
+    if first == first and r.worst["inrush_peak"] > first * (1 + 1e-6):
+        text += (f"; the current builds up from {eng(first, 'A')} in the first half-cycle to "
+                 "the steady current of the cold (or stalled) load within a few cycles")
     if r.status != "pass":
         text += (f"; fails: needs ITSM ≥ {at_least(r.hi['inrush_peak'], 'A')}, a soft start "
                  "(α_min later), or an inrush limiter")
@@ -868,11 +894,13 @@ register(CheckDef(
     id="power.surge", kinds=("phase-control",),
     question="Is the worst inrush (cold load, first half-cycle at high line) within ITSM?",
     method="R load: √2·V_s,max/R_cold when the range reaches 90° (else at α_min); R–L: the peak "
-           "of i(θ) with R_cold. ITSM converted to the line's half-cycle by I^N·t = const "
+           "of i(θ) with R_cold; a bridge or a freewheeling stage: the larger of that and the "
+           "steady current's peak with R_cold (and the starting E), which the first cycles "
+           "build up to. ITSM converted to the line's half-cycle by I^N·t = const "
            "(N = 4 below t_sm, 2 above).",
     source="Rashid 4e §17; Bimbhra ch. 4 (surge rating)",
     fn=_fn_surge, bind=_bind_surge,
-    units={"inrush_peak": "A"}, summarise=_sum_surge,
+    units={"inrush_peak": "A", "first_peak": "A"}, summarise=_sum_surge,
     fix="A part with a higher ITSM, a soft start, or an inrush limiter.",
 ))
 
