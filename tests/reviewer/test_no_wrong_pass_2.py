@@ -366,3 +366,64 @@ def test_surge_counts_the_current_the_first_cycles_build_up_to(topology, freewhe
     assert res.values["inrush_peak"].max == pytest.approx(ref, rel=5e-3)
     assert res.values["first_peak"].max < float(itsm.split()[0])
     assert res.status == "fail"
+
+
+# --------------------------------------------------------------------------------------------
+# gate.latch-time with a back EMF: the anode current starts only where the line exceeds E and
+# rises against it, far slower than into the R–L load alone.
+
+def _charger_with_a_gate(e: str):
+    """kiln-230's gate drive (a UJT into a pulse transformer, here free-running with a 2.2 µF
+    timing capacitor) on a half-wave charger of 2 Ω ±5 % / 100 mH fired at 60°–120°."""
+    from pathlib import Path
+
+    src = (Path(__file__).parents[2] / "projects" / "kiln-230.toml").read_text("utf-8")
+    for old, new in [
+        ('topology = "ac-switch"',
+         'topology = "half-wave"\nfiring = { min = "60 deg", max = "120 deg" }'),
+        ('sync = "line"', 'sync = "free"'), ('zener = "20 V ±5%"\n', ''),
+        ('target = { min = "30 deg", max = "150 deg" }',
+         'target = { min = "1 Hz", max = "10 kHz" }'),
+        ('timing_c = "100 nF ±10%"', 'timing_c = "2.2 uF"'),
+        ('load = { r = "26.5 ohm ±5%", cold_r = "24 ohm" }',
+         f'load = {{ r = "2 ohm ±5%", l = "100 mH"{e} }}'),
+        ('required = { min = "100 W", max = "1.4 kW" }', '')]:
+        assert old in src
+        src = src.replace(old, new)
+    return load_project_text(src, "charger.toml")
+
+
+def _ivp_time_to_il(*, vm: float, w: float, r: float, l: float, e: float, alpha: float,
+                    il: float) -> float:
+    """Time from the pulse at α until L·di/dt = v − R·i − E from zero (from the first angle
+    the line exceeds E) reaches IL [s] (solve_ivp with an event)."""
+    start = max(alpha, math.asin(e / vm))
+
+    def reach(th, y):
+        return y[0] - il
+    reach.terminal, reach.direction = True, 1
+    sol = solve_ivp(lambda th, y: [(vm * math.sin(th) - r * y[0] - e) / (w * l)],
+                    (start, math.pi), [0.0], events=reach, rtol=1e-11, atol=1e-14,
+                    max_step=1e-3)
+    assert sol.status == 1
+    return (float(sol.t_events[0][0]) - alpha) / w
+
+
+def test_latch_time_follows_the_back_emf():
+    """At low line (207 V) and E = 200 V the current rises against the EMF: at α = 120° it
+    takes 155 µs (solve_ivp) to reach the cold IL of 76.9 mA, against 32 µs into the R–L load
+    alone; the 59 µs gate pulse passed that and fails this."""
+    without = evaluate(_charger_with_a_gate(""), only=[("gate", "gate.latch-time")],
+                       strict=True).results[0]
+    assert without.status == "pass"
+    res = evaluate(_charger_with_a_gate(', e = { min = "100 V", max = "200 V" }, '
+                                        'type = "battery"'),
+                   only=[("gate", "gate.latch-time")], strict=True).results[0]
+    il_cold = 0.05 * (1 + 35 / 65)  # IL ×2 at −40 °C pro rata, at −10 °C (as the summary says)
+    assert f"IL {il_cold * 1e3:.3g} mA" in res.summary
+    vm, w = math.sqrt(2) * 207.0, 2 * math.pi * 50
+    ref = max(_ivp_time_to_il(vm=vm, w=w, r=2.1, l=0.1, e=200.0, alpha=math.radians(a),
+                              il=il_cold) for a in (60.0, 120.0)) + 2e-6  # + tgt
+    assert res.values["required_width"].max == pytest.approx(ref, rel=5e-3)
+    assert res.values["pulse_width"].min < ref
+    assert res.status == "fail"
