@@ -292,6 +292,61 @@ def time_to_current_rl(*, alpha: np.ndarray, r: np.ndarray, l: np.ndarray,  # no
     return out.reshape(shape)
 
 
+def time_to_current_rle(*, alpha: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
+                        vm: np.ndarray, omega: np.ndarray, e: np.ndarray,
+                        i_target: np.ndarray) -> np.ndarray:
+    """Time from the gate pulse at α until an R–L–E load current first reaches i_target [s].
+
+    The SCR is forward-biased only while the line exceeds the back EMF E (from θ1 =
+    asin(E/Vm)): the current starts from zero at a = max(α, θ1), so a pulse that comes
+    before θ1 must last until then, and rises as (Vm/Z)·[sin(θ − φ) − k + C·e^(−(θ − a)/tan φ)],
+    k = E/(Vm·cos φ), C = k − sin(a − φ) (:func:`checks.rle.segment_current`); t = (θ − α)/ω
+    at its first crossing of i_target; ∞ when it returns to zero first or never starts
+    (a ≥ π − θ1). Grid and bisection as :func:`time_to_current_rl`. r [Ω] > 0; l [H] ≥ 0;
+    vm [V]; omega [rad/s]; alpha [rad]; e [V] ≥ 0; i_target [A].
+
+    >>> t = time_to_current_rle(alpha=0.0, r=10.0, l=0.0, vm=100.0, omega=2 * np.pi * 50,
+    ...                         e=50.0, i_target=1.0)  # R load: sin θ = 0.6 at 36.87°
+    >>> round(float(t) * 1e3, 4), round(float(np.degrees(np.arcsin(0.6))) / 18, 4)
+    (2.0483, 2.0483)
+    """
+    from checks.rle import segment_current
+
+    arrays = np.broadcast_arrays(_f(alpha), _f(r), _f(l), _f(vm), _f(omega), _f(e),
+                                 _f(i_target))
+    shape = arrays[0].shape
+    al, rr, ll, v, w, ee, it = (x.ravel() for x in arrays)
+    phi = load_angle(r=rr, l=ll, omega=w)
+    z = np.hypot(rr, w * ll)
+    m = np.clip(ee / v, 0.0, None)
+    th1 = np.arcsin(np.clip(m, 0.0, 1.0))
+    a0 = np.maximum(al, th1)
+    starts = (m < 1.0) & (a0 < np.pi - th1)
+    k = m / np.cos(phi)
+    c = k - np.sin(a0 - phi)
+    target = it * z / v
+
+    def cur(x: np.ndarray, j: slice | None = None) -> np.ndarray:
+        if j is None:
+            return segment_current(theta=a0 + x, a=a0, c=c, phi=phi, k=k)
+        return segment_current(theta=a0[:, None] + x, a=a0[:, None], c=c[:, None],
+                               phi=phi[:, None], k=k[:, None])
+
+    i = cur(_FINE[None, :], slice(None))
+    hit = (i >= target[:, None]) & ~_after_zero(i)
+    found = hit.any(axis=1) & starts
+    idx = hit.argmax(axis=1)
+    hi = _FINE[idx]
+    lo = np.where(idx > 0, _FINE[np.maximum(idx - 1, 0)], 0.0)
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        up = cur(mid) >= target
+        hi = np.where(up, mid, hi)
+        lo = np.where(up, lo, mid)
+    out = np.where(found, (a0 - al + 0.5 * (lo + hi)) / w, np.inf)
+    return out.reshape(shape)
+
+
 def _rl_slope(d: np.ndarray, alpha: np.ndarray, phi: np.ndarray) -> np.ndarray:
     """(Z/Vm)·di/dθ of :func:`checks.rl.rl_current` at θ = α + d:
     cos(θ − φ) + [sin(α − φ)/tan φ]·e^(−d/tan φ), the exponential taken in log form so that a
@@ -559,7 +614,7 @@ def latch_time_check(*, device: str, load: str, series_r: np.ndarray, c: np.ndar
                      alpha: np.ndarray | None = None, rt: np.ndarray | None = None,
                      iv: np.ndarray | None = None, r_gk: np.ndarray | None = None,
                      n: np.ndarray | None = None, n_gates: int = 1,
-                     **p: np.ndarray) -> Outcome:
+                     e: np.ndarray | None = None, **p: np.ndarray) -> Outcome:
     """``gate.latch-time``: metric t_w/t_req over the firing range.
 
     t_w from :func:`pulse_width` (IGT_c, VGT_c); t_req at each row's α with IL_c and the line
@@ -571,7 +626,9 @@ def latch_time_check(*, device: str, load: str, series_r: np.ndarray, c: np.ndar
     (:func:`checks.oscillator.line_sync_firing_angle` with V_Z = v1, the timing resistor rt
     [Ω] and C_T = c, on the same line); r_load [Ω]; l_load [H]. Values: pulse_width, required_width,
     latch_limit_angle, firing_angle, c_needed (the C_T at which t_w would equal t_req, t_w
-    being proportional to C_T).
+    being proportional to C_T). A back EMF ``e`` [V] (battery, motor; ac only): the current
+    from max(α, θ1) against E (:func:`time_to_current_rle`), latch limit
+    :func:`checks.rle.max_firing_angle`.
 
     >>> out = latch_time_check(device="ujt", load="ac", v1=20.0, eta=0.6, rbb=7e3, r1=100.0,
     ...     r2=600.0, vd=0.5, r_on=10.0, series_r=47.0, r_gk=1e3, c=0.5e-6, vv=3.5,
@@ -607,7 +664,14 @@ def latch_time_check(*, device: str, load: str, series_r: np.ndarray, c: np.ndar
         t_r, lim_r = required_width_resistive(alpha=a, il=il_c, r=r_load, vm=vm, omega=omega,
                                               tgt=tgt)
         inductive = bool(np.any(l_load > 0))
-        if inductive:
+        if e is not None:
+            from checks.rle import max_firing_angle
+
+            t_req = time_to_current_rle(alpha=a, r=r_load, l=l_load, vm=vm, omega=omega, e=e,
+                                        i_target=il_c) + tgt
+            limit = max_firing_angle(vs=_f(v_s), r=r_load, l=l_load, omega=omega, e=e,
+                                     il=il_c)
+        elif inductive:
             safe_l = np.where(l_load > 0, l_load, 1e-12)
             t_l = time_to_current_rl(alpha=a, r=r_load, l=safe_l, vm=vm, omega=omega,
                                      i_target=il_c) + tgt

@@ -215,6 +215,77 @@ def build_corners(inputs: Mapping[str, Input],
     return arrays, varying, note
 
 
+def _badness(out: Outcome, optional: Iterable[str]) -> tuple[np.ndarray, np.ndarray]:
+    """Per row (status, margin) as :func:`reduce` ranks them: a row without a finite answer
+    fails with margin −∞."""
+    opt = set(optional)
+    finite = np.ones(np.shape(out.margin), dtype=bool)
+    for k, v in out.values.items():
+        if k not in opt:
+            finite &= np.isfinite(v)
+    margin = np.asarray(out.margin, dtype=float)
+    finite &= ~np.isnan(margin) | bool(np.isnan(margin).all())
+    status = np.where(finite, out.status.astype(int), FAIL)
+    return status, np.where(finite, np.nan_to_num(margin, nan=np.inf), -np.inf)
+
+
+def search_worst(defn: CheckDef, bound: Bound, arrays: dict[str, np.ndarray],
+                 varying: list[str], out: Outcome, limits: Mapping[str, float],
+                 rounds: int = 40) -> tuple[dict[str, np.ndarray], Outcome, int]:
+    """After sampled corners: a greedy search for a worse corner from the worst sampled one.
+
+    A check that moves one way with each input is worst at one corner, which a random sample
+    of the corners usually misses. Each round tries every other point of every varying input
+    from the worst row so far (one array call) and moves to the worst of them while that is
+    worse; the rows tried are appended to the table. Inputs read from the same key move
+    together. Returns the grown arrays, the outcome over them and the number of rows added.
+    """
+    n0 = len(next(iter(arrays.values())))
+    levels = {n: np.array(sorted(set(arrays[n][1:].tolist()))) for n in varying}
+    # Columns that copy a varying one (inputs read from the same key).
+    twins = {n: [m for m in arrays if m != n and m not in varying
+                 and np.array_equal(arrays[m], arrays[n])] for n in varying}
+
+    def rank(o: Outcome) -> np.ndarray:
+        st, mg = _badness(o, defn.optional)
+        return np.lexsort((mg, -st))
+
+    worst = int(rank(out)[0])
+    added = 0
+    for _ in range(rounds):
+        rows: list[int] = []
+        cand: dict[str, list[np.ndarray]] = {k: [] for k in arrays}
+        for n in varying:
+            for x in levels[n]:
+                if x == arrays[n][worst]:
+                    continue
+                for k in arrays:
+                    cand[k].append(arrays[k][worst:worst + 1])
+                cand[n][-1] = np.array([x])
+                for m in twins[n]:
+                    cand[m][-1] = np.array([x])
+                rows.append(0)
+        if not rows:
+            break
+        new = {k: np.concatenate(v) for k, v in cand.items()}
+        with np.errstate(all="ignore"):
+            got = call(defn, bound, new, limits)
+        arrays = {k: np.concatenate([arrays[k], new[k]]) for k in arrays}
+        size = len(next(iter(arrays.values())))
+        out = Outcome({k: np.concatenate([np.broadcast_to(out.values[k], (size - len(rows),)),
+                                          np.broadcast_to(got.values[k], (len(rows),))])
+                       for k in out.values},
+                      np.concatenate([out.margin, got.margin]),
+                      np.concatenate([out.status, got.status]).astype(np.int8), out.notes)
+        added += len(rows)
+        best = int(rank(out)[0])
+        if best == worst or best < size - len(rows):
+            break  # no tried row is worse than the worst so far
+        worst = best
+    assert len(next(iter(arrays.values()))) == n0 + added
+    return arrays, out, added
+
+
 def _canon(x: float) -> float | None:
     return None if isinstance(x, float) and math.isnan(x) else float(x)
 
@@ -429,6 +500,8 @@ def _computed(defn: CheckDef, bound: Bound, limits: Mapping[str, float],
     with np.errstate(all="ignore"):  # non-finite rows are judged in reduce, not warned
         out = call(defn, bound, arrays, limits)
     if note:
+        arrays, out, added = search_worst(defn, bound, arrays, varying, out, limits)
+        note += f", then {added} more on a search from the worst of them"
         out.notes.append(note)
     red, worst = reduce(bound, arrays, varying, out, limits, defn.optional)
     with np.errstate(all="ignore"):

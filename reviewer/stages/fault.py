@@ -54,6 +54,11 @@ def _summarise(r: Reduced) -> str:
             f"against ITSM {eng(r.lo['itsm_at_line'], 'A')}")
     if r.lo["fault_peak"] <= r.lo["itsm_at_line"] and r.status == "pass":
         return text + ": the SCR rides through a half-cycle of it"
+    if "fuse_i2t" not in r.bound.inputs and r.status == "marginal":
+        return text + ("; marginal: the SCR rides through the first half-cycle, but with no "
+                       "fuse it fires into the short again every half-cycle, which ITSM does not "
+                       "cover: fit a semiconductor-protection fuse (then see power.fuse), or "
+                       "make sure the protection upstream clears within a half-cycle")
     if "fuse_i2t" not in r.bound.inputs:
         return text + ("; fails: nothing clears it before the SCR's surge rating is spent: fit "
                        "a semiconductor-protection fuse whose clearing I²t is below the SCR's "

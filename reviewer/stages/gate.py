@@ -335,6 +335,11 @@ def _bind_latch_time(ctx: Context) -> Bound:
         return b
     b.options["load"] = "ac"
     ctx.need(b, "f", "supply.frequency")
+    load = power.get("load")
+    if isinstance(load, dict) and isinstance(load.get("e"), Value):
+        # A battery or motor: the anode current starts only where the line exceeds E, and
+        # rises against it.
+        ctx.need(b, "e", ctx.stage_path("load.e", power))
     firing = power.get("firing")
     if power.get("control") == "burst":
         # Integral-cycle control fires at the voltage zero: the anode current rises from zero

@@ -70,7 +70,7 @@ def _fn_burst(*, topology: str, limits: Mapping[str, float], burst_period: int,
 
 def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: str = "ac",
         emf: str = "", **kw: Any) -> Outcome:
-    kw.pop("gate_pulse", None)
+    pulse = kw.pop("gate_pulse", None)
     if "burst_period" in kw:
         kw.pop("quantity", None)
         return _fn_burst(topology=topology, limits=limits, **kw)
@@ -80,11 +80,28 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
     r_range = kw.pop("r_range", None)
 
     def at(r: Any) -> Outcome:
-        v = power.stage_values(topology=topology, freewheel=freewheel, alpha=a, omega=omega,
+        # An ac-switch fired before φ: the gate pulse decides (power's _pulses) between the
+        # steady sine (fired at φ) and one SCR alone, whose line current is a half-wave's
+        # (a DC part and even orders), not the symmetric pair.
+        a_r, note = pw._pulses({"topology": topology, "l": kw["l"], "r": r,
+                                "gate_pulse": pulse}, a, omega)
+        v = power.stage_values(topology=topology, freewheel=freewheel, alpha=a_r, omega=omega,
                                e=e, peak=False, **(kw | {"r": r}))
         v["z"] = np.hypot(np.asarray(r, dtype=float), omega * np.asarray(kw["l"]))
-        return harmonics.harmonics_check(waveform=v, topology=topology, freewheel=freewheel,
+        out = harmonics.harmonics_check(waveform=v, topology=topology, freewheel=freewheel,
+                                        limits=limits)
+        if not note:
+            return out
+        phi = np.arctan2(omega * np.asarray(kw["l"], dtype=float), np.asarray(r, dtype=float))
+        lost = np.asarray(a_r < phi - 1e-12)
+        half = harmonics.harmonics_check(waveform=v, topology="half-wave", freewheel=False,
                                          limits=limits)
+        shape = np.broadcast(out.margin, lost).shape
+        lost = np.broadcast_to(lost, shape)
+        vals = {k: np.where(lost, np.broadcast_to(half.values[k], shape),
+                            np.broadcast_to(out.values[k], shape)) for k in out.values}
+        return Outcome(vals, np.where(lost, half.margin, out.margin),
+                       np.where(lost, half.status, out.status).astype(np.int8), [note])
 
     out = at(kw["r"])
     if r_range is None:
@@ -106,7 +123,7 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
     out.values.update(limit_ratio=worst.values["limit_ratio"], worst_order=order.astype(float),
                       worst_harmonic=np.take_along_axis(h, order[..., None], axis=-1)[..., 0],
                       worst_load_r=r_w.reshape(shape))
-    return Outcome(out.values, worst.margin, worst.status, out.notes)
+    return Outcome(out.values, worst.margin, worst.status, out.notes or worst.notes)
 
 
 def _summarise(r: Reduced) -> str:

@@ -10,7 +10,7 @@ import numpy as np
 
 from checks import oscillator, power, rle
 from checks import snubber as snubber_mod
-from checks.core import Outcome, cold_value
+from checks.core import Outcome, cold_value, grade
 from checks.rl import extinction_angle
 from reviewer.fmt import at_least, at_most, eng, pct, span
 from reviewer.model import Part, Stage, Value
@@ -827,6 +827,8 @@ def _bind_surge(ctx: Context) -> Bound:
     ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
     b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
     b.options["topology"] = ctx.stage.get("topology")
+    if ctx.stage.get("freewheel") and ctx.stage.get("topology") != "ac-switch":
+        b.options["freewheel"] = True
     _bind_surge_emf(ctx, b)
     _bind_firing(ctx, b, sweep=7, extra=(math.pi / 2,))
     return b
@@ -851,17 +853,41 @@ def _bind_surge_emf(ctx: Context, b: Bound) -> None:
 
 def _fn_surge(**kw: Any) -> Outcome:
     a, lo, hi = _firing(kw)
-    if "e_start" in kw:
+    freewheel = bool(kw.pop("freewheel", False))
+    topology = kw["topology"]
+    omega = _omega(kw)
+    e = kw.get("e_start")
+    if e is not None:
         for k in ("topology", "emf"):
             kw.pop(k)
-        return rle.surge_check(alpha=a, omega=_omega(kw), **kw)
-    return power.surge_check(alpha=a, omega=_omega(kw), **kw)
+        out = rle.surge_check(alpha=a, omega=omega, **kw)
+    else:
+        out = power.surge_check(alpha=a, omega=omega, **kw)
+    if topology != "bridge" and not freewheel:
+        return out  # the current starts from zero every cycle: the first one is the worst
+    # A bridge (or a freewheeling diode) can carry the current on from one half-cycle into the
+    # next: from rest it builds up over the first cycles, into the still cold load or the
+    # still stalled motor, to the steady current, whose peak is then the inrush.
+    steady = power.stage_values(topology=topology, freewheel=freewheel, vs=kw["vs"],
+                                r=kw["r_cold"], l=kw["l"], omega=omega, alpha=a, peak=True,
+                                e=e)["it_peak"]
+    first = out.values["inrush_peak"]
+    peak = np.maximum(first, steady)
+    rating = out.values["itsm_at_line"]
+    with np.errstate(divide="ignore"):
+        margin, status = grade(rating / peak, kw["limits"])
+    values = dict(out.values, inrush_peak=peak, first_peak=first + 0 * peak)
+    return Outcome(values, margin, status, out.notes)
 
 
 def _sum_surge(r: Reduced) -> str:
     rating = r.lo["itsm_at_line"]
     text = (f"cold-load inrush peak {eng(r.hi['inrush_peak'], 'A')} against ITSM "
             f"{eng(rating, 'A')} (at the line's half-cycle)")
+    first = r.worst.get("first_peak", float("nan"))
+    if first == first and r.worst["inrush_peak"] > first * (1 + 1e-6):
+        text += (f"; the current builds up from {eng(first, 'A')} in the first half-cycle to "
+                 "the steady current of the cold (or stalled) load within a few cycles")
     if r.status != "pass":
         text += (f"; fails: needs ITSM ≥ {at_least(r.hi['inrush_peak'], 'A')}, a soft start "
                  "(α_min later), or an inrush limiter")
@@ -874,11 +900,13 @@ register(CheckDef(
     id="power.surge", kinds=("phase-control",),
     question="Is the worst inrush (cold load, first half-cycle at high line) within ITSM?",
     method="R load: √2·V_s,max/R_cold when the range reaches 90° (else at α_min); R–L: the peak "
-           "of i(θ) with R_cold. ITSM converted to the line's half-cycle by I^N·t = const "
+           "of i(θ) with R_cold; a bridge or a freewheeling stage: the larger of that and the "
+           "steady current's peak with R_cold (and the starting E), which the first cycles "
+           "build up to. ITSM converted to the line's half-cycle by I^N·t = const "
            "(N = 4 below t_sm, 2 above).",
     source="Rashid 4e §17; Bimbhra ch. 4 (surge rating)",
     fn=_fn_surge, bind=_bind_surge,
-    units={"inrush_peak": "A"}, summarise=_sum_surge,
+    units={"inrush_peak": "A", "first_peak": "A"}, summarise=_sum_surge,
     fix="A part with a higher ITSM, a soft start, or an inrush limiter.",
 ))
 
@@ -1130,6 +1158,20 @@ def _bind_didt(ctx: Context) -> Bound:
         return b
     if _emf_type(ctx) is not None:
         ctx.need(b, "e", _sp(ctx, "load.e"))
+    if not _is_dc(ctx) and _carries_at_firing(ctx) and ll is not None and ll.hi > 0:
+        # The load current may still flow when the SCR fires: it then moves over through the
+        # supply inductance alone (the load's L holds it), so that inductance must be known.
+        given = "inductance" in (ctx.project.raw.get("supply") or {})
+        if ls is None or (ls.hi <= 0 and not given):
+            b.missing.append("supply.inductance (a bridge's or freewheeling load's current "
+                             "moves to the firing SCR through it alone)")
+            return b
+        b.options["topology"] = ctx.stage.get("topology")
+        b.options["freewheel"] = bool(ctx.stage.get("freewheel", False))
+        if "e" in b.inputs:
+            b.options["emf"] = _emf_type(ctx)
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.need(b, "freq", "supply.frequency")
     snubs = ctx.stages_of(("rc-snubber",), "across", ctx.stage.id)
     if snubs:
         sn = snubs[0]
@@ -1143,11 +1185,74 @@ def _bind_didt(ctx: Context) -> Bound:
     return b
 
 
+def _carries_at_firing(ctx: Context) -> bool:
+    """A fully controlled bridge (continuous conduction) or a freewheeling diode can still
+    carry the load current when the SCR fires."""
+    return ctx.stage.get("topology") == "bridge" or (
+        ctx.stage.get("topology") != "ac-switch" and bool(ctx.stage.get("freewheel", False)))
+
+
+def _continuous_at(kw: dict[str, Any], omega: Any, e: Any, alpha: Any) -> np.ndarray:
+    v = power.stage_values(topology=kw["topology"], freewheel=kw["freewheel"], vs=kw["vs"],
+                           r=kw["r"], l=kw["l"], omega=omega, alpha=alpha, peak=False,
+                           e=None if e is None else e)
+    return np.asarray(v["continuous"]) > 0
+
+
+def _handover_didt(kw: dict[str, Any], a: Any, lo: Any, hi: Any, e: Any) -> tuple[np.ndarray,
+                                                                                 np.ndarray]:
+    """di/dt where the load current still flows at firing [A/s], and the angle it is at
+    (−1 where it never flows at firing).
+
+    The incoming SCR takes the current over from the outgoing pair (full bridge: all four on,
+    the bridge shorts its DC side, L_s·di_s/dt = v_s and each incoming SCR carries
+    (i_s + I_d)/2) or from the freewheeling diode (load held at 0 V: L_s·di/dt = v_s), so
+    the load's L and E are out of that loop  (Mohan, Undeland, Robbins, Power Electronics
+    3e, §5-3 and §6-3, from memory). Within the firing range, the largest sin α of an angle
+    that still finds the current flowing: the continuity boundary is found per row on a
+    33-point grid of [α_lo, α_hi] and refined by 30 bisection steps; 0 A/s where the current
+    is never flowing at firing.
+    """
+    omega = 2 * np.pi * np.asarray(kw["freq"], dtype=float)
+    vs = np.asarray(kw["vs"], dtype=float)
+    shape = np.broadcast(a, lo, hi, vs, kw["r"], kw["l"], omega,
+                         0.0 if e is None else e).shape
+    lo_, hi_ = (np.broadcast_to(np.asarray(x, dtype=float), shape).ravel() for x in (lo, hi))
+    row = {n: np.broadcast_to(np.asarray(kw[n], dtype=float), shape).ravel()
+           for n in ("vs", "r", "l")}
+    om = np.broadcast_to(omega, shape).ravel()
+    ee = None if e is None else np.broadcast_to(np.asarray(e, dtype=float), shape).ravel()
+    sub = {"topology": kw["topology"], "freewheel": kw["freewheel"], **row}
+    frac = np.linspace(0.0, 1.0, 33)
+    grid = lo_[:, None] + (hi_ - lo_)[:, None] * frac
+    bc = {n: x[:, None] for n, x in row.items()}
+    cont = _continuous_at(sub | bc, om[:, None], None if ee is None else ee[:, None], grid)
+    # The last grid angle at which the current still flows, and the next one up.
+    any_c = cont.any(axis=1)
+    last = np.where(any_c, 32 - np.argmax(cont[:, ::-1], axis=1), 0)
+    t_lo = lo_ + (hi_ - lo_) * np.minimum(last, 32) / 32
+    t_hi = np.minimum(t_lo + (hi_ - lo_) / 32, hi_)
+    for _ in range(30):
+        mid = 0.5 * (t_lo + t_hi)
+        c = _continuous_at(sub, om, ee, mid)
+        t_lo = np.where(c, mid, t_lo)
+        t_hi = np.where(c, t_hi, mid)
+    # Over [α_lo, boundary] the largest sin α: at 90° when it lies inside, else the end
+    # nearest it.
+    at = np.clip(np.pi / 2, lo_, t_lo)
+    factor = 1.0 if kw["freewheel"] else 2.0  # a full bridge shares the rise over two SCRs
+    rate = np.sqrt(2.0) * row["vs"] * np.sin(at) / (factor * np.broadcast_to(
+        np.asarray(kw["l_s"], dtype=float), shape).ravel())
+    rate = np.where(any_c, rate, 0.0)
+    return rate.reshape(shape), np.where(any_c, at, -1.0).reshape(shape)
+
+
 def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float],
              l_s: Any = 0.0, l: Any = 0.0, snubber: str = "", snub_ld: Any = None,  # noqa: E741
              snub_r: Any = None, t_on: Any = None, e: Any = 0.0, **kw: Any) -> Outcome:
+    handover = "topology" in kw
     if kind == "ac":
-        a, _, _ = _firing(kw, vs=vs)
+        a, lo, hi = _firing(kw, vs=vs)
     else:
         a = np.pi / 2
     v = np.asarray(vs, dtype=float) if kind == "dc" else np.sqrt(2.0) * np.asarray(vs) * np.sin(a)
@@ -1155,8 +1260,34 @@ def _fn_didt(*, kind: str, vs: Any, didt_rating: Any, limits: Mapping[str, float
     if snubber:
         with np.errstate(divide="ignore"):
             snub = v / snub_ld if snub_ld is not None else (v / snub_r) / t_on
-    return power.didt_check(kind=kind, vs=vs, l_tot=np.asarray(l_s) + np.asarray(l), alpha=a,
-                            snub_didt=snub, didt_rating=didt_rating, limits=limits, e=e)
+    l_tot = np.asarray(l_s) + np.asarray(l)
+    if not handover:
+        return power.didt_check(kind=kind, vs=vs, l_tot=l_tot, alpha=a, snub_didt=snub,
+                                didt_rating=didt_rating, limits=limits, e=e)
+    kw.update(vs=vs, l=l, l_s=l_s)
+    e_in = e if "emf" in kw else None  # the back EMF's option is only bound with `load.e`
+    omega = 2 * np.pi * np.asarray(kw["freq"], dtype=float)
+    # At the row's own angle: through L_s alone when the current flows, else from zero
+    # through L_s + L against E; then the worst angle of the range that still finds it
+    # flowing (the continuity boundary is an interior extreme the sweep does not hold).
+    flowing = _continuous_at(kw, omega, e_in, a)
+    factor = 1.0 if kw["freewheel"] else 2.0
+    l_row = np.where(flowing, factor * np.asarray(l_s, dtype=float), l_tot)
+    e_row = np.where(flowing, 0.0, np.asarray(e, dtype=float))
+    out = power.didt_check(kind=kind, vs=vs, l_tot=l_row, alpha=a, snub_didt=snub,
+                           didt_rating=didt_rating, limits=limits, e=e_row)
+    worst, at = _handover_didt(kw, a, lo, hi, e_in)
+    snub_at = 0.0
+    if snubber:
+        v_at = np.sqrt(2.0) * np.asarray(vs, dtype=float) * np.sin(np.maximum(at, 0.0))
+        with np.errstate(divide="ignore"):
+            snub_at = v_at / snub_ld if snub_ld is not None else (v_at / snub_r) / t_on
+        snub_at = np.where(at < 0, 0.0, snub_at)
+    rate = np.maximum(out.values["didt"], worst + snub_at)
+    with np.errstate(divide="ignore"):
+        margin, status = grade(np.asarray(didt_rating, dtype=float) / rate, limits)
+    out = Outcome({"didt": rate, "handover_angle": at + 0 * rate}, margin, status)
+    return out
 
 
 def _sum_didt(r: Reduced) -> str:
@@ -1167,7 +1298,16 @@ def _sum_didt(r: Reduced) -> str:
         text += (f", with the snubber `{sn}` discharge"
                  + ("" if "snub_ld" in r.bound.inputs else
                     " (estimated over the turn-on time: no discharge_inductance given)"))
-    if r.status != "pass":
+    at = r.worst.get("handover_angle", -1.0)
+    if at >= 0:
+        text += (f"; the load current is still flowing when the SCR fires (up to α = "
+                 f"{_deg(at)}) and moves over through the supply inductance alone")
+    if r.status != "pass" and at >= 0:
+        ls = r.bound.inputs["l_s"].value.lo
+        need = ls * r.hi["didt"] / rating
+        text += (f"; fails: needs the line inductance ≥ {at_least(need, 'H')} (add a series "
+                 "line reactor, then re-run the snubber checks)")
+    elif r.status != "pass":
         ls = sum(r.bound.inputs[k].value.lo for k in ("l_s", "l") if k in r.bound.inputs)
         need = ls * r.hi["didt"] / rating
         text += (f"; fails: needs the loop inductance ≥ {at_least(need, 'H')} (add a series "
