@@ -1,9 +1,11 @@
 """Share one solution among the checks that ask for it with identical inputs.
 
 Several checks solve the same line-synchronised firing angle from the same corner or sample
-arrays. Inside a :func:`shared` block, a function decorated with :func:`memoised` computes
-once per distinct set of inputs (compared by their values, not by identity) and hands every
-caller its own copy of the result; outside such a block it simply computes. The block is per
+arrays, and several checks read the same stage waveform (means, RMS, segments) from the same
+rows. Inside a :func:`shared` block, a function decorated with :func:`memoised` computes once
+per distinct set of inputs (compared by their values, not by identity) and hands every caller
+its own copy of the result (an array, or a dict of arrays); outside such a block it simply
+computes. The block is per
 thread (a context variable), so a worker computing in the background shares nothing with
 another. The functions stay pure: the same inputs give the same array either way.
 """
@@ -18,11 +20,10 @@ from typing import Any, TypeVar
 
 import numpy as np
 
-F = TypeVar("F", bound=Callable[..., np.ndarray])
+F = TypeVar("F", bound=Callable[..., Any])
 
-_STORE: ContextVar[dict[tuple[Any, ...], list[tuple[dict[str, Any], np.ndarray]]] | None] = \
-    ContextVar(
-        "latchbook_shared_solutions", default=None)
+_STORE: ContextVar[dict[tuple[Any, ...], list[tuple[dict[str, Any], Any]]] | None] = \
+    ContextVar("latchbook_shared_solutions", default=None)
 
 
 @contextmanager
@@ -49,9 +50,13 @@ def clear() -> None:
 Inputs = dict[str, Any]
 
 
+def _plain(v: Any) -> bool:
+    """Choices compared as they are (``None`` must not become NaN: it means "absent")."""
+    return v is None or isinstance(v, (str, bool))
+
+
 def _canon(kwargs: dict[str, Any]) -> Inputs:
-    return {k: v if isinstance(v, str) else np.asarray(v, dtype=float)
-            for k, v in kwargs.items()}
+    return {k: v if _plain(v) else np.asarray(v, dtype=float) for k, v in kwargs.items()}
 
 
 def _fingerprint(name: str, inputs: Inputs) -> tuple[Any, ...]:
@@ -60,7 +65,7 @@ def _fingerprint(name: str, inputs: Inputs) -> tuple[Any, ...]:
     parts: list[Any] = [name]
     for k in sorted(inputs):
         v = inputs[k]
-        if isinstance(v, str):
+        if _plain(v):
             parts.append((k, v))
         else:
             flat = v.ravel()
@@ -72,20 +77,28 @@ def _fingerprint(name: str, inputs: Inputs) -> tuple[Any, ...]:
 def _same(a: Inputs, b: Inputs) -> bool:
     for k, x in a.items():
         y = b[k]
-        if isinstance(x, str) or isinstance(y, str):
-            if x != y:
+        if _plain(x) or _plain(y):
+            if type(x) is not type(y) or x != y:
                 return False
         elif x.shape != y.shape or x.tobytes() != y.tobytes():  # bit for bit, NaN included
             return False
     return True
 
 
+def _copy(result: Any) -> Any:
+    """A caller's own copy: an array, or a dict of arrays (a waveform's named values)."""
+    if isinstance(result, dict):
+        return {k: np.array(v, copy=True) for k, v in result.items()}
+    return np.array(result, copy=True)
+
+
 def memoised(fn: F) -> F:
-    """Share ``fn``'s results (keyword arguments only) inside a :func:`shared` block."""
+    """Share ``fn``'s results (keyword arguments only; an array or a dict of arrays) inside a
+    :func:`shared` block."""
     name = f"{fn.__module__}.{fn.__qualname__}"
 
     @functools.wraps(fn)
-    def wrapper(**kwargs: Any) -> np.ndarray:
+    def wrapper(**kwargs: Any) -> Any:
         store = _STORE.get()
         if store is None:
             return fn(**kwargs)
@@ -93,11 +106,12 @@ def memoised(fn: F) -> F:
         entries = store.setdefault(_fingerprint(name, inputs), [])
         for seen, result in entries:
             if _same(seen, inputs):
-                return result.copy()
-        # Keep copies of the inputs: a caller may reuse its arrays for something else.
-        kept = {k: v if isinstance(v, str) else v.copy() for k, v in inputs.items()}
-        result = np.asarray(fn(**kwargs))
+                return _copy(result)
+        # Keep copies of the inputs and of the result: a caller may reuse its arrays for
+        # something else, and a result may be a view of an input.
+        kept = {k: v if _plain(v) else v.copy() for k, v in inputs.items()}
+        result = _copy(fn(**kwargs))
         entries.append((kept, result))
-        return result.copy()
+        return _copy(result)
 
     return wrapper  # type: ignore[return-value]

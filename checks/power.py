@@ -28,6 +28,7 @@ from collections.abc import Mapping
 import numpy as np
 
 from checks.core import FAIL, MARGINAL, PASS, Outcome, grade
+from checks.memo import memoised
 from checks.rl import extinction_angle, rl_current
 
 TOPOLOGIES = ("half-wave", "bridge", "ac-switch")
@@ -268,6 +269,7 @@ def _vm_z_phi(vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
     return vm, np.hypot(_a(r), x), np.arctan2(x, _a(r))
 
 
+@memoised  # several checks read the same waveform from the same rows: solved once
 def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
                  l: np.ndarray, omega: np.ndarray,  # noqa: E741
                  alpha: np.ndarray, peak: bool = True,
