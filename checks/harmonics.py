@@ -37,7 +37,7 @@ from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from checks.core import MARGINAL, Outcome, cap_status, grade
+from checks.core import MARGINAL, Outcome, cap_status, distinct_rows, grade
 
 ORDERS = np.arange(0, 41)  # DC and the harmonics up to the 40th
 
@@ -120,32 +120,6 @@ def segment_coefficients(*, a: np.ndarray, b: np.ndarray, c: np.ndarray, phi: np
     return total
 
 
-def _distinct_rows(*arrays: np.ndarray | float) -> tuple[list[np.ndarray], np.ndarray]:
-    """The distinct rows of broadcast ``arrays`` (columns of the distinct rows) and, per
-    original row, the index of its distinct row; the original shape is kept by the index.
-
-    Corner tables repeat a segment many times over (inputs the waveform does not read), and
-    its coefficients cost 41 complex exponentials per row: each distinct one is worked once.
-
-    >>> cols, back = _distinct_rows(np.array([1.0, 2.0, 1.0]), 0.5)
-    >>> [c.tolist() for c in cols], back.tolist()
-    ([[1.0, 2.0], [0.5, 0.5]], [0, 1, 0])
-    """
-    full = np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in arrays))
-    shape = full[0].shape
-    flat = [x.ravel() for x in full]
-    if flat[0].size <= 1:
-        return flat, np.zeros(shape, dtype=np.intp)
-    order = np.lexsort(flat[::-1])
-    ranked = [x[order] for x in flat]
-    # rows differ where any column differs (NaN rows are never merged: NaN != NaN)
-    new = np.ones(order.size, dtype=bool)
-    new[1:] = np.any(np.stack([r[1:] != r[:-1] for r in ranked]), axis=0)
-    back = np.empty(order.size, dtype=np.intp)
-    back[order] = np.cumsum(new) - 1
-    return [r[new] for r in ranked], back.reshape(shape)
-
-
 def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np.ndarray,
              offset: np.ndarray | float, symmetric: bool, amplitude: np.ndarray,
              orders: np.ndarray = ORDERS) -> np.ndarray:
@@ -161,7 +135,7 @@ def spectrum(*, seg_a: np.ndarray, seg_b: np.ndarray, seg_c: np.ndarray, phi: np
     [0.3183, 0.1061]
     """
     n = np.asarray(orders)
-    cols, back = _distinct_rows(seg_a, seg_b, seg_c, phi, offset)
+    cols, back = distinct_rows(seg_a, seg_b, seg_c, phi, offset)
     a, b, c, p, k = cols
     if not symmetric:
         co = segment_coefficients(a=a, b=b, c=c, phi=p, k=k, orders=n)[back]

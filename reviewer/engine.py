@@ -271,8 +271,15 @@ def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
     order = np.lexsort((margin, -status))
     worst = int(order[0])
 
+    keys = list(out.values)
+    cols = [np.asarray(out.values[k]) for k in keys]
+
     def pick(f: Any) -> dict[str, float]:
-        return {k: float(f(v)) for k, v in out.values.items()}
+        if cols and all(c.shape == cols[0].shape and c.ndim == 1 for c in cols):
+            # one call over all values at once (a min or max is exact: the same numbers)
+            return dict(zip(keys, f(np.stack(cols).astype(float), axis=1).tolist(),
+                            strict=True))
+        return {k: float(f(v)) for k, v in zip(keys, cols, strict=True)}
 
     with warnings.catch_warnings():  # an all-NaN value (no valid row) reduces to NaN quietly
         warnings.simplefilter("ignore", RuntimeWarning)
