@@ -219,3 +219,21 @@ def test_symmetric_spectrum_works_only_the_odd_orders_and_they_match_a_dense_int
     cur = np.where(on, seg(shift), 0.0) * np.where(np.mod(th - alpha, 2 * np.pi) < np.pi, 1, -1)
     ref = np.trapezoid(cur * np.exp(-1j * n[:, None] * th), th, axis=1) / np.pi
     np.testing.assert_allclose(np.abs(co), np.abs(ref), atol=1e-9)
+
+
+def test_many_rows_are_worked_in_blocks_in_their_own_order() -> None:
+    """A Monte Carlo chunk (more rows than two blocks, none repeated) gets each row's own
+    coefficients: those of the row worked alone, to rounding."""
+    rng = np.random.default_rng(11)
+    rows = 2 * harmonics._BLOCK + 777
+    a = rng.uniform(0.0, np.pi, rows)
+    b = a + rng.uniform(0.1, 2.5, rows)
+    c, phi = rng.uniform(-1.0, 1.0, rows), rng.uniform(0.0, 1.5, rows)
+    for symmetric in (False, True):
+        co = harmonics.spectrum(seg_a=a, seg_b=b, seg_c=c, phi=phi, offset=0.0,
+                                symmetric=symmetric, amplitude=1.0)
+        assert co.shape == (rows, 41)
+        for i in (0, 1, harmonics._BLOCK - 1, harmonics._BLOCK, rows - 1):
+            one = harmonics.spectrum(seg_a=a[i], seg_b=b[i], seg_c=c[i], phi=phi[i],
+                                     offset=0.0, symmetric=symmetric, amplitude=1.0)
+            assert np.abs(co[i] - one).max() < 1e-15
