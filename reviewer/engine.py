@@ -204,8 +204,13 @@ def build_corners(inputs: Mapping[str, Input],
         note = (f"{n_vary_plain} varying inputs: {SAMPLED_CORNERS} sampled corners instead of "
                 f"all {count}")
     else:
-        grids = np.meshgrid(*points, indexing="ij")
-        cols = [g.ravel() for g in grids]
+        # np.meshgrid(*points, indexing="ij"), raveled, without its broadcasting per input:
+        # the first input varies slowest, each point repeated for every combination after it
+        cols = []
+        after = count
+        for p in points:
+            after //= len(p)
+            cols.append(np.tile(np.repeat(p, after), count // (len(p) * after)))
     arrays = {}
     for name, col in zip(names, cols, strict=True):
         nom = inputs[name].value.nom
