@@ -5,9 +5,9 @@ arrays, and several checks read the same stage waveform (means, RMS, segments) f
 rows. Inside a :func:`shared` block, a function decorated with :func:`memoised` computes once
 per distinct set of inputs (compared by their values, not by identity) and hands every caller
 its own copy of the result (an array, or a dict of arrays); outside such a block it simply
-computes. The block is per
-thread (a context variable), so a worker computing in the background shares nothing with
-another. The functions stay pure: the same inputs give the same array either way.
+computes. The block is per thread (a context variable), so a worker computing in the
+background shares nothing with another. The functions stay pure: the same inputs give the
+same array either way.
 """
 
 from __future__ import annotations
