@@ -13,6 +13,7 @@ same array either way.
 from __future__ import annotations
 
 import functools
+from collections import deque
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from contextvars import ContextVar
@@ -22,8 +23,47 @@ import numpy as np
 
 F = TypeVar("F", bound=Callable[..., Any])
 
-_STORE: ContextVar[dict[tuple[Any, ...], list[tuple[dict[str, Any], Any]]] | None] = \
-    ContextVar("latchbook_shared_solutions", default=None)
+#: What one block keeps at most [bytes of inputs and results]; the oldest entries go first. A
+#: large project's whole run is one block, and a check that searches (golden sections over R)
+#: asks for many waveforms it never asks for again.
+MAX_BYTES = 64 * 2**20
+
+
+class _Store(dict):  # type: ignore[type-arg]
+    """Fingerprint → [(inputs, result)], with the entries in the order they came and their
+    size, so that the block stays under :data:`MAX_BYTES`."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.order: deque[tuple[tuple[Any, ...], tuple[dict[str, Any], Any], int]] = deque()
+        self.nbytes = 0
+
+    def add(self, key: tuple[Any, ...], entry: tuple[dict[str, Any], Any]) -> None:
+        size = _size(entry[0]) + _size(entry[1])
+        self.setdefault(key, []).append(entry)
+        self.order.append((key, entry, size))
+        self.nbytes += size
+        while self.nbytes > MAX_BYTES and len(self.order) > 1:
+            old_key, old, old_size = self.order.popleft()
+            bucket = self[old_key]
+            bucket[:] = [e for e in bucket if e is not old]
+            if not bucket:
+                del self[old_key]
+            self.nbytes -= old_size
+
+    def clear(self) -> None:
+        super().clear()
+        self.order.clear()
+        self.nbytes = 0
+
+
+def _size(x: Any) -> int:
+    if isinstance(x, dict):
+        return sum(_size(v) for v in x.values())
+    return int(x.nbytes) if isinstance(x, np.ndarray) else 0
+
+
+_STORE: ContextVar[_Store | None] = ContextVar("latchbook_shared_solutions", default=None)
 
 
 @contextmanager
@@ -33,7 +73,7 @@ def shared() -> Iterator[None]:
     if _STORE.get() is not None:
         yield
         return
-    token = _STORE.set({})
+    token = _STORE.set(_Store())
     try:
         yield
     finally:
@@ -107,15 +147,15 @@ def memoised(fn: F) -> F:
         if store is None:
             return fn(**kwargs)
         inputs = _canon(kwargs)
-        entries = store.setdefault(_fingerprint(name, inputs), [])
-        for seen, result in entries:
+        key = _fingerprint(name, inputs)
+        for seen, result in store.get(key, ()):
             if _same(seen, inputs):
                 return _copy(result)
         # Keep copies of the inputs and of the result: a caller may reuse its arrays for
         # something else, and a result may be a view of an input.
         kept = {k: v if _plain(v) else v.copy() for k, v in inputs.items()}
         result = _copy(fn(**kwargs))
-        entries.append((kept, result))
+        store.add(key, (kept, result))
         return _copy(result)
 
     return wrapper  # type: ignore[return-value]

@@ -119,6 +119,28 @@ def test_a_waveform_dict_is_shared_and_every_caller_gets_its_own_arrays(monkeypa
     assert round(float(ex["vrms"]), 2) == 84.85
 
 
+def test_a_block_keeps_at_most_its_byte_budget_oldest_first(monkeypatch):
+    calls = _counting(monkeypatch)
+    rts = [np.linspace(10e3, 47e3, 50) * (1 + i / 100) for i in range(6)]
+    with memo.shared():
+        first = [oscillator.line_sync_firing_angle(rt=rt, **KW) for rt in rts]
+        store = memo._STORE.get()
+        one = store.nbytes / len(rts)  # the same size for every entry here
+        monkeypatch.setattr(memo, "MAX_BYTES", int(2.5 * one))
+        calls.clear()
+        again = oscillator.line_sync_firing_angle(rt=rts[0].copy(), **KW)  # a lookup: kept
+        assert len(calls) == 0 and len(store.order) == 6
+        oscillator.line_sync_firing_angle(rt=rts[1] * 1.5, **KW)  # a new one: evicts
+        assert store.nbytes <= memo.MAX_BYTES and len(store.order) == 2
+        calls.clear()
+        late = oscillator.line_sync_firing_angle(rt=rts[5].copy(), **KW)  # still kept
+        assert len(calls) == 0
+        early = oscillator.line_sync_firing_angle(rt=rts[2].copy(), **KW)  # evicted: solved
+        assert len(calls) == 1
+    assert again.tolist() == first[0].tolist() and late.tolist() == first[5].tolist()
+    assert early.tolist() == first[2].tolist()
+
+
 def test_absent_is_not_nan_and_a_choice_is_not_a_number():
     """``e=None`` (no back EMF) and ``e=NaN`` must not share one entry, nor True and 1.0."""
     assert memo._fingerprint("f", memo._canon({"e": None})) != \
