@@ -114,3 +114,29 @@ def cold_value(
 def as_array(x: object) -> np.ndarray:
     """Return ``x`` as a float array (no copy when it already is one)."""
     return np.asarray(x, dtype=float)
+
+
+def distinct_rows(*arrays: np.ndarray | float) -> tuple[list[np.ndarray], np.ndarray]:
+    """The distinct rows of broadcast ``arrays`` (columns of the distinct rows) and, per
+    original row, the index of its distinct row; the original shape is kept by the index.
+
+    Corner tables repeat a row many times over for the inputs a quantity does not read (a
+    segment's harmonics, a bisection): work each distinct row once, then ``result[index]``.
+
+    >>> cols, back = distinct_rows(np.array([1.0, 2.0, 1.0]), 0.5)
+    >>> [c.tolist() for c in cols], back.tolist()
+    ([[1.0, 2.0], [0.5, 0.5]], [0, 1, 0])
+    """
+    full = np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in arrays))
+    shape = full[0].shape
+    flat = [x.ravel() for x in full]
+    if flat[0].size <= 1:
+        return flat, np.zeros(shape, dtype=np.intp)
+    order = np.lexsort(flat[::-1])
+    ranked = [x[order] for x in flat]
+    # rows differ where any column differs (NaN rows are never merged: NaN != NaN)
+    new = np.ones(order.size, dtype=bool)
+    new[1:] = np.any(np.stack([r[1:] != r[:-1] for r in ranked]), axis=0)
+    back = np.empty(order.size, dtype=np.intp)
+    back[order] = np.cumsum(new) - 1
+    return [r[new] for r in ranked], back.reshape(shape)

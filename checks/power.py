@@ -28,6 +28,7 @@ from collections.abc import Mapping
 import numpy as np
 
 from checks.core import FAIL, MARGINAL, PASS, Outcome, grade
+from checks.memo import memoised
 from checks.rl import extinction_angle, rl_current
 
 TOPOLOGIES = ("half-wave", "bridge", "ac-switch")
@@ -123,9 +124,11 @@ _PEAK_GRID = 32
 _GOLDEN = 46
 
 
+@np.errstate(over="ignore", under="ignore")  # as _decay has it, once for the whole search
 def _segment_argmax_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np.ndarray,
                        tau: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """The largest value of an R–L segment and the angle where it is, (i_max, θ_max)."""
+    """The largest value of an R–L segment and the angle where it is, (i_max, θ_max); every
+    row has τ = tan φ > 1e-12."""
     frac = np.linspace(0.0, 1.0, _PEAK_GRID + 1)
     grid = a[..., None] + length[..., None] * frac
     b = a + length
@@ -135,7 +138,9 @@ def _segment_argmax_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np
         pp = phi[..., None] if ex else phi
         cc = c[..., None] if ex else c
         tt = tau[..., None] if ex else tau
-        return np.sin(th - pp) + cc * _decay(th - aa, tt)
+        # _decay(th − a, τ) written out: every row here has τ > 0, so it is exactly this
+        # (bit for bit), without its checks, once per golden-section step
+        return np.sin(th - pp) + cc * np.exp(-np.maximum(th - aa, 0.0) / tt)
 
     vals = f(grid, 1)
     k = vals.argmax(axis=-1)
@@ -151,7 +156,8 @@ def _segment_argmax_rl(a: np.ndarray, length: np.ndarray, phi: np.ndarray, c: np
         hi = np.where(left, x2, hi)
         lo = np.where(left, lo, x1)
         # one new point per row: the kept inner point is reused (one f per step, not two)
-        xn = np.where(left, hi - gr * (hi - lo), lo + gr * (hi - lo))
+        step_in = gr * (hi - lo)
+        xn = np.where(left, hi - step_in, lo + step_in)
         fn = f(xn)
         x1, x2 = np.where(left, xn, x2), np.where(left, x1, xn)
         f1, f2 = np.where(left, fn, f2), np.where(left, f1, fn)
@@ -268,6 +274,7 @@ def _vm_z_phi(vs: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
     return vm, np.hypot(_a(r), x), np.arctan2(x, _a(r))
 
 
+@memoised  # several checks read the same waveform from the same rows: solved once
 def stage_values(*, topology: str, freewheel: bool, vs: np.ndarray, r: np.ndarray,
                  l: np.ndarray, omega: np.ndarray,  # noqa: E741
                  alpha: np.ndarray, peak: bool = True,

@@ -204,8 +204,13 @@ def build_corners(inputs: Mapping[str, Input],
         note = (f"{n_vary_plain} varying inputs: {SAMPLED_CORNERS} sampled corners instead of "
                 f"all {count}")
     else:
-        grids = np.meshgrid(*points, indexing="ij")
-        cols = [g.ravel() for g in grids]
+        # np.meshgrid(*points, indexing="ij"), raveled, without its broadcasting per input:
+        # the first input varies slowest, each point repeated for every combination after it
+        cols = []
+        after = count
+        for p in points:
+            after //= len(p)
+            cols.append(np.tile(np.repeat(p, after), count // (len(p) * after)))
     arrays = {}
     for name, col in zip(names, cols, strict=True):
         nom = inputs[name].value.nom
@@ -342,8 +347,15 @@ def reduce(bound: Bound, arrays: dict[str, np.ndarray], varying: list[str],
     order = np.lexsort((margin, -status))
     worst = int(order[0])
 
+    keys = list(out.values)
+    cols = [np.asarray(out.values[k]) for k in keys]
+
     def pick(f: Any) -> dict[str, float]:
-        return {k: float(f(v)) for k, v in out.values.items()}
+        if cols and all(c.shape == cols[0].shape and c.ndim == 1 for c in cols):
+            # one call over all values at once (a min or max is exact: the same numbers)
+            return dict(zip(keys, f(np.stack(cols).astype(float), axis=1).tolist(),
+                            strict=True))
+        return {k: float(f(v)) for k, v in zip(keys, cols, strict=True)}
 
     with warnings.catch_warnings():  # an all-NaN value (no valid row) reduces to NaN quietly
         warnings.simplefilter("ignore", RuntimeWarning)

@@ -288,3 +288,39 @@ def test_plotted_waveform_means_match_the_averages(topology, freewheel, alpha_de
     assert np.trapezoid(i, th) / m == pytest.approx(float(ref["idc"]), rel=REL)
     assert np.sqrt(np.trapezoid(i * i, th) / m) == pytest.approx(float(ref["irms"]), rel=REL)
     assert np.trapezoid(v, th) / m == pytest.approx(float(ref["vdc"]), rel=REL)
+
+
+def _first_peak_ivp(vs: float, r: float, l: float, omega: float, e: float,  # noqa: E741
+                    alpha: float) -> float:
+    """The peak of the R–L–E current fired at α from rest, by solve_ivp in θ (ideal SCR)."""
+    vm = np.sqrt(2.0) * vs
+    start = max(alpha, np.arcsin(min(e / vm, 1.0)))
+
+    def rhs(th, y):
+        return [(vm * np.sin(th) - r * y[0] - e) / (omega * l)]
+
+    def zero(th, y):
+        return y[0] + (1e-12 if th < start + 1e-6 else 0.0)
+
+    zero.terminal, zero.direction = True, -1
+    sol = solve_ivp(rhs, (start, start + 2 * np.pi), [0.0], events=zero, rtol=1e-11,
+                    atol=1e-13, max_step=1e-3)
+    return float(sol.y[0].max())
+
+
+def test_max_firing_angle_against_solve_ivp_and_repeated_rows_bit_for_bit():
+    """The latest firing whose first current peak still reaches IL: at that α solve_ivp's
+    peak is IL, 0.5° later it is below. A table that repeats rows (as corner tables do) gives
+    every row exactly the answer it gets alone."""
+    kw = dict(vs=15.0, r=0.5, l=2e-3, omega=2 * np.pi * 50, e=12.0)
+    il = 0.5 * _first_peak_ivp(alpha=np.pi / 2, **kw)
+    a = float(rle.max_firing_angle(il=il, **kw))
+    assert np.pi / 2 < a < np.pi
+    assert _first_peak_ivp(alpha=a, **kw) == pytest.approx(il, rel=1e-5)
+    assert _first_peak_ivp(alpha=a + np.radians(0.5), **kw) < il
+    vs = np.array([15.0, 14.0, 15.0, 16.0, 14.0, 15.0])
+    ils = np.array([il, il, il, 2 * il, il, 2 * il])
+    rows = rle.max_firing_angle(vs=vs, r=0.5, l=2e-3, omega=2 * np.pi * 50, e=12.0, il=ils)
+    alone = [float(rle.max_firing_angle(vs=v, r=0.5, l=2e-3, omega=2 * np.pi * 50, e=12.0,
+                                        il=i)) for v, i in zip(vs, ils, strict=True)]
+    assert rows.shape == vs.shape and rows.tolist() == alone
