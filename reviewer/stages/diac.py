@@ -230,8 +230,9 @@ def _pot_at_angles(b: Bound, angles: tuple[float, ...]) -> tuple[float, ...]:
         if not run.any():
             break
         fin = np.isfinite(f_hi)
-        x = np.where(fin & (f_hi != f_lo), lo - f_lo * (hi - lo) / (f_hi - f_lo),
-                     0.5 * (lo + hi))
+        with np.errstate(divide="ignore", invalid="ignore"):  # those rows take the midpoint
+            x = np.where(fin & (f_hi != f_lo), lo - f_lo * (hi - lo) / (f_hi - f_lo),
+                         0.5 * (lo + hi))
         x = np.where((x > lo) & (x < hi), x, 0.5 * (lo + hi))
         fx = angle(np.where(run, x, lo)) - targets
         up = ~(fx < 0)
