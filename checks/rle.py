@@ -129,15 +129,20 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
     g_lo, _ = seg_val(lo, a0, c0, k, tau, phi)
     g_hi, _ = seg_val(hi, a0, c0, k, tau, phi)
     beta = np.where(res | (g_lo <= 0.0), lo, hi)
+    def fall_to_zero(rows: np.ndarray, start: np.ndarray, c_seg: np.ndarray,
+                     t_lo: np.ndarray, t_hi: np.ndarray) -> np.ndarray:
+        """Where the segment from ``start`` (constant ``c_seg``) falls to zero in
+        (t_lo, t_hi), for the index array ``rows``."""
+        def f(th: np.ndarray, sub: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+            j = rows[sub]
+            return seg_val(th, start[j], c_seg[j], k[j], tau[j], phi[j])
+
+        return root_falling(t_lo[rows], t_hi[rows], f)
+
     search = starts & ~res & (g_lo > 0.0) & (g_hi <= 0.0)
     if search.any():
         idx = np.flatnonzero(search)
-
-        def f(th: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-            j = idx[rows]
-            return seg_val(th, a0[j], c0[j], k[j], tau[j], phi[j])
-
-        beta[idx] = root_falling(lo[idx], hi[idx], f)
+        beta[idx] = fall_to_zero(idx, a0, c0, lo, hi)
     outlasts = starts & ~res & (g_hi > 0.0)  # the zero-start current is alive at `hi`
 
     a = a0.copy()
@@ -160,12 +165,7 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
         ends = early & (g_th1 <= 0.0)
         if ends.any():
             idx = np.flatnonzero(ends)
-
-            def f_tail(th: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-                j = idx[rows]
-                return seg_val(th, alpha[j], c_h[j], k[j], tau[j], phi[j])
-
-            tb[idx] = root_falling(alpha[idx], th1[idx], f_tail)
+            tb[idx] = fall_to_zero(idx, alpha, c_h, alpha, th1)
         return ends, np.where(ends, c_h, 0.0)
 
     if not freewheel and topology == "bridge":

@@ -97,6 +97,16 @@ def _sp(ctx: Context, key: str) -> str:
     return ctx.stage_path(key)
 
 
+def bind_burst_firing(ctx: Context, b: Bound) -> None:
+    """Integral-cycle control: whole cycles switched at the voltage zero; every on-cycle
+    carries the full current, so the device checks see full conduction (α = 0)."""
+    zero = Value.fixed(0.0, "angle", "rad")
+    for name in ("alpha", "alpha_lo", "alpha_hi"):
+        b.add(name, _sp(ctx, "control") + "#burst", zero)
+    b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
+                   "on-cycle at full current")
+
+
 def _bind_supply(ctx: Context, b: Bound, *, freq: bool = True) -> None:
     ctx.need(b, "vs", "supply.voltage")
     if freq and not _is_dc(ctx):
@@ -185,13 +195,7 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
     fv = ctx.stage.get("firing")
     path = _sp(ctx, "firing")
     if ctx.stage.get("control") == "burst":
-        # Integral-cycle control: whole cycles switched at the voltage zero; every on-cycle
-        # carries the full current, so the device checks see full conduction.
-        zero = Value.fixed(0.0, "angle", "rad")
-        for name in ("alpha", "alpha_lo", "alpha_hi"):
-            b.add(name, _sp(ctx, "control") + "#burst", zero)
-        b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
-                       "on-cycle at full current")
+        bind_burst_firing(ctx, b)
         return True
     if isinstance(fv, Value):
         if _osc_stage(ctx) is not None:

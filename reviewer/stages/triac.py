@@ -31,7 +31,13 @@ from reviewer.registry import (
 )
 from reviewer.schema import TRIAC
 from reviewer.stages import diac as diac_stage
-from reviewer.stages.power import BURST, bind_burst_pulse, burst_pulse_outcome, sum_burst_pulse
+from reviewer.stages.power import (
+    BURST,
+    bind_burst_firing,
+    bind_burst_pulse,
+    burst_pulse_outcome,
+    sum_burst_pulse,
+)
 
 V = "value"
 KIND = TRIAC
@@ -121,12 +127,7 @@ def _firing(ctx: Context, b: Bound, *, sweep: int = 0,
     fv = ctx.stage.get("firing")
     path = _sp(ctx, "firing")
     if _burst(ctx):
-        # Integral-cycle control: whole cycles fired at the voltage zero, full conduction.
-        zero = Value.fixed(0.0, "angle", "rad")
-        for name in ("alpha", "alpha_lo", "alpha_hi"):
-            b.add(name, _sp(ctx, "control") + "#burst", zero)
-        b.notes.append("integral-cycle control: whole cycles fired at the voltage zero, each "
-                       "on-cycle at full current")
+        bind_burst_firing(ctx, b)
         return True
     if not isinstance(fv, Value):
         gate = ctx.linked_stage("gate")
