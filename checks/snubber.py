@@ -548,7 +548,8 @@ def peak_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
     v_pk = np.fmax(np.maximum(v_pk, fw_peak), m.envelope)
     margin, status = grade(_arr(vdrm) / v_pk, limits)
     return Outcome({"peak_voltage": v_pk, "damping": damping(r=r, l=l, c=c), "peak_time": t1,
-                    "step": e}, margin, status)
+                    "step": e, "steady_peak": m.envelope + 0.0 * v_pk,
+                    "freewheel_peak": fw_peak + 0.0 * v_pk}, margin, status)
 
 
 def capacitor_check(*, v: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741

@@ -332,6 +332,14 @@ def _sum_peak(r: Reduced) -> str:
     w = r.worst
     text = (f"peak {eng(r.hi['peak_voltage'], 'V')} across the SCR (ζ {w['damping']:.2f}, "
             f"step {eng(w['step'], 'V')}) against VDRM {eng(vdrm, 'V')}")
+    steady = w.get("steady_peak", math.nan)
+    if not math.isnan(steady):
+        what = ("the steady line peak plus the back EMF, V_m + E"
+                if steady >= w["peak_voltage"] else
+                "the freewheel's end (E on top of the line)"
+                if w.get("freewheel_peak", 0.0) >= w["peak_voltage"] else
+                "the ringing of the step at the current zero (the line minus E)")
+        text += f"; with the back EMF the worst is {what}"
     if r.status in ("fail", "marginal"):
         k = float(r.limits.get("fail_below" if r.status == "fail" else "marginal_below", 1.0))
         ratio = vdrm / (k * r.hi["step"])
