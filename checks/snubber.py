@@ -36,7 +36,8 @@ from typing import NamedTuple
 
 import numpy as np
 
-from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, grade
+from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, distinct_rows, grade
+from checks.memo import memoised
 
 # The exponential dv/dt rating reads the slope as 0.632·V_final/τ: the chord to 1 − 1/e.
 EXP_FRACTION = 1.0 - np.exp(-1.0)
@@ -455,7 +456,7 @@ def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarra
 
     lo, hi, half = alpha_range
     base = emf_steps(alpha=alpha, **kw)  # type: ignore[arg-type]
-    shape = np.broadcast_shapes(*(np.shape(x) for x in (*base, np.shape(alpha))))
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (*base, _arr(alpha))))
     a_row = np.broadcast_to(_arr(alpha), shape).ravel()
     flat = {k: (np.broadcast_to(_arr(v), shape).ravel() if not isinstance(v, (str, bool))
                 else v) for k, v in kw.items()}
@@ -463,10 +464,17 @@ def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarra
     def at(a: np.ndarray) -> EmfSteps:
         return emf_steps(alpha=a, **flat)  # type: ignore[arg-type]
 
-    a_s, _ = refine_min(lambda a: -at(a).step, a_row, lo, hi, half, steps=30)
-    a_f, _ = refine_min(lambda a: -(at(a).fw_base + at(a).fw_step), a_row, lo, hi, half,
-                        steps=30)
-    s_w, f_w = at(a_s), at(a_f)
+    a_s, _ = refine_min(lambda a: -at(a).step, a_row, lo, hi, half, points=5, steps=24)
+    s_w = at(a_s)
+    if kw.get("freewheel"):
+        def fw_top(a: np.ndarray) -> np.ndarray:
+            got = at(a)
+            return -(got.fw_base + got.fw_step)
+
+        a_f, _ = refine_min(fw_top, a_row, lo, hi, half, points=5, steps=24)
+        f_w = at(a_f)
+    else:  # no freewheeling diode: no freewheel end to search
+        f_w = s_w
     b = [np.broadcast_to(x, shape).ravel() for x in base]
     row = EmfSteps(*b)
 
@@ -481,6 +489,35 @@ def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarra
         cos_step=np.where(better_s, s_w.cos_step, row.cos_step),
         cos_fw=np.where(better_f, f_w.cos_fw, row.cos_fw))
     return EmfSteps(*(x.reshape(shape) for x in out))
+
+
+def emf_steps_rows(*, topology: str, freewheel: bool, v: np.ndarray, f: np.ndarray,
+                   r_load: np.ndarray, l_load: np.ndarray, alpha: np.ndarray,
+                   e_load: np.ndarray,
+                   alpha_range: tuple[float, float, float] | None = None) -> EmfSteps:
+    """:func:`emf_steps` (or, with ``alpha_range``, :func:`worst_emf_steps`) worked on the
+    distinct rows of its inputs only (a snubber's own corners repeat each row many times) and
+    shared by the snubber checks that ask for the same rows. Arguments as those functions.
+    """
+    cols, back = distinct_rows(v, f, r_load, l_load, alpha, e_load)
+    lo, hi, half = alpha_range if alpha_range is not None else (np.nan, np.nan, np.nan)
+    table = _emf_table(topology=topology, freewheel=freewheel, lo=lo, hi=hi, half=half,
+                       v=cols[0], f=cols[1], r_load=cols[2], l_load=cols[3], alpha=cols[4],
+                       e_load=cols[5])
+    return EmfSteps(*(table[k][back] for k in EmfSteps._fields))
+
+
+@memoised
+def _emf_table(*, topology: str, freewheel: bool, lo: float, hi: float, half: float,
+               **rows: np.ndarray) -> dict[str, np.ndarray]:
+    if np.isnan(lo):
+        s = emf_steps(topology=topology, freewheel=freewheel, **rows)
+    else:
+        s = worst_emf_steps(alpha_range=(float(lo), float(hi), float(half)),
+                            topology=topology, freewheel=freewheel, **rows)
+    n = np.shape(rows["alpha"])
+    return {k: np.broadcast_to(np.asarray(x, dtype=float), n).copy()
+            for k, x in s._asdict().items()}
 
 def _emf_or_none(emf: EmfSteps | None, like: np.ndarray) -> EmfSteps:
     """The back-EMF steps, or zeros (no back EMF: the line step alone)."""

@@ -125,8 +125,8 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
             return flat(at(kw["r"], x.reshape(shape)).values["limit_ratio"])[:n]
 
         lo, hi, half = a_range
-        best, _ = harmonics.refine_min(ratio_a, flat(a)[:n], lo, hi, half, points=5,
-                                       steps=24)
+        best, _ = harmonics.refine_min(ratio_a, flat(a)[:n], lo, hi, half, points=3,
+                                       steps=18)
         a_w = best.reshape(shape)
     r_w = np.broadcast_to(np.asarray(kw["r"], dtype=float), shape)
     if r_range is not None:

@@ -250,9 +250,7 @@ def _with_emf(fn: Any, *, shared: tuple[str, ...] = ()) -> Any:
             args = dict(topology=kw.pop("emf_topology"), freewheel=kw.pop("emf_freewheel"),
                         v=kw["v"], f=kw["f"], r_load=kw["r_load"], l_load=kw["l_load"],
                         alpha=kw["alpha"], e_load=kw.pop("e_load"))
-            window = kw.pop("emf_alpha_range", None)
-            emf = (snubber.emf_steps(**args) if window is None
-                   else snubber.worst_emf_steps(alpha_range=window, **args))
+            emf = snubber.emf_steps_rows(alpha_range=kw.pop("emf_alpha_range", None), **args)
             for k in ("f", "r_load", "l_load", "alpha"):
                 if k not in shared:
                     kw.pop(k)
