@@ -464,14 +464,14 @@ def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarra
     def at(a: np.ndarray) -> EmfSteps:
         return emf_steps(alpha=a, **flat)  # type: ignore[arg-type]
 
-    a_s, _ = refine_min(lambda a: -at(a).step, a_row, lo, hi, half, points=5, steps=24)
+    a_s, _ = refine_min(lambda a: -at(a).step, a_row, lo, hi, half, points=5, steps=18)
     s_w = at(a_s)
     if kw.get("freewheel"):
         def fw_top(a: np.ndarray) -> np.ndarray:
             got = at(a)
             return -(got.fw_base + got.fw_step)
 
-        a_f, _ = refine_min(fw_top, a_row, lo, hi, half, points=5, steps=24)
+        a_f, _ = refine_min(fw_top, a_row, lo, hi, half, points=5, steps=18)
         f_w = at(a_f)
     else:  # no freewheeling diode: no freewheel end to search
         f_w = s_w
