@@ -584,9 +584,11 @@ def peak_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
                        m.fw_base + (m.fw_step + m.drift(t1, fw=True)) * ratio, 0.0)
     v_pk = np.fmax(np.maximum(v_pk, fw_peak), m.envelope)
     margin, status = grade(_arr(vdrm) / v_pk, limits)
-    return Outcome({"peak_voltage": v_pk, "damping": damping(r=r, l=l, c=c), "peak_time": t1,
-                    "step": e, "steady_peak": m.envelope + 0.0 * v_pk,
-                    "freewheel_peak": fw_peak + 0.0 * v_pk}, margin, status)
+    values = {"peak_voltage": v_pk, "damping": damping(r=r, l=l, c=c), "peak_time": t1,
+              "step": e}
+    if emf is not None:
+        values.update(steady_peak=m.envelope + 0.0 * v_pk, freewheel_peak=fw_peak + 0.0 * v_pk)
+    return Outcome(values, margin, status)
 
 
 def capacitor_check(*, v: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
