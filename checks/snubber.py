@@ -449,7 +449,8 @@ def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarra
                     **kw: np.ndarray | str | bool) -> EmfSteps:
     """:func:`emf_steps` at its worst within half a sweep step of each row's α: the step at
     the current zero and the freewheel end's base maximised separately (each by
-    :func:`checks.harmonics.refine_min`), so no angle between the sampled ones reads higher.
+    :func:`checks.harmonics.refine_min`: samples, then golden section), so a sharp peak
+    between the sampled angles (where the current turns continuous) is not missed.
     alpha_range (α_lo, α_hi, half step) [rad]; the other arguments as :func:`emf_steps`.
     """
     from checks.harmonics import refine_min
