@@ -36,7 +36,8 @@ from typing import NamedTuple
 
 import numpy as np
 
-from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, grade
+from checks.core import FAIL, MARGINAL, PASS, Outcome, cap_status, distinct_rows, grade
+from checks.memo import memoised
 
 # The exponential dv/dt rating reads the slope as 0.632·V_final/τ: the chord to 1 − 1/e.
 EXP_FRACTION = 1.0 - np.exp(-1.0)
@@ -369,15 +370,177 @@ def step_voltage(*, v: np.ndarray | float, mode: str, ac: bool,
     return v * (np.sqrt(2.0) if (mode == "line" and ac) else 1.0)
 
 
+class EmfSteps(NamedTuple):
+    """What an SCR with a back-EMF load (battery, motor armature) sees when it stops [V].
+
+    ``step``: the step at its own current zero β, |V_m·sin β − E| (the SCR goes from the
+    on-state to the line minus E), 0 where the current never stops. ``fw_step``, ``fw_base``:
+    where a freewheeling diode carries the current and it dies out before the next firing,
+    the load's terminal voltage rises from 0 to E at once, a step E on top of the line's
+    |V_m·sin| there. ``envelope``: the largest steady off-state voltage, V_m + E (the line's
+    reverse peak plus the EMF; how the blocking devices share E is not fixed by ideal parts),
+    V_m where the current never stops. ``ramp``: V_m·ω, the line's steepest slope, which the
+    step model holds still during the ringing; ``omega`` ω; ``cos_step``, ``cos_fw``: |cos|
+    of the line at the two instants, for :meth:`drift`.
+    """
+
+    step: np.ndarray
+    fw_step: np.ndarray
+    fw_base: np.ndarray
+    envelope: np.ndarray
+    ramp: np.ndarray
+    omega: np.ndarray
+    cos_step: np.ndarray
+    cos_fw: np.ndarray
+
+    def drift(self, t: np.ndarray, *, fw: bool = False) -> np.ndarray:
+        """A bound on the line's move in the time t after the step [V]:
+        V_m·(ωt·|cos θ| + (ωt)²/2), from |sin(θ + x) − sin θ| ≤ x·|cos θ| + x²/2."""
+        x = self.omega * _arr(t)
+        cos = self.cos_fw if fw else self.cos_step
+        with np.errstate(invalid="ignore", divide="ignore"):
+            vm = np.where(self.omega > 0, self.ramp / np.where(self.omega > 0, self.omega, 1.0),
+                          0.0)
+        return vm * (x * cos + 0.5 * x * x)
+
+
+def emf_steps(*, topology: str, freewheel: bool, v: np.ndarray, f: np.ndarray,
+              r_load: np.ndarray, l_load: np.ndarray, alpha: np.ndarray,
+              e_load: np.ndarray) -> EmfSteps:
+    """The reapplied steps of an SCR feeding an R–L–E load (:class:`EmfSteps`).
+
+    The current's zero β and the freewheeling interval come from
+    :func:`checks.rle.waveform_pu`. A bridge's step is taken whole on one SCR (the pair
+    shares it only if the off-state impedances are equal). v [V] RMS line; f [Hz]; r_load
+    [Ω]; l_load [H]; alpha [rad]; e_load [V] back EMF.
+
+    >>> s = emf_steps(topology="half-wave", freewheel=False, v=24.0, f=50.0, r_load=0.6,
+    ...               l_load=0.3e-3, alpha=np.pi / 3, e_load=12.0)
+    >>> round(float(s.step), 2), round(float(s.envelope), 2)
+    (4.92, 45.94)
+    """
+    from checks import rle
+
+    vm = np.sqrt(2.0) * _arr(v)
+    omega = 2.0 * np.pi * _arr(f)
+    r_load, l_load, e_load, alpha = _arr(r_load), _arr(l_load), _arr(e_load), _arr(alpha)
+    phi = np.arctan2(omega * l_load, r_load)
+    w = rle.waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi,
+                        m=e_load / vm, peak=False)
+    on = w["conduction"] > 0.0
+    cont = w["continuous"] > 0.0
+    beta = w["beta"]
+    fw = (w["fw_len"] > 0.0) & (w["handed"] == 0.0)  # handed: the next firing takes it over
+    # The SCR's own zero: not where the diode takes the current at π, nor where it never stops.
+    own = on & ~cont & ~(fw if freewheel else np.zeros_like(on))
+    step = np.where(own, np.abs(vm * np.sin(beta) - e_load), 0.0)
+    fw_end = fw & ~cont
+    fw_step = np.where(fw_end, e_load, 0.0)
+    fw_base = np.where(fw_end, vm * np.abs(np.sin(w["fw_len"])), 0.0)
+    envelope = np.where(cont, vm, vm + e_load)
+    cos_step = np.abs(np.cos(beta))
+    cos_fw = np.abs(np.cos(w["fw_len"]))  # |cos(π + x)| = |cos x|
+    return EmfSteps(step, fw_step, fw_base, envelope, vm * omega, omega + 0.0 * vm, cos_step,
+                    cos_fw)
+
+
+
+def worst_emf_steps(*, alpha_range: tuple[float, float, float], alpha: np.ndarray,
+                    **kw: np.ndarray | str | bool) -> EmfSteps:
+    """:func:`emf_steps` at its worst within half a sweep step of each row's α: the step at
+    the current zero and the freewheel end's base maximised separately (each by
+    :func:`checks.harmonics.refine_min`: samples, then golden section), so a sharp peak
+    between the sampled angles (where the current turns continuous) is not missed.
+    alpha_range (α_lo, α_hi, half step) [rad]; the other arguments as :func:`emf_steps`.
+    """
+    from checks.harmonics import refine_min
+
+    lo, hi, half = alpha_range
+    base = emf_steps(alpha=alpha, **kw)  # type: ignore[arg-type]
+    shape = np.broadcast_shapes(*(np.shape(x) for x in (*base, _arr(alpha))))
+    a_row = np.broadcast_to(_arr(alpha), shape).ravel()
+    flat = {k: (np.broadcast_to(_arr(v), shape).ravel() if not isinstance(v, (str, bool))
+                else v) for k, v in kw.items()}
+
+    def at(a: np.ndarray) -> EmfSteps:
+        return emf_steps(alpha=a, **flat)  # type: ignore[arg-type]
+
+    a_s, _ = refine_min(lambda a: -at(a).step, a_row, lo, hi, half, points=5, steps=18)
+    s_w = at(a_s)
+    if kw.get("freewheel"):
+        def fw_top(a: np.ndarray) -> np.ndarray:
+            got = at(a)
+            return -(got.fw_base + got.fw_step)
+
+        a_f, _ = refine_min(fw_top, a_row, lo, hi, half, points=5, steps=18)
+        f_w = at(a_f)
+    else:  # no freewheeling diode: no freewheel end to search
+        f_w = s_w
+    b = [np.broadcast_to(x, shape).ravel() for x in base]
+    row = EmfSteps(*b)
+
+    better_s = s_w.step > row.step
+    better_f = (f_w.fw_base + f_w.fw_step) > (row.fw_base + row.fw_step)
+    out = EmfSteps(
+        step=np.maximum(s_w.step, row.step),
+        fw_step=np.where(better_f, f_w.fw_step, row.fw_step),
+        fw_base=np.where(better_f, f_w.fw_base, row.fw_base),
+        envelope=np.maximum(np.maximum(row.envelope, s_w.envelope), f_w.envelope),
+        ramp=row.ramp, omega=row.omega,
+        cos_step=np.where(better_s, s_w.cos_step, row.cos_step),
+        cos_fw=np.where(better_f, f_w.cos_fw, row.cos_fw))
+    return EmfSteps(*(x.reshape(shape) for x in out))
+
+
+def emf_steps_rows(*, topology: str, freewheel: bool, v: np.ndarray, f: np.ndarray,
+                   r_load: np.ndarray, l_load: np.ndarray, alpha: np.ndarray,
+                   e_load: np.ndarray,
+                   alpha_range: tuple[float, float, float] | None = None) -> EmfSteps:
+    """:func:`emf_steps` (or, with ``alpha_range``, :func:`worst_emf_steps`) worked on the
+    distinct rows of its inputs only (a snubber's own corners repeat each row many times) and
+    shared by the snubber checks that ask for the same rows. Arguments as those functions.
+    """
+    cols, back = distinct_rows(v, f, r_load, l_load, alpha, e_load)
+    lo, hi, half = alpha_range if alpha_range is not None else (np.nan, np.nan, np.nan)
+    table = _emf_table(topology=topology, freewheel=freewheel, lo=lo, hi=hi, half=half,
+                       v=cols[0], f=cols[1], r_load=cols[2], l_load=cols[3], alpha=cols[4],
+                       e_load=cols[5])
+    return EmfSteps(*(table[k][back] for k in EmfSteps._fields))
+
+
+@memoised
+def _emf_table(*, topology: str, freewheel: bool, lo: float, hi: float, half: float,
+               **rows: np.ndarray) -> dict[str, np.ndarray]:
+    if np.isnan(lo):
+        s = emf_steps(topology=topology, freewheel=freewheel, **rows)
+    else:
+        s = worst_emf_steps(alpha_range=(float(lo), float(hi), float(half)),
+                            topology=topology, freewheel=freewheel, **rows)
+    n = np.shape(rows["alpha"])
+    return {k: np.broadcast_to(np.asarray(x, dtype=float), n).copy()
+            for k, x in s._asdict().items()}
+
+def _emf_or_none(emf: EmfSteps | None, like: np.ndarray) -> EmfSteps:
+    """The back-EMF steps, or zeros (no back EMF: the line step alone)."""
+    if emf is not None:
+        return emf
+    z = np.zeros_like(like)
+    return EmfSteps(z, z, z, z + np.nan, z, z, z, z)
+
+
 def dvdt_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
                v: np.ndarray | float = np.nan, rating: np.ndarray, mode: str, ac: bool,
-               limits: Mapping[str, float], e_given: np.ndarray | float = np.nan) -> Outcome:
+               limits: Mapping[str, float], e_given: np.ndarray | float = np.nan,
+               emf: EmfSteps | None = None) -> Outcome:
     """``snubber.dvdt``: the step's maximum dv/dt against the SCR's rating (at Tj,max).
 
     Metric rating/(dv/dt)max, graded with ``fail_below``/``marginal_below`` (1 and 2). The
     instantaneous maximum (:func:`step_max_dvdt`) is the reading of a linear-ramp rating and,
     never being below the 0→63 % chord (:func:`step_chord`, also returned as ``dvdt_chord``),
-    a conservative reading of an exponential (0.632·V/τ) rating. Units as the functions above.
+    a conservative reading of an exponential (0.632·V/τ) rating. With a back-EMF load
+    (``emf``, :func:`emf_steps`) the step is the larger of the line step and the steps at the
+    current zero, and the line's own slope adds at most 2·V_m·ω (its ramp through a response
+    whose step peak is below 2). Units as the functions above.
 
     >>> out = dvdt_check(v=220.0, r=6.6, l=50e-6, c=0.75e-6, rating=50e6, mode="dc", ac=False,
     ...                  limits={"fail_below": 1.0, "marginal_below": 2.0})
@@ -385,7 +548,10 @@ def dvdt_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
     ([1], 31.15)
     """
     e = step_voltage(v=v, mode=mode, ac=ac, e_given=e_given)
+    m = _emf_or_none(emf, e)
+    e = np.maximum(np.maximum(e, m.step), m.fw_step)
     slope, t_m = step_max_dvdt(e=e, r=r, l=l, c=c)
+    slope = slope + 2.0 * m.ramp
     chord, _ = step_chord(e=e, r=r, l=l, c=c)
     with np.errstate(divide="ignore"):
         margin, status = grade(_arr(rating) / slope, limits)
@@ -395,9 +561,14 @@ def dvdt_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
 
 def peak_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
                v: np.ndarray | float = np.nan, vdrm: np.ndarray, mode: str, ac: bool,
-               limits: Mapping[str, float], e_given: np.ndarray | float = np.nan) -> Outcome:
+               limits: Mapping[str, float], e_given: np.ndarray | float = np.nan,
+               emf: EmfSteps | None = None) -> Outcome:
     """``snubber.peak-voltage``: V_pk of the step (:func:`step_peak`) against VDRM.
 
+    With a back-EMF load (``emf``): the largest of the ringing peak of the largest step, the
+    freewheel end's E step rung on top of the line there, and the steady V_m + E; a bound on
+    the line's move until the peak (:meth:`EmfSteps.drift` at t_1) is added to each step
+    (the step model holds the line still).
     Metric VDRM/V_pk with ``fail_below``/``marginal_below`` (1 and 1.2).
 
     >>> out = peak_check(v=220.0, r=6.6, l=50e-6, c=0.75e-6, vdrm=400.0, mode="dc", ac=False,
@@ -406,18 +577,32 @@ def peak_check(*, r: np.ndarray, l: np.ndarray, c: np.ndarray,  # noqa: E741
     ([0], 299.3)
     """
     e = step_voltage(v=v, mode=mode, ac=ac, e_given=e_given)
-    v_pk, t1 = step_peak(e=e, r=r, l=l, c=c)
+    m = _emf_or_none(emf, e)
+    ratio, t1 = step_peak(e=np.ones_like(e), r=r, l=l, c=c)
+    e = np.maximum(e, m.step + m.drift(t1))
+    v_pk = e * ratio
+    fw_peak = np.where(m.fw_step > 0.0,
+                       m.fw_base + (m.fw_step + m.drift(t1, fw=True)) * ratio, 0.0)
+    v_pk = np.fmax(np.maximum(v_pk, fw_peak), m.envelope)
     margin, status = grade(_arr(vdrm) / v_pk, limits)
-    return Outcome({"peak_voltage": v_pk, "damping": damping(r=r, l=l, c=c), "peak_time": t1,
-                    "step": e}, margin, status)
+    values = {"peak_voltage": v_pk, "damping": damping(r=r, l=l, c=c), "peak_time": t1,
+              "step": e}
+    if emf is not None:
+        values.update(steady_peak=m.envelope + 0.0 * v_pk, freewheel_peak=fw_peak + 0.0 * v_pk)
+    return Outcome(values, margin, status)
 
 
 def capacitor_check(*, v: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E741
                     c: np.ndarray, rating: np.ndarray, mode: str, ac: bool,
                     limits: Mapping[str, float],
-                    e_given: np.ndarray | float = np.nan) -> Outcome:
+                    e_given: np.ndarray | float = np.nan,
+                    emf: EmfSteps | None = None) -> Outcome:
     """``snubber.capacitor``: the capacitor's own peak, max(V_m or V, v_C,pk of the step)
     (:func:`capacitor_peak`), against its voltage rating; metric rating/peak.
+
+    With a back-EMF load (``emf``) the steady V_m + E, the larger step and the freewheel
+    end's step on the line there count too, each step with the bound on the line's move
+    until the capacitor's peak at π/ω_d (ζ < 1; at ζ ≥ 1 it never overshoots its input).
 
     >>> out = capacitor_check(v=253.0, r=10.0, l=50e-6, c=0.22e-6, rating=630.0, mode="line",
     ...                       ac=True, limits={"fail_below": 1.0, "marginal_below": 1.0})
@@ -425,8 +610,17 @@ def capacitor_check(*, v: np.ndarray, r: np.ndarray, l: np.ndarray,  # noqa: E74
     ([0], 476.4)
     """
     e = step_voltage(v=v, mode=mode, ac=ac, e_given=e_given)
+    m = _emf_or_none(emf, e)
     line = _arr(v) * (np.sqrt(2.0) if ac else 1.0)
+    zeta = damping(r=r, l=l, c=c)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t_c = np.where(zeta < 1.0, np.pi * np.sqrt(_arr(l) * _arr(c))
+                       / np.sqrt(np.abs(1.0 - zeta * zeta)), 0.0)
+    e = np.maximum(e, m.step + m.drift(t_c))
     peak = np.maximum(line, capacitor_peak(e=e, r=r, l=l, c=c))
+    fw_peak = np.where(m.fw_step > 0.0, m.fw_base + capacitor_peak(
+        e=m.fw_step + m.drift(t_c, fw=True), r=r, l=l, c=c), 0.0)
+    peak = np.fmax(np.maximum(peak, fw_peak), m.envelope)
     margin, status = grade(_arr(rating) / peak, limits)
     return Outcome({"capacitor_peak": peak, "step": e}, margin, status)
 
@@ -475,8 +669,8 @@ def discharge_check(*, v: np.ndarray, r: np.ndarray, r_load: np.ndarray | float 
 
 def resistor_power(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.ndarray,
                    alpha: np.ndarray, topology: str, r_load: np.ndarray | float = np.inf,
-                   l_load: np.ndarray | float = 0.0,
-                   freewheel: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+                   l_load: np.ndarray | float = 0.0, freewheel: bool = False,
+                   emf: EmfSteps | None = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Snubber resistor dissipation on an AC phase-control stage, by part [W].
 
     Returns (firing, turn-off, off-state) parts, their sum being the dissipation:
@@ -489,6 +683,9 @@ def resistor_power(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.ndarray
     * off-state: (V·ω·C)²·R_sn times the off-state fraction of the cycle (α/π, or
       (π + α)/2π with one firing per cycle; the resistive-load value, an upper bound).
 
+    With a back-EMF load (``emf``, :func:`emf_steps`) the turn-off part is ½·C·S²·f for each
+    step S (at the current zero, at the freewheel's end), counted twice per cycle on a
+    bridge (both current zeros move every SCR's voltage; an upper bound), once on half-wave.
     No step occurs at a resistive load's current zero (v ≈ 0 there). v [V] RMS line;
     f [Hz]; r [Ω] R_sn; c [F]; alpha [rad]; r_load [Ω], l_load [H] the load.
 
@@ -505,6 +702,9 @@ def resistor_power(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.ndarray
     p_fire = n * 0.5 * c * (vm * np.sin(alpha)) ** 2 * f
     phi = np.arctan2(omega * _arr(l_load), _arr(r_load))
     p_off = 0.0 if freewheel else n * 0.5 * c * (vm * np.sin(phi)) ** 2 * f
+    if emf is not None:
+        n_off = 1.0 if topology == "half-wave" else 2.0
+        p_off = n_off * 0.5 * c * (emf.step ** 2 + emf.fw_step ** 2) * f
     frac = alpha / np.pi if n == 2.0 else (np.pi + alpha) / (2.0 * np.pi)
     p_sin = (v * omega * c) ** 2 * r * frac
     return p_fire, p_off * np.ones_like(p_fire), p_sin
@@ -513,7 +713,8 @@ def resistor_power(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.ndarray
 def resistor_power_check(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.ndarray,
                          alpha: np.ndarray, rating: np.ndarray, topology: str,
                          limits: Mapping[str, float], r_load: np.ndarray | float = np.inf,
-                         l_load: np.ndarray | float = 0.0, freewheel: bool = False) -> Outcome:
+                         l_load: np.ndarray | float = 0.0, freewheel: bool = False,
+                         emf: EmfSteps | None = None) -> Outcome:
     """``snubber.resistor-power`` on AC: :func:`resistor_power` against ``rating``
     (metric rating/P with ``fail_below``/``marginal_below``, 1 and 2).
 
@@ -524,7 +725,8 @@ def resistor_power_check(*, v: np.ndarray, f: np.ndarray, r: np.ndarray, c: np.n
     [2]
     """
     p_fire, p_off, p_sin = resistor_power(v=v, f=f, r=r, c=c, alpha=alpha, topology=topology,
-                                          r_load=r_load, l_load=l_load, freewheel=freewheel)
+                                          r_load=r_load, l_load=l_load, freewheel=freewheel,
+                                          emf=emf)
     total = p_fire + p_off + p_sin
     with np.errstate(divide="ignore"):
         margin, status = grade(_arr(rating) / total, limits)

@@ -36,6 +36,10 @@ def _bind(ctx: Context) -> Bound:
     if ctx.stage.get("control") == "burst":
         pw._bind_burst(ctx, b)
         b.inputs["n_on"].sweep = 9
+    elif "alpha" in b.inputs and b.inputs["alpha"].value.varies:
+        # The harmonic currents are not monotonic in α: refined between the sampled angles.
+        av = b.inputs["alpha"].value
+        b.options["alpha_range"] = (av.lo, av.hi, 0.5 * (av.hi - av.lo) / (FIRING_SWEEP - 1))
     vs = ctx.project.supply["voltage"]
     if vs.nom < 100.0:
         b.not_applicable = (f"the supply is {eng(vs.nom, 'V')}, not the mains (a transformer "
@@ -78,13 +82,14 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
     omega = pw._omega(kw)
     e = kw.pop("e", None)
     r_range = kw.pop("r_range", None)
+    a_range = kw.pop("alpha_range", None)
 
-    def at(r: Any) -> Outcome:
+    def at(r: Any, alpha: Any = None) -> Outcome:
         # An ac-switch fired before φ: the gate pulse decides (power's _pulses) between the
         # steady sine (fired at φ) and one SCR alone, whose line current is a half-wave's
         # (a DC part and even orders), not the symmetric pair.
         a_r, note = pw._pulses({"topology": topology, "l": kw["l"], "r": r,
-                                "gate_pulse": pulse}, a, omega)
+                                "gate_pulse": pulse}, a if alpha is None else alpha, omega)
         v = power.stage_values(topology=topology, freewheel=freewheel, alpha=a_r, omega=omega,
                                e=e, peak=False, **(kw | {"r": r}))
         v["z"] = np.hypot(np.asarray(r, dtype=float), omega * np.asarray(kw["l"]))
@@ -104,27 +109,43 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
                        np.where(lost, half.status, out.status).astype(np.int8), [note])
 
     out = at(kw["r"])
-    if r_range is None:
+    if r_range is None and a_range is None:
         return out
-    # The graded ratio at its least over R within half a sweep step of each row's R, so no R
-    # between the sampled ones reads worse than the result.
-    lo, hi, half = r_range
+    # The graded ratio at its least within half a sweep step of each row's α, then of its R
+    # (at that α), so no angle or R between the sampled ones reads worse than the result.
     shape = np.shape(out.margin)
-    r_row = np.broadcast_to(np.asarray(kw["r"], dtype=float), shape).ravel()
-    n = r_row.size
+    n = int(np.prod(shape))
 
-    def ratio(r: np.ndarray) -> np.ndarray:
-        return np.broadcast_to(at(r.reshape(shape)).values["limit_ratio"], shape).ravel()[:n]
+    def flat(x: Any) -> np.ndarray:
+        return np.broadcast_to(np.asarray(x, dtype=float), shape).ravel()
 
-    r_w, _ = harmonics.refine_min(ratio, r_row, lo, hi, half)
-    worst = at(r_w.reshape(shape))
+    a_w = np.broadcast_to(np.asarray(a, dtype=float), shape)
+    if a_range is not None:
+        def ratio_a(x: np.ndarray) -> np.ndarray:
+            return flat(at(kw["r"], x.reshape(shape)).values["limit_ratio"])[:n]
+
+        lo, hi, half = a_range
+        best, _ = harmonics.refine_min(ratio_a, flat(a)[:n], lo, hi, half, points=3,
+                                       steps=18)
+        a_w = best.reshape(shape)
+    r_w = np.broadcast_to(np.asarray(kw["r"], dtype=float), shape)
+    if r_range is not None:
+        def ratio_r(x: np.ndarray) -> np.ndarray:
+            return flat(at(x.reshape(shape), a_w).values["limit_ratio"])[:n]
+
+        lo, hi, half = r_range
+        best, _ = harmonics.refine_min(ratio_r, flat(kw["r"])[:n], lo, hi, half)
+        r_w = best.reshape(shape)
+    worst = at(r_w, a_w)
     order = np.broadcast_to(worst.values["worst_order"], shape).astype(int)
     h = np.stack([np.broadcast_to(worst.values[f"i_h{k}"], shape) for k in range(41)], axis=-1)
     out.values.update(limit_ratio=worst.values["limit_ratio"], worst_order=order.astype(float),
-                      worst_harmonic=np.take_along_axis(h, order[..., None], axis=-1)[..., 0],
-                      worst_load_r=r_w.reshape(shape))
+                      worst_harmonic=np.take_along_axis(h, order[..., None], axis=-1)[..., 0])
+    if r_range is not None:
+        out.values["worst_load_r"] = r_w
+    if a_range is not None:
+        out.values["worst_alpha"] = a_w
     return Outcome(out.values, worst.margin, worst.status, out.notes or worst.notes)
-
 
 def _summarise(r: Reduced) -> str:
     if "burst_period" in r.bound.options:
@@ -148,6 +169,8 @@ def _summarise(r: Reduced) -> str:
         text += ("; above 16 A per phase at some corners, where the table is out of its scope "
                  "(graded against it all the same)")
     worst_i = r.worst.get("worst_harmonic", r.worst[f"i_h{n}"])
+    if "worst_alpha" in r.worst:
+        text += f"; the worst firing angle {eng(r.worst['worst_alpha'], 'deg')}"
     if "worst_load_r" in r.worst:
         text += f"; the worst load R within its range {eng(r.worst['worst_load_r'], 'ohm')}"
     if r.status != "pass":
@@ -165,7 +188,7 @@ UNITS = {"line_current": "A", "thd": "1", "displacement_factor": "1",
          "distortion_factor": "1", "power_factor": "1", "limit_ratio": "1", "worst_order": "1"}
 UNITS.update({f"i_h{n}": "A" for n in range(0, 41)})
 UNITS.update(interharmonic_current="A", interharmonic_frequency="Hz", worst_harmonic="A",
-             worst_load_r="ohm")
+             worst_load_r="ohm", worst_alpha="deg")
 
 register(CheckDef(
     id="power.harmonics", kinds=("phase-control",),

@@ -196,6 +196,71 @@ def _alpha_text(r: Reduced) -> str:
     return f" at α {eng(a, 'deg')}" if a is not None else ""
 
 
+# ---------------------------------------------------------------- a back-EMF load
+
+EMF_SWEEP = 25  # firing angles sampled for the current zero of an R–L–E load
+
+
+def _has_emf(ctx: Context, power: Stage) -> bool:
+    load = power.get("load")
+    return (_is_ac(ctx) and power.kind == "phase-control" and isinstance(load, dict)
+            and isinstance(load.get("e"), Value))
+
+
+def _bind_emf(ctx: Context, b: Bound, *, only_line: bool = True) -> None:
+    """With a back-EMF load on the power stage, the inputs of :func:`checks.snubber.emf_steps`:
+    the EMF over its range, the load, the frequency and the firing range (swept)."""
+    power = _power(ctx)
+    if not _has_emf(ctx, power) or (only_line and b.options.get("mode") != "line"):
+        return
+    ctx.need(b, "e_load", _load(ctx, power, "e"))
+    for name, key in (("r_load", "r"), ("l_load", "l")):
+        if name not in b.inputs:
+            if key == "l":
+                ctx.read(b, name, _load(ctx, power, key), default=0.0, dim="inductance",
+                         unit="H")
+                b.notes[:] = [n for n in b.notes if not n.startswith("l_load not given")]
+            else:
+                ctx.need(b, name, _load(ctx, power, key))
+    if "f" not in b.inputs:
+        ctx.need(b, "f", "supply.frequency")
+    if "v" not in b.inputs:
+        ctx.need(b, "v", "supply.voltage")
+    if "alpha" not in b.inputs and "osc_rt" not in b.inputs:
+        _bind_alpha(ctx, b, power)
+    if "alpha" in b.inputs and b.inputs["alpha"].value.varies:
+        av = b.inputs["alpha"].value
+        b.inputs["alpha"].sweep = max(b.inputs["alpha"].sweep, EMF_SWEEP)
+        # Refined between the sampled angles: the step peaks sharply where the current
+        # turns continuous.
+        b.options["emf_alpha_range"] = (av.lo, av.hi, 0.5 * (av.hi - av.lo) / (EMF_SWEEP - 1))
+    b.options["emf_topology"] = str(power.get("topology", "half-wave"))
+    b.options["emf_freewheel"] = bool(power.get("freewheel", False))
+    b.notes.append("back-EMF load: the step at the current zero (the line minus E), the "
+                   "freewheel's end and the steady V_m + E count, over the EMF's range "
+                   f"and the firing range ({EMF_SWEEP} angles)")
+
+
+def _with_emf(fn: Any, *, shared: tuple[str, ...] = ()) -> Any:
+    """Wrap a check so that a bound back EMF becomes its ``emf`` steps; the inputs only the
+    steps read are taken out, those in ``shared`` are passed on too."""
+
+    def wrapped(**kw: Any) -> Outcome:
+        if "e_load" in kw:
+            args = dict(topology=kw.pop("emf_topology"), freewheel=kw.pop("emf_freewheel"),
+                        v=kw["v"], f=kw["f"], r_load=kw["r_load"], l_load=kw["l_load"],
+                        alpha=kw["alpha"], e_load=kw.pop("e_load"))
+            emf = snubber.emf_steps_rows(alpha_range=kw.pop("emf_alpha_range", None), **args)
+            for k in ("f", "r_load", "l_load", "alpha"):
+                if k not in shared:
+                    kw.pop(k)
+            kw["emf"] = emf
+        out: Outcome = fn(**kw)
+        return out
+
+    return wrapped
+
+
 # ---------------------------------------------------------------- snubber.dvdt
 
 
@@ -204,6 +269,7 @@ def _bind_dvdt(ctx: Context) -> Bound:
     _bind_step(ctx, b)
     if b.not_applicable is None:
         _scr_value(ctx, b, "rating", "dvdt", "dv/dt rating")
+        _bind_emf(ctx, b)
     return b
 
 
@@ -238,7 +304,7 @@ register(CheckDef(
            "linear-ramp rating; conservative for an exponential 0.632·V/τ rating, whose chord "
            "is given too). Pass ≤ rating/2, marginal ≤ rating.",
     source="Rashid, Power Electronics 4th ed. §17.6, eqs. 17.34–17.35, Ex. 17.4",
-    fn=snubber.dvdt_check, bind=_bind_dvdt,
+    fn=_with_firing(_with_emf(snubber.dvdt_check), keep_f=True), bind=_bind_dvdt,
     units={"dvdt_max": "V/s", "damping": "1"},
     summarise=_sum_dvdt,
     cautions=("dv/dt is rated at Tj,max with the gate open; a gate-cathode resistor raises it.",
@@ -255,6 +321,7 @@ def _bind_peak(ctx: Context) -> Bound:
     _bind_step(ctx, b)
     if b.not_applicable is None:
         _scr_value(ctx, b, "vdrm", "vdrm", "VDRM")
+        _bind_emf(ctx, b)
     return b
 
 
@@ -263,6 +330,14 @@ def _sum_peak(r: Reduced) -> str:
     w = r.worst
     text = (f"peak {eng(r.hi['peak_voltage'], 'V')} across the SCR (ζ {w['damping']:.2f}, "
             f"step {eng(w['step'], 'V')}) against VDRM {eng(vdrm, 'V')}")
+    steady = w.get("steady_peak", math.nan)
+    if not math.isnan(steady):
+        what = ("the steady line peak plus the back EMF, V_m + E"
+                if steady >= w["peak_voltage"] else
+                "the freewheel's end (E on top of the line)"
+                if w.get("freewheel_peak", 0.0) >= w["peak_voltage"] else
+                "the ringing of the step at the current zero (the line minus E)")
+        text += f"; with the back EMF the worst is {what}"
     if r.status in ("fail", "marginal"):
         k = float(r.limits.get("fail_below" if r.status == "fail" else "marginal_below", 1.0))
         ratio = vdrm / (k * r.hi["step"])
@@ -290,7 +365,7 @@ register(CheckDef(
            "Pass ≤ VDRM/1.2, marginal ≤ VDRM.",
     source="Rashid, Power Electronics 4th ed. §17.6, eq. 17.33 (peak-time quadrant corrected), "
            "Ex. 17.4",
-    fn=snubber.peak_check, bind=_bind_peak,
+    fn=_with_firing(_with_emf(snubber.peak_check), keep_f=True), bind=_bind_peak,
     units={"peak_voltage": "V"},
     summarise=_sum_peak,
     cautions=("An overdamped snubber still overshoots, through the R_sn·i term.",
@@ -382,7 +457,8 @@ def _resistor_power(*, dc: bool, limits: Any, **kw: Any) -> Outcome:
     """Dispatch to the AC or the DC-switch form of the resistor dissipation."""
     if dc:
         return snubber.dc_resistor_power_check(limits=limits, **kw)
-    return _with_firing(snubber.resistor_power_check, keep_f=True)(limits=limits, **kw)
+    check = _with_emf(snubber.resistor_power_check, shared=("f", "r_load", "l_load", "alpha"))
+    return _with_firing(check, keep_f=True)(limits=limits, **kw)
 
 
 def _bind_rpower(ctx: Context) -> Bound:
@@ -418,7 +494,9 @@ def _bind_rpower(ctx: Context) -> Bound:
                              else str(power.get("topology", "half-wave")))
     b.options["freewheel"] = bool(power.get("freewheel", False))
     lv = ctx.project.lookup(_load(ctx, power, "l"))
-    if isinstance(lv, Value) and lv.nom > 0.0 and not b.options["freewheel"]:
+    if _has_emf(ctx, power):
+        _bind_emf(ctx, b, only_line=False)
+    elif isinstance(lv, Value) and lv.nom > 0.0 and not b.options["freewheel"]:
         ctx.need(b, "l_load", _load(ctx, power, "l"))
         ctx.need(b, "r_load", _load(ctx, power, "r"))
         b.notes.append("inductive load: ½·C·(V_m·sin φ)² per turn-off added, all in R_sn")
@@ -473,6 +551,7 @@ def _bind_cap(ctx: Context) -> Bound:
     _bind_step(ctx, b, supply_too=True)
     if b.not_applicable is None and not b.missing:
         ctx.want(b, "rating", ctx.stage_path("c_voltage"))
+        _bind_emf(ctx, b)
     return b
 
 
@@ -491,7 +570,7 @@ register(CheckDef(
     method="capacitor_peak = max(V_m (V on DC), v_C,pk) with v_C,pk = E·(1 + e^(−πζ/√(1−ζ²))) "
            "for ζ < 1, E for ζ ≥ 1 — the capacitor's own peak, not the device's.",
     source="Rashid, Power Electronics 4th ed. §17.6; Bimbhra, Power Electronics ch. 5",
-    fn=snubber.capacitor_check, bind=_bind_cap,
+    fn=_with_firing(_with_emf(snubber.capacitor_check), keep_f=True), bind=_bind_cap,
     units={"capacitor_peak": "V"},
     summarise=_sum_cap,
     cautions=("Enter an AC (RMS) rating at its peak equivalent only if its maker allows that "
