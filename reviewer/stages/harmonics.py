@@ -63,7 +63,7 @@ def _fn_burst(*, topology: str, limits: Mapping[str, float], burst_period: int,
               **kw: Any) -> Outcome:
     from checks import burst
 
-    pw._firing(kw)
+    pw._angles(kw)  # pops the firing inputs; burst control needs no angle
     omega = pw._omega(kw)
     r, l_ = np.asarray(kw["r"], dtype=float), np.asarray(kw["l"], dtype=float)
     ipk = np.sqrt(2.0) * np.asarray(kw["vs"], dtype=float) / np.hypot(r, omega * l_)
@@ -78,7 +78,7 @@ def _fn(*, topology: str, freewheel: bool, limits: Mapping[str, float], kind: st
     if "burst_period" in kw:
         kw.pop("quantity", None)
         return _fn_burst(topology=topology, limits=limits, **kw)
-    a, _, _ = pw._firing(kw)
+    a = pw._angles(kw)("alpha")
     omega = pw._omega(kw)
     e = kw.pop("e", None)
     r_range = kw.pop("r_range", None)

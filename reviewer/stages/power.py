@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from typing import Any
 
 import numpy as np
@@ -244,16 +244,18 @@ def _bind_firing(ctx: Context, b: Bound, *, sweep: int = 0,
 
 
 
-def _firing(kw: dict[str, Any], vs: Any = None,
-            freq: Any = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Pop the firing inputs from ``kw``: (α per row, α_lo, α_hi) [rad].
+def _angles(kw: dict[str, Any], vs: Any = None,
+            freq: Any = None) -> Callable[[str], np.ndarray]:
+    """Pop the firing inputs from ``kw``; return ``angle(end)`` [rad] for ``end`` in
+    ``alpha`` (per row), ``lo`` and ``hi`` (the firing range's ends).
 
-    With a line-synchronised oscillator the angles are solved from its inputs on the line
+    With a line-synchronised oscillator an angle is solved from its inputs on the line
     ``vs``/``freq`` (taken from ``kw`` unless given; ``freq`` is popped when only the
-    oscillator needed it).
+    oscillator needed it) when it is asked for: a check that reads only α solves only α.
     """
     if "osc_device" not in kw:
-        return kw.pop("alpha"), kw.pop("alpha_lo"), kw.pop("alpha_hi")
+        given = {"alpha": kw.pop("alpha"), "lo": kw.pop("alpha_lo"), "hi": kw.pop("alpha_hi")}
+        return given.__getitem__
     dev = kw.pop("osc_device")
     osc = {k[4:]: kw.pop(k) for k in list(kw) if k.startswith("osc_")}
     vm = np.sqrt(2.0) * np.asarray(kw["vs"] if vs is None else vs, dtype=float)
@@ -264,12 +266,20 @@ def _firing(kw: dict[str, Any], vs: Any = None,
     omega = 2 * np.pi * np.asarray(freq, dtype=float)
     params = {k: osc[k] for k in ("eta", "rbb", "vd", "r1", "r2", "offset", "r_upper",
                                   "r_lower") if k in osc}
+    rts = {"alpha": osc["rt"], "lo": osc["rt_lo"], "hi": osc["rt_hi"]}
 
-    def at(rt: np.ndarray) -> np.ndarray:
+    def angle(end: str) -> np.ndarray:
         return oscillator.line_sync_firing_angle(device=dev, vm=vm, omega=omega, vz=osc["vz"],
-                                                 rt=rt, ct=osc["ct"], **params)
+                                                 rt=rts[end], ct=osc["ct"], **params)
 
-    return at(osc["rt"]), at(osc["rt_lo"]), at(osc["rt_hi"])
+    return angle
+
+
+def _firing(kw: dict[str, Any], vs: Any = None,
+            freq: Any = None) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Pop the firing inputs from ``kw``: (α per row, α_lo, α_hi) [rad] (see :func:`_angles`)."""
+    angle = _angles(kw, vs, freq)
+    return angle("alpha"), angle("lo"), angle("hi")
 
 
 def _omega(kw: dict[str, Any]) -> np.ndarray:
@@ -343,7 +353,7 @@ def _bind_burst(ctx: Context, b: Bound) -> None:
 def _fn_burst_output(**kw: Any) -> Outcome:
     from checks import burst
 
-    a, _, _ = _firing(kw)
+    a = _angles(kw)("alpha")
     omega = _omega(kw)
     full = power.stage_values(topology=kw["topology"], freewheel=False, vs=kw["vs"],
                               r=kw["r"], l=kw["l"], omega=omega, alpha=a, peak=False)
@@ -686,7 +696,7 @@ def _fn_currents(core: Any) -> Any:
     def fn(**kw: Any) -> Outcome:
         kw.pop("emf", None)
         if kw.get("kind") == "ac":
-            a, _, _ = _firing(kw)
+            a = _angles(kw)("alpha")
             kw["omega"] = _omega(kw)
             kw["alpha"], note = _pulses(kw, a, kw["omega"])
             out = core(**kw)
@@ -1107,7 +1117,7 @@ def _fn_holding(**kw: Any) -> Outcome:
     ih = _cold_of(kw, "ih")
     if kw["kind"] == "dc":
         return power.holding_check(ih_cold=ih, **kw)
-    a, _, _ = _firing(kw)
+    a = _angles(kw)("alpha")
     if "e" in kw:
         for k in ("kind", "emf"):
             kw.pop(k)
@@ -1380,10 +1390,11 @@ def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
 def _fn_control(**kw: Any) -> Outcome:
     if "emf" in kw:
         kw.pop("emf")
-        _, lo, hi = _firing(kw)
+        angle = _angles(kw)
+        lo, hi = angle("lo"), angle("hi")
         kw.pop("freq", None)
         return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
-    _, lo, _ = _firing(kw)
+    lo = _angles(kw)("lo")
     kw.pop("vs", None)
     if "burst_pulse" in kw:
         return burst_pulse_outcome(kw, _omega(kw))
