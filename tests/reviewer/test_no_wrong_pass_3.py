@@ -125,3 +125,75 @@ def test_fault_that_clears_the_fuse_within_a_half_cycle_still_passes():
 
 if __name__ == "__main__":  # pragma: no cover
     pytest.main([__file__, "-q"])
+
+
+# --------------------------------------------------------------------------------------------
+# Records: a sign-off binds what the check read and the limits; a revised method (a formula
+# fixed, or what a status means changed) must make it stale too, even where the status is the
+# same, since the reviewer signed numbers computed another way.
+
+OSC = """\
+[project]
+name = "Test oscillator"
+revision = "A"
+
+[conditions]
+ambient = { min = "0 degC", max = "40 degC" }
+
+[supply]
+kind = "dc"
+voltage = "24 V ±5%"
+
+[parts.U1]
+type = "ujt"
+eta = { min = 0.6, max = 0.7 }
+rbb = { min = "5 kohm", max = "8 kohm" }
+ip = "5 uA"
+iv = "4 mA"
+vv = "2 V"
+vd = "0.6 V"
+pd = "300 mW"
+ie_peak = "1 A"
+
+[stages.trigger]
+kind = "ujt-oscillator"
+ujt = "U1"
+supply = "20 V"
+sync = "free"
+timing_r = { min = "10 kohm", max = "100 kohm" }
+timing_c = "100 nF ±10%"
+base1_r = "47 ohm"
+base2_r = "470 ohm"
+"""
+
+
+def test_a_revised_method_makes_its_sign_offs_stale_and_says_so(tmp_path, monkeypatch):
+    import dataclasses
+
+    from reviewer.checklist import load_checklist
+    from reviewer.project import load_project
+    from reviewer.registry import CHECKS
+    from reviewer.review import check_states, load_record, sign
+
+    p = tmp_path / "osc.toml"
+    p.write_text(OSC, "utf-8")
+
+    def state():
+        project = load_project(p)
+        run = evaluate(project, load_checklist(project.checklist, p.parent))
+        return check_states(load_record(p), run)[("trigger", "osc.window")]
+
+    sign(p, stage="trigger", checks=["osc.window"], note="window checked by hand")
+    assert state().signoff == "signed"
+    revised = dataclasses.replace(CHECKS["osc.window"], revision=2)
+    monkeypatch.setitem(CHECKS, "osc.window", revised)
+    st = state()
+    assert st.status == "pass" and st.signoff == "stale"
+    [ch] = st.changed
+    assert ch.path == "method" and (ch.old, ch.new) == (1, 2)
+    assert "revision 1 → 2" in ch.text()
+    # Signing again under the revised method is current again; back at 1 it is stale.
+    sign(p, stage="trigger", checks=["osc.window"], note="rechecked under revision 2")
+    assert state().signoff == "signed"
+    monkeypatch.setitem(CHECKS, "osc.window", dataclasses.replace(revised, revision=1))
+    assert state().signoff == "stale"
