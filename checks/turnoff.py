@@ -168,7 +168,17 @@ def loop_hold_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E
     v_c0, c, l, i_o, r, l_load = np.broadcast_arrays(  # noqa: E741
         _a(v_c0), _a(c), _a(l), _a(i_o), _a(r), _a(l_load))
     shape = v_c0.shape
-    v_c0, c, l, i_o, r, l_load = (np.ravel(x) for x in (v_c0, c, l, i_o, r, l_load))  # noqa: E741
+    flat = [np.ravel(x) for x in (v_c0, c, l, i_o, r, l_load)]
+    # Rows in blocks: each carries a 1440-point grid of complex values (about 23 kB a row).
+    step = 512
+    out = np.concatenate([_loop_hold_rows(*(a[k:k + step] for a in flat))
+                          for k in range(0, max(flat[0].size, 1), step)])
+    return out[:flat[0].size].reshape(shape)
+
+
+def _loop_hold_rows(v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
+                    i_o: np.ndarray, r: np.ndarray, l_load: np.ndarray) -> np.ndarray:
+    """:func:`loop_hold_time` of 1-D rows [s]."""
     x = np.clip(i_o / ring_peak(v_c0=v_c0, c=c, l=l), 0.0, 1.0)
     v1 = v_c0 * np.sqrt(1.0 - x * x)
     l_t = l + l_load
@@ -204,8 +214,7 @@ def loop_hold_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E
     # No crossing on the grid (it should not happen) or none before the first point: the
     # smaller bracket end, never a longer time than the circuit gives.
     out = np.where(found & (first > 0), lo, 0.0)
-    out = np.where(x >= 1.0, 0.0, out)
-    return out.reshape(shape)
+    return np.where(x >= 1.0, 0.0, out)
 
 
 def resonant_turnoff_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
