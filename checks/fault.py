@@ -51,9 +51,10 @@ def fault_check(*, vs: np.ndarray, omega: np.ndarray, l_s: np.ndarray, itsm: np.
     with a fuse (``fuse_i2t`` [A²s], clearing at ``t_fuse`` [s], else the half-cycle): pass
     when the prospective half-cycle I²t reaches the fuse's clearing I²t and that is below the
     SCR's I²t on the fuse's time base (:func:`checks.power.i2t_at`); margin = the smaller
-    ratio − 1. Without a fuse: fail above ITSM, and marginal at best within it (the SCR
-    rides through the first half-cycle, and fires into the short again every half-cycle
-    until something outside the project clears it). vs [V RMS]; omega [rad/s]; l_s [H];
+    ratio − 1. Without a fuse, or with one that a half-cycle of the fault does not clear
+    (prospective I²t below its clearing I²t): fail above ITSM, and marginal at best within it
+    (the SCR rides through the first half-cycle, and fires into the short again every
+    half-cycle until something clears it, if anything does). vs [V RMS]; omega [rad/s]; l_s [H];
     itsm [A]; t_sm [s]; i2t [A²s]. ``limits`` unused (the rule has no factor).
 
     >>> o = fault_check(vs=np.array([240.0]), omega=2 * np.pi * 60, l_s=0.07e-3, itsm=10e3,
@@ -78,11 +79,17 @@ def fault_check(*, vs: np.ndarray, omega: np.ndarray, l_s: np.ndarray, itsm: np.
     ok = (within >= 1.0) | (fused >= 1.0)
     metric = np.where(within >= 1.0, within, fused)
     status = np.where(ok & np.isfinite(peak), PASS, FAIL).astype(np.int8)
+    # ITSM covers one half-cycle: with nothing to clear the short within it (no fuse, or one
+    # whose clearing I²t a half-cycle of the fault does not reach) the SCR fires into it again
+    # every half-cycle, which no surge rating covers, until something clears it, if anything
+    # does (a fault below the fuse's rating never blows it). Riding through the first
+    # half-cycle is all that can be said: marginal, never pass.
     if fuse_i2t is None:
-        # ITSM covers one half-cycle: with nothing in the project to clear the short, the SCR
-        # fires into it again every half-cycle, which no surge rating covers. Riding through
-        # the first is all that can be said: marginal, never pass.
         status = np.where(status == PASS, MARGINAL, status).astype(np.int8)
+    else:
+        with np.errstate(invalid="ignore"):
+            clears = prospective >= _a(fuse_i2t)
+        status = np.where((status == PASS) & ~clears, MARGINAL, status).astype(np.int8)
     margin = np.where(np.isfinite(metric), metric - 1.0, -1.0)
     return Outcome({"fault_current": i_sc, "fault_peak": peak, "fault_i2t": prospective,
                     "itsm_at_line": rating + 0 * peak, "device_i2t": dev + 0 * peak,

@@ -121,11 +121,109 @@ def hold_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
     return _a(c) * _a(v_c0) * np.sqrt(1.0 - x * x) / _a(i_o)
 
 
+def _loop_voltage(t: np.ndarray, *, v1: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
+                  l_t: np.ndarray, r: np.ndarray, i_o: np.ndarray) -> np.ndarray:
+    """v_AK of the SCR at t after its current zero (see :func:`loop_hold_time`) [V]: the series
+    loop R, L_t, C from i = I_o, v_C = −V_1, natural response i = c1·e^(s1·t) + c2·e^(s2·t)
+    (complex roots when underdamped; the forced current is 0 behind C); v_AK = v_C + L·di/dt."""
+    sig = r / (2.0 * l_t)
+    w0sq = 1.0 / (l_t * c)
+    disc = (sig * sig - w0sq).astype(complex)
+    # Critical damping makes the two roots equal: separate them by a relative 1e-7.
+    disc = np.where(np.abs(disc) < 1e-14 * w0sq, 1e-14 * w0sq, disc)
+    root = np.sqrt(disc)
+    s1, s2 = -sig + root, -sig - root
+    di0 = v1 / l_t  # L_t·di/dt at 0+: V_s − R·I_o (zero) + V_1
+    c1 = (di0 - s2 * i_o) / (s1 - s2)
+    c2 = i_o - c1
+    e1, e2 = np.exp(s1 * t), np.exp(s2 * t)
+    v_c = -v1 + (c1 * np.expm1(s1 * t) / s1 + c2 * np.expm1(s2 * t) / s2) / c
+    return np.real(v_c + l * (c1 * s1 * e1 + c2 * s2 * e2))
+
+
+def loop_hold_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
+                   i_o: np.ndarray, r: np.ndarray, l_load: np.ndarray | float = 0.0
+                   ) -> np.ndarray:
+    """Time the SCR stays reverse-biased after its current zero with no diode fitted, from the
+    circuit itself rather than a constant load current [s].
+
+    When the ring current reaches I_o (the SCR's current zero) C is at −V_1,
+    V_1 = V_c0·√(1 − x²), x = I_o/I_p, and the load current I_o = V_s/R flows on through the
+    commutating branch: the loop is V_s, the load R and L_load, L and C in series. Its current
+    obeys L_t·di/dt = V_s − R·i − v_C (L_t = L + L_load) from i = I_o, v_C = −V_1, and the SCR,
+    across the L–C branch, sees v_AK = v_C + L·di/dt; t_c is the first time v_AK returns to 0.
+    A large L_load holds the current at I_o and t_c tends to :func:`hold_time`; a resistive
+    load lets the current ring up and discharge C sooner (up to 30× sooner where I_p ≫ I_o).
+    Solved in closed form on a grid of the time scales (logarithmic near 0, uniform over the
+    ring) and refined by bisection, all rows at once; 0 when x ≥ 1.
+
+    v_c0 [V]; c [F]; l [H] commutating inductor; i_o [A]; r [Ω] load; l_load [H].
+
+    >>> round(float(loop_hold_time(v_c0=230.0, c=20e-6, l=5e-6, i_o=300.0, r=230 / 300,
+    ...                            l_load=1.0)) * 1e6, 2)  # constant current: hold_time
+    11.62
+    >>> round(float(loop_hold_time(v_c0=100.0, c=10e-6, l=1e-6, i_o=20.0, r=5.0)) * 1e6, 2)
+    34.77
+    """
+    v_c0, c, l, i_o, r, l_load = np.broadcast_arrays(  # noqa: E741
+        _a(v_c0), _a(c), _a(l), _a(i_o), _a(r), _a(l_load))
+    shape = v_c0.shape
+    flat = [np.ravel(x) for x in (v_c0, c, l, i_o, r, l_load)]
+    # Rows in blocks: each carries a 1440-point grid of complex values (about 23 kB a row).
+    step = 512
+    out = np.concatenate([_loop_hold_rows(*(a[k:k + step] for a in flat))
+                          for k in range(0, max(flat[0].size, 1), step)])
+    return out[:flat[0].size].reshape(shape)
+
+
+def _loop_hold_rows(v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
+                    i_o: np.ndarray, r: np.ndarray, l_load: np.ndarray) -> np.ndarray:
+    """:func:`loop_hold_time` of 1-D rows [s]."""
+    x = np.clip(i_o / ring_peak(v_c0=v_c0, c=c, l=l), 0.0, 1.0)
+    v1 = v_c0 * np.sqrt(1.0 - x * x)
+    l_t = l + l_load
+    tau0 = np.sqrt(l_t * c)
+    hold = c * v1 / i_o
+    t_rc = r * c * np.log1p(v1 / (i_o * r))
+    # The crossing comes within a few ring periods, the R–C recharge or the constant-current
+    # hold, whichever is longest: a uniform grid over that, and a logarithmic one (8 % steps)
+    # for the early crossings, keep the first lobe on the grid.
+    t_max = 4.0 * np.maximum.reduce([hold, 2.0 * np.pi * tau0, t_rc])
+    n_lin = 1200
+    u = np.linspace(0.0, 1.0, n_lin + 1)[1:]
+    lin = t_max[:, None] * u[None, :]
+    log = t_max[:, None] * np.logspace(-9, 0, 240)[None, :]
+    grid = np.sort(np.concatenate([log, lin], axis=1), axis=1)
+    kw = {k: v[:, None] for k, v in (("v1", v1), ("c", c), ("l", l), ("l_t", l_t), ("r", r),
+                                     ("i_o", i_o))}
+    with np.errstate(all="ignore"):
+        g = _loop_voltage(grid, **kw)
+    up = g >= 0.0
+    first = np.argmax(up, axis=1)
+    found = up[np.arange(first.size), first]
+    rows = np.arange(first.size)
+    hi = grid[rows, first]
+    lo = np.where(first > 0, grid[rows, np.maximum(first - 1, 0)], 0.0)
+    kw1 = {k: v[:, 0] for k, v in kw.items()}
+    with np.errstate(all="ignore"):
+        for _ in range(60):
+            mid = 0.5 * (lo + hi)
+            pos = _loop_voltage(mid, **kw1) >= 0.0
+            hi = np.where(pos, mid, hi)
+            lo = np.where(pos, lo, mid)
+    # No crossing on the grid (it should not happen) or none before the first point: the
+    # smaller bracket end, never a longer time than the circuit gives.
+    out = np.where(found & (first > 0), lo, 0.0)
+    return np.where(x >= 1.0, 0.0, out)
+
+
 def resonant_turnoff_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # noqa: E741
-                          i_o: np.ndarray, diode: str) -> np.ndarray:
+                          i_o: np.ndarray, diode: str, r: np.ndarray | None = None,
+                          l_load: np.ndarray | float = 0.0) -> np.ndarray:
     """``turnoff_time`` of resonant commutation [s].
 
-    ``diode``: ``"yes"`` → :func:`diode_interval`; ``"no"`` → :func:`hold_time`;
+    ``diode``: ``"yes"`` → :func:`diode_interval`; ``"no"`` → :func:`hold_time`, or with the
+    load ``r`` [Ω] (and ``l_load`` [H]) given the circuit's own :func:`loop_hold_time`;
     ``"unknown"`` → the smaller of the two (the diode's presence is not stated).
 
     >>> round(float(resonant_turnoff_time(v_c0=200.0, c=30e-6, l=4e-6, i_o=250.0,
@@ -133,16 +231,20 @@ def resonant_turnoff_time(*, v_c0: np.ndarray, c: np.ndarray, l: np.ndarray,  # 
     21.35
     """
     t_d = diode_interval(v_c0=v_c0, c=c, l=l, i_o=i_o)
-    t_h = hold_time(v_c0=v_c0, c=c, l=l, i_o=i_o)
     if diode == "yes":
         return t_d
+    if r is None:
+        t_h = hold_time(v_c0=v_c0, c=c, l=l, i_o=i_o)
+    else:
+        t_h = loop_hold_time(v_c0=v_c0, c=c, l=l, i_o=i_o, r=r, l_load=l_load)
     if diode == "no":
         return t_h
     return np.minimum(t_d, t_h)
 
 
 def resonant_c_for_time(*, v_c0: np.ndarray, l: np.ndarray, i_o: np.ndarray,  # noqa: E741
-                        t_req: np.ndarray, diode: str) -> np.ndarray:
+                        t_req: np.ndarray, diode: str, r: np.ndarray | None = None,
+                        l_load: np.ndarray | float = 0.0) -> np.ndarray:
     """The smallest C giving the resonant turnoff_time ``t_req`` [F].
 
     No diode: C·V_c0·√(1 − I_o²·L/(V_c0²·C))/I_o = t solves in closed form,
@@ -161,6 +263,9 @@ def resonant_c_for_time(*, v_c0: np.ndarray, l: np.ndarray, i_o: np.ndarray,  # 
     v_c0, l, i_o, t_req = np.broadcast_arrays(_a(v_c0), _a(l), _a(i_o), _a(t_req))  # noqa: E741
     c_nd = (i_o**2 * l + np.sqrt(i_o**4 * l**2 + 4.0 * v_c0**2 * i_o**2 * t_req**2)) \
         / (2.0 * v_c0**2)
+    if r is not None and diode != "yes":  # the circuit's own hold time: bisection on log C
+        c_nd = _c_for_loop(v_c0=v_c0, l=l, i_o=i_o, t_req=t_req, r=r, l_load=l_load,
+                           start=c_nd)
     if diode == "no":
         return c_nd
     # t_D < π·√(L·C) and needs I_p > I_o: bracket from the larger of both lower bounds.
@@ -177,6 +282,31 @@ def resonant_c_for_time(*, v_c0: np.ndarray, l: np.ndarray, i_o: np.ndarray,  # 
         llo = np.where(ok, llo, mid)
     c_d = np.exp(lhi)
     return c_d if diode == "yes" else np.maximum(c_d, c_nd)
+
+
+def _c_for_loop(*, v_c0: np.ndarray, l: np.ndarray, i_o: np.ndarray,  # noqa: E741
+                t_req: np.ndarray, r: np.ndarray, l_load: np.ndarray | float,
+                start: np.ndarray) -> np.ndarray:
+    """A C at which :func:`loop_hold_time` reaches ``t_req`` (bisection on log C between the
+    C at which I_p = I_o and one that holds long enough; the upper end is returned, so the C
+    returned always gives at least t_req) [F]; NaN where no C up to 16¹²× the start does."""
+    def ok(c: np.ndarray) -> np.ndarray:
+        return loop_hold_time(v_c0=v_c0, c=c, l=l, i_o=i_o, r=r, l_load=l_load) >= t_req
+    lo = l * (i_o / v_c0) ** 2
+    hi = np.maximum(start, lo * 1.0001)
+    good = ok(hi)
+    for _ in range(12):
+        if np.all(good):
+            break
+        hi = np.where(good, hi, hi * 16.0)
+        good = ok(hi)
+    llo, lhi = np.log(lo), np.log(hi)
+    for _ in range(30):  # the log-C bracket (at most ln 16¹³) shrinks 2³⁰-fold: < 4e-8
+        mid = 0.5 * (llo + lhi)
+        m = ok(np.exp(mid))
+        lhi = np.where(m, mid, lhi)
+        llo = np.where(m, llo, mid)
+    return np.where(good, np.exp(lhi), np.nan)
 
 
 def overcharge_peak(*, v_ref: np.ndarray, v0: np.ndarray, l: np.ndarray,  # noqa: E741
@@ -591,21 +721,24 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
                alpha: np.ndarray | None = None, l_s: np.ndarray | None = None,
                model: str = "resistive", diode: str = "unknown", topology: str = "half-wave",
                freewheel: bool = False, ac: bool = False, gate_pulse: float | None = None,
-               e: np.ndarray | None = None, **osc: Any) -> Outcome:
+               e: np.ndarray | None = None, l_load: np.ndarray | None = None,
+               **osc: Any) -> Outcome:
     """``turnoff.time``: circuit turn-off time t_c against tq; metric t_c/tq.
 
     network ``line``: :func:`line_turnoff` (alpha [rad] or the oscillator's ``osc_*`` inputs,
     see :func:`firing_angle`; f [Hz]; r [Ω], l [H] load; v_s [V RMS]; l_s [H]; e [V] a back
     EMF, :func:`line_turnoff_emf`);
     ``capacitor``: :func:`capacitor_time` (model); ``resonant``: :func:`resonant_turnoff_time`
-    (diode) with I_o from :func:`load_current`. tq [s] at Tj,max.
+    (diode) with I_o from :func:`load_current`, the hold time without a diode from the loop
+    through the load (:func:`loop_hold_time`, R = V/I_o and ``l_load`` [H]). tq [s] at Tj,max.
 
     Besides ``turnoff_time`` and ``tq`` it returns for the summary: ``c_scale_fail`` and
     ``c_scale_pass``, the factor on C per row that gives t_c = k·tq (capacitor, resonant);
     line: ``full_line_time`` (ac-switch), ``beta``, ``continuous``, ``lost_control``.
 
     >>> out = time_check(network="resonant", tq=np.array([8e-6]), c=20e-6, l=5e-6, r=230 / 300,
-    ...                  v_s=230.0, diode="no", limits={"fail_below": 1.2, "marginal_below": 1.5})
+    ...                  v_s=230.0, diode="no", l_load=1.0,
+    ...                  limits={"fail_below": 1.2, "marginal_below": 1.5})
     >>> round(float(out.values["turnoff_time"][0]) * 1e6, 2), out.status.tolist()
     (11.62, [1])
     """
@@ -630,14 +763,16 @@ def time_check(*, network: str, tq: np.ndarray, limits: Mapping[str, float],
         assert c is not None and l is not None and r is not None and v_s is not None
         i_o = load_current(v_s=v_s, r=r, ac=ac)
         vc = _charge(v_s, v_c0, ac)
-        t_c = resonant_turnoff_time(v_c0=vc, c=c, l=l, i_o=i_o, diode=diode)
+        # The load's own R (and L) set how the current flows on once the SCR is off.
+        loop = {"r": _vm(v_s, ac) / i_o, "l_load": 0.0 if l_load is None else l_load}
+        t_c = resonant_turnoff_time(v_c0=vc, c=c, l=l, i_o=i_o, diode=diode, **loop)
         values.update(
             c_scale_fail=resonant_c_for_time(v_c0=vc, l=l, i_o=i_o, t_req=k_fail * tq,
-                                             diode=diode) / _a(c),
+                                             diode=diode, **loop) / _a(c),
             c_scale_pass=resonant_c_for_time(v_c0=vc, l=l, i_o=i_o, t_req=k_pass * tq,
-                                             diode=diode) / _a(c),
+                                             diode=diode, **loop) / _a(c),
             t_diode=diode_interval(v_c0=vc, c=c, l=l, i_o=i_o),
-            t_hold=hold_time(v_c0=vc, c=c, l=l, i_o=i_o), load_current=i_o)
+            t_hold=loop_hold_time(v_c0=vc, c=c, l=l, i_o=i_o, **loop), load_current=i_o)
     with np.errstate(divide="ignore", invalid="ignore"):
         return _outcome({"turnoff_time": t_c, "tq": tq, **values}, t_c / tq, limits)
 

@@ -303,7 +303,12 @@ def snapshot(check: str, stage: str, bound: Bound) -> dict[str, Any]:
         ins[inp.path] = [_canon(v.nom), _canon(v.lo), _canon(v.hi)]
     opts = {k: (v if isinstance(v, (str, bool, int, float, type(None))) else repr(v))
             for k, v in bound.options.items()}
-    return {"scheme": HASH_SCHEME, "stage": stage, "check": check, "inputs": ins, "options": opts}
+    snap = {"scheme": HASH_SCHEME, "stage": stage, "check": check, "inputs": ins,
+            "options": opts}
+    defn = CHECKS.get(check)
+    if defn is not None and defn.revision != 1:  # a revised method: earlier sign-offs go stale
+        snap["method"] = defn.revision
+    return snap
 
 
 def inputs_hash(snap: Mapping[str, Any]) -> str:

@@ -226,6 +226,11 @@ class CheckDef:
     #: Values that may be NaN where they are not defined at a row (the engine otherwise
     #: refuses a pass with a non-finite value).
     optional: frozenset[str] = frozenset()
+    #: The method's revision: raise it when a change of the method (its formula, or what a
+    #: status means) can change what was signed. Above 1 it is part of the inputs snapshot,
+    #: so every sign-off made under another revision goes stale and says so; at 1 the
+    #: snapshot (and every sign-off made before revisions existed) is as it was.
+    revision: int = 1
 
 
 STAGE_KINDS: dict[str, StageKind] = {}

@@ -22,6 +22,7 @@ from reviewer.schema import dim_of_path
 from reviewer.states import FAILING, WAIVABLE, result_word, review_word
 
 POLICY = "signing policy"
+METHOD = "method"
 
 
 @dataclass(frozen=True)
@@ -37,6 +38,9 @@ class Change:
         if self.path == POLICY:
             return (f"signing policy changed (approvers, self-approval, SSH signing or the "
                     f"allowed signers): {self.old} → {self.new}")
+        if self.path == METHOD:
+            return (f"the check's method was revised since it was signed (revision "
+                    f"{self.old} → {self.new}): the signed result was computed another way")
         dim = dim_of_path(self.path)
         return f"{self.path}: {_show(self.old, dim)} → {_show(self.new, dim)}"
 
@@ -77,6 +81,8 @@ def snapshot_diff(old: Mapping[str, Any], new: Mapping[str, Any]) -> list[Change
     for key in sorted(set(oo) | set(no)):
         if canonical_json(oo.get(key)) != canonical_json(no.get(key)):
             out.append(Change(f"option {key}", oo.get(key), no.get(key)))
+    if old.get("method", 1) != new.get("method", 1):
+        out.append(Change(METHOD, old.get("method", 1), new.get("method", 1)))
     if not out and canonical_json(old) != canonical_json(new):
         out.append(Change("inputs", old.get("scheme", "?"), new.get("scheme", "?")))
     return out

@@ -9,7 +9,7 @@ import numpy as np
 
 from checks import fault
 from checks.core import Outcome
-from reviewer.fmt import eng
+from reviewer.fmt import at_most, eng
 from reviewer.model import Value
 from reviewer.registry import Bound, CheckDef, Context, Reduced, register
 from reviewer.stages import power as pw
@@ -67,6 +67,13 @@ def _summarise(r: Reduced) -> str:
     text += (f"; the fuse must clear within the half-cycle: prospective I²t "
              f"{eng(r.lo['fault_i2t'], 'A^2*s')}, fuse clearing {eng(fuse_i2t, 'A^2*s')}, "
              f"SCR {eng(r.lo['device_i2t'], 'A^2*s')}")
+    if r.status == "marginal":
+        return text + ("; marginal: the SCR rides through the first half-cycle, but a "
+                       "half-cycle of the fault does not clear the fuse, so the SCR fires into "
+                       "the short again every half-cycle, which ITSM does not cover, until the "
+                       "fuse clears (never, if the fault is below its rating): a fuse with a "
+                       f"clearing I²t ≤ {at_most(r.lo['fault_i2t'], 'A^2*s')}, or protection "
+                       "upstream that clears within a half-cycle")
     if r.status != "pass":
         if r.lo["fault_i2t"] < fuse_i2t:
             text += "; fails: the fault is too small for the fuse to clear that fast"
@@ -79,9 +86,10 @@ register(CheckDef(
     id="power.fault", kinds=("phase-control",),
     question="Does the SCR survive a short circuit at the load, from the supply's impedance?",
     method="I_sc = V_s,max/(ω·L_s) RMS; first peak up to 2√2·I_sc (a fault at a voltage zero); "
-           "within ITSM (at the line's half-cycle) passes; above it a fuse must clear within "
-           "the half-cycle: the prospective I²t I_sc²·π/ω reaches its clearing I²t, which "
-           "stays below the SCR's I²t on the fuse's time base.",
+           "within ITSM (at the line's half-cycle) passes if a fuse clears within the "
+           "half-cycle (marginal without one, or with one that does not); above it the fuse "
+           "must clear within the half-cycle: the prospective I²t I_sc²·π/ω reaches its "
+           "clearing I²t, which stays below the SCR's I²t on the fuse's time base.",
     source="Rashid 4e §17 (fault current, fuse coordination, Ex 17.6); Bimbhra ch. 4",
     fn=_fn, bind=_bind,
     units={"fault_current": "A", "fault_peak": "A", "fault_i2t": "A^2*s"},

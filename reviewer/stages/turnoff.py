@@ -210,6 +210,10 @@ def _bind_time(ctx: Context) -> Bound:
         if b.options["network"] == "resonant":
             d = ctx.stage.get("diode")
             b.options["diode"] = "unknown" if d is None else ("yes" if d else "no")
+            if d is not True and _has_inductance(ctx, pw):
+                # Without a diode the load's inductance sets how the current flows on once
+                # the SCR is off (without one given, a resistive load).
+                ctx.need(b, "l_load", ctx.stage_path("load.l", pw))
     return b
 
 
@@ -309,7 +313,7 @@ def _sum_time(r: Reduced) -> str:
         d = r.bound.options["diode"]
         if d == "unknown":
             text += (f"; diode not stated: the smaller of the diode interval "
-                     f"{eng(r.lo['t_diode'], 's')} and the capacitor hold time "
+                     f"{eng(r.lo['t_diode'], 's')} and the hold time through the load "
                      f"{eng(r.lo['t_hold'], 's')}")
         text += f" at load current up to {eng(r.hi['load_current'], 'A')}"
     if r.status == "fail":
@@ -409,7 +413,10 @@ register(CheckDef(
            "(a back EMF E: reverse-biased from the R–L–E extinction β until the line exceeds E "
            "again, (2π + θ1 − β)/ω, θ1 = asin(E/V_m)); "
            "capacitor: R·C·ln(1 + V_c0/V_s) or C·V_c0/I_o; resonant: (π − 2·asin x)·√(LC) with "
-           "a diode, C·V_c0·√(1 − x²)/I_o without; t_c ≥ 1.2 tq (fail) / 1.5 tq (marginal)",
+           "a diode; without, the loop (supply, load R and L, the commutating L and C) from the "
+           "current zero, C at V_c0·√(1 − x²), until the SCR's voltage returns to zero "
+           "(C·V_c0·√(1 − x²)/I_o when a load choke holds the current); "
+           "t_c ≥ 1.2 tq (fail) / 1.5 tq (marginal)",
     source=_SRC, fn=_strip(turnoff.time_check), bind=_bind_time,  # type: ignore[arg-type]
     units={"turnoff_time": "s", "tq": "s"}, summarise=_sum_time,
     cautions=("tq grows with junction temperature, current, di/dt and reapplied dv/dt: use the "

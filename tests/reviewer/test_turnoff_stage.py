@@ -126,14 +126,20 @@ def test_no_tq_is_not_applicable():
 # ---- resonant commutation: Bimbhra Ex 5.2 circuit (230 V, 20 µF, 5 µH, 300 A) ---------------
 
 def res_circuit(*, c: float = 20e-6, l: float = 5e-6, diode: bool | None = False,  # noqa: E741
-                tq: float = 7e-6, c_voltage: float = 300.0, dvdt: float = 50e6) -> Project:
+                tq: float = 7e-6, c_voltage: float = 300.0, dvdt: float = 50e6,
+                load_l: float | None = 1.0) -> Project:
+    """The book's load current is constant: a load choke (1 H) holds it; ``load_l=None``
+    makes the load resistive."""
     rs = {"for": "sw", "c": val(c, "capacitance"), "l": val(l, "inductance"),
           "c_voltage": val(c_voltage, "voltage")}
     if diode is not None:
         rs["diode"] = diode
     sup = {"kind": "dc", "voltage": val(230.0, "voltage")}
+    load = {"r": val(230 / 300, "resistance")}
+    if load_l is not None:
+        load["l"] = val(load_l, "inductance")
     return project(sup, scr(tq, dvdt), {
-        "sw": Stage("sw", "dc-switch", {"scr": "Q1", "load": {"r": val(230 / 300, "resistance")}}),
+        "sw": Stage("sw", "dc-switch", {"scr": "Q1", "load": load}),
         "rs": Stage("rs", "resonant-commutation", rs)})
 
 
