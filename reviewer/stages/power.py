@@ -310,6 +310,9 @@ def _bind_output(ctx: Context) -> Bound:
         ev = b.inputs["e"].value
         b.add("e_full", _sp(ctx, "load.e") + "#max", ev.at(ev.hi))
         b.add("e_least", _sp(ctx, "load.e") + "#min", ev.at(ev.lo))
+        rv = b.inputs["r"].value  # the worst corner is sought over the R range too
+        b.add("r_min", _sp(ctx, "load.r") + "#min", rv.at(rv.lo))
+        b.add("r_max", _sp(ctx, "load.r") + "#max", rv.at(rv.hi))
     if not isinstance(req, Value):
         # The values are always reported; only the pass/fail needs a `required` range.
         b.options["quantity"] = "power"
@@ -362,6 +365,7 @@ def _fn_output(**kw: Any) -> Outcome:
     kw.pop("kind", None)
     kw.pop("emf", None)
     l_s = kw.pop("l_s", None)
+    r_min, r_max = kw.pop("r_min", None), kw.pop("r_max", None)
     w = _omega(kw)
     pulse = kw.get("gate_pulse")
     a, note = _pulses(kw, a, w)
@@ -369,15 +373,26 @@ def _fn_output(**kw: Any) -> Outcome:
     out = power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw)
     if note:
         out.notes.append(note)
+    if r_min is not None:
+        # A back EMF: the full and minimum outputs are the worst over the E and R ranges,
+        # from the exact waveform (the overlap taken off at each point), not a fixed pairing.
+        ext = rle.output_extremes(
+            topology=kw["topology"], freewheel=kw["freewheel"], quantity=kw["quantity"],
+            vs=kw["vs"], r_lo=r_min, r_hi=r_max, l=kw["l"], omega=w, alpha_lo=lo,
+            alpha_hi=hi, e_lo=kw["e_least"], e_hi=kw["e_full"], l_s=l_s)
+        out = rle.output_check(outcome=out, extremes=ext, req_lo=kw["req_lo"],
+                               req_hi=kw["req_hi"], limits=kw["limits"])
     if l_s is not None:
-        out = _overlap(out, kw, a, lo, w, l_s)
+        out = _overlap(out, kw, a, lo, w, l_s, emf=r_min is not None)
     return out
 
 
 def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
-             l_s: Any) -> Outcome:
+             l_s: Any, emf: bool = False) -> Outcome:
     """A bridge with source inductance: the overlap and the full output it costs (a
-    half-controlled bridge's diode leg freewheels: two transfers of I_d a half-cycle)."""
+    half-controlled bridge's diode leg freewheels: two transfers of I_d a half-cycle).
+    With a back EMF the overlap at each row comes from the waveform's current at the
+    transfer (a hand-over included), and the full output already has it taken off."""
     from checks import bridge
 
     semi = bool(kw.get("freewheel"))
@@ -385,11 +400,18 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
                   omega=omega, peak=False, e=kw.get("e"))
     cont = power.stage_values(alpha=a, **common)["continuous"]
     cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
+    transfer = None
+    if emf:
+        v = rle.stage_values(alpha=a, **common)
+        ib = v["vm"] / np.hypot(np.asarray(kw["r"], dtype=float),
+                                omega * np.asarray(kw["l"], dtype=float))
+        transfer = {"i_t": rle.transfer_current(v, v["phi"]) * ib, "i_pi": v["i_pi"] * ib}
     e_full = kw.get("e_full", kw.get("e"))
     return bridge.overlap_check(
         outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
         alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
-        continuous_lo=cont_lo, req_hi=kw["req_hi"], semi=semi)
+        continuous_lo=cont_lo, req_hi=kw["req_hi"], semi=semi, transfer=transfer,
+        lower=not emf)
 
 
 def _sum_burst(r: Reduced) -> str:
@@ -432,8 +454,9 @@ def _sum_output(r: Reduced) -> str:
                 # P ∝ 1/R at a given α and line: the load R that would just reach it.
                 r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
                 short += f", or load R ≤ {at_most(r_need, 'ohm')}"
-            if emf and r.bound.inputs["e"].value.varies:
-                short += f" (at E = {eng(r.bound.inputs['e'].value.hi, 'V')})"
+            if emf:
+                short += (f" (the worst corner: E = {eng(r.worst['e_at_full'], 'V')}, R = "
+                          f"{eng(r.worst['r_at_full'], 'ohm')})")
             fixes.append(short)
         if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
@@ -493,14 +516,18 @@ register(CheckDef(
            "Bridges with supply.inductance: the commutation overlap's drop, (2/π)·ωL_s·I_d "
            "(fully controlled) or ωL_s·I_d/π (half-controlled), comes off the full output. "
            "Full output (α_min, low line) must reach required.max; minimum (α_max, high line) "
-           "must be at or below required.min.",
+           "must be at or below required.min. A back EMF: both are the worst over the E and R "
+           "ranges (a 17 × 5 grid refined about its worst point) of the exact R–L–E waveform, "
+           "the overlap taken off where a current flows at the firing; the minimum voltage at "
+           "E min (V_dc ≥ E).",
     source="Rashid, Power Electronics 4th ed. §10–11 (Ex 10.1, 11.1, 11.2); Hart, Power "
            "Electronics §3",
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
            "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
            "overlap_angle": "deg", "overlap_drop": "V", "overlap_diode": "deg",
-           "power_step": "W"},
+           "power_step": "W", "e_at_full": "V", "r_at_full": "ohm", "e_at_least": "V",
+           "r_at_least": "ohm"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
