@@ -120,20 +120,28 @@ def semi_overlap_output(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray,
 
 def transfer_overlap(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray, l_s: np.ndarray,
                      alpha: np.ndarray, i_t: np.ndarray, i_pi: np.ndarray | float = 0.0,
-                     semi: bool = False) -> dict[str, np.ndarray]:
+                     semi: bool = False, l: np.ndarray | None = None,  # noqa: E741
+                     e: np.ndarray | float = 0.0,
+                     continuous: np.ndarray | None = None) -> dict[str, np.ndarray]:
     """The overlap of a transfer at the firing of a current ``i_t`` [A] that is not the ripple-
     free I_d: a bridge fired before the line exceeds the back EMF whose current still flows
     at the next pulse (a hand-over), or any waveform whose current at the firing is known.
 
-    The load current is taken as constant through the overlap, and the overlap's loss of
-    mean voltage, ΔV = c·i, c = 2ωL_s/π (fully controlled) or ωL_s/π (half-controlled),
-    lowers the current by ΔV/R, so the current transferred is i = i_t/(1 + c/R) and
-    cos(α + μ) = cos α − (2 or 1)·ωL_s·i/Vm  [1, ch. 5–6]. ``semi``: the diode leg takes the
-    current at π, ``i_pi`` [A] (reduced alike), over μ_d with cos μ_d = 1 − ωL_s·i_π/Vm; a
-    firing before that ends (α < μ_d) makes one overlap from the line zero, 1 − 2x, as in
-    :func:`semi_overlap_output`. Returns ``mu``, ``drop`` ΔV [V], ``mu_d`` (semi; NaN where
-    no current reaches π or the firing interrupts it), NaN μ where the transfer cannot end
-    before π. vs [V RMS]; r [Ω]; omega [rad/s]; l_s [H]; alpha [rad]; i_t, i_pi [A].
+    The transfer ends when the line current, rising through L_s as Vm(cos α − cos θ)/(ωL_s)
+    from −i (fully controlled) or 0 (half-controlled), meets the load current: without ``l``
+    that current is taken as constant, cos(α + μ) = cos α − (2 or 1)·ωL_s·i/Vm  [1, ch. 5–6];
+    with the load's ``l`` [H] and ``e`` [V] it decays through the overlap (the load sees 0 V:
+    i(θ) = (i + E/R)·e^(−R(θ − α)/ωL) − E/R), which matters where E is large against R·i (a
+    hand-over), and μ is the root of that meeting (bisection). Where the current is
+    ``continuous`` (default: every row) the overlap's loss of mean voltage ΔV = c·i
+    (c = 2ωL_s/π fully, ωL_s/π half-controlled) lowers it by ΔV/R, so i = i_t/(1 + c/R);
+    a hand-over's current is taken as it comes (``i_t`` from the waveform with L + L_s).
+    ``semi``: the diode leg takes the current at π, ``i_pi`` [A] (reduced alike), over μ_d
+    with cos μ_d = 1 − ωL_s·i_π/Vm; a firing before that ends (α < μ_d) makes one overlap
+    from the line zero, as in :func:`semi_overlap_output`. Returns ``mu``, ``drop`` ΔV [V],
+    ``mu_d`` (semi; NaN where no current reaches π or the firing interrupts it); NaN μ
+    where the transfer cannot end before π. vs [V RMS]; r [Ω]; omega [rad/s]; l_s [H];
+    alpha [rad]; i_t, i_pi [A].
 
     >>> kw = dict(vs=230.0, r=8.0, omega=2 * np.pi * 50, l_s=1e-3, alpha=np.radians(30))
     >>> i_d = overlap_output(**kw)["i_d"]  # ripple-free: i_t is I_d without the overlap
@@ -143,20 +151,45 @@ def transfer_overlap(*, vs: np.ndarray, r: np.ndarray, omega: np.ndarray, l_s: n
     """
     vm = np.sqrt(2.0) * _a(vs)
     xl = _a(omega) * _a(l_s)
-    a, r = _a(alpha), _a(r)
+    a, r = np.broadcast_arrays(_a(alpha), _a(r))
     c = (1.0 if semi else 2.0) * xl / np.pi
-    i = np.maximum(_a(i_t), 0.0) / (1.0 + c / r)
+    cont = np.ones(a.shape, dtype=bool) if continuous is None else _a(continuous) > 0
+    red = np.where(cont, 1.0 + c / r, 1.0)
+    i = np.maximum(_a(i_t), 0.0) / red
     x = xl * i / vm
+    start = 0.0 if semi else 1.0  # the line current starts at −i (fully) or 0 (half)
+    x_pi = 0.0 * x
+    early = np.zeros(np.broadcast(a, x).shape, dtype=bool)
     if semi:
-        x_pi = xl * np.maximum(_a(i_pi), 0.0) / (1.0 + c / r) / vm
+        x_pi = xl * np.maximum(_a(i_pi), 0.0) / red / vm
         mu_d = np.arccos(np.clip(1 - x_pi, -1.0, 1.0))
         early = (x_pi > 0) & (a < mu_d)
-        arg = np.where(early, 1 - x - x_pi, np.cos(a) - x)
         mu_d = np.where((x_pi > 0) & ~early, mu_d, np.nan)
+    # From the line zero when the firing interrupts the diode transfer, else from α.
+    a0 = np.where(early, 0.0, a)
+    base = np.where(early, x_pi, 0.0)  # the line current already at −i_π there
+    if l is None:
+        arg = np.cos(a0) - (1.0 + start) * x - base
+        with np.errstate(invalid="ignore"):
+            end = np.where(arg >= -1.0, np.arccos(np.clip(arg, -1.0, 1.0)), np.nan)
     else:
-        arg = np.cos(a) - 2 * x
-    with np.errstate(invalid="ignore"):
-        end = np.where(arg >= -1.0, np.arccos(np.clip(arg, -1.0, 1.0)), np.nan)
+        xload = np.maximum(_a(omega) * _a(l), 1e-300)
+        kk = _a(e) / r / vm * xl  # E/R in the same units as x (ωL_s·i/Vm)
+
+        def gap(th: np.ndarray) -> np.ndarray:
+            # line current (units of Vm/ωL_s) from its start, against the load current.
+            load = (x + kk) * np.exp(-r * (th - a) / xload) - kk
+            return np.cos(a0) - np.cos(th) - base - start * x - load
+
+        lo = a + 0.0 * x
+        hi = np.pi + 0.0 * x
+        ok = gap(hi) >= 0
+        for _ in range(60):
+            mid = 0.5 * (lo + hi)
+            up = gap(mid) >= 0
+            hi = np.where(up, mid, hi)
+            lo = np.where(up, lo, mid)
+        end = np.where(ok, 0.5 * (lo + hi), np.nan)
     out = {"mu": np.where(i > 0, end - a, 0.0), "drop": c * i}
     if semi:
         out["mu_d"] = mu_d
@@ -181,7 +214,8 @@ def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.nd
     longer reaches ``req_hi``).
 
     ``transfer`` (a back-EMF load): the rows' waveform currents at the transfer, ``i_t``
-    and ``i_pi`` [A] (:func:`transfer_overlap`), used in place of the ripple-free I_d at
+    and ``i_pi`` [A], and the load's ``l`` [H] and ``e`` [V] (:func:`transfer_overlap`; a
+    row not ``continuous`` is a hand-over there), used in place of the ripple-free I_d at
     every row where a current flows at the firing (``continuous`` > 0, or a hand-over:
     ``i_t`` > 0); ``lower`` False leaves ``output_at_min`` as given (its worst corner
     already has the overlap taken off).
@@ -192,7 +226,9 @@ def overlap_on_output(*, values: dict[str, np.ndarray], quantity: str, vs: np.nd
     cont = np.asarray(continuous) > 0
     if transfer is not None:
         row = transfer_overlap(vs=vs, r=r, omega=omega, l_s=l_s, alpha=alpha,
-                               i_t=transfer["i_t"], i_pi=transfer.get("i_pi", 0.0), semi=semi)
+                               i_t=transfer["i_t"], i_pi=transfer.get("i_pi", 0.0), semi=semi,
+                               l=transfer.get("l"), e=transfer.get("e", 0.0),
+                               continuous=continuous)
         cont = _a(transfer["i_t"]) > 0
     out["overlap_angle"] = np.where(cont, row["mu"], np.nan)
     out["overlap_drop"] = np.where(cont, row["drop"], np.nan)

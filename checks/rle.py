@@ -32,7 +32,7 @@ from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from checks.core import FAIL, PASS, Outcome, distinct_rows, grade
+from checks.core import FAIL, MARGINAL, PASS, Outcome, distinct_rows, grade
 from checks.power import _decay, _one_minus_decay, _segment_peak, segment_integrals
 from checks.rl import root_falling
 
@@ -475,13 +475,25 @@ def surge_check(*, vs: np.ndarray, r_cold: np.ndarray, l: np.ndarray,  # noqa: E
 
 
 def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
-                  alpha_hi: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+                  alpha_hi: np.ndarray, limits: Mapping[str, float], topology: str = "",
+                  freewheel: bool = False, r: np.ndarray | None = None,
+                  l: np.ndarray | None = None,  # noqa: E741
+                  omega: np.ndarray | None = None) -> Outcome:
     """``power.control`` with a back EMF: firing before θ1 = asin(E/Vm) starts no current, so a
     firing range that begins below θ1 has lost control there (a narrow gate pulse misses the
     half-cycle; a wide one fires at θ1 whatever the setting)  [1, §3], [2, ch. 6].
 
     metric = α_min/θ1 (graded with ``fail_below``); ``last_angle`` = π − θ1, the latest firing
     that gives any current. vs [V RMS]; e [V]; alpha_lo, alpha_hi [rad].
+
+    With the load (``topology``, ``freewheel``, ``r`` [Ω], ``l`` [H], ``omega`` [rad/s]): a
+    row whose current at α_lo still flows from the previous half-cycle without a break
+    (continuous conduction, :func:`waveform_pu`; not a hand-over tail that dies before θ1)
+    keeps control below θ1 — the incoming SCR is forward-biased by the line against the
+    outgoing pair (2·v) or the freewheeling diode (v), so even a narrow pulse fires it at
+    α. ``kept_by_current`` is 1 there and the row is marginal, not failed: control holds
+    only while the current runs; from rest (or after the current has stopped) a narrow
+    pulse below θ1 does nothing, so the start must come from α ≥ θ1 or a gate held past θ1.
 
     >>> o = control_check(vs=np.array([60.0]), e=12.0, alpha_lo=np.radians(5),
     ...                   alpha_hi=np.radians(120), limits={})
@@ -494,8 +506,16 @@ def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
         metric = np.where(th1 > 0, lo / th1, np.inf)
     margin, status = grade(metric, limits)
     margin = np.where(np.isinf(metric), np.inf, margin)
+    kept = np.zeros(np.shape(status), dtype=bool)
+    if r is not None and l is not None and omega is not None and topology in TOPOLOGIES:
+        v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l,
+                         omega=omega, alpha=lo, e=e, peak=False)
+        kept = (status == FAIL) & (v["continuous"] > 0) & (v["handed"] == 0)
+        status = np.where(kept, MARGINAL, status).astype(np.int8)
+        margin = np.where(kept, 0.0, margin)
     return Outcome({"emf_angle": th1, "alpha_min": lo, "alpha_max": _a(alpha_hi) + 0 * th1,
-                    "last_angle": np.pi - th1}, margin, status)
+                    "last_angle": np.pi - th1, "kept_by_current": kept + 0.0 * th1},
+                   margin, status)
 
 
 def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float, l: float,  # noqa: E741
@@ -564,22 +584,32 @@ def transfer_current(w: Mapping[str, np.ndarray], phi: np.ndarray) -> np.ndarray
 
 def _output_grid(*, topology: str, freewheel: bool, quantity: str, vm: np.ndarray,
                  r: np.ndarray, l: np.ndarray, omega: np.ndarray,  # noqa: E741
-                 alpha: np.ndarray, e: np.ndarray,
-                 l_s: np.ndarray | None) -> np.ndarray:
+                 alpha: np.ndarray, e: np.ndarray, l_s: np.ndarray | None,
+                 handover_drop: bool = True) -> np.ndarray:
     """The output ``quantity`` at arrays of the same shape (SI), the supply inductance's
     overlap taken off where the current is still flowing at the firing (continuous or a
     hand-over): ΔV = c·i_t/(1 + c/R), c = 2ωL_s/π (fully controlled: one transfer of 2·i_t)
     or ωL_s/π (half-controlled: the SCR takes i_t from the diode leg), i_t the current at the
-    transfer; the mean current falls by ΔV/R (a DC shift of the current)."""
-    x = omega * l
+    transfer; the mean current falls by ΔV/R (a DC shift of the current). Outside the
+    overlaps L_s is in series with the load, so the waveform is that of L + L_s (the mean of
+    L_s·di/dt over a periodic current is zero: the load terminals see the same mean).
+    A hand-over's ΔV over-states its loss (its current is not lowered by a DC shift: the
+    circuit solved in time loses less), so it counts only with ``handover_drop`` (the full
+    output's side, where more loss is the safe side); the minimum output's side leaves it
+    out (a higher output, again the safe side)."""
+    with_ls = l_s is not None and topology == "bridge"
+    x = omega * (l + l_s if with_ls else l)
     z = np.hypot(r, x)
     phi = np.arctan2(x, r)
     w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi, m=e / vm,
                     peak=False)
     ib = vm / z
     vdc, idc, irms = w["vdc"] * vm, w["idc"] * ib, w["irms"] * ib
-    if l_s is not None and topology == "bridge":
+    if with_ls:
+        assert l_s is not None
         i_t = transfer_current(w, phi) * ib
+        if not handover_drop:
+            i_t = np.where(w["handed"] > 0, 0.0, i_t)
         c = (1.0 if freewheel else 2.0) * omega * l_s / np.pi
         drop = c * i_t / (1.0 + c / r)
         d = drop / r
@@ -658,11 +688,13 @@ def output_extremes(*, topology: str, freewheel: bool, quantity: str, vs: np.nda
     # setting brings a faster motor below its own EMF; what the range asks is the slow state.
     eh_least = el if quantity == "voltage" else eh
     for name, alpha, sign, top in (("full", alo, 1.0, eh), ("least", ahi, -1.0, eh_least)):
-        def f(e: np.ndarray, r: np.ndarray, alpha: np.ndarray = alpha) -> np.ndarray:
+        def f(e: np.ndarray, r: np.ndarray, alpha: np.ndarray = alpha,
+              full: bool = sign > 0) -> np.ndarray:
             col = (slice(None), None)
             return _output_grid(topology=topology, freewheel=freewheel, quantity=quantity,
                                 vm=vm[col], r=r, l=ll[col], omega=om[col], alpha=alpha[col],
-                                e=e, l_s=None if l_s is None else ls[col])
+                                e=e, l_s=None if l_s is None else ls[col],
+                                handover_drop=full)
 
         fe = np.linspace(0.0, 1.0, 17)
         fr = np.linspace(0.0, 1.0, 5)

@@ -402,10 +402,13 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
     cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
     transfer = None
     if emf:
-        v = rle.stage_values(alpha=a, **common)
-        ib = v["vm"] / np.hypot(np.asarray(kw["r"], dtype=float),
-                                omega * np.asarray(kw["l"], dtype=float))
-        transfer = {"i_t": rle.transfer_current(v, v["phi"]) * ib, "i_pi": v["i_pi"] * ib}
+        # The waveform with L_s in series (outside the overlaps it carries the load current).
+        l_tot = np.asarray(kw["l"], dtype=float) + np.asarray(l_s, dtype=float)
+        v = rle.stage_values(alpha=a, **(common | {"l": l_tot}))
+        ib = v["vm"] / np.hypot(np.asarray(kw["r"], dtype=float), omega * l_tot)
+        transfer = {"i_t": rle.transfer_current(v, v["phi"]) * ib, "i_pi": v["i_pi"] * ib,
+                    "l": kw["l"], "e": kw["e"]}
+        cont = v["continuous"]
     e_full = kw.get("e_full", kw.get("e"))
     return bridge.overlap_check(
         outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
@@ -1400,6 +1403,14 @@ def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
     b.options["emf"] = _emf_type(ctx)
     ctx.need(b, "vs", "supply.voltage")
     ctx.need(b, "e", _sp(ctx, "load.e"))
+    if ctx.stage.get("topology") in rle.TOPOLOGIES:
+        # The load decides whether a current still flows at a firing below θ1.
+        b.options["topology"] = ctx.stage.get("topology")
+        b.options["freewheel"] = bool(ctx.stage.get("freewheel", False))
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+        b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+        ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
     return b
 
@@ -1408,6 +1419,8 @@ def _fn_control(**kw: Any) -> Outcome:
     if "emf" in kw:
         kw.pop("emf")
         _, lo, hi = _firing(kw)
+        if "topology" in kw:
+            kw["omega"] = _omega(kw)
         kw.pop("freq", None)
         return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     _, lo, _ = _firing(kw)
@@ -1480,10 +1493,20 @@ def _sum_control_emf(r: Reduced) -> str:
     text = (f"the line exceeds the back EMF from θ1 = asin(E/Vm) = "
             f"{span(r.lo['emf_angle'], th1, 'deg')}; the earliest firing is "
             f"{_deg(r.lo['alpha_min'])}")
-    if r.status != "pass":
+    kept = r.hi.get("kept_by_current", 0.0) > 0
+    if r.status == "fail":
         text += (f"; fails: firing before {_deg(th1)} does nothing (a short gate pulse misses "
                  f"the half-cycle, a long one fires at θ1), so the range loses control below "
                  f"it: needs α_min ≥ {_deg(th1)}, or a gate pulse lasting past θ1")
+        if kept:
+            text += ("; at some corners the current still flows at α_min, which keeps "
+                     "control there")
+    elif kept:
+        text += (f"; below θ1 = {_deg(th1)} control holds only while the current runs on "
+                 "from the previous half-cycle (continuous conduction: the incoming SCR is "
+                 "forward-biased at α_min and a narrow pulse fires it); from rest, or once "
+                 "the current has stopped, a narrow pulse there does nothing: marginal, start "
+                 f"from α ≥ {_deg(th1)} (a soft start) or hold the gate past θ1")
     last = r.lo["last_angle"]
     if r.hi["alpha_max"] >= last:
         text += (f"; above π − θ1 = {_deg(last)} the line never exceeds E again: no current "
@@ -1501,6 +1524,7 @@ register(CheckDef(
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
     units={"load_angle": "deg", "emf_angle": "deg", "first_zero_lag": "deg",
+           "kept_by_current": "1",
            "required_width": "s", "steady_lag_time": "s", "pulse_width": "s"},
     summarise=_sum_control,
     fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train "
