@@ -585,18 +585,19 @@ def transfer_current(w: Mapping[str, np.ndarray], phi: np.ndarray) -> np.ndarray
 def _output_grid(*, topology: str, freewheel: bool, quantity: str, vm: np.ndarray,
                  r: np.ndarray, l: np.ndarray, omega: np.ndarray,  # noqa: E741
                  alpha: np.ndarray, e: np.ndarray, l_s: np.ndarray | None,
-                 handover_drop: bool = True) -> np.ndarray:
+                 err_low: bool = True) -> np.ndarray:
     """The output ``quantity`` at arrays of the same shape (SI), the supply inductance's
     overlap taken off where the current is still flowing at the firing (continuous or a
-    hand-over): ΔV = c·i_t/(1 + c/R), c = 2ωL_s/π (fully controlled: one transfer of 2·i_t)
+    hand-over): ΔV ≈ c·i_t/(1 + c/R), c = 2ωL_s/π (fully controlled: one transfer of 2·i_t)
     or ωL_s/π (half-controlled: the SCR takes i_t from the diode leg), i_t the current at the
     transfer; the mean current falls by ΔV/R (a DC shift of the current). Outside the
     overlaps L_s is in series with the load, so the waveform is that of L + L_s (the mean of
     L_s·di/dt over a periodic current is zero: the load terminals see the same mean).
-    A hand-over's ΔV over-states its loss (its current is not lowered by a DC shift: the
-    circuit solved in time loses less), so it counts only with ``handover_drop`` (the full
-    output's side, where more loss is the safe side); the minimum output's side leaves it
-    out (a higher output, again the safe side)."""
+    The two sides err apart, each to its safe side (checked against the circuit solved in
+    time): with ``err_low`` (the full output) ΔV = c·i_t, the current not lowered by its own
+    drop, for every transfer; without (the minimum output) a continuous current's
+    ΔV = c·i_t/(1 + c/R) and none for a hand-over (whose loss that over-states: its current
+    is not a DC level the drop shifts)."""
     with_ls = l_s is not None and topology == "bridge"
     x = omega * (l + l_s if with_ls else l)
     z = np.hypot(r, x)
@@ -608,10 +609,9 @@ def _output_grid(*, topology: str, freewheel: bool, quantity: str, vm: np.ndarra
     if with_ls:
         assert l_s is not None
         i_t = transfer_current(w, phi) * ib
-        if not handover_drop:
-            i_t = np.where(w["handed"] > 0, 0.0, i_t)
         c = (1.0 if freewheel else 2.0) * omega * l_s / np.pi
-        drop = c * i_t / (1.0 + c / r)
+        # err_low: the current unlowered by its own drop, more loss.
+        drop = c * i_t if err_low else np.where(w["handed"] > 0, 0.0, c * i_t / (1.0 + c / r))
         d = drop / r
         vdc = vdc - drop
         irms = np.sqrt(np.maximum(irms ** 2 - 2 * idc * d + d * d, 0.0))
@@ -694,7 +694,7 @@ def output_extremes(*, topology: str, freewheel: bool, quantity: str, vs: np.nda
             return _output_grid(topology=topology, freewheel=freewheel, quantity=quantity,
                                 vm=vm[col], r=r, l=ll[col], omega=om[col], alpha=alpha[col],
                                 e=e, l_s=None if l_s is None else ls[col],
-                                handover_drop=full)
+                                err_low=full)
 
         fe = np.linspace(0.0, 1.0, 17)
         fr = np.linspace(0.0, 1.0, 5)
