@@ -91,6 +91,11 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
 
     In steady state the mean of L·di/dt is zero, so V_dc = E + R·I_dc: a self-check.
 
+    A half-wave stage without a freewheel has one segment from zero per cycle, however long
+    L/R: over a cycle from a0 the line's mean is zero, so L·i(a0 + 2π) = −2πE/ω − R·∫i < 0
+    were the current positive throughout, and it cannot reach zero while the line exceeds
+    E; so it ends before 2π + θ1 (the root's bracket) and the next firing finds no current.
+
     >>> w = waveform_pu(topology="half-wave", freewheel=False, alpha=0.0, phi=0.0,
     ...                 m=12.0 / 84.85)  # a diode-like charger: conducts θ1 .. π − θ1
     >>> round(float(np.degrees(w["beta"] - w["alpha_eff"])), 2)

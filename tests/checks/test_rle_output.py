@@ -354,3 +354,31 @@ def test_a_freewheeling_current_keeps_a_half_controlled_bridge_below_theta1():
     o = rle.control_check(vs=np.array([vs]), e=e, alpha_lo=a, alpha_hi=np.radians(120),
                           limits={}, topology="bridge", freewheel=True, r=r, l=l, omega=W50)
     assert o.status.tolist() == [1]
+
+
+def test_continuous_overlap_against_solve_ivp_and_the_ripple_free_formula():
+    """230 V, R 5 Ω, L 300 mH, E 100 V, α 30°, L_s 2 mH (a continuous full bridge): the
+    circuit's overlap is 5.58° and its mean output 173.83 V. The ripple-free formula
+    (cos(α + μ) = cos α − 2ωL_s·I_d/Vm, I_d = [(2Vm/π)cos α − E]/(R + 2ωL_s/π): 5.98°,
+    173.45 V) over-states μ by 7 %; the current at the transfer is within 1 %."""
+    vs, r, l, e, l_s, a = 230.0, 5.0, 0.3, 100.0, 2e-3, np.radians(30)
+    vm = np.sqrt(2) * vs
+    ref = sim(topology="bridge", freewheel=False, vs=vs, r=r, l=l, e=e, alpha=a, l_s=l_s,
+              cycles=30)
+    v = rle.stage_values(topology="bridge", freewheel=False, vs=vs, r=r, l=l + l_s,
+                         omega=W50, alpha=a, e=e)
+    i_t = float(rle.transfer_current(v, v["phi"])) * vm / np.hypot(r, W50 * (l + l_s))
+    o = bridge.transfer_overlap(vs=vs, r=r, omega=W50, l_s=l_s, alpha=a, i_t=i_t, l=l, e=e,
+                                continuous=v["continuous"])
+    rf = bridge.overlap_output(vs=vs, r=r, omega=W50, l_s=l_s, alpha=a, e=e)
+    assert float(o["mu"]) == pytest.approx(ref["mu"], rel=0.01)
+    assert float(rf["mu"]) == pytest.approx(ref["mu"], rel=0.08)
+    assert float(rf["vdc"]) == pytest.approx(ref["vdc"], rel=REL)
+    kw = dict(topology="bridge", freewheel=False, quantity="voltage", vm=vm, r=np.array(r),
+              l=np.array(l), omega=np.array(W50), alpha=np.array(a), e=np.array(e),
+              l_s=np.array(l_s))
+    full = float(rle._output_grid(err_low=True, **kw))
+    least = float(rle._output_grid(err_low=False, **kw))
+    assert full <= ref["vdc"] <= least
+    assert full == pytest.approx(ref["vdc"], rel=REL)
+    assert least == pytest.approx(ref["vdc"], rel=REL)
