@@ -256,3 +256,41 @@ def test_half_controlled_bridge_overlap_costs_output():
     assert r.values["overlap_angle"].max == pytest.approx(
         math.degrees(math.acos(math.cos(math.pi / 6) - x)) - 30.0, rel=0.08)
     assert out("2 mH", "189 V").status == "pass"
+
+
+def test_full_armature_voltage_is_taken_where_the_current_runs_continuously():
+    """The motor demo (half-controlled bridge, α_min 40°, E 80–150 V, R 8 Ω ±10 %, 207 V low
+    line): the least mean armature voltage at α_min is (Vm/π)(1 + cos 40°) = 164.6 V, with
+    the overlap a little less, at E = 80 V where the current runs continuously; at E = 150 V
+    the zero-current intervals at E lift it to 172.8 V. A requirement of 168 V fails."""
+    from pathlib import Path
+
+    text = (Path(__file__).parents[2] / "projects" / "motor-dc.toml").read_text()
+
+    def out(req: str):
+        p = load_project_text(text.replace('max = "160 V" }', f'max = "{req}" }}'), "m.toml")
+        return evaluate(p, only=[("armature", "power.output")], strict=True).results[0]
+
+    r = out("160 V")
+    assert r.status == "pass"
+    vm = 2**0.5 * 207
+    assert r.margin == pytest.approx(vm / math.pi * (1 + math.cos(math.radians(40))) / 160 - 1,
+                                     abs=2e-3)
+    r = out("168 V")
+    assert r.status == "fail" and "E = 80 V" in r.summary and "R = 7.2 Ω" in r.summary
+
+
+def test_control_below_theta1_is_kept_by_a_continuous_current():
+    """Full bridge, E 100 V on 230 V (θ1 = 17.9°), L 300 mH: fired from 10° the armature
+    current never stops, so the incoming pair fires at α even from a narrow pulse: marginal
+    (not from rest), not a fail; with L 3 mH the current stops and control below θ1 is lost."""
+    def ctl(l: str):
+        text = MOTOR.replace("LS", "0 uH").replace("REQ", "170 V").replace(
+            'min = "30 deg"', 'min = "10 deg"').replace('l = "300 mH"', f'l = "{l}"')
+        p = load_project_text(text, "m.toml")
+        return evaluate(p, only=[("drive", "power.control")], strict=True).results[0]
+
+    r = ctl("300 mH")
+    assert r.status == "marginal" and "narrow pulse" in r.summary and "from rest" in r.summary
+    r = ctl("3 mH")
+    assert r.status == "fail" and "does nothing" in r.summary
