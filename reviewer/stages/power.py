@@ -444,8 +444,9 @@ def _sum_output(r: Reduced) -> str:
     if q == "current":
         name = {"battery": "charge current", "motor": "armature current"}.get(emf,
                                                                               "load current")
+    worst = " at the worst E and R" if emf else ""
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
-            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
+            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output{worst})")
     req_hi = r.bound.inputs["req_hi"].value.nom
     req_lo = r.bound.inputs["req_lo"].value.nom
     if r.status != "pass":
