@@ -682,11 +682,11 @@ def output_extremes(*, topology: str, freewheel: bool, quantity: str, vs: np.nda
     >>> round(float(o["full"]), 2), round(float(o["e_full"]), 1)  # continuous: (Vm/π)(1+cos α)
     (164.56, 80.0)
     """
-    arrs = np.broadcast_arrays(_a(vs), _a(r_lo), _a(r_hi), _a(l), _a(omega), _a(alpha_lo),
-                               _a(alpha_hi), _a(e_lo), _a(e_hi),
-                               _a(0.0 if l_s is None else l_s))
-    shape = arrs[0].shape
-    vs_, rl, rh, ll, om, alo, ahi, el, eh, ls = (np.array(x, dtype=float).ravel() for x in arrs)
+    # Each distinct row once: a corner table repeats these for the row's own E and R, which
+    # the search does not read.
+    cols, back = distinct_rows(vs, r_lo, r_hi, l, omega, alpha_lo, alpha_hi, e_lo, e_hi,
+                               0.0 if l_s is None else l_s)
+    vs_, rl, rh, ll, om, alo, ahi, el, eh, ls = cols
     vm = np.sqrt(2.0) * vs_
     out: dict[str, np.ndarray] = {}
     # The minimum terminal voltage is taken at the least E: V_dc = E + R·I_dc ≥ E, so no
@@ -713,9 +713,9 @@ def output_extremes(*, topology: str, freewheel: bool, quantity: str, vs: np.nda
         r_b = rg.reshape(len(vm), -1)[rows, j]
         best, e_b, r_b = _scan(f, el, top, r_b, 0, sign, best, e_b, r_b)
         best, r_b, e_b = _scan(f, rl, rh, e_b, 1, sign, best, r_b, e_b)
-        out[name] = (sign * best).reshape(shape)
-        out["e_" + name] = e_b.reshape(shape)
-        out["r_" + name] = r_b.reshape(shape)
+        out[name] = (sign * best)[back]
+        out["e_" + name] = e_b[back]
+        out["r_" + name] = r_b[back]
     return out
 
 
