@@ -374,11 +374,17 @@ def _fn_output(**kw: Any) -> Outcome:
     if note:
         out.notes.append(note)
     if r_min is not None:
-        # A back EMF: the full and minimum outputs are the worst over the E and R ranges,
-        # from the exact waveform (the overlap taken off at each point), not a fixed pairing.
+        # A back EMF: the full and minimum outputs are the worst over the E range (the state
+        # of charge or the speed: it varies in operation) from the exact waveform (the
+        # overlap taken off at each point), not a fixed pairing. R is a part value: a row at
+        # an end of its tolerance stands for the whole range (the power can peak inside it);
+        # a row inside it (nominal, a Monte Carlo sample) is that unit's own R.
+        r = np.asarray(kw["r"], dtype=float)
+        at_end = np.isclose(r, r_min, rtol=1e-12) | np.isclose(r, r_max, rtol=1e-12)
         ext = rle.output_extremes(
             topology=kw["topology"], freewheel=kw["freewheel"], quantity=kw["quantity"],
-            vs=kw["vs"], r_lo=r_min, r_hi=r_max, l=kw["l"], omega=w, alpha_lo=lo,
+            vs=kw["vs"], r_lo=np.where(at_end, r_min, r), r_hi=np.where(at_end, r_max, r),
+            l=kw["l"], omega=w, alpha_lo=lo,
             alpha_hi=hi, e_lo=kw["e_least"], e_hi=kw["e_full"], l_s=l_s)
         out = rle.output_check(outcome=out, extremes=ext, req_lo=kw["req_lo"],
                                req_hi=kw["req_hi"], limits=kw["limits"])
@@ -444,7 +450,7 @@ def _sum_output(r: Reduced) -> str:
     if q == "current":
         name = {"battery": "charge current", "motor": "armature current"}.get(emf,
                                                                               "load current")
-    worst = " at the worst E and R" if emf else ""
+    worst = " at the worst E" if emf else ""
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
             f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output{worst})")
     req_hi = r.bound.inputs["req_hi"].value.nom
