@@ -526,8 +526,9 @@ register(CheckDef(
            "Bridges with supply.inductance: the commutation overlap's drop, (2/π)·ωL_s·I_d "
            "(fully controlled) or ωL_s·I_d/π (half-controlled), comes off the full output. "
            "Full output (α_min, low line) must reach required.max; minimum (α_max, high line) "
-           "must be at or below required.min. A back EMF: both are the worst over the E and R "
-           "ranges (a 17 × 5 grid refined about its worst point) of the exact R–L–E waveform, "
+           "must be at or below required.min. A back EMF: both are the worst over the E range "
+           "and, at a corner at an end of R's tolerance, over R (a 17 × 5 grid refined about "
+           "its worst point) of the exact R–L–E waveform, "
            "the overlap taken off where a current flows at the firing; the minimum voltage at "
            "E min (V_dc ≥ E).",
     source="Rashid, Power Electronics 4th ed. §10–11 (Ex 10.1, 11.1, 11.2); Hart, Power "
@@ -1527,7 +1528,9 @@ register(CheckDef(
              "load angle?",
     method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ. Burst control: the "
            "gate pulse against the first current zero after a voltage-zero start, "
-           "(β(0, φ) − π)/ω.",
+           "(β(0, φ) − π)/ω. A back EMF: pass when α_min ≥ θ1 = asin(E/Vm); below it, "
+           "marginal where the R–L–E current still flows at α_min (continuous: the incoming "
+           "SCR is forward-biased, control holds while running but not from rest), else fail.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
     units={"load_angle": "deg", "emf_angle": "deg", "first_zero_lag": "deg",
