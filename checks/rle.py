@@ -28,11 +28,11 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 
 import numpy as np
 
-from checks.core import FAIL, PASS, Outcome, distinct_rows, grade
+from checks.core import FAIL, MARGINAL, PASS, Outcome, distinct_rows, grade
 from checks.power import _decay, _one_minus_decay, _segment_peak, segment_integrals
 from checks.rl import root_falling
 
@@ -90,6 +90,11 @@ def waveform_pu(*, topology: str, freewheel: bool, alpha: np.ndarray, phi: np.nd
       k2 = e^(−Δ/tan φ), Δ = π + α (half-wave) or α (bridge).
 
     In steady state the mean of L·di/dt is zero, so V_dc = E + R·I_dc: a self-check.
+
+    A half-wave stage without a freewheel has one segment from zero per cycle, however long
+    L/R: over a cycle from a0 the line's mean is zero, so L·i(a0 + 2π) = −2πE/ω − R·∫i < 0
+    were the current positive throughout, and it cannot reach zero while the line exceeds
+    E; so it ends before 2π + θ1 (the root's bracket) and the next firing finds no current.
 
     >>> w = waveform_pu(topology="half-wave", freewheel=False, alpha=0.0, phi=0.0,
     ...                 m=12.0 / 84.85)  # a diode-like charger: conducts θ1 .. π − θ1
@@ -475,13 +480,25 @@ def surge_check(*, vs: np.ndarray, r_cold: np.ndarray, l: np.ndarray,  # noqa: E
 
 
 def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
-                  alpha_hi: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+                  alpha_hi: np.ndarray, limits: Mapping[str, float], topology: str = "",
+                  freewheel: bool = False, r: np.ndarray | None = None,
+                  l: np.ndarray | None = None,  # noqa: E741
+                  omega: np.ndarray | None = None) -> Outcome:
     """``power.control`` with a back EMF: firing before θ1 = asin(E/Vm) starts no current, so a
     firing range that begins below θ1 has lost control there (a narrow gate pulse misses the
     half-cycle; a wide one fires at θ1 whatever the setting)  [1, §3], [2, ch. 6].
 
     metric = α_min/θ1 (graded with ``fail_below``); ``last_angle`` = π − θ1, the latest firing
     that gives any current. vs [V RMS]; e [V]; alpha_lo, alpha_hi [rad].
+
+    With the load (``topology``, ``freewheel``, ``r`` [Ω], ``l`` [H], ``omega`` [rad/s]): a
+    row whose current at α_lo still flows from the previous half-cycle without a break
+    (continuous conduction, :func:`waveform_pu`; not a hand-over tail that dies before θ1)
+    keeps control below θ1 — the incoming SCR is forward-biased by the line against the
+    outgoing pair (2·v) or the freewheeling diode (v), so even a narrow pulse fires it at
+    α. ``kept_by_current`` is 1 there and the row is marginal, not failed: control holds
+    only while the current runs; from rest (or after the current has stopped) a narrow
+    pulse below θ1 does nothing, so the start must come from α ≥ θ1 or a gate held past θ1.
 
     >>> o = control_check(vs=np.array([60.0]), e=12.0, alpha_lo=np.radians(5),
     ...                   alpha_hi=np.radians(120), limits={})
@@ -494,8 +511,16 @@ def control_check(*, vs: np.ndarray, e: np.ndarray, alpha_lo: np.ndarray,
         metric = np.where(th1 > 0, lo / th1, np.inf)
     margin, status = grade(metric, limits)
     margin = np.where(np.isinf(metric), np.inf, margin)
+    kept = np.zeros(np.shape(status), dtype=bool)
+    if r is not None and l is not None and omega is not None and topology in TOPOLOGIES:
+        v = stage_values(topology=topology, freewheel=freewheel, vs=vs, r=r, l=l,
+                         omega=omega, alpha=lo, e=e, peak=False)
+        kept = (status == FAIL) & (v["continuous"] > 0) & (v["handed"] == 0)
+        status = np.where(kept, MARGINAL, status).astype(np.int8)
+        margin = np.where(kept, 0.0, margin)
     return Outcome({"emf_angle": th1, "alpha_min": lo, "alpha_max": _a(alpha_hi) + 0 * th1,
-                    "last_angle": np.pi - th1}, margin, status)
+                    "last_angle": np.pi - th1, "kept_by_current": kept + 0.0 * th1},
+                   margin, status)
 
 
 def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float, l: float,  # noqa: E741
@@ -545,3 +570,175 @@ def load_waveform(*, topology: str, freewheel: bool, vs: float, r: float, l: flo
             i_load = np.where(fw, (i_pi + k) * _decay(y, tau) - k, i_load)
             v_load = np.where(fw, 0.0, v_load)
     return theta, v_load * vm, np.maximum(i_load, 0.0) * vm / z
+
+
+# --------------------------------------------------------------------------------------------
+# power.output of a back-EMF load: the worst corner over the E and R ranges.
+
+def transfer_current(w: Mapping[str, np.ndarray], phi: np.ndarray) -> np.ndarray:
+    """The load current at the firing of a :func:`waveform_pu` result (load angle ``phi``)
+    [per unit]: what the incoming SCR takes over from the conducting pair (or the
+    freewheeling diode) through the supply inductance. Zero where each firing starts from
+    zero current."""
+    k = w["offset"]
+    at_a = np.sin(w["seg_a"] - phi) - k + w["seg_c"]  # continuous: i at α (start)
+    at_tail = np.sin(w["tail_a"] - phi) - k + w["tail_c"]  # hand-over: i at α
+    i_t = np.where(w["handed"] > 0, at_tail, np.where(w["continuous"] > 0, at_a, 0.0))
+    return np.maximum(i_t, 0.0)
+
+
+def _output_grid(*, topology: str, freewheel: bool, quantity: str, vm: np.ndarray,
+                 r: np.ndarray, l: np.ndarray, omega: np.ndarray,  # noqa: E741
+                 alpha: np.ndarray, e: np.ndarray, l_s: np.ndarray | None,
+                 err_low: bool = True) -> np.ndarray:
+    """The output ``quantity`` at arrays of the same shape (SI), the supply inductance's
+    overlap taken off where the current is still flowing at the firing (continuous or a
+    hand-over): ΔV ≈ c·i_t/(1 + c/R), c = 2ωL_s/π (fully controlled: one transfer of 2·i_t)
+    or ωL_s/π (half-controlled: the SCR takes i_t from the diode leg), i_t the current at the
+    transfer; the mean current falls by ΔV/R (a DC shift of the current). Outside the
+    overlaps L_s is in series with the load, so the waveform is that of L + L_s (the mean of
+    L_s·di/dt over a periodic current is zero: the load terminals see the same mean).
+    The two sides err apart, each to its safe side (checked against the circuit solved in
+    time): with ``err_low`` (the full output) ΔV = c·i_t, the current not lowered by its own
+    drop, for every transfer; without (the minimum output) a continuous current's
+    ΔV = c·i_t/(1 + c/R) and none for a hand-over (whose loss that over-states: its current
+    is not a DC level the drop shifts)."""
+    with_ls = l_s is not None and topology == "bridge"
+    x = omega * (l + l_s if with_ls else l)
+    z = np.hypot(r, x)
+    phi = np.arctan2(x, r)
+    w = waveform_pu(topology=topology, freewheel=freewheel, alpha=alpha, phi=phi, m=e / vm,
+                    peak=False)
+    ib = vm / z
+    vdc, idc, irms = w["vdc"] * vm, w["idc"] * ib, w["irms"] * ib
+    if with_ls:
+        assert l_s is not None
+        i_t = transfer_current(w, phi) * ib
+        c = (1.0 if freewheel else 2.0) * omega * l_s / np.pi
+        # err_low: the current unlowered by its own drop, more loss.
+        drop = c * i_t if err_low else np.where(w["handed"] > 0, 0.0, c * i_t / (1.0 + c / r))
+        d = drop / r
+        vdc = vdc - drop
+        irms = np.sqrt(np.maximum(irms ** 2 - 2 * idc * d + d * d, 0.0))
+        idc = np.maximum(idc - d, 0.0)
+    if quantity == "voltage":
+        return vdc
+    if quantity == "current":
+        return idc
+    return e * idc + r * irms ** 2
+
+
+def _scan(f: Callable[[np.ndarray, np.ndarray], np.ndarray], lo: np.ndarray, hi: np.ndarray,
+          fixed: np.ndarray, pick: int, sign: float, best: np.ndarray, arg: np.ndarray,
+          other: np.ndarray, n: int = 17, passes: int = 3) -> tuple[np.ndarray, ...]:
+    """Refine the least sign·f over one coordinate (``pick`` 0: E, 1: R) on [lo, hi] per row,
+    the other held at ``fixed``: a grid of n points, then twice a grid across the best
+    point's neighbours. Returns the least (best, arg, other) including the given ones, so a
+    refinement can only find a worse corner, never lose one."""
+    a, b = lo.copy(), hi.copy()
+    frac = np.linspace(0.0, 1.0, n)
+    for _ in range(passes):
+        pts = a[:, None] + (b - a)[:, None] * frac
+        fix = np.broadcast_to(fixed[:, None], pts.shape)
+        val = sign * (f(pts, fix) if pick == 0 else f(fix, pts))
+        j = np.argmin(val, axis=1)
+        rows = np.arange(len(j))
+        v = val[rows, j]
+        take = v < best
+        best = np.where(take, v, best)
+        arg = np.where(take, pts[rows, j], arg)
+        other = np.where(take, fixed, other)
+        step = (b - a) / (n - 1)
+        a, b = np.maximum(pts[rows, j] - step, lo), np.minimum(pts[rows, j] + step, hi)
+    return best, arg, other
+
+
+def output_extremes(*, topology: str, freewheel: bool, quantity: str, vs: np.ndarray,
+                    r_lo: np.ndarray, r_hi: np.ndarray, l: np.ndarray,  # noqa: E741
+                    omega: np.ndarray, alpha_lo: np.ndarray, alpha_hi: np.ndarray,
+                    e_lo: np.ndarray, e_hi: np.ndarray,
+                    l_s: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """The full output (least over the E and R ranges at α_lo) and the minimum output (most
+    over them at α_hi) of a back-EMF load, per row (the row's line and inductance).
+
+    ``quantity``: ``voltage`` (mean terminal voltage: the line while the load conducts, 0 V
+    while a diode freewheels, E while no current flows), ``current`` (mean charge or armature
+    current) or ``power`` (E·I_dc + R·I_rms²), each from the exact waveform
+    (:func:`waveform_pu`: discontinuous, continuous, freewheeling, hand-over); with ``l_s``
+    [H] a bridge's overlap is taken off (:func:`_output_grid`). The extremes need not lie at
+    the ends of the E range (the terminal voltage is least where the conduction turns
+    continuous, the power can peak inside the ranges), so a 17 × 5 grid over E × R is refined
+    around its worst point, first along E, then along R (a grid of 17 across the neighbours,
+    three times each). The minimum of a ``voltage`` is taken at E = e_lo only: V_dc = E +
+    R·I_dc ≥ E, so no setting holds a faster motor below its own EMF; the range's low end
+    asks for the slow state.
+
+    vs [V RMS]; r_lo, r_hi [Ω]; l [H]; omega [rad/s]; alpha_lo, alpha_hi [rad]; e_lo, e_hi [V].
+    Returns ``full``, ``e_full``, ``r_full``, ``least``, ``e_least``, ``r_least``.
+
+    >>> o = output_extremes(topology="bridge", freewheel=True, quantity="voltage",
+    ...     vs=207.0, r_lo=7.2, r_hi=8.8, l=0.08, omega=2 * np.pi * 50,
+    ...     alpha_lo=np.radians(40), alpha_hi=np.radians(135), e_lo=80.0, e_hi=150.0)
+    >>> round(float(o["full"]), 2), round(float(o["e_full"]), 1)  # continuous: (Vm/π)(1+cos α)
+    (164.56, 80.0)
+    """
+    # Each distinct row once: a corner table repeats these for the row's own E and R, which
+    # the search does not read.
+    cols, back = distinct_rows(vs, r_lo, r_hi, l, omega, alpha_lo, alpha_hi, e_lo, e_hi,
+                               0.0 if l_s is None else l_s)
+    vs_, rl, rh, ll, om, alo, ahi, el, eh, ls = cols
+    vm = np.sqrt(2.0) * vs_
+    out: dict[str, np.ndarray] = {}
+    # The minimum terminal voltage is taken at the least E: V_dc = E + R·I_dc ≥ E, so no
+    # setting brings a faster motor below its own EMF; what the range asks is the slow state.
+    eh_least = el if quantity == "voltage" else eh
+    for name, alpha, sign, top in (("full", alo, 1.0, eh), ("least", ahi, -1.0, eh_least)):
+        def f(e: np.ndarray, r: np.ndarray, alpha: np.ndarray = alpha,
+              full: bool = sign > 0) -> np.ndarray:
+            col = (slice(None), None)
+            return _output_grid(topology=topology, freewheel=freewheel, quantity=quantity,
+                                vm=vm[col], r=r, l=ll[col], omega=om[col], alpha=alpha[col],
+                                e=e, l_s=None if l_s is None else ls[col],
+                                err_low=full)
+
+        fe = np.linspace(0.0, 1.0, 17)
+        fr = np.linspace(0.0, 1.0, 5)
+        eg = (el[:, None] + (top - el)[:, None] * fe)[:, None, :] + 0 * fr[None, :, None]
+        rg = (rl[:, None] + (rh - rl)[:, None] * fr)[:, :, None] + 0 * fe[None, None, :]
+        val = sign * f(eg.reshape(len(vm), -1), rg.reshape(len(vm), -1))
+        j = np.argmin(val, axis=1)
+        rows = np.arange(len(j))
+        best = val[rows, j]
+        e_b = eg.reshape(len(vm), -1)[rows, j]
+        r_b = rg.reshape(len(vm), -1)[rows, j]
+        best, e_b, r_b = _scan(f, el, top, r_b, 0, sign, best, e_b, r_b)
+        best, r_b, e_b = _scan(f, rl, rh, e_b, 1, sign, best, r_b, e_b)
+        out[name] = (sign * best)[back]
+        out["e_" + name] = e_b[back]
+        out["r_" + name] = r_b[back]
+    return out
+
+
+def output_check(*, outcome: Outcome, extremes: Mapping[str, np.ndarray], req_lo: np.ndarray,
+                 req_hi: np.ndarray, limits: Mapping[str, float]) -> Outcome:
+    """``power.output`` of a back-EMF load regraded on :func:`output_extremes`: the row's
+    values of ``outcome`` (:func:`checks.power.output_check`) with ``output_at_min`` (full
+    output) and ``output_at_max`` (minimum output) replaced by the worst over the E and R
+    ranges, and ``e_at_full``, ``r_at_full``, ``e_at_least``, ``r_at_least`` where they occur.
+    Metric = min(full/req_hi, req_lo/least), graded with ``fail_below`` (NaN: not required).
+    """
+    full, least = _a(extremes["full"]), _a(extremes["least"])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        m_full = np.where(np.isnan(req_hi), np.inf, full / _a(req_hi))
+        m_min = np.where(np.isnan(req_lo), np.inf,
+                         np.where(least > 0, _a(req_lo) / least, np.inf))
+    metric = np.minimum(m_full, m_min)
+    margin, status = grade(metric, limits)
+    margin = np.where(np.isinf(metric), np.inf, margin)
+    vals = dict(outcome.values)
+    vals.update(output_at_min=full + 0 * margin, output_at_max=least + 0 * margin,
+                e_at_full=extremes["e_full"] + 0 * margin,
+                r_at_full=extremes["r_full"] + 0 * margin,
+                e_at_least=extremes["e_least"] + 0 * margin,
+                r_at_least=extremes["r_least"] + 0 * margin)
+    return Outcome(vals, margin, status, list(outcome.notes))

@@ -320,6 +320,9 @@ def _bind_output(ctx: Context) -> Bound:
         ev = b.inputs["e"].value
         b.add("e_full", _sp(ctx, "load.e") + "#max", ev.at(ev.hi))
         b.add("e_least", _sp(ctx, "load.e") + "#min", ev.at(ev.lo))
+        rv = b.inputs["r"].value  # the worst corner is sought over the R range too
+        b.add("r_min", _sp(ctx, "load.r") + "#min", rv.at(rv.lo))
+        b.add("r_max", _sp(ctx, "load.r") + "#max", rv.at(rv.hi))
     if not isinstance(req, Value):
         # The values are always reported; only the pass/fail needs a `required` range.
         b.options["quantity"] = "power"
@@ -372,6 +375,7 @@ def _fn_output(**kw: Any) -> Outcome:
     kw.pop("kind", None)
     kw.pop("emf", None)
     l_s = kw.pop("l_s", None)
+    r_min, r_max = kw.pop("r_min", None), kw.pop("r_max", None)
     w = _omega(kw)
     pulse = kw.get("gate_pulse")
     a, note = _pulses(kw, a, w)
@@ -379,15 +383,32 @@ def _fn_output(**kw: Any) -> Outcome:
     out = power.output_check(alpha=a, alpha_lo=lo, alpha_hi=hi, omega=w, **kw)
     if note:
         out.notes.append(note)
+    if r_min is not None:
+        # A back EMF: the full and minimum outputs are the worst over the E range (the state
+        # of charge or the speed: it varies in operation) from the exact waveform (the
+        # overlap taken off at each point), not a fixed pairing. R is a part value: a row at
+        # an end of its tolerance stands for the whole range (the power can peak inside it);
+        # a row inside it (nominal, a Monte Carlo sample) is that unit's own R.
+        r = np.asarray(kw["r"], dtype=float)
+        at_end = np.isclose(r, r_min, rtol=1e-12) | np.isclose(r, r_max, rtol=1e-12)
+        ext = rle.output_extremes(
+            topology=kw["topology"], freewheel=kw["freewheel"], quantity=kw["quantity"],
+            vs=kw["vs"], r_lo=np.where(at_end, r_min, r), r_hi=np.where(at_end, r_max, r),
+            l=kw["l"], omega=w, alpha_lo=lo,
+            alpha_hi=hi, e_lo=kw["e_least"], e_hi=kw["e_full"], l_s=l_s)
+        out = rle.output_check(outcome=out, extremes=ext, req_lo=kw["req_lo"],
+                               req_hi=kw["req_hi"], limits=kw["limits"])
     if l_s is not None:
-        out = _overlap(out, kw, a, lo, w, l_s)
+        out = _overlap(out, kw, a, lo, w, l_s, emf=r_min is not None)
     return out
 
 
 def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
-             l_s: Any) -> Outcome:
+             l_s: Any, emf: bool = False) -> Outcome:
     """A bridge with source inductance: the overlap and the full output it costs (a
-    half-controlled bridge's diode leg freewheels: two transfers of I_d a half-cycle)."""
+    half-controlled bridge's diode leg freewheels: two transfers of I_d a half-cycle).
+    With a back EMF the overlap at each row comes from the waveform's current at the
+    transfer (a hand-over included), and the full output already has it taken off."""
     from checks import bridge
 
     semi = bool(kw.get("freewheel"))
@@ -395,11 +416,21 @@ def _overlap(out: Outcome, kw: dict[str, Any], a: Any, lo: Any, omega: Any,
                   omega=omega, peak=False, e=kw.get("e"))
     cont = power.stage_values(alpha=a, **common)["continuous"]
     cont_lo = power.stage_values(alpha=lo, **common)["continuous"]
+    transfer = None
+    if emf:
+        # The waveform with L_s in series (outside the overlaps it carries the load current).
+        l_tot = np.asarray(kw["l"], dtype=float) + np.asarray(l_s, dtype=float)
+        v = rle.stage_values(alpha=a, **(common | {"l": l_tot}))
+        ib = v["vm"] / np.hypot(np.asarray(kw["r"], dtype=float), omega * l_tot)
+        transfer = {"i_t": rle.transfer_current(v, v["phi"]) * ib, "i_pi": v["i_pi"] * ib,
+                    "l": kw["l"], "e": kw["e"]}
+        cont = v["continuous"]
     e_full = kw.get("e_full", kw.get("e"))
     return bridge.overlap_check(
         outcome=out, quantity=kw["quantity"], vs=kw["vs"], r=kw["r"], omega=omega, l_s=l_s,
         alpha=a, alpha_lo=lo, e=0.0 if e_full is None else e_full, continuous=cont,
-        continuous_lo=cont_lo, req_hi=kw["req_hi"], semi=semi)
+        continuous_lo=cont_lo, req_hi=kw["req_hi"], semi=semi, transfer=transfer,
+        lower=not emf)
 
 
 def _sum_burst(r: Reduced) -> str:
@@ -429,8 +460,9 @@ def _sum_output(r: Reduced) -> str:
     if q == "current":
         name = {"battery": "charge current", "motor": "armature current"}.get(emf,
                                                                               "load current")
+    worst = " at the worst E" if emf else ""
     text = (f"{name} {span(r.lo['output_at_max'], r.hi['output_at_min'], unit)} over the firing "
-            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output)")
+            f"range (nominal {eng(r.nom['output_at_min'], unit)} at full output{worst})")
     req_hi = r.bound.inputs["req_hi"].value.nom
     req_lo = r.bound.inputs["req_lo"].value.nom
     if r.status != "pass":
@@ -442,8 +474,9 @@ def _sum_output(r: Reduced) -> str:
                 # P ∝ 1/R at a given α and line: the load R that would just reach it.
                 r_need = r.bound.inputs["r"].value.hi * r.lo["output_at_min"] / req_hi
                 short += f", or load R ≤ {at_most(r_need, 'ohm')}"
-            if emf and r.bound.inputs["e"].value.varies:
-                short += f" (at E = {eng(r.bound.inputs['e'].value.hi, 'V')})"
+            if emf:
+                short += (f" (the worst corner: E = {eng(r.worst['e_at_full'], 'V')}, R = "
+                          f"{eng(r.worst['r_at_full'], 'ohm')})")
             fixes.append(short)
         if req_lo == req_lo and r.hi["output_at_max"] > req_lo:
             fixes.append(f"minimum output {eng(r.hi['output_at_max'], unit)} at high line is above "
@@ -503,14 +536,19 @@ register(CheckDef(
            "Bridges with supply.inductance: the commutation overlap's drop, (2/π)·ωL_s·I_d "
            "(fully controlled) or ωL_s·I_d/π (half-controlled), comes off the full output. "
            "Full output (α_min, low line) must reach required.max; minimum (α_max, high line) "
-           "must be at or below required.min.",
+           "must be at or below required.min. A back EMF: both are the worst over the E range "
+           "and, at a corner at an end of R's tolerance, over R (a 17 × 5 grid refined about "
+           "its worst point) of the exact R–L–E waveform, "
+           "the overlap taken off where a current flows at the firing; the minimum voltage at "
+           "E min (V_dc ≥ E).",
     source="Rashid, Power Electronics 4th ed. §10–11 (Ex 10.1, 11.1, 11.2); Hart, Power "
            "Electronics §3",
     fn=_fn_output, bind=_bind_output,
     units={"vdc": "V", "vrms": "V", "load_power": "W", "extinction_angle": "deg",
            "conduction_angle": "deg", "shortcut_error": "1", "load_current": "A",
            "overlap_angle": "deg", "overlap_drop": "V", "overlap_diode": "deg",
-           "power_step": "W"},
+           "power_step": "W", "e_at_full": "V", "r_at_full": "ohm", "e_at_least": "V",
+           "r_at_least": "ohm"},
     summarise=_sum_output,
     fix="Widen the firing range (smaller α_min for more output, later α_max for less), or "
         "change the load or topology.",
@@ -1383,6 +1421,14 @@ def _bind_control_emf(ctx: Context, b: Bound) -> Bound:
     b.options["emf"] = _emf_type(ctx)
     ctx.need(b, "vs", "supply.voltage")
     ctx.need(b, "e", _sp(ctx, "load.e"))
+    if ctx.stage.get("topology") in rle.TOPOLOGIES:
+        # The load decides whether a current still flows at a firing below θ1.
+        b.options["topology"] = ctx.stage.get("topology")
+        b.options["freewheel"] = bool(ctx.stage.get("freewheel", False))
+        ctx.need(b, "r", _sp(ctx, "load.r"))
+        ctx.read(b, "l", _sp(ctx, "load.l"), default=0.0, dim="inductance", unit="H")
+        b.notes[:] = [n for n in b.notes if not n.startswith("l not given")]
+        ctx.need(b, "freq", "supply.frequency")
     _bind_firing(ctx, b)
     return b
 
@@ -1392,6 +1438,8 @@ def _fn_control(**kw: Any) -> Outcome:
         kw.pop("emf")
         angle = _angles(kw)
         lo, hi = angle("lo"), angle("hi")
+        if "topology" in kw:
+            kw["omega"] = _omega(kw)
         kw.pop("freq", None)
         return rle.control_check(alpha_lo=lo, alpha_hi=hi, **kw)
     lo = _angles(kw)("lo")
@@ -1464,10 +1512,20 @@ def _sum_control_emf(r: Reduced) -> str:
     text = (f"the line exceeds the back EMF from θ1 = asin(E/Vm) = "
             f"{span(r.lo['emf_angle'], th1, 'deg')}; the earliest firing is "
             f"{_deg(r.lo['alpha_min'])}")
-    if r.status != "pass":
+    kept = r.hi.get("kept_by_current", 0.0) > 0
+    if r.status == "fail":
         text += (f"; fails: firing before {_deg(th1)} does nothing (a short gate pulse misses "
                  f"the half-cycle, a long one fires at θ1), so the range loses control below "
                  f"it: needs α_min ≥ {_deg(th1)}, or a gate pulse lasting past θ1")
+        if kept:
+            text += ("; at some corners the current still flows at α_min, which keeps "
+                     "control there")
+    elif kept:
+        text += (f"; below θ1 = {_deg(th1)} control holds only while the current runs on "
+                 "from the previous half-cycle (continuous conduction: the incoming SCR is "
+                 "forward-biased at α_min and a narrow pulse fires it); from rest, or once "
+                 "the current has stopped, a narrow pulse there does nothing: marginal, start "
+                 f"from α ≥ {_deg(th1)} (a soft start) or hold the gate past θ1")
     last = r.lo["last_angle"]
     if r.hi["alpha_max"] >= last:
         text += (f"; above π − θ1 = {_deg(last)} the line never exceeds E again: no current "
@@ -1481,10 +1539,13 @@ register(CheckDef(
              "load angle?",
     method="φ = atan(ωL/R) at L max, R min, f max; pass when α_min ≥ φ. Burst control: the "
            "gate pulse against the first current zero after a voltage-zero start, "
-           "(β(0, φ) − π)/ω.",
+           "(β(0, φ) − π)/ω. A back EMF: pass when α_min ≥ θ1 = asin(E/Vm); below it, "
+           "marginal where the R–L–E current still flows at α_min (continuous: the incoming "
+           "SCR is forward-biased, control holds while running but not from rest), else fail.",
     source="Rashid 4e §11 (AC voltage controllers with R–L loads, Ex 11.2)",
     fn=_fn_control, bind=_bind_control,
     units={"load_angle": "deg", "emf_angle": "deg", "first_zero_lag": "deg",
+           "kept_by_current": "1",
            "required_width": "s", "steady_lag_time": "s", "pulse_width": "s"},
     summarise=_sum_control,
     fix="Raise α_min to at least φ, or drive the gates with wide pulses or a pulse train "

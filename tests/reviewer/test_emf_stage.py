@@ -213,7 +213,8 @@ required = { min = "150 V", max = "REQ" }
 def test_full_bridge_overlap_costs_output():
     """A continuous full bridge at α = 30° gives (2Vm/π)·cos 30° = 179.3 V without source
     inductance; 2 mH takes ΔV = (2/π)·ωL_s·I_d with I_d = (179.3 − 100)/(5 + 0.4) = 14.69 A:
-    5.87 V. A requirement of 177 V passes without L_s and fails with it, saying why."""
+    5.87 V (ripple-free; the check takes the current at the transfer). A requirement of
+    177 V passes without L_s and fails with it, saying why."""
     def out(ls: str, req: str):
         p = load_project_text(MOTOR.replace("LS", ls).replace("REQ", req), "m.toml")
         return evaluate(p, only=[("drive", "power.output")], strict=True).results[0]
@@ -221,8 +222,11 @@ def test_full_bridge_overlap_costs_output():
     assert out("0 uH", "177 V").status == "pass"
     r = out("2 mH", "177 V")
     assert r.status == "fail" and "overlap" in r.summary
-    assert r.values["overlap_drop"].max == pytest.approx(4 * 50 * 2e-3 * 14.687, rel=2e-3)
-    assert r.values["overlap_angle"].max > 0
+    # The reported drop and μ come from the current at the transfer (the waveform's, lowered
+    # by the drop), a little under the ripple-free I_d here: within 8 % of the formula (the
+    # circuit solved in time, tests/checks/test_rle_output.py, gives μ 5.58°).
+    assert r.values["overlap_drop"].max == pytest.approx(4 * 50 * 2e-3 * 14.687, rel=0.08)
+    assert r.values["overlap_angle"].max == pytest.approx(5.58, rel=0.01)
     assert out("2 mH", "170 V").status == "pass"
 
 
@@ -231,7 +235,8 @@ def test_half_controlled_bridge_overlap_costs_output():
     without source inductance; 2 mH takes ΔV = ωL_s·I_d/π (two transfers of I_d: half the
     full bridge's) with I_d = (193.2 − 100)/(5 + 0.2) = 17.92 A: 3.585 V, so the full output
     is 189.6 V; the diode leg's transfer at the line zero lasts acos(1 − ωL_s·I_d/Vm) =
-    15.12° and the firing's μ from cos(30° + μ) = cos 30° − ωL_s·I_d/Vm is 3.76°."""
+    15.12° and the firing's μ from cos(30° + μ) = cos 30° − ωL_s·I_d/Vm is 3.76° (ripple-free
+    figures; the check takes the currents at the transfers)."""
     text = MOTOR.replace('topology = "bridge"\n', 'topology = "bridge"\nfreewheel = true\n')
 
     def out(ls: str, req: str):
@@ -243,9 +248,49 @@ def test_half_controlled_bridge_overlap_costs_output():
     assert r.status == "fail" and "overlap" in r.summary and "diode leg" in r.summary
     i_d = (2**0.5 * 230 / math.pi * (1 + math.cos(math.pi / 6)) - 100) / (5 + 0.2)
     x = 100 * math.pi * 2e-3 * i_d / (2**0.5 * 230)
-    assert r.values["overlap_drop"].max == pytest.approx(100 * 2e-3 * i_d, rel=1e-6)
+    # From the currents at the transfers (the waveform's at α and at π), not the ripple-free
+    # I_d: within 8 % of the ripple-free formulae.
+    assert r.values["overlap_drop"].max == pytest.approx(100 * 2e-3 * i_d, rel=0.08)
     assert r.values["overlap_diode"].max == pytest.approx(math.degrees(math.acos(1 - x)),
-                                                          rel=1e-6)
+                                                          rel=0.08)
     assert r.values["overlap_angle"].max == pytest.approx(
-        math.degrees(math.acos(math.cos(math.pi / 6) - x)) - 30.0, rel=1e-6)
+        math.degrees(math.acos(math.cos(math.pi / 6) - x)) - 30.0, rel=0.08)
     assert out("2 mH", "189 V").status == "pass"
+
+
+def test_full_armature_voltage_is_taken_where_the_current_runs_continuously():
+    """The motor demo (half-controlled bridge, α_min 40°, E 80–150 V, R 8 Ω ±10 %, 207 V low
+    line): the least mean armature voltage at α_min is (Vm/π)(1 + cos 40°) = 164.6 V, with
+    the overlap a little less, at E = 80 V where the current runs continuously; at E = 150 V
+    the zero-current intervals at E lift it to 172.8 V. A requirement of 168 V fails."""
+    from pathlib import Path
+
+    text = (Path(__file__).parents[2] / "projects" / "motor-dc.toml").read_text()
+
+    def out(req: str):
+        p = load_project_text(text.replace('max = "160 V" }', f'max = "{req}" }}'), "m.toml")
+        return evaluate(p, only=[("armature", "power.output")], strict=True).results[0]
+
+    r = out("160 V")
+    assert r.status == "pass"
+    vm = 2**0.5 * 207
+    assert r.margin == pytest.approx(vm / math.pi * (1 + math.cos(math.radians(40))) / 160 - 1,
+                                     abs=2e-3)
+    r = out("168 V")
+    assert r.status == "fail" and "E = 80 V" in r.summary and "R = 7.2 Ω" in r.summary
+
+
+def test_control_below_theta1_is_kept_by_a_continuous_current():
+    """Full bridge, E 100 V on 230 V (θ1 = 17.9°), L 300 mH: fired from 10° the armature
+    current never stops, so the incoming pair fires at α even from a narrow pulse: marginal
+    (not from rest), not a fail; with L 3 mH the current stops and control below θ1 is lost."""
+    def ctl(l: str):
+        text = MOTOR.replace("LS", "0 uH").replace("REQ", "170 V").replace(
+            'min = "30 deg"', 'min = "10 deg"').replace('l = "300 mH"', f'l = "{l}"')
+        p = load_project_text(text, "m.toml")
+        return evaluate(p, only=[("drive", "power.control")], strict=True).results[0]
+
+    r = ctl("300 mH")
+    assert r.status == "marginal" and "narrow pulse" in r.summary and "from rest" in r.summary
+    r = ctl("3 mH")
+    assert r.status == "fail" and "does nothing" in r.summary
