@@ -39,7 +39,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import diac_single, memo, rl, triac
+from checks import diac_load, diac_single, memo, rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -610,7 +610,8 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
     return np.concatenate(parts).reshape(shape)
 
 
-_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi")
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi", "rl_r", "rl_l",
+               "rs", "cs")
 
 
 def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
@@ -666,7 +667,9 @@ def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                 phi: np.ndarray | float = 0.0) -> np.ndarray:
+                 phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+                 rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+                 cs: np.ndarray | float = np.nan) -> np.ndarray:
     """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
     the diac starts firing) or, with it firing every half-cycle, the first root of
     :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
@@ -681,15 +684,181 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
 
+    ``rl_r`` [Ω], ``rl_l`` [H]: the R–L load itself (NaN: its drop neglected, ``phi`` alone).
+    Given, the network is fed through the load while the triac is off (and ``rs`` [Ω],
+    ``cs`` [F], a snubber across the triac, draws its current through it too), φ is
+    atan(ωL/R), one or two sections (:func:`_load_running`; :mod:`checks.diac_load`).
+
     >>> round(float(np.degrees(firing_angle(vm=325.0, omega=2 * np.pi * 50, r1=100e3,
     ...                                     c1=100e-9, vbo=32.0))), 2)
     91.29
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
-          "running": running, "r2": r2, "c2": c2, "phi": phi}
+          "running": running, "r2": r2, "c2": c2, "phi": phi, "rl_r": rl_r, "rl_l": rl_l,
+          "rs": rs, "cs": cs}
     if not running:
         return _firing_angle(**kw)
+    if _with_load(rl_r, rl_l) and np.all(np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0)
+                                         & np.isfinite(as_array(rl_r))):
+        names = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "rl_r", "rl_l",
+                 "rs", "cs")
+        got = _by_row(_load_rows, names, {k: kw[k] for k in names}, "checks.diac.running_load")
+        return got[0]
     return _by_row(_firing_angle, _ANGLE_ARGS, kw, "checks.diac.running")
+
+
+def _with_load(rl_r: Any, rl_l: Any) -> bool:
+    return bool(np.any(np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0)
+                       & np.isfinite(as_array(rl_r))))
+
+
+def _load_excess(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any, r2: Any,
+                 c2: Any, rl_r: Any, rl_l: Any, rs: Any, cs: Any, shape: tuple[int, ...]
+                 ) -> tuple[dict[str, np.ndarray], np.ndarray, Callable[..., np.ndarray],
+                            Callable[..., np.ndarray]]:
+    """The load model's system, load angle φ, restart γ(α) and running excess g(α) =
+    v_diac(α⁻) − VBO, on the rows of ``shape`` flattened (α: rows × points; ``idx``, a
+    subset of the rows)."""
+    def b(x: Any) -> np.ndarray:
+        return np.broadcast_to(as_array(x), shape).ravel()
+
+    w, rr, ll, dv, lv = b(omega), b(rl_r), b(rl_l), b(breakback), b(vbo)
+    s = diac_load.system(vm=b(vm), omega=w, r1=b(r1), c1=b(c1), rl_r=rr, rl_l=ll, r2=b(r2),
+                         c2=b(c2), rs=b(rs), cs=b(cs))
+    ph = np.arctan2(w * ll, rr)
+
+    def gamma(a: np.ndarray, idx: Any = slice(None)) -> np.ndarray:
+        p = np.broadcast_to(ph[idx][:, None], a.shape)
+        ok = a > p
+        beta = _extinction(np.where(ok, a, np.pi / 2), np.where(ok, p, 0.5))
+        return np.where(ok, beta - np.pi, np.nan)
+
+    def g(a: np.ndarray, idx: Any = slice(None)) -> np.ndarray:
+        sub = s if isinstance(idx, slice) else diac_load.rows(s, idx)
+        _, xa = diac_load.running_state(sub, alpha=a, gam=gamma(a, idx),
+                                        breakback=dv[idx][:, None])
+        return diac_load.diac_value(sub, xa) - lv[idx][:, None]
+
+    return s, ph, gamma, g
+
+
+def _load_root(g: Callable[..., np.ndarray], lo: np.ndarray, hi: Any,
+               grid: int = _GRID) -> tuple[np.ndarray, np.ndarray]:
+    """The first α in (lo, hi] where g(α) ≥ 0 per row (flat), NaN without one, and g(lo): a
+    grid of ``grid`` points brackets it, then false position (Illinois) on the rows still
+    open, each leaving once its bracket is below 1e-13 rad (at most 40 steps)."""
+    n = lo.shape[0]
+    hi = np.broadcast_to(as_array(hi), lo.shape)
+    u = np.linspace(0.0, 1.0, grid + 1)[1:]
+    th = lo[:, None] + (hi - lo)[:, None] * u
+    vals = g(th)
+    up = vals >= 0
+    has = up.any(axis=-1)
+    i = np.argmax(up, axis=-1)
+    r = np.arange(n)
+    b, fb = th[r, i], vals[r, i]
+    first = i == 0
+    f_lo = g(lo[:, None])[:, 0]
+    a = np.where(first, lo, th[r, np.maximum(i - 1, 0)])
+    fa = np.where(first, f_lo, vals[r, np.maximum(i - 1, 0)])
+    fa = np.where(fa >= 0, -1e-300, fa)
+    side = np.zeros(n, dtype=int)
+    act = np.flatnonzero(has)
+    for _ in range(40):
+        act = act[b[act] - a[act] > 1e-13]
+        if not act.size:
+            break
+        aa, bb, ffa, ffb = a[act], b[act], fa[act], fb[act]
+        x = np.where(ffb != ffa, bb - ffb * (bb - aa) / (ffb - ffa), 0.5 * (aa + bb))
+        x = np.where((x > aa) & (x < bb), x, 0.5 * (aa + bb))
+        fx = g(x[:, None], act)[:, 0]
+        pos = fx >= 0
+        sd = side[act]
+        ffa = np.where(pos & (sd == 1), 0.5 * ffa, ffa)
+        ffb = np.where(~pos & (sd == -1), 0.5 * ffb, ffb)
+        b[act], fb[act] = np.where(pos, x, bb), np.where(pos, fx, ffb)
+        a[act], fa[act] = np.where(pos, aa, x), np.where(pos, ffa, fx)
+        side[act] = np.where(pos, 1, -1)
+    return np.where(has, b, np.nan), f_lo
+
+
+_NEAR = 0.1  # [rad] half-width of the bracket about the angle with the load's drop neglected
+_BELOW = 12  # grid points confirming that the excess stays negative below that bracket
+
+
+def _guess_angle(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any, r2: Any,
+                 c2: Any, phi: np.ndarray, shape: tuple[int, ...]) -> np.ndarray:
+    """The running angle with the load's drop neglected (flat rows; NaN where that model
+    has none): a start for :func:`_near_root`."""
+    if _double(as_array(r2), as_array(c2)).any():
+        return np.full(int(np.prod(shape)) if shape else 1, np.nan)
+    return np.ravel(np.broadcast_to(firing_angle(
+        vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback, running=True,
+        phi=phi), shape))
+
+
+def _near_root(g: Callable[..., np.ndarray], floor: np.ndarray, top: float,
+               guess: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_load_root` started from ``guess``: where g < 0 at the floor, on a grid of
+    _BELOW points up to guess − _NEAR and there, and g ≥ 0 at guess + _NEAR, the first root
+    lies in that bracket (to the grid's resolution, as :func:`_load_root` itself) and false
+    position narrows it; the other rows get the full search. (g at the floor, the root)."""
+    n = floor.shape[0]
+    lo = np.maximum(floor, guess - _NEAR)
+    hi = np.minimum(top, guess + _NEAR)
+    ok = np.isfinite(guess) & (hi > lo) & (lo > floor)
+    alpha, f_lo = np.full(n, np.nan), np.full(n, np.nan)
+    idx = np.flatnonzero(ok)
+    if idx.size:
+        u = np.linspace(0.0, 1.0, _BELOW + 1)
+        below = floor[idx, None] + (lo[idx] - floor[idx])[:, None] * u
+        pts = np.concatenate([below, hi[idx, None]], axis=1)
+        vals = g(pts, idx)
+        good = (vals[:, :-1] < 0).all(axis=-1) & (vals[:, -1] >= 0)
+        take = idx[good]
+        if take.size:
+            a, _ = _load_root(lambda x, i=None: g(x, take if i is None else take[i]),
+                              lo[take], hi[take], grid=1)
+            alpha[take], f_lo[take] = a, vals[good, 0]
+        ok[idx[~good]] = False
+    rest = np.flatnonzero(~ok)
+    if rest.size:
+        a, fl = _load_root(lambda x, i=None: g(x, rest if i is None else rest[i]),
+                           floor[rest], top)
+        alpha[rest], f_lo[rest] = a, fl
+    return alpha, f_lo
+
+
+def _load_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                  vbo: np.ndarray, breakback: np.ndarray | float, r2: Any, c2: Any,
+                  rl_r: Any, rl_l: Any, rs: Any, cs: Any,
+                  shape: tuple[int, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """The running angle with the network fed through the R–L load while the triac is off
+    (:func:`checks.diac_load.running_state`: the first root of v_diac(α⁻) − VBO over
+    (φ, π)), and a mask of the rows trusted: False where the state just above φ is already
+    past VBO (continuous conduction, NaN angle) or where a second section brings the diac's
+    capacitor back to VBO while the triac conducts (a refiring, not followed here)."""
+    s, ph, gamma, g = _load_excess(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo,
+                                   breakback=breakback, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                   rs=rs, cs=cs, shape=shape)
+    dv = np.broadcast_to(as_array(breakback), shape).ravel()
+    lv = np.broadcast_to(as_array(vbo), shape).ravel()
+    with np.errstate(all="ignore"):
+        floor = ph + _PHI_GAP
+        top = np.pi * (1 - 1e-12)
+        alpha, f_lo = _near_root(g, floor, top, _guess_angle(
+            vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback, r2=r2, c2=c2,
+            phi=ph.reshape(shape), shape=shape))
+        trusted = ~(f_lo >= 0)
+        fired = np.isfinite(alpha)
+        a = np.where(fired, alpha, np.pi / 2)
+        gm = gamma(a[:, None])[:, 0]
+        _, xa = diac_load.running_state(s, alpha=a, gam=gm, breakback=dv)
+        after = xa - diac_load.kick(s, dv, a.ndim)
+        again = diac_load.refires(s, x_after=after, level=lv, span=np.pi + gm - a)
+        trusted &= ~(fired & again & (s["diac"] == 2))
+        trusted &= (s["off_cond"] < 1e10) & (s["on_cond"] < 1e10)
+    return (np.where(trusted, alpha, np.nan).reshape(shape), trusted.reshape(shape))
 
 
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
@@ -737,11 +906,49 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
     return np.where((amp > level) & (a < np.pi), a, np.nan)
 
 
+def unresolved(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any,
+               r2: Any = np.nan, c2: Any = np.nan, rl_r: Any = np.nan, rl_l: Any = np.nan,
+               rs: Any = np.nan, cs: Any = np.nan) -> np.ndarray:
+    """Rows whose running state with the load (:func:`_load_running`) is not trusted
+    although the circuit may fire there: a second section refiring while the triac
+    conducts, or a continuous conduction (True)."""
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
+          "r2": r2, "c2": c2, "rl_r": rl_r, "rl_l": rl_l, "rs": rs, "cs": cs}
+    if not _with_load(rl_r, rl_l):
+        return np.zeros(np.broadcast_shapes(*(np.shape(v) for v in kw.values())), dtype=bool)
+    return ~_by_row(_load_rows, tuple(kw), kw, "checks.diac.running_load")[1]
+
+
+def _load_rows(**k: Any) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_load_running` on rows of inputs (the shape theirs)."""
+    shape = np.broadcast_shapes(*(np.shape(v) for v in k.values()))
+    return _load_running(shape=shape, **k)
+
+
 def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                 phi: np.ndarray | float = 0.0) -> np.ndarray:
+                 phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+                 rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+                 cs: np.ndarray | float = np.nan) -> np.ndarray:
     """firing_angle: see there (one block of rows)."""
+    if _with_load(rl_r, rl_l):
+        load = np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0) & np.isfinite(as_array(rl_r))
+        args = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "r2": r2, "c2": c2}
+        shape = np.broadcast_shapes(*(np.shape(x) for x in (*args.values(), breakback, phi,
+                                                             rl_r, rl_l, rs, cs)))
+        if running:
+            got = _load_running(breakback=breakback, rl_r=rl_r, rl_l=rl_l, rs=rs, cs=cs,
+                                shape=shape, **args)[0]
+        else:
+            s = diac_load.system(vm=vm, omega=omega, r1=r1, c1=c1, rl_r=rl_r, rl_l=rl_l,
+                                 r2=r2, c2=c2, rs=rs, cs=cs)
+            amp, lag = diac_load.amplitude_lag(s)
+            got = crossing(vm=amp, gain=1.0, lag=lag, level=as_array(vbo))
+        if np.all(load):
+            return np.broadcast_to(got, shape)
+        rest = _firing_angle(breakback=breakback, running=running, phi=phi, **args)
+        return np.where(load, got, rest)
     if running:
         shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
                                                              r2, c2, phi)))
@@ -812,17 +1019,24 @@ def _single_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
             r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-            phi: np.ndarray | float = 0.0) -> np.ndarray:
+            phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+            rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+            cs: np.ndarray | float = np.nan) -> np.ndarray:
     """The largest R1 [Ω] that still fires (starting, or ``running``), solved per row by
     bisection in log R over 1 Ω … 1 GΩ (firing stops once as R1 rises: G falls and ψ grows);
     NaN where even 1 Ω does not fire. Single section, starting: ωR1C1 = √((Vm/VBO)² − 1).
     ``phi``: an R–L load's angle (running: the grid runs over (φ, π), :func:`running_excess`).
+    ``rl_r``, ``rl_l``, ``rs``, ``cs``: the load itself and a snubber (:func:`firing_angle`).
 
     >>> round(float(limit_r(vm=325.0, omega=2 * np.pi * 50, c1=100e-9, vbo=32.0)))
     321713
     """
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2,
-                                                         phi)))
+                                                         phi, rl_r, rl_l, rs, cs)))
+    load = _with_load(rl_r, rl_l)
+    if load:
+        phi = np.arctan2(as_array(omega) * as_array(rl_l), as_array(rl_r))
+        phi = np.where(np.isfinite(phi), phi, 0.0)
     lo = np.full(shape, 0.0)
     hi = np.full(shape, np.log(1e9))
 
@@ -831,7 +1045,7 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         floor = _alpha_floor(phi, shape)[..., None]
         th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
-    single = running and not _double(as_array(r2), as_array(c2)).any()
+    single = running and not load and not _double(as_array(r2), as_array(c2)).any()
     fast = diac_single.grid_fires(
         vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=as_array(breakback), phi=as_array(phi),
         floor=_alpha_floor(phi, shape), u=np.linspace(0.0, 1.0, _GRID + 1)[1:-1],
@@ -842,7 +1056,15 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
             return fast(np.exp(ln_r))
         if not running:
             return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
-                                            vbo=vbo, r2=r2, c2=c2))
+                                            vbo=vbo, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                            rs=rs, cs=cs))
+        if load:  # the same grid test on the load model's excess
+            with np.errstate(all="ignore"):
+                g = _load_excess(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1, vbo=vbo,
+                                 breakback=breakback, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                 rs=rs, cs=cs, shape=shape)[3]
+                pts = np.broadcast_to(th, shape + (np.shape(th)[-1],))
+                return (g(pts.reshape(-1, pts.shape[-1])) >= 0).any(axis=-1).reshape(shape)
         # Running: a root exists where the excess is non-negative somewhere on the grid
         # (the same test as :func:`_first_root`), so the angle itself is not needed.
         def c(x: np.ndarray | float) -> np.ndarray:
@@ -884,7 +1106,8 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
                        series_r: np.ndarray, limits: Mapping[str, float],
                        r2: np.ndarray | float = np.nan,
                        c2: np.ndarray | float = np.nan,
-                       phi: np.ndarray | float = 0.0) -> Outcome:
+                       phi: np.ndarray | float = 0.0,
+                       load: Mapping[str, Any] | None = None) -> Outcome:
     """``diac.firing-range``: the firing angles at the ends of the pot, against the target.
 
     vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
@@ -896,17 +1119,23 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
     α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
     ``phi`` [rad]: the load angle of an R–L load (the running angles follow its current's
-    zero, :func:`running_excess`), reported as ``load_angle``.
+    zero, :func:`running_excess`), reported as ``load_angle``. ``load``: the R–L load itself
+    and a snubber (``rl_r``, ``rl_l``, ``rs``, ``cs`` of :func:`firing_angle`): the network
+    is then fed through the load while the triac is off, one or two sections; a second
+    section that refires while the triac conducts is not resolved (NaN, ``refires`` 1).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
-    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    ld = dict(load or {})
+    if ld:
+        phi = np.arctan2(omega * as_array(ld["rl_l"]), as_array(ld["rl_r"]))
+    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2, phi=phi)
-    a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi, **ld)
+    a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2, phi=phi)
-    r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi, **ld)
+    r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
         | ~np.isfinite(a_hi)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -925,13 +1154,21 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
     if np.any(as_array(phi) > 0):
         values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(a_lo))
+    if ld:
+        rows = np.broadcast_shapes(np.shape(a_lo), np.shape(vm))
+        ref = np.zeros(rows, dtype=bool)
+        for r1 in (r_lo, r_hi):
+            ref |= unresolved(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback,
+                              r2=r2, c2=c2, **ld)
+        values["refires"] = ref.astype(float)
     return Outcome(values, margin, status, notes)
 
 
 def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
                   breakback: np.ndarray, series_r: np.ndarray, limits: Mapping[str, float],
                   r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                  phi: np.ndarray | float = 0.0) -> Outcome:
+                  phi: np.ndarray | float = 0.0,
+                  load: Mapping[str, Any] | None = None) -> Outcome:
     """``diac.snap-on``: the jump in firing angle where the load snaps on.
 
     R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
@@ -942,18 +1179,20 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
     which with the triac's short of the network sets the running state. Graded against
     ``max_jump_deg`` (marginal above ``marginal_fraction`` of it). ``phi``: an R–L load's
-    angle (the running state follows its current's zero).
+    angle (the running state follows its current's zero); ``load`` the load itself and a
+    snubber, as :func:`firing_range_check` (the network fed through the load while off).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
-    r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    ld = dict(load or {})
+    r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     r_off = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=breakback, running=True,
-                    r2=r2, c2=c2, phi=phi)
+                    r2=r2, c2=c2, phi=phi, **ld)
     # Just inside the starting limit (the angle there is the limit of α as R → R_on⁻).
     r_at = r_on * (1 - 1e-9)
-    a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_run = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, breakback=breakback,
-                         running=True, r2=r2, c2=c2, phi=phi)
+                         running=True, r2=r2, c2=c2, phi=phi, **ld)
     jump = a_start - a_run
     p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
     limit = np.radians(float(limits.get("max_jump_deg", 35.0)))
