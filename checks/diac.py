@@ -1,8 +1,11 @@
 """A diac fired from an RC phase-shift network on the line: firing angle, snap-on, gate pulse,
 half-cycle symmetry.
 
-The network is fed from the line through the load, the load's drop neglected while the triac
-is off (its resistance is far below the network's). Single time constant: R1 (pot + series R)
+The network is fed from the line through the load. Here the load's drop while the triac is
+off is neglected (its impedance is far below the network's); with the R–L load itself given
+(``rl_r``, ``rl_l``, and a snubber's ``rs``, ``cs``) :func:`firing_angle` and :func:`limit_r`
+feed the network through it instead (:mod:`checks.diac_load`: off- and on-state matrices,
+one or two sections, refirings followed). Single time constant: R1 (pot + series R)
 charges C1, the diac sits across C1. Double time constant: R1–C1, then R2–C2, the diac across
 C2. Angles are in radians from the line's zero crossing; θ = ωt.
 
@@ -679,7 +682,7 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     triac shorts the network while it conducts, so the capacitor restarts below VBO at the
     current's zero and the first root lies above φ; a row where it does not (the state just
     above φ already past VBO: continuous conduction) has no consistent state and is NaN, as
-    is a second section with an R–L load (not modelled).
+    is a second section with an R–L load given by ``phi`` alone (give ``rl_r``, ``rl_l``).
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
@@ -726,6 +729,8 @@ def _load_excess(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: 
     s = diac_load.system(vm=b(vm), omega=w, r1=b(r1), c1=b(c1), rl_r=rr, rl_l=ll, r2=b(r2),
                          c2=b(c2), rs=b(rs), cs=b(cs))
     ph = np.arctan2(w * ll, rr)
+    # the load's current at the firing, over its crest current Vm/|Z|, per unit of u = R1·i
+    per_u = np.hypot(rr, w * ll) / (b(vm) * np.maximum(b(r1), 1.0))
 
     def gamma(a: np.ndarray, idx: Any = slice(None)) -> np.ndarray:
         p = np.broadcast_to(ph[idx][:, None], a.shape)
@@ -733,13 +738,31 @@ def _load_excess(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: 
         beta = _extinction(np.where(ok, a, np.pi / 2), np.where(ok, p, 0.5))
         return np.where(ok, beta - np.pi, np.nan)
 
-    def g(a: np.ndarray, idx: Any = slice(None)) -> np.ndarray:
+    def g(a: np.ndarray, idx: Any = slice(None), exact: bool = True) -> np.ndarray:
         sub = s if isinstance(idx, slice) else diac_load.rows(s, idx)
-        _, xa = diac_load.running_state(sub, alpha=a, gam=gamma(a, idx),
-                                        breakback=dv[idx][:, None])
+        gm = gamma(a, idx)
+        _, xa = diac_load.running_state(sub, alpha=a, gam=gm, breakback=dv[idx][:, None])
+        if exact:  # the current already in the load at α moves its zero: once more with it
+            gm = _restart_from(a, gm, ph[idx][:, None], xa[..., 0] * per_u[idx][:, None])
+            _, xa = diac_load.running_state(sub, alpha=a, gam=gm, breakback=dv[idx][:, None])
         return diac_load.diac_value(sub, xa) - lv[idx][:, None]
 
+    s["per_u"] = per_u
     return s, ph, gamma, g
+
+
+def _restart_from(a: np.ndarray, gam: np.ndarray, ph: np.ndarray, i0: np.ndarray
+                  ) -> np.ndarray:
+    """γ = β − π where the R–L current that starts at α from i0 (over Vm/|Z|; from γ, its
+    zero from rest) ends: sin(β − φ) = (sin(α − φ) − i0)·e^(−(β − α)/tan φ), by Newton's
+    method (three steps from the zero from rest: i0 is a few thousandths)."""
+    inv = 1.0 / np.tan(ph)
+    k = np.sin(a - ph) - i0
+    beta = np.pi + gam
+    for _ in range(3):
+        e = k * np.exp(-(beta - a) * inv)
+        beta = beta - (np.sin(beta - ph) - e) / (np.cos(beta - ph) + e * inv)
+    return beta - np.pi
 
 
 def _load_root(g: Callable[..., np.ndarray], lo: np.ndarray, hi: Any,
@@ -812,9 +835,9 @@ def _near_root(g: Callable[..., np.ndarray], floor: np.ndarray, top: float,
     if idx.size:
         u = np.linspace(0.0, 1.0, _BELOW + 1)
         below = floor[idx, None] + (lo[idx] - floor[idx])[:, None] * u
-        pts = np.concatenate([below, hi[idx, None]], axis=1)
-        vals = g(pts, idx)
-        good = (vals[:, :-1] < 0).all(axis=-1) & (vals[:, -1] >= 0)
+        vals = g(below, idx, exact=False)  # signs far from the root: the start's current
+        top_v = g(hi[idx, None], idx)[:, 0]  # does not change them
+        good = (vals < 0).all(axis=-1) & (top_v >= 0)
         take = idx[good]
         if take.size:
             a, _ = _load_root(lambda x, i=None: g(x, take if i is None else take[i]),
@@ -829,6 +852,89 @@ def _near_root(g: Callable[..., np.ndarray], floor: np.ndarray, top: float,
     return alpha, f_lo
 
 
+def _load_half(s: Mapping[str, np.ndarray], x: np.ndarray, gin: np.ndarray, ph: np.ndarray,
+               per_u: np.ndarray, lv: np.ndarray, dv: np.ndarray
+               ) -> tuple[np.ndarray, ...]:
+    """One half-cycle of the load model from state ``x`` (u = 0) at the current's zero
+    ``gin``, in its own sign's frame (flat rows): the triac off until the diac's capacitor
+    reaches ``lv`` at α, on to the current's zero β (from the current already in the load at
+    α), the network free meanwhile and the diac firing again (ΔV each time) wherever C1
+    brings C2 back to ``lv``. (α, the next half's start mirrored, its γ = β − π, refirings,
+    trusted.)"""
+    m = x.shape[0]
+    xs_g = diac_load.steady(s, gin)
+
+    def vd_off(th: np.ndarray) -> np.ndarray:
+        p = diac_load.phi(s, "off", th - gin[:, None])
+        xx = diac_load.steady(s, th) + (p @ (x - xs_g)[:, None, :, None])[..., 0]
+        return diac_load.diac_value(s, xx) - lv[:, None]
+
+    top = np.full(m, np.pi * (1 - 1e-12))
+    alpha = _root_in(vd_off, gin, top, grid=48)
+    fired = np.isfinite(alpha)
+    a = np.where(fired, alpha, np.pi / 2)
+    p = diac_load.phi(s, "off", a - gin)
+    xa = diac_load.steady(s, a) + (p @ (x - xs_g)[..., None])[..., 0]
+    gm0 = _extinction(a, ph) - np.pi
+    gm = _restart_from(a, gm0, ph, xa[:, 0] * per_u)
+    beta = np.pi + gm
+    kick = diac_load.kick(s, dv, 1)
+    y, t = xa - kick, a.copy()
+    n = np.zeros(m, dtype=int)
+    hit = np.zeros(m, dtype=bool)
+    for _ in range(_REFIRE_MAX):
+        y0, t0 = y, t
+
+        def free(th: np.ndarray, y0: np.ndarray = y0, t0: np.ndarray = t0) -> np.ndarray:
+            q = diac_load.phi(s, "on", th - t0[:, None])
+            return diac_load.diac_value(s, (q @ y0[:, None, :, None])[..., 0]) - lv[:, None]
+
+        again = _root_in(free, t, beta)
+        hit = np.isfinite(again) & fired & (again < beta)
+        if not hit.any():
+            break
+        q = diac_load.phi(s, "on", np.where(hit, again, t) - t)
+        y = np.where(hit[:, None], (q @ y[..., None])[..., 0] - kick, y)
+        t = np.where(hit, again, t)
+        n = n + hit
+    q = diac_load.phi(s, "on", beta - t)
+    end = (q @ y[..., None])[..., 0]
+    end[:, 0] = 0.0
+    return alpha, -end, gm, n, fired & ~hit
+
+
+def _load_refiring(s: Mapping[str, np.ndarray], x0: np.ndarray, gam: np.ndarray,
+                   ph: np.ndarray, per_u: np.ndarray, lv: np.ndarray, dv: np.ndarray,
+                   steps: int = 8) -> tuple[np.ndarray, np.ndarray]:
+    """The periodic state with refirings (a second section, the R–L load): Newton's method
+    on z = (x without u, γ) ↦ :func:`_load_half`(z) − z from the closed form's state (the
+    Jacobian by differences of 1e-6·VBO and 1e-7 rad). (α, trusted: residual below
+    1e-8·VBO and 1e-9 rad, no half-cycle left unresolved)."""
+    m, n = x0.shape
+    z = np.concatenate([x0[:, 1:], gam[:, None]], axis=1)
+    step = np.concatenate([np.repeat((1e-6 * lv)[:, None], n - 1, axis=1),
+                           np.full((m, 1), 1e-7)], axis=1)
+
+    def h(zz: np.ndarray) -> tuple[np.ndarray, ...]:
+        xx = np.concatenate([np.zeros((m, 1)), zz[:, :-1]], axis=1)
+        a, nxt, g_next, _, ok = _load_half(s, xx, zz[:, -1], ph, per_u, lv, dv)
+        return np.concatenate([nxt[:, 1:], g_next[:, None]], axis=1) - zz, a, ok
+
+    for _ in range(steps):
+        f, _, _ = h(z)
+        if (np.abs(f) <= 1e-3 * step).all():
+            break
+        jac = np.empty((m, n, n))
+        for k in range(n):
+            dz = np.zeros_like(z)
+            dz[:, k] = step[:, k]
+            jac[:, :, k] = (h(z + dz)[0] - f) / step[:, k:k + 1]
+        z = z - np.linalg.solve(jac, f[..., None])[..., 0]
+    f, a, ok = h(z)
+    good = ok & (np.abs(f[:, :-1]) <= 1e-8 * lv[:, None]).all(axis=1) & (np.abs(f[:, -1]) <= 1e-9)
+    return np.where(good, a, np.nan), good
+
+
 def _load_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                   vbo: np.ndarray, breakback: np.ndarray | float, r2: Any, c2: Any,
                   rl_r: Any, rl_l: Any, rs: Any, cs: Any,
@@ -841,6 +947,7 @@ def _load_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
     s, ph, gamma, g = _load_excess(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo,
                                    breakback=breakback, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
                                    rs=rs, cs=cs, shape=shape)
+    per_u = s.pop("per_u")
     dv = np.broadcast_to(as_array(breakback), shape).ravel()
     lv = np.broadcast_to(as_array(vbo), shape).ravel()
     with np.errstate(all="ignore"):
@@ -854,9 +961,17 @@ def _load_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.n
         a = np.where(fired, alpha, np.pi / 2)
         gm = gamma(a[:, None])[:, 0]
         _, xa = diac_load.running_state(s, alpha=a, gam=gm, breakback=dv)
+        gm = _restart_from(a, gm, ph, xa[..., 0] * per_u)
+        x0, xa = diac_load.running_state(s, alpha=a, gam=gm, breakback=dv)
         after = xa - diac_load.kick(s, dv, a.ndim)
         again = diac_load.refires(s, x_after=after, level=lv, span=np.pi + gm - a)
-        trusted &= ~(fired & again & (s["diac"] == 2))
+        redo = np.flatnonzero(fired & again & (s["diac"] == 2))
+        if redo.size:  # C1 brings C2 back to VBO while the triac conducts: follow it
+            sub = diac_load.rows(s, redo)
+            a_r, ok_r = _load_refiring(sub, x0[redo], gm[redo], ph[redo], per_u[redo],
+                                       lv[redo], dv[redo])
+            alpha[redo] = a_r
+            trusted[redo] &= ok_r
         trusted &= (s["off_cond"] < 1e10) & (s["on_cond"] < 1e10)
     return (np.where(trusted, alpha, np.nan).reshape(shape), trusted.reshape(shape))
 

@@ -84,6 +84,8 @@ def system(*, vm: Any, omega: Any, r1: Any, c1: Any, rl_r: Any, rl_l: Any,
     out: dict[str, np.ndarray] = {"x_ss": x_ss, "diac": np.where(dbl, 2, 1)}
     for name, a in (("off", a_off), ("on", a_on)):
         lam, vec = np.linalg.eig(a)
+        if not np.iscomplexobj(lam) or not np.any(lam.imag):  # real: work in real numbers
+            lam, vec = np.real(lam), np.real(vec)
         out[name + "_l"], out[name + "_v"] = lam, vec
         out[name + "_vi"] = np.linalg.inv(vec)
         out[name + "_cond"] = np.linalg.cond(vec)
@@ -103,7 +105,8 @@ def phi(s: Mapping[str, np.ndarray], name: str, th: np.ndarray) -> np.ndarray:
     for _ in range(extra):
         lam, v, vi = lam[..., None, :], v[..., None, :, :], vi[..., None, :, :]
     e = np.exp(lam * th[..., None])
-    return np.real((v * e[..., None, :]) @ vi)
+    out = (v * e[..., None, :]) @ vi
+    return np.real(out) if np.iscomplexobj(out) else out
 
 
 def steady(s: Mapping[str, np.ndarray], th: np.ndarray) -> np.ndarray:

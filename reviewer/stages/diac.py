@@ -1,7 +1,9 @@
 """The diac–RC trigger stage (``diac-rc``) and the ``diac.*`` checks.
 
-An RC phase-shift network across the triac (fed from the line through the load, whose drop
-is neglected while the triac is off) charges a capacitor to the diac's breakover voltage.
+An RC phase-shift network across the triac (fed from the line through the load: with an
+R–L load, diac.firing-range, diac.snap-on and the power stage's firing range model the load's
+drop while the triac is off; with a resistive load, and in diac.symmetry, it is neglected)
+charges a capacitor to the diac's breakover voltage.
 Single time constant: ``pot`` + ``series_r`` charge ``c``; double: then ``r2`` charges ``c2``,
 across which the diac sits. :func:`bind_firing` / :func:`firing_from` give a power stage
 whose gate is this stage its firing range.
@@ -77,10 +79,12 @@ def _double(ctx: Context, stage: Stage | None = None) -> bool:
 
 
 def _bind_network(ctx: Context, b: Bound, stage: Stage | None = None, prefix: str = "",
-                  pot: str = "ends", sweep: int = 0, fed: bool = True) -> None:
+                  pot: str = "ends", sweep: int = 0, fed: bool = True,
+                  snubber: bool = True) -> None:
     """Line, network and diac inputs. ``pot``: "ends" adds r_lo/r_hi (pot ends + series R),
     "none" leaves the pot out, "swept" adds the pot itself (with ``sweep``) and its ends.
-    ``fed``: the check models the network fed through an R–L load (:func:`_bind_load`)."""
+    ``fed``: the check models the network fed through an R–L load (:func:`_bind_load`), with
+    a snubber's current through it (``snubber``)."""
     st = stage or ctx.stage
     if ctx.project.supply.get("kind") != "ac":
         raise ProjectError("a diac-rc stage needs an ac supply (the line it phase-shifts)",
@@ -98,7 +102,7 @@ def _bind_network(ctx: Context, b: Bound, stage: Stage | None = None, prefix: st
     if _double(ctx, st):
         ctx.need(b, prefix + "r2", ctx.stage_path("r2", st))
         ctx.need(b, prefix + "c2", ctx.stage_path("c2", st))
-    _bind_load(ctx, b, st, prefix, fed)
+    _bind_load(ctx, b, st, prefix, fed, snubber)
     if pot != "none":
         pv: Value = st.get("pot")
         path = ctx.stage_path("pot", st)
@@ -120,7 +124,8 @@ def _power_stage(ctx: Context, st: Stage) -> Stage | None:
     return fired[0] if fired else None
 
 
-def _bind_load(ctx: Context, b: Bound, st: Stage, prefix: str, fed: bool = True) -> None:
+def _bind_load(ctx: Context, b: Bound, st: Stage, prefix: str, fed: bool = True,
+               snubber: bool = True) -> None:
     """The R–L load of the triac stage this trigger fires, as ``rl_r``/``rl_l`` inputs
     (prefixed), only where its ``load.l`` is given: a resistive load's inputs stay as they
     are. ``fed``: the check feeds the network through that load while the triac is off,
@@ -136,7 +141,7 @@ def _bind_load(ctx: Context, b: Bound, st: Stage, prefix: str, fed: bool = True)
     b.add(prefix + "rl_l", ctx.stage_path("load.l", power), lv)
     if fed:
         b.options[prefix + "rl_fed"] = True
-        snubs = ctx.stages_of(("rc-snubber",), "across", power.id)
+        snubs = ctx.stages_of(("rc-snubber",), "across", power.id) if snubber else []
         for sn in snubs[:1]:
             ctx.need(b, prefix + "rs", ctx.stage_path("r", sn))
             ctx.need(b, prefix + "cs", ctx.stage_path("c", sn))
@@ -190,8 +195,11 @@ def bind_firing(ctx: Context, b: Bound, stage: Stage, *, sweep: int = 0,
     A corner that does not fire gives NaN angles, which no check passes.
     """
     had_vs, had_f = "vs" in b.inputs, "freq" in b.inputs
+    # The snubber's current through the load is left out here (it delays the firing by
+    # about a degree at a fan's low end: the earlier angle is the heavier duty for the
+    # triac's currents, and its corners would multiply every power check's rows by four).
     _bind_network(ctx, b, stage, prefix="dt_", pot="swept", sweep=max(sweep, 2) if sweep
-                  else 0)
+                  else 0, snubber=False)
     if not had_vs:
         b.options["firing_vs_only"] = True
     if not had_f:
