@@ -1,8 +1,11 @@
 """A diac fired from an RC phase-shift network on the line: firing angle, snap-on, gate pulse,
 half-cycle symmetry.
 
-The network is fed from the line through the load, the load's drop neglected while the triac
-is off (its resistance is far below the network's). Single time constant: R1 (pot + series R)
+The network is fed from the line through the load. Here the load's drop while the triac is
+off is neglected (its impedance is far below the network's); with the R–L load itself given
+(``rl_r``, ``rl_l``, and a snubber's ``rs``, ``cs``) :func:`firing_angle` and :func:`limit_r`
+feed the network through it instead (:mod:`checks.diac_load`: off- and on-state matrices,
+one or two sections, refirings followed). Single time constant: R1 (pot + series R)
 charges C1, the diac sits across C1. Double time constant: R1–C1, then R2–C2, the diac across
 C2. Angles are in radians from the line's zero crossing; θ = ωt.
 
@@ -39,7 +42,7 @@ from typing import Any
 
 import numpy as np
 
-from checks import diac_single, memo, rl, triac
+from checks import diac_load, diac_single, memo, rl, triac
 from checks.core import FAIL, MARGINAL, PASS, Outcome, as_array, cold_value
 from checks.memo import memoised
 
@@ -610,7 +613,8 @@ def _blocked(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any])
     return np.concatenate(parts).reshape(shape)
 
 
-_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi")
+_ANGLE_ARGS = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "phi", "rl_r", "rl_l",
+               "rs", "cs")
 
 
 def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
@@ -666,7 +670,9 @@ def _by_row(fn: Callable[..., Any], names: tuple[str, ...], kw: dict[str, Any],
 def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                 phi: np.ndarray | float = 0.0) -> np.ndarray:
+                 phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+                 rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+                 cs: np.ndarray | float = np.nan) -> np.ndarray:
     """Firing angle α [rad]: the first crossing of VBO by the steady sine (``running`` False:
     the diac starts firing) or, with it firing every half-cycle, the first root of
     :func:`running_excess` (``running`` True); NaN: no firing in its half-cycle.
@@ -676,20 +682,298 @@ def firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.nd
     triac shorts the network while it conducts, so the capacitor restarts below VBO at the
     current's zero and the first root lies above φ; a row where it does not (the state just
     above φ already past VBO: continuous conduction) has no consistent state and is NaN, as
-    is a second section with an R–L load (not modelled).
+    is a second section with an R–L load given by ``phi`` alone (give ``rl_r``, ``rl_l``).
 
     vm [V] line crest; omega [rad/s]; r1 [Ω] pot + series R; c1 [F]; vbo [V]; breakback [V]
     the drop ΔV when the diac fires; r2, c2 the second section (NaN: single).
+
+    ``rl_r`` [Ω], ``rl_l`` [H]: the R–L load itself (NaN: its drop neglected, ``phi`` alone).
+    Given, the network is fed through the load while the triac is off (and ``rs`` [Ω],
+    ``cs`` [F], a snubber across the triac, draws its current through it too), φ is
+    atan(ωL/R), one or two sections (:func:`_load_running`; :mod:`checks.diac_load`).
 
     >>> round(float(np.degrees(firing_angle(vm=325.0, omega=2 * np.pi * 50, r1=100e3,
     ...                                     c1=100e-9, vbo=32.0))), 2)
     91.29
     """
     kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
-          "running": running, "r2": r2, "c2": c2, "phi": phi}
+          "running": running, "r2": r2, "c2": c2, "phi": phi, "rl_r": rl_r, "rl_l": rl_l,
+          "rs": rs, "cs": cs}
     if not running:
         return _firing_angle(**kw)
+    if _with_load(rl_r, rl_l) and np.all(np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0)
+                                         & np.isfinite(as_array(rl_r))):
+        names = ("vm", "omega", "r1", "c1", "vbo", "breakback", "r2", "c2", "rl_r", "rl_l",
+                 "rs", "cs")
+        got = _by_row(_load_rows, names, {k: kw[k] for k in names}, "checks.diac.running_load")
+        return got[0]
     return _by_row(_firing_angle, _ANGLE_ARGS, kw, "checks.diac.running")
+
+
+def _with_load(rl_r: Any, rl_l: Any) -> bool:
+    return bool(np.any(np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0)
+                       & np.isfinite(as_array(rl_r))))
+
+
+def _load_excess(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any, r2: Any,
+                 c2: Any, rl_r: Any, rl_l: Any, rs: Any, cs: Any, shape: tuple[int, ...]
+                 ) -> tuple[dict[str, np.ndarray], np.ndarray, Callable[..., np.ndarray],
+                            Callable[..., np.ndarray]]:
+    """The load model's system, load angle φ, restart γ(α) and running excess g(α) =
+    v_diac(α⁻) − VBO, on the rows of ``shape`` flattened (α: rows × points; ``idx``, a
+    subset of the rows)."""
+    def b(x: Any) -> np.ndarray:
+        return np.broadcast_to(as_array(x), shape).ravel()
+
+    w, rr, ll, dv, lv = b(omega), b(rl_r), b(rl_l), b(breakback), b(vbo)
+    s = diac_load.system(vm=b(vm), omega=w, r1=b(r1), c1=b(c1), rl_r=rr, rl_l=ll, r2=b(r2),
+                         c2=b(c2), rs=b(rs), cs=b(cs))
+    ph = np.arctan2(w * ll, rr)
+    # the load's current at the firing, over its crest current Vm/|Z|, per unit of u = R1·i
+    per_u = np.hypot(rr, w * ll) / (b(vm) * np.maximum(b(r1), 1.0))
+
+    def gamma(a: np.ndarray, idx: Any = slice(None)) -> np.ndarray:
+        p = np.broadcast_to(ph[idx][:, None], a.shape)
+        ok = a > p
+        beta = _extinction(np.where(ok, a, np.pi / 2), np.where(ok, p, 0.5))
+        return np.where(ok, beta - np.pi, np.nan)
+
+    def g(a: np.ndarray, idx: Any = slice(None), exact: bool = True) -> np.ndarray:
+        sub = s if isinstance(idx, slice) else diac_load.rows(s, idx)
+        gm = gamma(a, idx)
+        _, xa = diac_load.running_state(sub, alpha=a, gam=gm, breakback=dv[idx][:, None])
+        if exact:  # the current already in the load at α moves its zero: once more with it
+            gm = _restart_from(a, gm, ph[idx][:, None], xa[..., 0] * per_u[idx][:, None])
+            _, xa = diac_load.running_state(sub, alpha=a, gam=gm, breakback=dv[idx][:, None])
+        return diac_load.diac_value(sub, xa) - lv[idx][:, None]
+
+    s["per_u"] = per_u
+    return s, ph, gamma, g
+
+
+def _restart_from(a: np.ndarray, gam: np.ndarray, ph: np.ndarray, i0: np.ndarray
+                  ) -> np.ndarray:
+    """γ = β − π where the R–L current that starts at α from i0 (over Vm/|Z|; from γ, its
+    zero from rest) ends: sin(β − φ) = (sin(α − φ) − i0)·e^(−(β − α)/tan φ), by Newton's
+    method (three steps from the zero from rest: i0 is a few thousandths)."""
+    inv = 1.0 / np.tan(ph)
+    k = np.sin(a - ph) - i0
+    beta = np.pi + gam
+    for _ in range(3):
+        e = k * np.exp(-(beta - a) * inv)
+        beta = beta - (np.sin(beta - ph) - e) / (np.cos(beta - ph) + e * inv)
+    return beta - np.pi
+
+
+def _load_root(g: Callable[..., np.ndarray], lo: np.ndarray, hi: Any,
+               grid: int = _GRID) -> tuple[np.ndarray, np.ndarray]:
+    """The first α in (lo, hi] where g(α) ≥ 0 per row (flat), NaN without one, and g(lo): a
+    grid of ``grid`` points brackets it, then false position (Illinois) on the rows still
+    open, each leaving once its bracket is below 1e-13 rad (at most 40 steps)."""
+    n = lo.shape[0]
+    hi = np.broadcast_to(as_array(hi), lo.shape)
+    u = np.linspace(0.0, 1.0, grid + 1)[1:]
+    th = lo[:, None] + (hi - lo)[:, None] * u
+    vals = g(th)
+    up = vals >= 0
+    has = up.any(axis=-1)
+    i = np.argmax(up, axis=-1)
+    r = np.arange(n)
+    b, fb = th[r, i], vals[r, i]
+    first = i == 0
+    f_lo = g(lo[:, None])[:, 0]
+    a = np.where(first, lo, th[r, np.maximum(i - 1, 0)])
+    fa = np.where(first, f_lo, vals[r, np.maximum(i - 1, 0)])
+    fa = np.where(fa >= 0, -1e-300, fa)
+    side = np.zeros(n, dtype=int)
+    act = np.flatnonzero(has)
+    for _ in range(40):
+        act = act[b[act] - a[act] > 1e-13]
+        if not act.size:
+            break
+        aa, bb, ffa, ffb = a[act], b[act], fa[act], fb[act]
+        x = np.where(ffb != ffa, bb - ffb * (bb - aa) / (ffb - ffa), 0.5 * (aa + bb))
+        x = np.where((x > aa) & (x < bb), x, 0.5 * (aa + bb))
+        fx = g(x[:, None], act)[:, 0]
+        pos = fx >= 0
+        sd = side[act]
+        ffa = np.where(pos & (sd == 1), 0.5 * ffa, ffa)
+        ffb = np.where(~pos & (sd == -1), 0.5 * ffb, ffb)
+        b[act], fb[act] = np.where(pos, x, bb), np.where(pos, fx, ffb)
+        a[act], fa[act] = np.where(pos, aa, x), np.where(pos, ffa, fx)
+        side[act] = np.where(pos, 1, -1)
+    return np.where(has, b, np.nan), f_lo
+
+
+_NEAR = 0.1  # [rad] half-width of the bracket about the angle with the load's drop neglected
+_BELOW = 12  # grid points confirming that the excess stays negative below that bracket
+
+
+def _guess_angle(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any, r2: Any,
+                 c2: Any, phi: np.ndarray, shape: tuple[int, ...]) -> np.ndarray:
+    """The running angle with the load's drop neglected (flat rows; NaN where that model
+    has none): a start for :func:`_near_root`."""
+    if _double(as_array(r2), as_array(c2)).any():
+        return np.full(int(np.prod(shape)) if shape else 1, np.nan)
+    return np.ravel(np.broadcast_to(firing_angle(
+        vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback, running=True,
+        phi=phi), shape))
+
+
+def _near_root(g: Callable[..., np.ndarray], floor: np.ndarray, top: float,
+               guess: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_load_root` started from ``guess``: where g < 0 at the floor, on a grid of
+    _BELOW points up to guess − _NEAR and there, and g ≥ 0 at guess + _NEAR, the first root
+    lies in that bracket (to the grid's resolution, as :func:`_load_root` itself) and false
+    position narrows it; the other rows get the full search. (g at the floor, the root)."""
+    n = floor.shape[0]
+    lo = np.maximum(floor, guess - _NEAR)
+    hi = np.minimum(top, guess + _NEAR)
+    ok = np.isfinite(guess) & (hi > lo) & (lo > floor)
+    alpha, f_lo = np.full(n, np.nan), np.full(n, np.nan)
+    idx = np.flatnonzero(ok)
+    if idx.size:
+        u = np.linspace(0.0, 1.0, _BELOW + 1)
+        below = floor[idx, None] + (lo[idx] - floor[idx])[:, None] * u
+        vals = g(below, idx, exact=False)  # signs far from the root: the start's current
+        top_v = g(hi[idx, None], idx)[:, 0]  # does not change them
+        good = (vals < 0).all(axis=-1) & (top_v >= 0)
+        take = idx[good]
+        if take.size:
+            a, _ = _load_root(lambda x, i=None: g(x, take if i is None else take[i]),
+                              lo[take], hi[take], grid=1)
+            alpha[take], f_lo[take] = a, vals[good, 0]
+        ok[idx[~good]] = False
+    rest = np.flatnonzero(~ok)
+    if rest.size:
+        a, fl = _load_root(lambda x, i=None: g(x, rest if i is None else rest[i]),
+                           floor[rest], top)
+        alpha[rest], f_lo[rest] = a, fl
+    return alpha, f_lo
+
+
+def _load_half(s: Mapping[str, np.ndarray], x: np.ndarray, gin: np.ndarray, ph: np.ndarray,
+               per_u: np.ndarray, lv: np.ndarray, dv: np.ndarray
+               ) -> tuple[np.ndarray, ...]:
+    """One half-cycle of the load model from state ``x`` (u = 0) at the current's zero
+    ``gin``, in its own sign's frame (flat rows): the triac off until the diac's capacitor
+    reaches ``lv`` at α, on to the current's zero β (from the current already in the load at
+    α), the network free meanwhile and the diac firing again (ΔV each time) wherever C1
+    brings C2 back to ``lv``. (α, the next half's start mirrored, its γ = β − π, refirings,
+    trusted.)"""
+    m = x.shape[0]
+    xs_g = diac_load.steady(s, gin)
+
+    def vd_off(th: np.ndarray) -> np.ndarray:
+        p = diac_load.phi(s, "off", th - gin[:, None])
+        xx = diac_load.steady(s, th) + (p @ (x - xs_g)[:, None, :, None])[..., 0]
+        return diac_load.diac_value(s, xx) - lv[:, None]
+
+    top = np.full(m, np.pi * (1 - 1e-12))
+    alpha = _root_in(vd_off, gin, top, grid=48)
+    fired = np.isfinite(alpha)
+    a = np.where(fired, alpha, np.pi / 2)
+    p = diac_load.phi(s, "off", a - gin)
+    xa = diac_load.steady(s, a) + (p @ (x - xs_g)[..., None])[..., 0]
+    gm0 = _extinction(a, ph) - np.pi
+    gm = _restart_from(a, gm0, ph, xa[:, 0] * per_u)
+    beta = np.pi + gm
+    kick = diac_load.kick(s, dv, 1)
+    y, t = xa - kick, a.copy()
+    n = np.zeros(m, dtype=int)
+    hit = np.zeros(m, dtype=bool)
+    for _ in range(_REFIRE_MAX):
+        y0, t0 = y, t
+
+        def free(th: np.ndarray, y0: np.ndarray = y0, t0: np.ndarray = t0) -> np.ndarray:
+            q = diac_load.phi(s, "on", th - t0[:, None])
+            return diac_load.diac_value(s, (q @ y0[:, None, :, None])[..., 0]) - lv[:, None]
+
+        again = _root_in(free, t, beta)
+        hit = np.isfinite(again) & fired & (again < beta)
+        if not hit.any():
+            break
+        q = diac_load.phi(s, "on", np.where(hit, again, t) - t)
+        y = np.where(hit[:, None], (q @ y[..., None])[..., 0] - kick, y)
+        t = np.where(hit, again, t)
+        n = n + hit
+    q = diac_load.phi(s, "on", beta - t)
+    end = (q @ y[..., None])[..., 0]
+    end[:, 0] = 0.0
+    return alpha, -end, gm, n, fired & ~hit
+
+
+def _load_refiring(s: Mapping[str, np.ndarray], x0: np.ndarray, gam: np.ndarray,
+                   ph: np.ndarray, per_u: np.ndarray, lv: np.ndarray, dv: np.ndarray,
+                   steps: int = 8) -> tuple[np.ndarray, np.ndarray]:
+    """The periodic state with refirings (a second section, the R–L load): Newton's method
+    on z = (x without u, γ) ↦ :func:`_load_half`(z) − z from the closed form's state (the
+    Jacobian by differences of 1e-6·VBO and 1e-7 rad). (α, trusted: residual below
+    1e-8·VBO and 1e-9 rad, no half-cycle left unresolved)."""
+    m, n = x0.shape
+    z = np.concatenate([x0[:, 1:], gam[:, None]], axis=1)
+    step = np.concatenate([np.repeat((1e-6 * lv)[:, None], n - 1, axis=1),
+                           np.full((m, 1), 1e-7)], axis=1)
+
+    def h(zz: np.ndarray) -> tuple[np.ndarray, ...]:
+        xx = np.concatenate([np.zeros((m, 1)), zz[:, :-1]], axis=1)
+        a, nxt, g_next, _, ok = _load_half(s, xx, zz[:, -1], ph, per_u, lv, dv)
+        return np.concatenate([nxt[:, 1:], g_next[:, None]], axis=1) - zz, a, ok
+
+    for _ in range(steps):
+        f, _, _ = h(z)
+        if (np.abs(f) <= 1e-3 * step).all():
+            break
+        jac = np.empty((m, n, n))
+        for k in range(n):
+            dz = np.zeros_like(z)
+            dz[:, k] = step[:, k]
+            jac[:, :, k] = (h(z + dz)[0] - f) / step[:, k:k + 1]
+        z = z - np.linalg.solve(jac, f[..., None])[..., 0]
+    f, a, ok = h(z)
+    good = ok & (np.abs(f[:, :-1]) <= 1e-8 * lv[:, None]).all(axis=1) & (np.abs(f[:, -1]) <= 1e-9)
+    return np.where(good, a, np.nan), good
+
+
+def _load_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
+                  vbo: np.ndarray, breakback: np.ndarray | float, r2: Any, c2: Any,
+                  rl_r: Any, rl_l: Any, rs: Any, cs: Any,
+                  shape: tuple[int, ...]) -> tuple[np.ndarray, np.ndarray]:
+    """The running angle with the network fed through the R–L load while the triac is off
+    (:func:`checks.diac_load.running_state`: the first root of v_diac(α⁻) − VBO over
+    (φ, π)), and a mask of the rows trusted: False where the state just above φ is already
+    past VBO (continuous conduction, NaN angle) or where a second section brings the diac's
+    capacitor back to VBO while the triac conducts (a refiring, not followed here)."""
+    s, ph, gamma, g = _load_excess(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo,
+                                   breakback=breakback, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                   rs=rs, cs=cs, shape=shape)
+    per_u = s.pop("per_u")
+    dv = np.broadcast_to(as_array(breakback), shape).ravel()
+    lv = np.broadcast_to(as_array(vbo), shape).ravel()
+    with np.errstate(all="ignore"):
+        floor = ph + _PHI_GAP
+        top = np.pi * (1 - 1e-12)
+        alpha, f_lo = _near_root(g, floor, top, _guess_angle(
+            vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback, r2=r2, c2=c2,
+            phi=ph.reshape(shape), shape=shape))
+        trusted = ~(f_lo >= 0)
+        fired = np.isfinite(alpha)
+        a = np.where(fired, alpha, np.pi / 2)
+        gm = gamma(a[:, None])[:, 0]
+        _, xa = diac_load.running_state(s, alpha=a, gam=gm, breakback=dv)
+        gm = _restart_from(a, gm, ph, xa[..., 0] * per_u)
+        x0, xa = diac_load.running_state(s, alpha=a, gam=gm, breakback=dv)
+        after = xa - diac_load.kick(s, dv, a.ndim)
+        again = diac_load.refires(s, x_after=after, level=lv, span=np.pi + gm - a)
+        redo = np.flatnonzero(fired & again & (s["diac"] == 2))
+        if redo.size:  # C1 brings C2 back to VBO while the triac conducts: follow it
+            sub = diac_load.rows(s, redo)
+            a_r, ok_r = _load_refiring(sub, x0[redo], gm[redo], ph[redo], per_u[redo],
+                                       lv[redo], dv[redo])
+            alpha[redo] = a_r
+            trusted[redo] &= ok_r
+        trusted &= (s["off_cond"] < 1e10) & (s["on_cond"] < 1e10)
+    return (np.where(trusted, alpha, np.nan).reshape(shape), trusted.reshape(shape))
 
 
 def running_pair(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
@@ -737,11 +1021,49 @@ def crossing(*, vm: np.ndarray, gain: np.ndarray, lag: np.ndarray,
     return np.where((amp > level) & (a < np.pi), a, np.nan)
 
 
+def unresolved(*, vm: Any, omega: Any, r1: Any, c1: Any, vbo: Any, breakback: Any,
+               r2: Any = np.nan, c2: Any = np.nan, rl_r: Any = np.nan, rl_l: Any = np.nan,
+               rs: Any = np.nan, cs: Any = np.nan) -> np.ndarray:
+    """Rows whose running state with the load (:func:`_load_running`) is not trusted
+    although the circuit may fire there: a second section refiring while the triac
+    conducts, or a continuous conduction (True)."""
+    kw = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "breakback": breakback,
+          "r2": r2, "c2": c2, "rl_r": rl_r, "rl_l": rl_l, "rs": rs, "cs": cs}
+    if not _with_load(rl_r, rl_l):
+        return np.zeros(np.broadcast_shapes(*(np.shape(v) for v in kw.values())), dtype=bool)
+    return ~_by_row(_load_rows, tuple(kw), kw, "checks.diac.running_load")[1]
+
+
+def _load_rows(**k: Any) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`_load_running` on rows of inputs (the shape theirs)."""
+    shape = np.broadcast_shapes(*(np.shape(v) for v in k.values()))
+    return _load_running(shape=shape, **k)
+
+
 def _firing_angle(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np.ndarray,
                  vbo: np.ndarray, breakback: np.ndarray | float = 0.0, running: bool = False,
                  r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                 phi: np.ndarray | float = 0.0) -> np.ndarray:
+                 phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+                 rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+                 cs: np.ndarray | float = np.nan) -> np.ndarray:
     """firing_angle: see there (one block of rows)."""
+    if _with_load(rl_r, rl_l):
+        load = np.isfinite(as_array(rl_l)) & (as_array(rl_l) > 0) & np.isfinite(as_array(rl_r))
+        args = {"vm": vm, "omega": omega, "r1": r1, "c1": c1, "vbo": vbo, "r2": r2, "c2": c2}
+        shape = np.broadcast_shapes(*(np.shape(x) for x in (*args.values(), breakback, phi,
+                                                             rl_r, rl_l, rs, cs)))
+        if running:
+            got = _load_running(breakback=breakback, rl_r=rl_r, rl_l=rl_l, rs=rs, cs=cs,
+                                shape=shape, **args)[0]
+        else:
+            s = diac_load.system(vm=vm, omega=omega, r1=r1, c1=c1, rl_r=rl_r, rl_l=rl_l,
+                                 r2=r2, c2=c2, rs=rs, cs=cs)
+            amp, lag = diac_load.amplitude_lag(s)
+            got = crossing(vm=amp, gain=1.0, lag=lag, level=as_array(vbo))
+        if np.all(load):
+            return np.broadcast_to(got, shape)
+        rest = _firing_angle(breakback=breakback, running=running, phi=phi, **args)
+        return np.where(load, got, rest)
     if running:
         shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, r1, c1, vbo, breakback,
                                                              r2, c2, phi)))
@@ -812,17 +1134,24 @@ def _single_running(*, vm: np.ndarray, omega: np.ndarray, r1: np.ndarray, c1: np
 def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
             breakback: np.ndarray | float = 0.0, running: bool = False,
             r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-            phi: np.ndarray | float = 0.0) -> np.ndarray:
+            phi: np.ndarray | float = 0.0, rl_r: np.ndarray | float = np.nan,
+            rl_l: np.ndarray | float = np.nan, rs: np.ndarray | float = np.nan,
+            cs: np.ndarray | float = np.nan) -> np.ndarray:
     """The largest R1 [Ω] that still fires (starting, or ``running``), solved per row by
     bisection in log R over 1 Ω … 1 GΩ (firing stops once as R1 rises: G falls and ψ grows);
     NaN where even 1 Ω does not fire. Single section, starting: ωR1C1 = √((Vm/VBO)² − 1).
     ``phi``: an R–L load's angle (running: the grid runs over (φ, π), :func:`running_excess`).
+    ``rl_r``, ``rl_l``, ``rs``, ``cs``: the load itself and a snubber (:func:`firing_angle`).
 
     >>> round(float(limit_r(vm=325.0, omega=2 * np.pi * 50, c1=100e-9, vbo=32.0)))
     321713
     """
     shape = np.broadcast_shapes(*(np.shape(x) for x in (vm, omega, c1, vbo, breakback, r2, c2,
-                                                         phi)))
+                                                         phi, rl_r, rl_l, rs, cs)))
+    load = _with_load(rl_r, rl_l)
+    if load:
+        phi = np.arctan2(as_array(omega) * as_array(rl_l), as_array(rl_r))
+        phi = np.where(np.isfinite(phi), phi, 0.0)
     lo = np.full(shape, 0.0)
     hi = np.full(shape, np.log(1e9))
 
@@ -831,7 +1160,7 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
         floor = _alpha_floor(phi, shape)[..., None]
         th = floor + (np.pi - floor) * np.linspace(0.0, 1.0, _GRID + 1)[1:-1]
 
-    single = running and not _double(as_array(r2), as_array(c2)).any()
+    single = running and not load and not _double(as_array(r2), as_array(c2)).any()
     fast = diac_single.grid_fires(
         vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=as_array(breakback), phi=as_array(phi),
         floor=_alpha_floor(phi, shape), u=np.linspace(0.0, 1.0, _GRID + 1)[1:-1],
@@ -842,7 +1171,15 @@ def limit_r(*, vm: np.ndarray, omega: np.ndarray, c1: np.ndarray, vbo: np.ndarra
             return fast(np.exp(ln_r))
         if not running:
             return np.isfinite(firing_angle(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1,
-                                            vbo=vbo, r2=r2, c2=c2))
+                                            vbo=vbo, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                            rs=rs, cs=cs))
+        if load:  # the same grid test on the load model's excess
+            with np.errstate(all="ignore"):
+                g = _load_excess(vm=vm, omega=omega, r1=np.exp(ln_r), c1=c1, vbo=vbo,
+                                 breakback=breakback, r2=r2, c2=c2, rl_r=rl_r, rl_l=rl_l,
+                                 rs=rs, cs=cs, shape=shape)[3]
+                pts = np.broadcast_to(th, shape + (np.shape(th)[-1],))
+                return (g(pts.reshape(-1, pts.shape[-1])) >= 0).any(axis=-1).reshape(shape)
         # Running: a root exists where the excess is non-negative somewhere on the grid
         # (the same test as :func:`_first_root`), so the angle itself is not needed.
         def c(x: np.ndarray | float) -> np.ndarray:
@@ -884,7 +1221,8 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
                        series_r: np.ndarray, limits: Mapping[str, float],
                        r2: np.ndarray | float = np.nan,
                        c2: np.ndarray | float = np.nan,
-                       phi: np.ndarray | float = 0.0) -> Outcome:
+                       phi: np.ndarray | float = 0.0,
+                       load: Mapping[str, Any] | None = None) -> Outcome:
     """``diac.firing-range``: the firing angles at the ends of the pot, against the target.
 
     vs [V] RMS line; freq [Hz]; r_lo, r_hi [Ω] R1 at the pot's ends (pot + series R); c1 [F];
@@ -896,17 +1234,23 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     says the pot setting above which it does not. Metric: the smaller of target_lo/α_lo and
     α_hi/target_hi (≥ 1 passes), graded with ``fail_below`` and ``marginal_below``.
     ``phi`` [rad]: the load angle of an R–L load (the running angles follow its current's
-    zero, :func:`running_excess`), reported as ``load_angle``.
+    zero, :func:`running_excess`), reported as ``load_angle``. ``load``: the R–L load itself
+    and a snubber (``rl_r``, ``rl_l``, ``rs``, ``cs`` of :func:`firing_angle`): the network
+    is then fed through the load while the triac is off, one or two sections; a second
+    section that refires while the triac conducts is not resolved (NaN, ``refires`` 1).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
-    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    ld = dict(load or {})
+    if ld:
+        phi = np.arctan2(omega * as_array(ld["rl_l"]), as_array(ld["rl_r"]))
+    a_lo_start = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_lo = firing_angle(vm=vm, omega=omega, r1=r_lo, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2, phi=phi)
-    a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi, **ld)
+    a_hi_start = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_hi = firing_angle(vm=vm, omega=omega, r1=r_hi, c1=c1, vbo=vbo, breakback=breakback,
-                        running=True, r2=r2, c2=c2, phi=phi)
-    r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+                        running=True, r2=r2, c2=c2, phi=phi, **ld)
+    r_start = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     never = ~np.isfinite(a_hi_start) | ~np.isfinite(a_lo_start) | ~np.isfinite(a_lo) \
         | ~np.isfinite(a_hi)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -925,13 +1269,21 @@ def firing_range_check(*, vs: np.ndarray, freq: np.ndarray, r_lo: np.ndarray, r_
     notes = ["no firing at the pot's top end at some corners"] if never.any() else []
     if np.any(as_array(phi) > 0):
         values["load_angle"] = np.broadcast_to(as_array(phi), np.shape(a_lo))
+    if ld:
+        rows = np.broadcast_shapes(np.shape(a_lo), np.shape(vm))
+        ref = np.zeros(rows, dtype=bool)
+        for r1 in (r_lo, r_hi):
+            ref |= unresolved(vm=vm, omega=omega, r1=r1, c1=c1, vbo=vbo, breakback=breakback,
+                              r2=r2, c2=c2, **ld)
+        values["refires"] = ref.astype(float)
     return Outcome(values, margin, status, notes)
 
 
 def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.ndarray,
                   breakback: np.ndarray, series_r: np.ndarray, limits: Mapping[str, float],
                   r2: np.ndarray | float = np.nan, c2: np.ndarray | float = np.nan,
-                  phi: np.ndarray | float = 0.0) -> Outcome:
+                  phi: np.ndarray | float = 0.0,
+                  load: Mapping[str, Any] | None = None) -> Outcome:
     """``diac.snap-on``: the jump in firing angle where the load snaps on.
 
     R_on = :func:`limit_r` (starting): there vss just reaches VBO, and once it fires the
@@ -942,18 +1294,20 @@ def snap_on_check(*, vs: np.ndarray, freq: np.ndarray, c1: np.ndarray, vbo: np.n
     ΔQ = C·ΔV each firing takes from the diac's capacitor (C2 with a second section) [C],
     which with the triac's short of the network sets the running state. Graded against
     ``max_jump_deg`` (marginal above ``marginal_fraction`` of it). ``phi``: an R–L load's
-    angle (the running state follows its current's zero).
+    angle (the running state follows its current's zero); ``load`` the load itself and a
+    snubber, as :func:`firing_range_check` (the network fed through the load while off).
     """
     vm = np.sqrt(2.0) * as_array(vs)
     omega = 2 * np.pi * as_array(freq)
-    r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    ld = dict(load or {})
+    r_on = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     r_off = limit_r(vm=vm, omega=omega, c1=c1, vbo=vbo, breakback=breakback, running=True,
-                    r2=r2, c2=c2, phi=phi)
+                    r2=r2, c2=c2, phi=phi, **ld)
     # Just inside the starting limit (the angle there is the limit of α as R → R_on⁻).
     r_at = r_on * (1 - 1e-9)
-    a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2)
+    a_start = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, r2=r2, c2=c2, **ld)
     a_run = firing_angle(vm=vm, omega=omega, r1=r_at, c1=c1, vbo=vbo, breakback=breakback,
-                         running=True, r2=r2, c2=c2, phi=phi)
+                         running=True, r2=r2, c2=c2, phi=phi, **ld)
     jump = a_start - a_run
     p = 1 - a_run / np.pi + np.sin(2 * a_run) / (2 * np.pi)
     limit = np.radians(float(limits.get("max_jump_deg", 35.0)))
